@@ -1,0 +1,310 @@
+//! Ellipses given by centre, semi-axes and angle, with their inward parallel curves.
+//!
+//! The ellipse is `P(t) = c + R(θ) (a cos t, b sin t)`, `a ≥ b > 0`, θ the direction of the
+//! major axis counter-clockwise from +x in (−π/2, π/2], `t` the eccentric anomaly. `P(t)` runs
+//! counter-clockwise as `t` grows.
+
+use super::{Point, Vec2};
+use serde::Serialize;
+use std::f64::consts::{FRAC_PI_2, PI};
+
+/// Why a set of numbers is not an ellipse.
+#[derive(Debug, Clone, PartialEq, thiserror::Error)]
+pub enum EllipseError {
+    #[error("semi-axes must be positive and finite (got {0} and {1})")]
+    BadAxes(f64, f64),
+    #[error("the shape matrix is not positive definite: the conic is not a real ellipse")]
+    NotPositiveDefinite,
+    #[error("the centre or angle is not a finite number")]
+    NotFinite,
+}
+
+/// An ellipse: centre, semi-axes `a ≥ b > 0` and major-axis angle in (−π/2, π/2].
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+pub struct Ellipse {
+    center: Point,
+    a: f64,
+    b: f64,
+    angle: f64,
+}
+
+impl Ellipse {
+    /// An ellipse with semi-axes `r1` along the direction `angle` and `r2` across it. The axes are
+    /// swapped and the angle normalised so that `a ≥ b` and the angle lies in (−π/2, π/2].
+    pub fn new(center: Point, r1: f64, r2: f64, angle: f64) -> Result<Self, EllipseError> {
+        if !(r1 > 0.0 && r2 > 0.0 && r1.is_finite() && r2.is_finite()) {
+            return Err(EllipseError::BadAxes(r1, r2));
+        }
+        if !(center.is_finite() && angle.is_finite()) {
+            return Err(EllipseError::NotFinite);
+        }
+        let (a, b, angle) = if r1 >= r2 {
+            (r1, r2, angle)
+        } else {
+            (r2, r1, angle + FRAC_PI_2)
+        };
+        Ok(Ellipse {
+            center,
+            a,
+            b,
+            angle: normalize_axis_angle(angle),
+        })
+    }
+
+    /// The ellipse `{x : (x−c)ᵀ Σ⁻¹ (x−c) = 1}` for the symmetric shape matrix
+    /// `Σ = [[sxx, sxy], [sxy, syy]] = R diag(a², b²) Rᵀ`.
+    ///
+    /// The eigen decomposition of the 2×2 matrix is done in closed form: with
+    /// `m = (sxx+syy)/2`, `d = hypot((sxx−syy)/2, sxy)`, the eigenvalues are `m ± d` and the major
+    /// axis makes the angle `½ atan2(2 sxy, sxx − syy)` with +x.
+    pub fn from_shape_matrix(
+        center: Point,
+        sxx: f64,
+        sxy: f64,
+        syy: f64,
+    ) -> Result<Self, EllipseError> {
+        let m = 0.5 * (sxx + syy);
+        let d = (0.5 * (sxx - syy)).hypot(sxy);
+        let big = m + d;
+        // The smaller eigenvalue from the determinant avoids cancellation when m ≈ d.
+        let det = sxx * syy - sxy * sxy;
+        if !(big > 0.0 && det > 0.0) || !det.is_finite() {
+            return Err(EllipseError::NotPositiveDefinite);
+        }
+        let small = det / big;
+        let angle = 0.5 * (2.0 * sxy).atan2(sxx - syy);
+        Ellipse::new(center, big.sqrt(), small.sqrt(), angle)
+    }
+
+    pub fn center(&self) -> Point {
+        self.center
+    }
+
+    /// Semi-major axis.
+    pub fn a(&self) -> f64 {
+        self.a
+    }
+
+    /// Semi-minor axis.
+    pub fn b(&self) -> f64 {
+        self.b
+    }
+
+    /// Direction of the major axis, radians counter-clockwise from +x, in (−π/2, π/2].
+    pub fn angle(&self) -> f64 {
+        self.angle
+    }
+
+    pub fn area(&self) -> f64 {
+        PI * self.a * self.b
+    }
+
+    /// The smallest radius of curvature, `b²/a`, found at the ends of the major axis.
+    pub fn min_radius_of_curvature(&self) -> f64 {
+        self.b * self.b / self.a
+    }
+
+    /// Shape matrix entries `(sxx, sxy, syy)` of `Σ = R diag(a², b²) Rᵀ`.
+    pub fn shape_matrix(&self) -> (f64, f64, f64) {
+        let (s, c) = self.angle.sin_cos();
+        let (a2, b2) = (self.a * self.a, self.b * self.b);
+        (
+            a2 * c * c + b2 * s * s,
+            (a2 - b2) * s * c,
+            a2 * s * s + b2 * c * c,
+        )
+    }
+
+    /// The largest extent of the ellipse along the unit direction `n` measured from its centre:
+    /// the support function `sqrt(nᵀ Σ n)`. The line `n·x = n·c + h(n)` touches the ellipse.
+    pub fn support(&self, n: Vec2) -> f64 {
+        let (sxx, sxy, syy) = self.shape_matrix();
+        (n.x * n.x * sxx + 2.0 * n.x * n.y * sxy + n.y * n.y * syy).sqrt()
+    }
+
+    fn to_world(&self, local: Vec2) -> Point {
+        self.center + local.rotated(self.angle)
+    }
+
+    fn to_local(&self, p: Point) -> Vec2 {
+        (p - self.center).rotated(-self.angle)
+    }
+
+    /// The point at eccentric anomaly `t`.
+    pub fn point(&self, t: f64) -> Point {
+        let (s, c) = t.sin_cos();
+        self.to_world(Vec2::new(self.a * c, self.b * s))
+    }
+
+    /// The derivative `dP/dt` (not unit length).
+    pub fn derivative(&self, t: f64) -> Vec2 {
+        let (s, c) = t.sin_cos();
+        Vec2::new(-self.a * s, self.b * c).rotated(self.angle)
+    }
+
+    /// The outward unit normal at `t`: `(b cos t, a sin t) / sqrt(b² cos² t + a² sin² t)` in the
+    /// ellipse's own frame.
+    pub fn outward_normal(&self, t: f64) -> Vec2 {
+        let (s, c) = t.sin_cos();
+        let n = Vec2::new(self.b * c, self.a * s);
+        (n / n.length()).rotated(self.angle)
+    }
+
+    /// The curvature at `t`: `κ(t) = ab / (a² sin² t + b² cos² t)^{3/2}`.
+    pub fn curvature(&self, t: f64) -> f64 {
+        let (s, c) = t.sin_cos();
+        let q = self.a * self.a * s * s + self.b * self.b * c * c;
+        self.a * self.b / (q * q.sqrt())
+    }
+
+    /// The point of the inward parallel curve at distance `d`: `O_d(t) = P(t) − d N(t)`.
+    ///
+    /// Its derivative is `P′(t) (1 − d κ(t))`, so the curve is regular and travels the same way
+    /// as the ellipse exactly when `d < b²/a`.
+    pub fn inward_offset_point(&self, t: f64, d: f64) -> Point {
+        self.point(t) - self.outward_normal(t) * d
+    }
+
+    /// Whether `p` lies strictly inside the ellipse.
+    pub fn contains(&self, p: Point) -> bool {
+        let q = self.to_local(p);
+        (q.x / self.a).powi(2) + (q.y / self.b).powi(2) < 1.0
+    }
+
+    /// The shortest distance from `p` to the ellipse curve, and the eccentric anomaly of the
+    /// nearest point.
+    ///
+    /// Method: D. Eberly, "Distance from a point to an ellipse, an ellipsoid, or a hyperellipsoid"
+    /// (Geometric Tools, 2013): in the first quadrant of the ellipse's frame the nearest point
+    /// solves `F(s) = (a x/(s + a²))² + (b y/(s + b²))² − 1 = 0`, monotone in `s ≥ −b²`, found by
+    /// bisection to the resolution of `f64`.
+    pub fn distance_to(&self, p: Point) -> (f64, f64) {
+        let q = self.to_local(p);
+        let (x0, y0) = (q.x.abs(), q.y.abs());
+        let (a, b) = (self.a, self.b);
+        let (xs, ys) = nearest_first_quadrant(a, b, x0, y0);
+        let x = xs.copysign(if q.x == 0.0 { 1.0 } else { q.x });
+        let y = ys.copysign(if q.y == 0.0 { 1.0 } else { q.y });
+        let t = (y / b).atan2(x / a);
+        let d = (x0 - xs).hypot(y0 - ys);
+        (d, t)
+    }
+}
+
+/// Nearest point of the first-quadrant arc of `x²/a² + y²/b² = 1` (a ≥ b) to `(x0, y0)`,
+/// `x0, y0 ≥ 0`.
+fn nearest_first_quadrant(a: f64, b: f64, x0: f64, y0: f64) -> (f64, f64) {
+    if y0 > 0.0 {
+        if x0 > 0.0 {
+            let f = |s: f64| {
+                let u = a * x0 / (s + a * a);
+                let v = b * y0 / (s + b * b);
+                u * u + v * v - 1.0
+            };
+            // F decreases on (−b², ∞). At s = −b² + b y0 the second term alone is 1, so F ≥ 0;
+            // at s = −b² + |(a x0, b y0)| both terms together are at most 1, so F ≤ 0 (Eberly).
+            let mut lo = -b * b + b * y0;
+            let mut hi = -b * b + (a * x0).hypot(b * y0);
+            for _ in 0..200 {
+                let mid = 0.5 * (lo + hi);
+                if mid == lo || mid == hi {
+                    break;
+                }
+                if f(mid) > 0.0 {
+                    lo = mid;
+                } else {
+                    hi = mid;
+                }
+            }
+            let s = 0.5 * (lo + hi);
+            (a * a * x0 / (s + a * a), b * b * y0 / (s + b * b))
+        } else {
+            (0.0, b)
+        }
+    } else {
+        // On the major axis: inside the evolute's reach the nearest point leaves the axis.
+        let numer = a * x0;
+        let denom = a * a - b * b;
+        if numer < denom {
+            let xd = numer / denom;
+            let x = a * xd;
+            let y = b * (1.0 - xd * xd).max(0.0).sqrt();
+            (x, y)
+        } else {
+            (a, 0.0)
+        }
+    }
+}
+
+/// Brings an axis direction into (−π/2, π/2] (an axis has no sense, so θ and θ + π agree).
+fn normalize_axis_angle(angle: f64) -> f64 {
+    let mut t = angle.rem_euclid(PI);
+    if t > FRAC_PI_2 {
+        t -= PI;
+    }
+    t
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn axes_are_sorted_and_angle_normalised() {
+        let e = Ellipse::new(Point::ORIGIN, 2.0, 5.0, 0.0).unwrap();
+        assert_eq!((e.a(), e.b()), (5.0, 2.0));
+        assert!((e.angle() - FRAC_PI_2).abs() < 1e-15);
+        let e = Ellipse::new(Point::ORIGIN, 5.0, 2.0, 3.0 * PI / 4.0).unwrap();
+        assert!((e.angle() + PI / 4.0).abs() < 1e-15);
+        assert!(Ellipse::new(Point::ORIGIN, 0.0, 1.0, 0.0).is_err());
+    }
+
+    #[test]
+    fn shape_matrix_round_trip() {
+        let e = Ellipse::new(Point::new(1.0, 2.0), 5.0, 3.0, 30f64.to_radians()).unwrap();
+        let (sxx, sxy, syy) = e.shape_matrix();
+        let f = Ellipse::from_shape_matrix(e.center(), sxx, sxy, syy).unwrap();
+        assert!((f.a() - 5.0).abs() < 1e-13 && (f.b() - 3.0).abs() < 1e-13);
+        assert!((f.angle() - e.angle()).abs() < 1e-13);
+        assert!(Ellipse::from_shape_matrix(Point::ORIGIN, 1.0, 2.0, 1.0).is_err());
+    }
+
+    #[test]
+    fn curvature_at_vertices() {
+        // b²/a at the ends of the major axis, a²/b at the ends of the minor axis
+        // (standard result; MATH-CHECKS.md §8 checks κ(0.7) = 0.022055036341354 for a=50, b=20).
+        let e = Ellipse::new(Point::ORIGIN, 50.0, 20.0, 0.0).unwrap();
+        assert!((1.0 / e.curvature(0.0) - 8.0).abs() < 1e-12);
+        assert!((1.0 / e.curvature(FRAC_PI_2) - 125.0).abs() < 1e-10);
+        assert!((e.curvature(0.7) - 0.022055036341354).abs() < 1e-14);
+    }
+
+    #[test]
+    fn inward_offset_matches_reference_values() {
+        // MATH-CHECKS.md §8 (offset.py): a = 50, b = 20, O_5(0.7) and O_8(0.7).
+        let e = Ellipse::new(Point::ORIGIN, 50.0, 20.0, 0.0).unwrap();
+        let p = e.inward_offset_point(0.7, 5.0);
+        assert!((p.x - 36.0972058502517).abs() < 1e-11 && (p.y - 8.36778547716973).abs() < 1e-11);
+        let p = e.inward_offset_point(0.7, 8.0);
+        assert!((p.x - 34.8102637418681).abs() < 1e-11 && (p.y - 5.65784451661928).abs() < 1e-11);
+    }
+
+    #[test]
+    fn distance_to_point_agrees_with_dense_search() {
+        let e = Ellipse::new(Point::new(3.0, -1.0), 50.0, 20.0, 0.4).unwrap();
+        let probes = [
+            Point::new(3.0, -1.0),
+            Point::new(40.0, 20.0),
+            Point::new(-60.0, 0.0),
+            Point::new(10.0, 2.0),
+            e.point(1.0),
+        ];
+        for p in probes {
+            let (d, _) = e.distance_to(p);
+            let brute = (0..200_000)
+                .map(|i| e.point(i as f64 * std::f64::consts::TAU / 200_000.0).distance(p))
+                .fold(f64::INFINITY, f64::min);
+            assert!((d - brute).abs() < 1e-6, "{p:?}: {d} vs {brute}");
+        }
+    }
+}

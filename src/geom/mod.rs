@@ -1,0 +1,23 @@
+//! Plane geometry shared by every stage: points, vectors, lines, segments, circular arcs and
+//! ellipses.
+//!
+//! # Units and conventions
+//!
+//! Millimetres and radians throughout. The plane is the drawing's XY plane seen from +Z: y up,
+//! counter-clockwise positive. Converting units happens only where files are read and written.
+//!
+//! A [`Point`] is a place and a [`Vec2`] a displacement; `Point - Point` is a `Vec2`, `Point + Vec2`
+//! is a `Point`, and there is no `Point + Point`.
+
+mod arc;
+mod ellipse;
+mod line;
+mod vector;
+
+pub use arc::ArcSegment;
+pub use ellipse::{Ellipse, EllipseError};
+pub use line::{Line, Segment};
+pub use vector::{Point, Vec2};
+
+/// Relative tolerance below which two lines count as parallel (sine of the angle between them).
+pub const PARALLEL_SINE: f64 = 1e-12;
