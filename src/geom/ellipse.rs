@@ -304,7 +304,12 @@ mod tests {
             let brute = (0..200_000)
                 .map(|i| e.point(i as f64 * std::f64::consts::TAU / 200_000.0).distance(p))
                 .fold(f64::INFINITY, f64::min);
-            assert!((d - brute).abs() < 1e-6, "{p:?}: {d} vs {brute}");
+            // Never worse than any sample, and the samples (0.0012 mm apart) come within
+            // 1e-3 mm of the true minimum; the reported anomaly gives the reported distance.
+            assert!(d <= brute + 1e-12, "{p:?}: {d} vs {brute}");
+            assert!(d >= brute - 1e-3, "{p:?}: {d} vs {brute}");
+            let (_, t) = e.distance_to(p);
+            assert!((e.point(t).distance(p) - d).abs() < 1e-9);
         }
     }
 }
