@@ -19,3 +19,4 @@ pub mod geom;
 pub mod chain;
 pub mod plan;
 pub mod fit;
+pub mod solve;
