@@ -16,7 +16,13 @@
 #![forbid(unsafe_code)]
 
 pub mod geom;
+pub mod read;
 pub mod chain;
 pub mod plan;
 pub mod fit;
 pub mod solve;
+pub mod post;
+pub mod preview;
+pub mod demo;
+pub mod report;
+pub mod job;

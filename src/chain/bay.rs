@@ -1,0 +1,273 @@
+//! Checking a closed loop on the bay layer and turning it into a [`Bay`].
+
+use super::{Bay, ChainError, Element, fmt_handles};
+use crate::geom::Point;
+
+/// Consecutive sides whose directions differ by at most this angle (radians) are one side.
+///
+/// 1e-4 rad (about 0.0057°): merging two pieces of total length L that bend by δ moves the
+/// dropped corner at most L·δ/4 off the merged side, 5 µm for a 200 mm side; yet it is far above
+/// the bend left by coordinates rounded to 1e-12 mm or by inch-to-mm conversion.
+pub const COLLINEAR_ANGLE_TOLERANCE: f64 = 1e-4;
+
+/// Checks a closed loop from the bay layer and returns the bay: straight sides only, each
+/// longer than `gap_tolerance`, collinear neighbours merged, at least three sides, enclosing
+/// more than `gap_tolerance × perimeter` of area (thinner than the gap tolerance counts as
+/// flat), strictly convex and winding once. Corners come back counter-clockwise, starting from
+/// the lowest corner (the leftmost of equally low ones).
+pub(super) fn make_bay(
+    name: &str,
+    layer: &str,
+    elements: &[Element],
+    handles: &[String],
+    gap_tolerance: f64,
+) -> Result<Bay, ChainError> {
+    let ctx = |at: Point| (name.to_string(), layer.to_string(), fmt_handles(handles), at);
+    let mut corners = Vec::with_capacity(elements.len());
+    for e in elements {
+        match e {
+            Element::Arc(a) => {
+                let (bay, layer, handles, at) = ctx(a.start_point());
+                return Err(ChainError::BayArc {
+                    bay,
+                    layer,
+                    handles,
+                    at,
+                });
+            }
+            Element::Line(s) => corners.push(s.start),
+        }
+    }
+    let min_side = gap_tolerance.max(1e-9);
+    for (i, e) in elements.iter().enumerate() {
+        if e.length() <= min_side {
+            let (bay, layer, handles, at) = ctx(corners[i]);
+            return Err(ChainError::BayShortSide {
+                bay,
+                layer,
+                handles,
+                at,
+                length: e.length(),
+            });
+        }
+    }
+
+    merge_collinear(&mut corners).map_err(|at| {
+        let (bay, layer, handles, at) = ctx(at);
+        ChainError::BayDegenerate {
+            bay,
+            layer,
+            handles,
+            at,
+            reason: "its outline turns back on itself there".into(),
+        }
+    })?;
+    if corners.len() < 3 {
+        let (bay, layer, handles, at) = ctx(corners[0]);
+        return Err(ChainError::BayTooFewSides {
+            bay,
+            layer,
+            handles,
+            at,
+            sides: corners.len(),
+        });
+    }
+
+    let n = corners.len();
+    let area: f64 = (0..n)
+        .map(|i| 0.5 * corners[i].to_vec().cross(corners[(i + 1) % n].to_vec()))
+        .sum();
+    let perimeter: f64 = (0..n).map(|i| corners[i].distance(corners[(i + 1) % n])).sum();
+    if area.abs() <= min_side * perimeter {
+        let (bay, layer, handles, at) = ctx(corners[0]);
+        return Err(ChainError::BayDegenerate {
+            bay,
+            layer,
+            handles,
+            at,
+            reason: format!(
+                "it encloses (almost) no area ({:.3e} mm² for a perimeter of {perimeter:.3} mm)",
+                area.abs()
+            ),
+        });
+    }
+    if area < 0.0 {
+        corners.reverse();
+    }
+
+    let mut turning = 0.0;
+    for i in 0..n {
+        let (a, b, c) = (corners[(i + n - 1) % n], corners[i], corners[(i + 1) % n]);
+        let (u, v) = (b - a, c - b);
+        if u.cross(v) <= 0.0 {
+            let (bay, layer, handles, at) = ctx(b);
+            return Err(ChainError::BayNotConvex {
+                bay,
+                layer,
+                handles,
+                at,
+            });
+        }
+        turning += u.cross(v).atan2(u.dot(v));
+    }
+    if (turning - std::f64::consts::TAU).abs() > 1e-6 {
+        // All turns left but more than once round: the sides cross each other (a star).
+        let (bay, layer, handles, at) = ctx(corners[0]);
+        return Err(ChainError::BayNotConvex {
+            bay,
+            layer,
+            handles,
+            at,
+        });
+    }
+
+    let first = (0..n)
+        .min_by(|&i, &j| {
+            (corners[i].y, corners[i].x)
+                .partial_cmp(&(corners[j].y, corners[j].x))
+                .unwrap_or(std::cmp::Ordering::Equal)
+        })
+        .unwrap_or(0);
+    corners.rotate_left(first);
+
+    let mut hs: Vec<String> = Vec::new();
+    for h in handles {
+        if !hs.contains(h) {
+            hs.push(h.clone());
+        }
+    }
+    Ok(Bay {
+        name: name.to_string(),
+        layer: layer.to_string(),
+        corners,
+        handles: hs,
+    })
+}
+
+/// Removes corners where the outline goes straight on (within
+/// [`COLLINEAR_ANGLE_TOLERANCE`]); returns `Err(corner)` where it turns straight back.
+fn merge_collinear(corners: &mut Vec<Point>) -> Result<(), Point> {
+    let max_sine = COLLINEAR_ANGLE_TOLERANCE.sin();
+    loop {
+        let n = corners.len();
+        if n < 3 {
+            return Ok(());
+        }
+        let mut removed = false;
+        for i in 0..n {
+            let (a, b, c) = (corners[(i + n - 1) % n], corners[i], corners[(i + 1) % n]);
+            let (u, v) = (b - a, c - b);
+            let sine = u.cross(v) / (u.length() * v.length());
+            if sine.abs() <= max_sine {
+                if u.dot(v) < 0.0 {
+                    return Err(b);
+                }
+                corners.remove(i);
+                removed = true;
+                break;
+            }
+        }
+        if !removed {
+            return Ok(());
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::geom::{ArcSegment, Segment};
+
+    fn poly(pts: &[(f64, f64)]) -> Vec<Element> {
+        let n = pts.len();
+        (0..n)
+            .map(|i| {
+                let (a, b) = (pts[i], pts[(i + 1) % n]);
+                Element::Line(Segment::new(Point::new(a.0, a.1), Point::new(b.0, b.1)))
+            })
+            .collect()
+    }
+
+    fn bay(pts: &[(f64, f64)]) -> Result<Bay, ChainError> {
+        let els = poly(pts);
+        let handles: Vec<String> = (0..els.len()).map(|i| format!("{:X}", 0x20 + i)).collect();
+        make_bay("bay 1", "OPENING-BAYS", &els, &handles, 0.01)
+    }
+
+    #[test]
+    fn clockwise_bay_comes_back_counter_clockwise_from_its_lowest_corner() {
+        let b = bay(&[(0.0, 10.0), (10.0, 10.0), (12.0, 1.0), (1.0, 0.0)]).unwrap();
+        assert_eq!(
+            b.corners,
+            [
+                Point::new(1.0, 0.0),
+                Point::new(12.0, 1.0),
+                Point::new(10.0, 10.0),
+                Point::new(0.0, 10.0)
+            ]
+        );
+    }
+
+    #[test]
+    fn collinear_pieces_merge_within_the_angular_tolerance() {
+        // The bottom side is drawn in two pieces bent by 5e-5 rad (below 1e-4).
+        let bend = 5e-5_f64;
+        let mid = (6.0, 6.0 * bend.tan());
+        let b = bay(&[(0.0, 0.0), mid, (12.0, 0.0), (12.0, 8.0), (0.0, 8.0)]).unwrap();
+        assert_eq!(b.corners.len(), 4);
+        // A bend of 2e-4 rad is a real corner: five corners, still convex.
+        let mid = (6.0, -6.0 * 2e-4_f64.tan());
+        let b = bay(&[(0.0, 0.0), mid, (12.0, 0.0), (12.0, 8.0), (0.0, 8.0)]).unwrap();
+        assert_eq!(b.corners.len(), 5);
+    }
+
+    #[test]
+    fn non_convex_bay_names_the_reflex_corner() {
+        let e = bay(&[(0.0, 0.0), (10.0, 0.0), (5.0, 3.0), (10.0, 10.0), (0.0, 10.0)]).unwrap_err();
+        let ChainError::BayNotConvex { at, .. } = &e else {
+            panic!("{e}")
+        };
+        assert_eq!(*at, Point::new(5.0, 3.0));
+        assert!(e.to_string().contains("bay 1"), "{e}");
+    }
+
+    #[test]
+    fn star_whose_turns_are_all_left_is_not_convex() {
+        // A pentagram: every turn is to the left, but it winds twice.
+        let pts: Vec<(f64, f64)> = (0..5)
+            .map(|k| {
+                let t = std::f64::consts::FRAC_PI_2 + k as f64 * 4.0 * std::f64::consts::PI / 5.0;
+                (10.0 * t.cos(), 10.0 * t.sin())
+            })
+            .collect();
+        assert!(matches!(bay(&pts), Err(ChainError::BayNotConvex { .. })));
+    }
+
+    #[test]
+    fn arcs_short_sides_flat_bays_and_two_sides_are_refused() {
+        let mut els = poly(&[(0.0, 0.0), (10.0, 0.0), (10.0, 10.0), (0.0, 10.0)]);
+        els[1] = Element::Arc(
+            ArcSegment::from_bulge(Point::new(10.0, 0.0), Point::new(10.0, 10.0), 0.2).unwrap(),
+        );
+        let hs = vec!["A".to_string(); 4];
+        assert!(matches!(
+            make_bay("bay 2", "B", &els, &hs, 0.01),
+            Err(ChainError::BayArc { .. })
+        ));
+        // Repeated corner: a zero-length side.
+        assert!(matches!(
+            bay(&[(0.0, 0.0), (10.0, 0.0), (10.0, 0.0), (10.0, 10.0)]),
+            Err(ChainError::BayShortSide { .. })
+        ));
+        // Flat: 20 mm long, 0.001 mm high.
+        assert!(matches!(
+            bay(&[(0.0, 0.0), (20.0, 0.0), (10.0, 0.001)]),
+            Err(ChainError::BayDegenerate { .. })
+        ));
+        // Four corners on one line: turns straight back.
+        assert!(matches!(
+            bay(&[(0.0, 0.0), (5.0, 0.0), (10.0, 0.0), (5.0, 0.0 + 1e-9)]),
+            Err(ChainError::BayDegenerate { .. }) | Err(ChainError::BayTooFewSides { .. })
+        ));
+    }
+}

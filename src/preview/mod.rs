@@ -1,0 +1,451 @@
+//! SVG preview: the part, its bays, the solved ellipses with their sizes, and the tool-centre
+//! paths with their direction and plunge points, on one page drawn at 1:1 in millimetres.
+//!
+//! # Units and orientation
+//!
+//! One SVG user unit is one millimetre, and the root element's `width` and `height` are given in
+//! mm, so the page prints at 1:1. The drawing's y axis points up; SVG's points down, so every
+//! point is drawn at `(x, −y)` (see [`frame`]). A reader recovers drawing coordinates as
+//! `(x_svg, −y_svg)`.
+//!
+//! # What is drawn, and how to find it
+//!
+//! Every element carries a `class` naming what it is, and features carry `data-name`:
+//! `outline`, `hole`, `bay`, `ellipse` (two `A` arcs, exact), `ellipse-label`, `tool-band` (the
+//! width the tool sweeps, translucent), `tool-path` (the tool centre), `direction` (arrowheads),
+//! `rapid`, `plunge` (circles at the plunge points), `scale-bar`, `legend`, `title`.
+
+pub mod frame;
+pub mod shapes;
+
+use crate::chain::{HoleShape, Part};
+use crate::fit::FittedCut;
+use crate::geom::{Ellipse, Point};
+use frame::{Bounds, Frame, num, scale_bar_length};
+use shapes::{arrow_d, arrow_spots, contour_d, ellipse_bounds, ellipse_d, polyline_d};
+use svg::Document;
+use svg::node::element::{Circle, Group, Line, Path, Rectangle, Text, Title};
+
+/// What the preview shows.
+#[derive(Debug, Clone, Copy)]
+pub struct PreviewInput<'a> {
+    pub title: &'a str,
+    pub part: &'a Part,
+    /// Solved openings: the bay's name and its ellipse.
+    pub ellipses: &'a [(String, Ellipse)],
+    pub cuts: &'a [FittedCut],
+    /// Tool diameter (mm), drawn as a translucent band along each tool path; 0 for none.
+    pub tool_diameter: f64,
+}
+
+/// Colours of our own choosing.
+mod palette {
+    pub const BACKGROUND: &str = "#ffffff";
+    pub const PART: &str = "#1d2733";
+    pub const BAY: &str = "#8a949e";
+    pub const ELLIPSE: &str = "#c0531a";
+    pub const TOOL: &str = "#1a62b8";
+    pub const RAPID: &str = "#6f7a85";
+    pub const PLUNGE: &str = "#b0157a";
+    pub const TEXT: &str = "#1d2733";
+}
+
+/// The preview as an SVG document.
+///
+/// Pure: the same input gives the same text. Non-finite points are left out rather than written.
+pub fn preview_svg(input: &PreviewInput) -> String {
+    let content = content_bounds(input).unwrap_or(Bounds {
+        min: Point::new(0.0, 0.0),
+        max: Point::new(100.0, 100.0),
+    });
+    let frame = Frame::around(content);
+    let u = frame.unit();
+
+    let mut doc = Document::new()
+        .set(
+            "viewBox",
+            format!(
+                "{} {} {} {}",
+                num(frame.view_x),
+                num(frame.view_y),
+                num(frame.view_w),
+                num(frame.view_h)
+            ),
+        )
+        .set("width", format!("{}mm", num(frame.view_w)))
+        .set("height", format!("{}mm", num(frame.view_h)))
+        .set("font-family", "sans-serif")
+        .add(Title::new(format!("conicut preview: {}", input.title)))
+        .add(
+            Rectangle::new()
+                .set("class", "background")
+                .set("x", num(frame.view_x))
+                .set("y", num(frame.view_y))
+                .set("width", num(frame.view_w))
+                .set("height", num(frame.view_h))
+                .set("fill", palette::BACKGROUND),
+        );
+
+    doc = doc.add(part_group(input.part, u));
+    doc = doc.add(cut_group(input, &frame));
+    doc = doc.add(ellipse_group(input.ellipses, &frame));
+    doc = doc.add(title_group(input, &frame));
+    doc = doc.add(scale_bar(&frame));
+    doc = doc.add(legend(&frame));
+    doc.to_string()
+}
+
+/// Bounds of everything drawn, in drawing mm.
+fn content_bounds(input: &PreviewInput) -> Option<Bounds> {
+    let mut pts: Vec<Point> = Vec::new();
+    if let Some(outline) = &input.part.outline
+        && let Some((lo, hi)) = outline.bounds()
+    {
+        pts.extend([lo, hi]);
+    }
+    for hole in &input.part.holes {
+        match &hole.shape {
+            HoleShape::Contour(c) => {
+                if let Some((lo, hi)) = c.bounds() {
+                    pts.extend([lo, hi]);
+                }
+            }
+            HoleShape::Ellipse(e) => pts.extend(ellipse_bounds(e)),
+        }
+    }
+    for bay in &input.part.bays {
+        pts.extend(&bay.corners);
+    }
+    for (_, e) in input.ellipses {
+        pts.extend(ellipse_bounds(e));
+    }
+    let r = if input.tool_diameter.is_finite() {
+        0.5 * input.tool_diameter.max(0.0)
+    } else {
+        0.0
+    };
+    for cut in input.cuts {
+        for p in cut.path.iter().chain(std::iter::once(&cut.plunge)) {
+            pts.push(Point::new(p.x - r, p.y - r));
+            pts.push(Point::new(p.x + r, p.y + r));
+        }
+    }
+    Bounds::of(pts)
+}
+
+fn part_group(part: &Part, u: f64) -> Group {
+    let mut g = Group::new().set("class", "part");
+    for bay in &part.bays {
+        g = g.add(
+            Path::new()
+                .set("class", "bay")
+                .set("data-name", bay.name.as_str())
+                .set("d", polyline_d(&bay.corners, true))
+                .set("fill", "none")
+                .set("stroke", palette::BAY)
+                .set("stroke-width", num(1.2 * u))
+                .set(
+                    "stroke-dasharray",
+                    format!("{} {}", num(6.0 * u), num(4.0 * u)),
+                ),
+        );
+    }
+    if let Some(outline) = &part.outline {
+        g = g.add(
+            Path::new()
+                .set("class", "outline")
+                .set("d", contour_d(outline))
+                .set("fill", "none")
+                .set("stroke", palette::PART)
+                .set("stroke-width", num(2.5 * u))
+                .set("stroke-linejoin", "round"),
+        );
+    }
+    for hole in &part.holes {
+        let d = match &hole.shape {
+            HoleShape::Contour(c) => contour_d(c),
+            HoleShape::Ellipse(e) => ellipse_d(e),
+        };
+        g = g.add(
+            Path::new()
+                .set("class", "hole")
+                .set("data-name", hole.name.as_str())
+                .set("d", d)
+                .set("fill", "none")
+                .set("stroke", palette::PART)
+                .set("stroke-width", num(2.5 * u))
+                .set("stroke-linejoin", "round"),
+        );
+    }
+    g
+}
+
+fn ellipse_group(ellipses: &[(String, Ellipse)], frame: &Frame) -> Group {
+    let u = frame.unit();
+    let mut g = Group::new().set("class", "solved");
+    for (name, e) in ellipses {
+        g = g.add(
+            Path::new()
+                .set("class", "ellipse")
+                .set("data-name", name.as_str())
+                .set("d", ellipse_d(e))
+                .set("fill", "none")
+                .set("stroke", palette::ELLIPSE)
+                .set("stroke-width", num(2.0 * u)),
+        );
+        let (x, y) = frame.to_svg(e.center());
+        let label = format!(
+            "{name}: {} × {} mm, {}°",
+            fixed(2.0 * e.a(), 2),
+            fixed(2.0 * e.b(), 2),
+            fixed(e.angle().to_degrees(), 1)
+        );
+        g = g.add(
+            Text::new(label)
+                .set("class", "ellipse-label")
+                .set("data-name", name.as_str())
+                .set("x", num(x))
+                .set("y", num(y))
+                .set("font-size", num(frame.font))
+                .set("text-anchor", "middle")
+                .set("dominant-baseline", "middle")
+                .set("fill", palette::ELLIPSE)
+                .set("stroke", palette::BACKGROUND)
+                .set("stroke-width", num(3.0 * u))
+                .set("paint-order", "stroke"),
+        );
+    }
+    g
+}
+
+fn cut_group(input: &PreviewInput, frame: &Frame) -> Group {
+    let u = frame.unit();
+    let mut bands = Group::new()
+        .set("class", "tool-bands")
+        .set("fill", "none")
+        .set("stroke", palette::TOOL)
+        .set("stroke-opacity", "0.15")
+        .set("stroke-linejoin", "round")
+        .set("stroke-linecap", "round");
+    let mut paths = Group::new().set("class", "tool-paths");
+    let show_band = input.tool_diameter.is_finite() && input.tool_diameter > 0.0;
+    let mut previous_end: Option<Point> = None;
+    for cut in input.cuts {
+        let closed = cut.path.len() > 2 && cut.path.first() == cut.path.last();
+        if show_band {
+            bands = bands.add(
+                Path::new()
+                    .set("class", "tool-band")
+                    .set("data-name", cut.name.as_str())
+                    .set("d", polyline_d(&cut.path, closed))
+                    .set("stroke-width", num(input.tool_diameter)),
+            );
+        }
+        if let Some(from) = previous_end
+            && from.is_finite()
+            && cut.plunge.is_finite()
+        {
+            paths = paths.add(
+                Path::new()
+                    .set("class", "rapid")
+                    .set("d", polyline_d(&[from, cut.plunge], false))
+                    .set("fill", "none")
+                    .set("stroke", palette::RAPID)
+                    .set("stroke-width", num(u))
+                    .set(
+                        "stroke-dasharray",
+                        format!("{} {}", num(3.0 * u), num(3.0 * u)),
+                    ),
+            );
+        }
+        // The lead from the plunge point to the path's start, then the path.
+        let mut travel = Vec::with_capacity(cut.path.len() + 1);
+        travel.push(cut.plunge);
+        travel.extend(&cut.path);
+        paths = paths.add(
+            Path::new()
+                .set("class", "tool-path")
+                .set("data-name", cut.name.as_str())
+                .set("d", polyline_d(&travel, false))
+                .set("fill", "none")
+                .set("stroke", palette::TOOL)
+                .set("stroke-width", num(1.5 * u))
+                .set("stroke-linejoin", "round"),
+        );
+        for (at, dir) in arrow_spots(&cut.path, &[0.2, 0.7]) {
+            paths = paths.add(
+                Path::new()
+                    .set("class", "direction")
+                    .set("data-name", cut.name.as_str())
+                    .set("d", arrow_d(at, dir, 9.0 * u))
+                    .set("fill", palette::TOOL),
+            );
+        }
+        if cut.plunge.is_finite() {
+            let (x, y) = frame.to_svg(cut.plunge);
+            paths = paths.add(
+                Circle::new()
+                    .set("class", "plunge")
+                    .set("data-name", cut.name.as_str())
+                    .set("cx", num(x))
+                    .set("cy", num(y))
+                    .set("r", num(4.0 * u))
+                    .set("fill", palette::BACKGROUND)
+                    .set("fill-opacity", "0.6")
+                    .set("stroke", palette::PLUNGE)
+                    .set("stroke-width", num(1.5 * u)),
+            );
+            paths = paths.add(
+                Circle::new()
+                    .set("class", "plunge-centre")
+                    .set("cx", num(x))
+                    .set("cy", num(y))
+                    .set("r", num(1.2 * u))
+                    .set("fill", palette::PLUNGE),
+            );
+        }
+        previous_end = cut.path.last().copied();
+    }
+    Group::new().set("class", "cuts").add(bands).add(paths)
+}
+
+fn title_group(input: &PreviewInput, frame: &Frame) -> Group {
+    let x = frame.view_x + 1.0 * frame.font;
+    let y = frame.view_y + 1.6 * frame.font;
+    let mut subtitle = format!(
+        "{} cut{}, {} solved ellipse{}",
+        input.cuts.len(),
+        plural(input.cuts.len()),
+        input.ellipses.len(),
+        plural(input.ellipses.len())
+    );
+    if input.tool_diameter.is_finite() && input.tool_diameter > 0.0 {
+        subtitle.push_str(&format!(
+            ", tool diameter {} mm",
+            fixed(input.tool_diameter, 2)
+        ));
+    }
+    subtitle.push_str("; dimensions in mm, drawn 1:1");
+    Group::new()
+        .set("class", "title")
+        .set("fill", palette::TEXT)
+        .add(
+            Text::new(input.title)
+                .set("x", num(x))
+                .set("y", num(y))
+                .set("font-size", num(1.3 * frame.font))
+                .set("font-weight", "bold"),
+        )
+        .add(
+            Text::new(subtitle)
+                .set("x", num(x))
+                .set("y", num(y + 1.3 * frame.font))
+                .set("font-size", num(0.8 * frame.font)),
+        )
+}
+
+fn scale_bar(frame: &Frame) -> Group {
+    let u = frame.unit();
+    let length = scale_bar_length(frame.content.width().max(frame.content.height()));
+    let x0 = frame.view_x + frame.font;
+    let y = frame.legend_top + 1.0 * frame.font;
+    let tick = 0.5 * frame.font;
+    let mut g = Group::new()
+        .set("class", "scale-bar")
+        .set("stroke", palette::TEXT)
+        .set("stroke-width", num(1.5 * u));
+    g = g.add(line(x0, y, x0 + length, y));
+    for x in [x0, x0 + 0.5 * length, x0 + length] {
+        g = g.add(line(x, y - tick, x, y));
+    }
+    g.add(
+        Text::new(format!("{} mm", num(length)))
+            .set("x", num(x0 + length + 0.5 * frame.font))
+            .set("y", num(y))
+            .set("font-size", num(0.8 * frame.font))
+            .set("stroke", "none")
+            .set("fill", palette::TEXT),
+    )
+}
+
+fn line(x1: f64, y1: f64, x2: f64, y2: f64) -> Line {
+    Line::new()
+        .set("x1", num(x1))
+        .set("y1", num(y1))
+        .set("x2", num(x2))
+        .set("y2", num(y2))
+}
+
+fn legend(frame: &Frame) -> Group {
+    let u = frame.unit();
+    let f = frame.font;
+    let dash = format!("{} {}", num(6.0 * u), num(4.0 * u));
+    // (label, colour, stroke width, dashed, opacity); the plunge marker is drawn last.
+    let items: [(&str, &str, f64, bool, f64); 6] = [
+        ("part and holes", palette::PART, 2.5 * u, false, 1.0),
+        ("bay (construction)", palette::BAY, 1.2 * u, true, 1.0),
+        ("solved ellipse", palette::ELLIPSE, 2.0 * u, false, 1.0),
+        ("tool centre path", palette::TOOL, 1.5 * u, false, 1.0),
+        ("width the tool cuts", palette::TOOL, 0.8 * f, false, 0.15),
+        ("rapid move", palette::RAPID, u, true, 1.0),
+    ];
+    let top = frame.legend_top + 2.5 * f;
+    let column = 0.5 * frame.view_w;
+    let spot = |i: usize| {
+        (
+            frame.view_x + f + (i % 2) as f64 * column,
+            top + (i / 2) as f64 * 1.6 * f,
+        )
+    };
+    let label = |text: &str, x: f64, y: f64| {
+        Text::new(text)
+            .set("x", num(x + 3.6 * f))
+            .set("y", num(y))
+            .set("font-size", num(0.8 * f))
+            .set("dominant-baseline", "middle")
+            .set("fill", palette::TEXT)
+    };
+    let mut g = Group::new().set("class", "legend");
+    for (i, (text, colour, width, dashed, opacity)) in items.into_iter().enumerate() {
+        let (x, y) = spot(i);
+        let mut sample = line(x, y, x + 3.0 * f, y)
+            .set("stroke", colour)
+            .set("stroke-width", num(width))
+            .set("stroke-opacity", num(opacity));
+        if dashed {
+            sample = sample.set("stroke-dasharray", dash.as_str());
+        }
+        g = g.add(sample).add(label(text, x, y));
+    }
+    let (x, y) = spot(items.len());
+    g.add(
+        Circle::new()
+            .set("cx", num(x + 1.5 * f))
+            .set("cy", num(y))
+            .set("r", num(4.0 * u))
+            .set("fill", palette::BACKGROUND)
+            .set("stroke", palette::PLUNGE)
+            .set("stroke-width", num(1.5 * u)),
+    )
+    .add(
+        Circle::new()
+            .set("cx", num(x + 1.5 * f))
+            .set("cy", num(y))
+            .set("r", num(1.2 * u))
+            .set("fill", palette::PLUNGE),
+    )
+    .add(label("plunge point", x, y))
+}
+
+fn fixed(v: f64, decimals: usize) -> String {
+    let s = format!("{v:.decimals$}");
+    if s.starts_with('-') && s[1..].bytes().all(|c| c == b'0' || c == b'.') {
+        s[1..].to_string()
+    } else {
+        s
+    }
+}
+
+fn plural(n: usize) -> &'static str {
+    if n == 1 { "" } else { "s" }
+}

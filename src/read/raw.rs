@@ -1,0 +1,251 @@
+//! A second, independent look at the file's text: the records of the ENTITIES section with
+//! the line each starts on, their handles and layers, a check that every numeric value parses,
+//! and the `$INSUNITS` header value.
+//!
+//! The `dxf` crate (0.6.2) stops reading the ENTITIES section at the first value it cannot parse
+//! and may still return `Ok`, silently losing that entity and every one after it
+//! (`CRATES.md` §2, gotcha 3). This scan is what lets [`super::read_dxf`] notice, and name the
+//! line.
+
+/// One record of the ENTITIES section, with the records the crate folds into it.
+#[derive(Debug, Clone, PartialEq)]
+pub(super) struct RawRecord {
+    /// The entity type as written after group code 0, e.g. `LINE`.
+    pub kind: String,
+    /// 1-based line number of the `0` group code that starts the record.
+    pub line: usize,
+    /// Group code 5, when present.
+    pub handle: Option<String>,
+    /// Group code 8, when present.
+    pub layer: Option<String>,
+    /// For a POLYLINE: the VERTEX records that follow it.
+    pub vertices: usize,
+    /// Group code 66 ("entities follow") was non-zero.
+    pub entities_follow: bool,
+}
+
+/// A value that is not the number its group code calls for.
+#[derive(Debug, Clone, PartialEq)]
+pub(super) struct BadValue {
+    pub line: usize,
+    pub code: i32,
+    pub value: String,
+    /// The record the value belongs to, if the scan had entered one.
+    pub record: Option<RawRecord>,
+}
+
+/// What the scan found.
+#[derive(Debug, Clone, Default, PartialEq)]
+pub(super) struct RawScan {
+    /// Top-level records of the ENTITIES section, in file order. VERTEX/SEQEND records after a
+    /// POLYLINE, ATTRIB/SEQEND records after an INSERT with attributes, and an MTEXT right after
+    /// an ATTRIB or ATTDEF are folded into the record before them, as the crate does.
+    pub records: Vec<RawRecord>,
+    /// Whether an ENTITIES section was found at all.
+    pub has_entities_section: bool,
+    /// The raw `$INSUNITS` value (group 70), if the header has one.
+    pub insunits: Option<i64>,
+}
+
+/// How the `dxf` crate parses the value of a group code (mirrors its `ExpectedType` table).
+enum ValueKind {
+    Float,
+    Integer,
+    Text,
+}
+
+fn value_kind(code: i32) -> ValueKind {
+    match code {
+        10..=59 | 110..=149 | 210..=239 | 460..=469 | 1010..=1059 => ValueKind::Float,
+        // Shorts and booleans are parsed as f64 by the crate, so they are checked as floats.
+        60..=79 | 170..=179 | 270..=299 | 370..=389 | 400..=409 | 1060..=1070 => ValueKind::Float,
+        90..=99 | 160..=169 | 420..=429 | 440..=459 | 1071 => ValueKind::Integer,
+        _ => ValueKind::Text,
+    }
+}
+
+fn value_is_valid(code: i32, value: &str) -> bool {
+    let v = value.trim();
+    match value_kind(code) {
+        ValueKind::Float => v.parse::<f64>().is_ok_and(f64::is_finite),
+        ValueKind::Integer => v.parse::<i64>().is_ok(),
+        ValueKind::Text => true,
+    }
+}
+
+/// Scans the text of an ASCII DXF file. Stops quietly where the text stops being a sequence of
+/// group-code/value pairs (the crate reports that itself); returns `Err` for a numeric value
+/// inside the ENTITIES section that does not parse or is not finite.
+pub(super) fn scan(text: &str) -> Result<RawScan, BadValue> {
+    let text = text.strip_prefix('\u{feff}').unwrap_or(text);
+    let lines: Vec<&str> = text
+        .split('\n')
+        .map(|l| l.strip_suffix('\r').unwrap_or(l))
+        .collect();
+
+    let mut out = RawScan::default();
+    let mut flat: Vec<RawRecord> = Vec::new();
+    let mut section: Option<String> = None;
+    let mut expect_section_name = false;
+    let mut last_header_variable: Option<&str> = None;
+
+    let mut i = 0;
+    while i + 1 < lines.len() {
+        let code_line = lines[i].trim();
+        if code_line.is_empty() {
+            break;
+        }
+        let Ok(code) = code_line.parse::<i32>() else {
+            break;
+        };
+        let value = lines[i + 1];
+        let line_no = i + 1;
+        i += 2;
+
+        if expect_section_name {
+            expect_section_name = false;
+            if code == 2 {
+                let name = value.trim().to_string();
+                out.has_entities_section |= name == "ENTITIES";
+                section = Some(name);
+                continue;
+            }
+        }
+        if code == 0 {
+            match value.trim() {
+                "SECTION" => {
+                    expect_section_name = true;
+                    section = None;
+                    continue;
+                }
+                "ENDSEC" => {
+                    section = None;
+                    continue;
+                }
+                "EOF" => break,
+                _ => {}
+            }
+        }
+        match section.as_deref() {
+            Some("HEADER") => {
+                if code == 9 {
+                    last_header_variable = Some(value.trim());
+                } else if code == 70 && last_header_variable == Some("$INSUNITS") {
+                    out.insunits = value.trim().parse::<f64>().ok().map(|v| v as i64);
+                }
+            }
+            Some("ENTITIES") => {
+                if code == 0 {
+                    flat.push(RawRecord {
+                        kind: value.trim().to_string(),
+                        line: line_no,
+                        handle: None,
+                        layer: None,
+                        vertices: 0,
+                        entities_follow: false,
+                    });
+                    continue;
+                }
+                if !value_is_valid(code, value) {
+                    return Err(BadValue {
+                        line: line_no + 1,
+                        code,
+                        value: value.to_string(),
+                        record: flat.last().cloned(),
+                    });
+                }
+                if let Some(rec) = flat.last_mut() {
+                    match code {
+                        5 => rec.handle = Some(value.trim().to_string()),
+                        8 => rec.layer = Some(value.to_string()),
+                        66 => {
+                            rec.entities_follow = value.trim().parse::<f64>().is_ok_and(|v| v != 0.0)
+                        }
+                        _ => {}
+                    }
+                }
+            }
+            _ => {}
+        }
+    }
+    out.records = fold(flat);
+    Ok(out)
+}
+
+/// Folds sub-records into their owners the way the crate's entity collector does.
+fn fold(flat: Vec<RawRecord>) -> Vec<RawRecord> {
+    let mut out: Vec<RawRecord> = Vec::new();
+    let mut it = flat.into_iter().peekable();
+    while let Some(mut rec) = it.next() {
+        match rec.kind.as_str() {
+            "POLYLINE" => {
+                while it.peek().is_some_and(|r| r.kind == "VERTEX") {
+                    it.next();
+                    rec.vertices += 1;
+                }
+                if it.peek().is_some_and(|r| r.kind == "SEQEND") {
+                    it.next();
+                }
+            }
+            "INSERT" if rec.entities_follow => {
+                while it.peek().is_some_and(|r| r.kind == "ATTRIB") {
+                    it.next();
+                }
+                if it.peek().is_some_and(|r| r.kind == "SEQEND") {
+                    it.next();
+                }
+            }
+            "ATTRIB" | "ATTDEF" => {
+                if it.peek().is_some_and(|r| r.kind == "MTEXT") {
+                    it.next();
+                }
+            }
+            _ => {}
+        }
+        out.push(rec);
+    }
+    out
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    const SMALL: &str = "0\nSECTION\n2\nHEADER\n9\n$INSUNITS\n70\n4\n0\nENDSEC\n\
+0\nSECTION\n2\nENTITIES\n\
+0\nLINE\n5\n2A\n8\nCUT\n10\n0.0\n20\n0.0\n11\n1.0\n21\n0.0\n\
+0\nPOLYLINE\n5\n2B\n8\nCUT\n66\n1\n10\n0\n20\n0\n\
+0\nVERTEX\n8\nCUT\n10\n0\n20\n0\n0\nVERTEX\n8\nCUT\n10\n1\n20\n0\n0\nSEQEND\n8\nCUT\n\
+0\nCIRCLE\n8\nCUT\n10\n5\n20\n5\n40\n1\n\
+0\nENDSEC\n0\nEOF\n";
+
+    #[test]
+    fn finds_records_lines_handles_and_units() {
+        let s = scan(SMALL).unwrap();
+        assert!(s.has_entities_section);
+        assert_eq!(s.insunits, Some(4));
+        let kinds: Vec<&str> = s.records.iter().map(|r| r.kind.as_str()).collect();
+        assert_eq!(kinds, ["LINE", "POLYLINE", "CIRCLE"]);
+        assert_eq!(s.records[0].line, 15);
+        assert_eq!(s.records[0].handle.as_deref(), Some("2A"));
+        assert_eq!(s.records[1].vertices, 2);
+        assert_eq!(s.records[2].handle, None);
+        assert_eq!(s.records[2].layer.as_deref(), Some("CUT"));
+    }
+
+    #[test]
+    fn names_the_line_of_a_bad_number() {
+        let bad = SMALL.replace("40\n1\n", "40\nnot-a-number\n");
+        let e = scan(&bad).unwrap_err();
+        assert_eq!(e.code, 40);
+        assert_eq!(e.value, "not-a-number");
+        assert_eq!(bad.lines().nth(e.line - 1), Some("not-a-number"));
+        assert_eq!(e.record.map(|r| r.kind), Some("CIRCLE".to_string()));
+    }
+
+    #[test]
+    fn refuses_nan_and_infinity() {
+        assert!(scan(&SMALL.replace("40\n1\n", "40\nNaN\n")).is_err());
+        assert!(scan(&SMALL.replace("40\n1\n", "40\ninf\n")).is_err());
+    }
+}

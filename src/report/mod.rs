@@ -1,0 +1,215 @@
+//! The report: what was solved and cut, measured, for people (text) and for scripts (JSON).
+//!
+//! The JSON keys are documented in `README.md`; keep the two in step.
+
+use crate::fit::FittedCut;
+use crate::geom::Point;
+use crate::plan::{CutSide, FeatureKind};
+use crate::solve::BayOpening;
+use serde::Serialize;
+use std::fmt::Write as _;
+
+/// The ellipse of a feature, in report units (mm, degrees).
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct EllipseSummary {
+    pub center_mm: [f64; 2],
+    pub semi_major_mm: f64,
+    pub semi_minor_mm: f64,
+    /// Direction of the major axis, degrees counter-clockwise from +X, in (−90, 90].
+    pub angle_deg: f64,
+    pub area_mm2: f64,
+}
+
+/// One cut feature.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct FeatureReport {
+    pub name: String,
+    pub kind: FeatureKind,
+    pub cut_side: CutSide,
+    /// The solved ellipse, for bay openings (and elliptical holes).
+    pub ellipse: Option<EllipseSummary>,
+    /// Edge margin used when solving (mm), for bay openings.
+    pub margin_mm: Option<f64>,
+    /// Largest relative tangency residual of the solved ellipse against the bay's moved sides.
+    pub tangency_residual: Option<f64>,
+    /// Where the tool enters the material.
+    pub plunge_mm: [f64; 2],
+    /// Straight feed moves along the contour (not counting the move in from the plunge point).
+    pub contour_moves: usize,
+    pub path_length_mm: f64,
+    /// Largest distance between the emitted moves and the exact tool-centre curve (mm).
+    pub measured_deviation_mm: f64,
+    pub tolerance_mm: f64,
+}
+
+/// Everything the report says.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Report {
+    pub conicut_version: String,
+    pub drawing: String,
+    pub drawing_units: String,
+    pub machine: String,
+    pub tool_diameter_mm: f64,
+    pub cut_depth_mm: f64,
+    pub tolerance_mm: f64,
+    pub features: Vec<FeatureReport>,
+    /// Output files by role (`program`, `preview`, `report_text`, `report_json`); filled in by
+    /// the command layer.
+    pub files: Vec<OutputFile>,
+    pub warnings: Vec<String>,
+    pub notes: Vec<String>,
+}
+
+/// One output file.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct OutputFile {
+    pub role: String,
+    pub path: String,
+}
+
+/// What the report is built from.
+pub struct ReportInput<'a> {
+    pub drawing: &'a str,
+    pub drawing_units: &'a str,
+    pub machine: &'a str,
+    pub tool_diameter: f64,
+    pub cut_depth: f64,
+    pub tolerance: f64,
+    pub openings: &'a [BayOpening],
+    pub ellipse_holes: &'a [(String, crate::geom::Ellipse)],
+    pub cuts: &'a [FittedCut],
+    pub warnings: Vec<String>,
+    pub notes: Vec<String>,
+}
+
+fn summary(e: &crate::geom::Ellipse) -> EllipseSummary {
+    EllipseSummary {
+        center_mm: [e.center().x, e.center().y],
+        semi_major_mm: e.a(),
+        semi_minor_mm: e.b(),
+        angle_deg: e.angle().to_degrees(),
+        area_mm2: e.area(),
+    }
+}
+
+fn path_length(path: &[Point]) -> f64 {
+    path.windows(2).map(|w| w[0].distance(w[1])).sum()
+}
+
+/// Builds the report from the stages' results.
+pub fn build_report(input: ReportInput) -> Report {
+    let features = input
+        .cuts
+        .iter()
+        .map(|c| {
+            let opening = input.openings.iter().find(|o| o.bay == c.name);
+            let ellipse = opening.map(|o| summary(&o.ellipse)).or_else(|| {
+                input
+                    .ellipse_holes
+                    .iter()
+                    .find(|(n, _)| *n == c.name)
+                    .map(|(_, e)| summary(e))
+            });
+            FeatureReport {
+                name: c.name.clone(),
+                kind: c.kind,
+                cut_side: c.side,
+                ellipse,
+                margin_mm: opening.map(|o| o.margin),
+                tangency_residual: opening.map(|o| o.tangency_residual),
+                plunge_mm: [c.plunge.x, c.plunge.y],
+                contour_moves: c.path.len().saturating_sub(1),
+                path_length_mm: path_length(&c.path),
+                measured_deviation_mm: c.measured_deviation,
+                tolerance_mm: c.tolerance,
+            }
+        })
+        .collect();
+    Report {
+        conicut_version: env!("CARGO_PKG_VERSION").to_string(),
+        drawing: input.drawing.to_string(),
+        drawing_units: input.drawing_units.to_string(),
+        machine: input.machine.to_string(),
+        tool_diameter_mm: input.tool_diameter,
+        cut_depth_mm: input.cut_depth,
+        tolerance_mm: input.tolerance,
+        features,
+        files: Vec::new(),
+        warnings: input.warnings,
+        notes: input.notes,
+    }
+}
+
+impl Report {
+    /// The report as pretty-printed JSON.
+    pub fn to_json(&self) -> String {
+        // Serialising plain numbers, strings and vectors cannot fail.
+        serde_json::to_string_pretty(self).unwrap_or_default()
+    }
+
+    /// The one-screen summary for people.
+    pub fn to_text(&self) -> String {
+        let mut s = String::new();
+        let _ = writeln!(s, "conicut {} report", self.conicut_version);
+        let _ = writeln!(
+            s,
+            "drawing {} ({}), machine: {}, tool {} mm, depth {} mm, tolerance {} mm",
+            self.drawing,
+            self.drawing_units,
+            self.machine,
+            self.tool_diameter_mm,
+            self.cut_depth_mm,
+            self.tolerance_mm
+        );
+        let _ = writeln!(s);
+        let _ = writeln!(
+            s,
+            "{:<10} {:<11} {:<7} {:>20} {:>9} {:>9} {:>8} {:>6} {:>10}",
+            "feature", "kind", "side", "centre (mm)", "a (mm)", "b (mm)", "angle°", "moves", "dev (mm)"
+        );
+        for f in &self.features {
+            let kind = match f.kind {
+                FeatureKind::BayOpening => "opening",
+                FeatureKind::Hole => "hole",
+                FeatureKind::Outline => "outline",
+            };
+            let side = match f.cut_side {
+                CutSide::Inside => "inside",
+                CutSide::Outside => "outside",
+            };
+            let (centre, a, b, ang) = match &f.ellipse {
+                Some(e) => (
+                    format!("({:.3}, {:.3})", e.center_mm[0], e.center_mm[1]),
+                    format!("{:.3}", e.semi_major_mm),
+                    format!("{:.3}", e.semi_minor_mm),
+                    format!("{:.2}", e.angle_deg),
+                ),
+                None => ("-".into(), "-".into(), "-".into(), "-".into()),
+            };
+            let _ = writeln!(
+                s,
+                "{:<10} {:<11} {:<7} {:>20} {:>9} {:>9} {:>8} {:>6} {:>10.6}",
+                f.name, kind, side, centre, a, b, ang, f.contour_moves, f.measured_deviation_mm
+            );
+        }
+        if !self.warnings.is_empty() {
+            let _ = writeln!(s, "\nwarnings:");
+            for w in &self.warnings {
+                let _ = writeln!(s, "  - {w}");
+            }
+        }
+        if !self.notes.is_empty() {
+            let _ = writeln!(s, "\nnotes:");
+            for n in &self.notes {
+                let _ = writeln!(s, "  - {n}");
+            }
+        }
+        if !self.files.is_empty() {
+            let _ = writeln!(s, "\nfiles:");
+            for f in &self.files {
+                let _ = writeln!(s, "  {:<12} {}", f.role, f.path);
+            }
+        }
+        s
+    }
+}
