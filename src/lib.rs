@@ -15,14 +15,14 @@
 
 #![forbid(unsafe_code)]
 
-pub mod geom;
-pub mod read;
 pub mod chain;
-pub mod plan;
+pub mod demo;
 pub mod fit;
-pub mod solve;
+pub mod geom;
+pub mod job;
+pub mod plan;
 pub mod post;
 pub mod preview;
-pub mod demo;
+pub mod read;
 pub mod report;
-pub mod job;
+pub mod solve;

@@ -123,8 +123,9 @@ fn run(cli: Cli) -> Result<()> {
             gap_tolerance,
             cut,
         } => {
-            let profile_text = fs::read_to_string(&machine)
-                .with_context(|| format!("cannot read the machine profile {}", machine.display()))?;
+            let profile_text = fs::read_to_string(&machine).with_context(|| {
+                format!("cannot read the machine profile {}", machine.display())
+            })?;
             let profile = MachineProfile::from_toml(&profile_text, &machine.display().to_string())
                 .map_err(|e| anyhow::anyhow!("{e}"))?;
             let bytes = fs::read(&drawing)

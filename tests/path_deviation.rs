@@ -34,8 +34,14 @@ fn check(e: &Ellipse, r: f64, tol: f64, path: &[Point]) -> f64 {
             let p = s.point_at(k as f64 / 64.0);
             assert!(e.contains(p), "path leaves the ellipse at {p:?}");
             let (delta, _) = e.distance_to(p);
-            assert!(delta < e.min_radius_of_curvature(), "outside the reach at {p:?}");
-            assert!(delta >= r - tol, "closer than r − tol to the ellipse at {p:?}: {delta}");
+            assert!(
+                delta < e.min_radius_of_curvature(),
+                "outside the reach at {p:?}"
+            );
+            assert!(
+                delta >= r - tol,
+                "closer than r − tol to the ellipse at {p:?}: {delta}"
+            );
             worst = worst.max((delta - r).abs());
         }
     }

@@ -437,4 +437,3 @@ fn rendered_preview_shows_paths_ellipses_and_arcs_where_they_are() {
     let blank = Point::new(185.0, 60.0);
     assert!(is_white(at(blank)), "{:?}", at(blank));
 }
-

@@ -202,7 +202,7 @@ fn convex_quad() -> impl Strategy<Value = Vec<(f64, f64)>> {
         0.5f64..200.0,
     )
         .prop_filter("angles sum below a full turn", |(gaps, ..)| {
-            gaps.iter().take(3).sum::<f64>() < 6.283 - 0.3
+            gaps.iter().take(3).sum::<f64>() < std::f64::consts::TAU - 0.3
         })
         .prop_map(|(gaps, start, stretch, rot, shear, (tx, ty), scale)| {
             let mut ang = start;

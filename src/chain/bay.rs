@@ -1,6 +1,6 @@
 //! Checking a closed loop on the bay layer and turning it into a [`Bay`].
 
-use super::{Bay, ChainError, Element, fmt_handles};
+use super::{Bay, BayError, BayProblem, ChainError, Element, fmt_handles};
 use crate::geom::Point;
 
 /// Consecutive sides whose directions differ by at most this angle (radians) are one side.
@@ -22,18 +22,20 @@ pub(super) fn make_bay(
     handles: &[String],
     gap_tolerance: f64,
 ) -> Result<Bay, ChainError> {
-    let ctx = |at: Point| (name.to_string(), layer.to_string(), fmt_handles(handles), at);
+    let err = |at: Point, problem: BayProblem| {
+        ChainError::Bay(Box::new(BayError {
+            bay: name.to_string(),
+            layer: layer.to_string(),
+            handles: fmt_handles(handles),
+            at,
+            problem,
+        }))
+    };
     let mut corners = Vec::with_capacity(elements.len());
     for e in elements {
         match e {
             Element::Arc(a) => {
-                let (bay, layer, handles, at) = ctx(a.start_point());
-                return Err(ChainError::BayArc {
-                    bay,
-                    layer,
-                    handles,
-                    at,
-                });
+                return Err(err(a.start_point(), BayProblem::Arc));
             }
             Element::Line(s) => corners.push(s.start),
         }
@@ -41,55 +43,47 @@ pub(super) fn make_bay(
     let min_side = gap_tolerance.max(1e-9);
     for (i, e) in elements.iter().enumerate() {
         if e.length() <= min_side {
-            let (bay, layer, handles, at) = ctx(corners[i]);
-            return Err(ChainError::BayShortSide {
-                bay,
-                layer,
-                handles,
-                at,
-                length: e.length(),
-            });
+            return Err(err(
+                corners[i],
+                BayProblem::ShortSide { length: e.length() },
+            ));
         }
     }
 
     merge_collinear(&mut corners).map_err(|at| {
-        let (bay, layer, handles, at) = ctx(at);
-        ChainError::BayDegenerate {
-            bay,
-            layer,
-            handles,
+        err(
             at,
-            reason: "its outline turns back on itself there".into(),
-        }
+            BayProblem::Degenerate {
+                reason: "its outline turns back on itself there".into(),
+            },
+        )
     })?;
     if corners.len() < 3 {
-        let (bay, layer, handles, at) = ctx(corners[0]);
-        return Err(ChainError::BayTooFewSides {
-            bay,
-            layer,
-            handles,
-            at,
-            sides: corners.len(),
-        });
+        return Err(err(
+            corners[0],
+            BayProblem::TooFewSides {
+                sides: corners.len(),
+            },
+        ));
     }
 
     let n = corners.len();
     let area: f64 = (0..n)
         .map(|i| 0.5 * corners[i].to_vec().cross(corners[(i + 1) % n].to_vec()))
         .sum();
-    let perimeter: f64 = (0..n).map(|i| corners[i].distance(corners[(i + 1) % n])).sum();
+    let perimeter: f64 = (0..n)
+        .map(|i| corners[i].distance(corners[(i + 1) % n]))
+        .sum();
     if area.abs() <= min_side * perimeter {
-        let (bay, layer, handles, at) = ctx(corners[0]);
-        return Err(ChainError::BayDegenerate {
-            bay,
-            layer,
-            handles,
-            at,
-            reason: format!(
-                "it encloses (almost) no area ({:.3e} mm² for a perimeter of {perimeter:.3} mm)",
-                area.abs()
-            ),
-        });
+        return Err(err(
+            corners[0],
+            BayProblem::Degenerate {
+                reason: format!(
+                    "it encloses (almost) no area ({:.3e} mm² for a perimeter of {perimeter:.3} mm)",
+                    area.abs()
+                ),
+            },
+        ));
     }
     if area < 0.0 {
         corners.reverse();
@@ -100,25 +94,13 @@ pub(super) fn make_bay(
         let (a, b, c) = (corners[(i + n - 1) % n], corners[i], corners[(i + 1) % n]);
         let (u, v) = (b - a, c - b);
         if u.cross(v) <= 0.0 {
-            let (bay, layer, handles, at) = ctx(b);
-            return Err(ChainError::BayNotConvex {
-                bay,
-                layer,
-                handles,
-                at,
-            });
+            return Err(err(b, BayProblem::NotConvex));
         }
         turning += u.cross(v).atan2(u.dot(v));
     }
     if (turning - std::f64::consts::TAU).abs() > 1e-6 {
         // All turns left but more than once round: the sides cross each other (a star).
-        let (bay, layer, handles, at) = ctx(corners[0]);
-        return Err(ChainError::BayNotConvex {
-            bay,
-            layer,
-            handles,
-            at,
-        });
+        return Err(err(corners[0], BayProblem::NotConvex));
     }
 
     let first = (0..n)
@@ -223,11 +205,19 @@ mod tests {
 
     #[test]
     fn non_convex_bay_names_the_reflex_corner() {
-        let e = bay(&[(0.0, 0.0), (10.0, 0.0), (5.0, 3.0), (10.0, 10.0), (0.0, 10.0)]).unwrap_err();
-        let ChainError::BayNotConvex { at, .. } = &e else {
+        let e = bay(&[
+            (0.0, 0.0),
+            (10.0, 0.0),
+            (5.0, 3.0),
+            (10.0, 10.0),
+            (0.0, 10.0),
+        ])
+        .unwrap_err();
+        let ChainError::Bay(b) = &e else {
             panic!("{e}")
         };
-        assert_eq!(*at, Point::new(5.0, 3.0));
+        assert_eq!(b.problem, BayProblem::NotConvex);
+        assert_eq!(b.at, Point::new(5.0, 3.0));
         assert!(e.to_string().contains("bay 1"), "{e}");
     }
 
@@ -240,7 +230,7 @@ mod tests {
                 (10.0 * t.cos(), 10.0 * t.sin())
             })
             .collect();
-        assert!(matches!(bay(&pts), Err(ChainError::BayNotConvex { .. })));
+        assert!(matches!(bay(&pts), Err(ChainError::Bay(b)) if b.problem == BayProblem::NotConvex));
     }
 
     #[test]
@@ -252,22 +242,23 @@ mod tests {
         let hs = vec!["A".to_string(); 4];
         assert!(matches!(
             make_bay("bay 2", "B", &els, &hs, 0.01),
-            Err(ChainError::BayArc { .. })
+            Err(ChainError::Bay(b)) if b.problem == BayProblem::Arc
         ));
         // Repeated corner: a zero-length side.
         assert!(matches!(
             bay(&[(0.0, 0.0), (10.0, 0.0), (10.0, 0.0), (10.0, 10.0)]),
-            Err(ChainError::BayShortSide { .. })
+            Err(ChainError::Bay(b)) if matches!(b.problem, BayProblem::ShortSide { .. })
         ));
         // Flat: 20 mm long, 0.001 mm high.
         assert!(matches!(
             bay(&[(0.0, 0.0), (20.0, 0.0), (10.0, 0.001)]),
-            Err(ChainError::BayDegenerate { .. })
+            Err(ChainError::Bay(b)) if matches!(b.problem, BayProblem::Degenerate { .. })
         ));
         // Four corners on one line: turns straight back.
         assert!(matches!(
             bay(&[(0.0, 0.0), (5.0, 0.0), (10.0, 0.0), (5.0, 0.0 + 1e-9)]),
-            Err(ChainError::BayDegenerate { .. }) | Err(ChainError::BayTooFewSides { .. })
+            Err(ChainError::Bay(b))
+                if matches!(b.problem, BayProblem::Degenerate { .. } | BayProblem::TooFewSides { .. })
         ));
     }
 }

@@ -125,64 +125,9 @@ pub enum ChainError {
         handle: String,
         at: Point,
     },
-    #[error(
-        "{bay} (layer {layer}, handles {handles}) has an arc starting at {}; bays must have \
-         straight sides only. Redraw the bay with lines",
-        fmt_point(*at)
-    )]
-    BayArc {
-        bay: String,
-        layer: String,
-        handles: String,
-        at: Point,
-    },
-    #[error(
-        "{bay} (layer {layer}, handles {handles}) has a side of length {length:.2e} mm starting \
-         at {} (a repeated corner or a zero-length side). Delete the repeated corner",
-        fmt_point(*at)
-    )]
-    BayShortSide {
-        bay: String,
-        layer: String,
-        handles: String,
-        at: Point,
-        length: f64,
-    },
-    #[error(
-        "{bay} (layer {layer}, handles {handles}) has only {sides} side{} once straight runs are \
-         merged (near {}); a bay needs at least 3",
-        if *sides == 1 { "" } else { "s" }, fmt_point(*at)
-    )]
-    BayTooFewSides {
-        bay: String,
-        layer: String,
-        handles: String,
-        at: Point,
-        sides: usize,
-    },
-    #[error(
-        "{bay} (layer {layer}, handles {handles}) is degenerate near {}: {reason}. Redraw it",
-        fmt_point(*at)
-    )]
-    BayDegenerate {
-        bay: String,
-        layer: String,
-        handles: String,
-        at: Point,
-        reason: String,
-    },
-    #[error(
-        "{bay} (layer {layer}, handles {handles}) is not convex: it turns the wrong way (or its \
-         sides cross) at the corner {}. An ellipse can only be fitted to a convex bay; redraw \
-         it, or split it into convex bays",
-        fmt_point(*at)
-    )]
-    BayNotConvex {
-        bay: String,
-        layer: String,
-        handles: String,
-        at: Point,
-    },
+    /// A loop on the bay layer is not a usable bay (boxed to keep the error small).
+    #[error("{0}")]
+    Bay(Box<BayError>),
     #[error(
         "layer {layer}: the closed contour through {} (handles {}) encloses no area. Delete \
          the duplicate or doubled-back pieces",
@@ -223,6 +168,64 @@ pub enum ChainError {
          an outline yet. Draw the outline with arcs or a polyline"
     )]
     EllipseOutline { shape: String },
+}
+
+/// What is wrong with a bay, where.
+#[derive(Debug, Clone, PartialEq, thiserror::Error)]
+#[error("{bay} (layer {layer}, handles {handles}) {problem}", problem = self.problem_text())]
+pub struct BayError {
+    /// `bay N`.
+    pub bay: String,
+    pub layer: String,
+    /// The DXF handles of the bay's pieces, comma separated.
+    pub handles: String,
+    /// The corner or point the problem is at.
+    pub at: Point,
+    pub problem: BayProblem,
+}
+
+/// The ways a loop on the bay layer can fail to be a bay.
+#[derive(Debug, Clone, PartialEq)]
+pub enum BayProblem {
+    /// A side is an arc.
+    Arc,
+    /// A side is no longer than the gap tolerance (a repeated corner).
+    ShortSide { length: f64 },
+    /// Fewer than three sides once collinear runs are merged.
+    TooFewSides { sides: usize },
+    /// Flat, or turning straight back on itself.
+    Degenerate { reason: String },
+    /// A corner turns clockwise (counter-clockwise bay), or the sides cross.
+    NotConvex,
+}
+
+impl BayError {
+    fn problem_text(&self) -> String {
+        let at = fmt_point(self.at);
+        match &self.problem {
+            BayProblem::Arc => format!(
+                "has an arc starting at {at}; bays must have straight sides only. Redraw the \
+                 bay with lines"
+            ),
+            BayProblem::ShortSide { length } => format!(
+                "has a side of length {length:.2e} mm starting at {at} (a repeated corner or a \
+                 zero-length side). Delete the repeated corner"
+            ),
+            BayProblem::TooFewSides { sides } => format!(
+                "has only {sides} side{} once straight runs are merged (near {at}); a bay needs \
+                 at least 3",
+                if *sides == 1 { "" } else { "s" }
+            ),
+            BayProblem::Degenerate { reason } => {
+                format!("is degenerate near {at}: {reason}. Redraw it")
+            }
+            BayProblem::NotConvex => format!(
+                "is not convex: it turns the wrong way (or its sides cross) at the corner {at}. \
+                 An ellipse can only be fitted to a convex bay; redraw it, or split it into \
+                 convex bays"
+            ),
+        }
+    }
 }
 
 /// "(12.500, -3.000) mm".
@@ -522,12 +525,7 @@ fn polyline_piece(
 }
 
 /// Order by the lower-left corner of the bounding box (x, then y), then by first handle.
-fn order_key(
-    a: &[Element],
-    ha: &[String],
-    b: &[Element],
-    hb: &[String],
-) -> std::cmp::Ordering {
+fn order_key(a: &[Element], ha: &[String], b: &[Element], hb: &[String]) -> std::cmp::Ordering {
     let lo = |els: &[Element]| {
         let c = Contour {
             elements: els.to_vec(),
@@ -672,7 +670,10 @@ fn classify(mut shapes: Vec<Shape>) -> Result<Classified, ChainError> {
         let roots: Vec<usize> = (0..n).filter(|&i| parents[i].is_empty()).collect();
         if roots.len() > 1 {
             return Err(ChainError::SeveralOutlines {
-                shapes: roots.iter().map(|&i| shapes[i].description.clone()).collect(),
+                shapes: roots
+                    .iter()
+                    .map(|&i| shapes[i].description.clone())
+                    .collect(),
             });
         }
         Some(roots[0])
@@ -775,13 +776,14 @@ fn flatten_ellipse(e: &Ellipse) -> Vec<Point> {
 
 /// A point where the boundaries of two closed polygons cross or touch, if any.
 fn polygons_cross(p: &[Point], q: &[Point]) -> Option<Point> {
-    let Some((qlo, qhi)) = bounds_of(q) else {
-        return None;
-    };
+    let (qlo, qhi) = bounds_of(q)?;
     let (np, nq) = (p.len(), q.len());
     for i in 0..np {
         let (a, b) = (p[i], p[(i + 1) % np]);
-        if a.x.max(b.x) < qlo.x || a.x.min(b.x) > qhi.x || a.y.max(b.y) < qlo.y || a.y.min(b.y) > qhi.y
+        if a.x.max(b.x) < qlo.x
+            || a.x.min(b.x) > qhi.x
+            || a.y.max(b.y) < qlo.y
+            || a.y.min(b.y) > qhi.y
         {
             continue;
         }

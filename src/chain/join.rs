@@ -145,7 +145,7 @@ fn walk(
         let p = k / 2;
         used[p] = true;
         run.pieces += 1;
-        let oriented = if k % 2 == 0 {
+        let oriented = if k.is_multiple_of(2) {
             pieces[p].clone()
         } else {
             pieces[p].reversed()
@@ -306,7 +306,11 @@ mod tests {
         let els = &j.loops[0].elements;
         assert_eq!(els.len(), 4);
         for i in 0..4 {
-            assert_eq!(els[i].end(), els[(i + 1) % 4].start(), "joint {i} not exact");
+            assert_eq!(
+                els[i].end(),
+                els[(i + 1) % 4].start(),
+                "joint {i} not exact"
+            );
         }
         assert_eq!(j.loops[0].handles, ["A", "B", "C", "D"]);
     }
@@ -345,8 +349,8 @@ mod tests {
     fn two_arcs_meeting_with_a_gap_are_rebuilt_through_the_midpoint() {
         // Two half circles of radius 5 about (0,0), the second one 2 µm off at one joint.
         let a = ArcSegment::from_bulge(Point::new(5.0, 0.0), Point::new(-5.0, 0.0), 1.0).unwrap();
-        let b = ArcSegment::from_bulge(Point::new(-5.0, 0.0), Point::new(5.000002, 0.0), 1.0)
-            .unwrap();
+        let b =
+            ArcSegment::from_bulge(Point::new(-5.0, 0.0), Point::new(5.000002, 0.0), 1.0).unwrap();
         let pieces = [
             Piece {
                 elements: vec![Element::Arc(a)],

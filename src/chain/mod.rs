@@ -19,8 +19,8 @@ mod join;
 
 pub use bay::COLLINEAR_ANGLE_TOLERANCE;
 pub use build::{
-    CROSSING_CHECK_SAGITTA, ChainError, ChainOptions, DEFAULT_BAY_LAYER, DEFAULT_GAP_TOLERANCE,
-    OpenContour, build_part,
+    BayError, BayProblem, CROSSING_CHECK_SAGITTA, ChainError, ChainOptions, DEFAULT_BAY_LAYER,
+    DEFAULT_GAP_TOLERANCE, OpenContour, build_part,
 };
 pub use contour::{Bay, Contour, Element, Hole, HoleShape, Part, bounds_of};
 

@@ -51,7 +51,8 @@ pub const PLATE_HEIGHT: f64 = 140.0;
 pub const CORNER_RADIUS: f64 = 10.0;
 /// Bolt-hole radius (mm) and centres.
 pub const BOLT_HOLE_RADIUS: f64 = 4.5;
-pub const BOLT_HOLE_CENTRES: [(f64, f64); 4] = [(15.0, 15.0), (225.0, 15.0), (225.0, 125.0), (15.0, 125.0)];
+pub const BOLT_HOLE_CENTRES: [(f64, f64); 4] =
+    [(15.0, 15.0), (225.0, 15.0), (225.0, 125.0), (15.0, 125.0)];
 
 /// The bays' corners, counter-clockwise, each starting from its lowest corner (the leftmost of
 /// equally low ones), as `build_part` returns them.
@@ -194,7 +195,10 @@ mod tests {
         assert_eq!(a, demo_dxf_bytes());
         let text = String::from_utf8(a).unwrap();
         assert!(text.contains("$ACADVER"));
-        assert!(text.contains("AC1015"), "R2000 is AC1015 (DXF reference, HEADER)");
+        assert!(
+            text.contains("AC1015"),
+            "R2000 is AC1015 (DXF reference, HEADER)"
+        );
         assert!(text.contains(FIXED_JULIAN_DATE));
         let back = dxf::Drawing::load(&mut text.as_bytes()).unwrap();
         assert_eq!(back.header.default_drawing_units, Units::Millimeters);

@@ -21,7 +21,9 @@ pub fn measure_deviation(path: &[Point], exact: &ExactPath) -> f64 {
     let curve_samples = curve_samples(exact, segments.len() * SAMPLES_PER_SEGMENT);
     let to_curve = segments
         .iter()
-        .flat_map(|s| (0..=SAMPLES_PER_SEGMENT).map(|k| s.point_at(k as f64 / SAMPLES_PER_SEGMENT as f64)))
+        .flat_map(|s| {
+            (0..=SAMPLES_PER_SEGMENT).map(|k| s.point_at(k as f64 / SAMPLES_PER_SEGMENT as f64))
+        })
         .map(|p| distance_to_exact(exact, p))
         .fold(0.0, f64::max);
     let to_path = distance_to_polyline_in_order(&curve_samples, &segments);

@@ -68,7 +68,7 @@ impl Ellipse {
         let big = m + d;
         // The smaller eigenvalue from the determinant avoids cancellation when m ≈ d.
         let det = sxx * syy - sxy * sxy;
-        if !(big > 0.0 && det > 0.0) || !det.is_finite() {
+        if !(big > 0.0 && det > 0.0 && det.is_finite()) {
             return Err(EllipseError::NotPositiveDefinite);
         }
         let small = det / big;
@@ -122,18 +122,18 @@ impl Ellipse {
         (n.x * n.x * sxx + 2.0 * n.x * n.y * sxy + n.y * n.y * syy).sqrt()
     }
 
-    fn to_world(&self, local: Vec2) -> Point {
+    fn world_from_local(&self, local: Vec2) -> Point {
         self.center + local.rotated(self.angle)
     }
 
-    fn to_local(&self, p: Point) -> Vec2 {
+    fn local_from_world(&self, p: Point) -> Vec2 {
         (p - self.center).rotated(-self.angle)
     }
 
     /// The point at eccentric anomaly `t`.
     pub fn point(&self, t: f64) -> Point {
         let (s, c) = t.sin_cos();
-        self.to_world(Vec2::new(self.a * c, self.b * s))
+        self.world_from_local(Vec2::new(self.a * c, self.b * s))
     }
 
     /// The derivative `dP/dt` (not unit length).
@@ -167,7 +167,7 @@ impl Ellipse {
 
     /// Whether `p` lies strictly inside the ellipse.
     pub fn contains(&self, p: Point) -> bool {
-        let q = self.to_local(p);
+        let q = self.local_from_world(p);
         (q.x / self.a).powi(2) + (q.y / self.b).powi(2) < 1.0
     }
 
@@ -179,7 +179,7 @@ impl Ellipse {
     /// solves `F(s) = (a x/(s + a²))² + (b y/(s + b²))² − 1 = 0`, monotone in `s ≥ −b²`, found by
     /// bisection to the resolution of `f64`.
     pub fn distance_to(&self, p: Point) -> (f64, f64) {
-        let q = self.to_local(p);
+        let q = self.local_from_world(p);
         let (x0, y0) = (q.x.abs(), q.y.abs());
         let (a, b) = (self.a, self.b);
         let (xs, ys) = nearest_first_quadrant(a, b, x0, y0);
@@ -302,7 +302,10 @@ mod tests {
         for p in probes {
             let (d, _) = e.distance_to(p);
             let brute = (0..200_000)
-                .map(|i| e.point(i as f64 * std::f64::consts::TAU / 200_000.0).distance(p))
+                .map(|i| {
+                    e.point(i as f64 * std::f64::consts::TAU / 200_000.0)
+                        .distance(p)
+                })
                 .fold(f64::INFINITY, f64::min);
             // Never worse than any sample, and the samples (0.0012 mm apart) come within
             // 1e-3 mm of the true minimum; the reported anomaly gives the reported distance.

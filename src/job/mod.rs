@@ -4,7 +4,7 @@
 
 use crate::chain::{self, ChainError, ChainOptions, HoleShape};
 use crate::fit::{self, FitError};
-use crate::geom::Ellipse;
+use crate::geom::{Ellipse, Point};
 use crate::plan::{self, PlanError, PlanOptions};
 use crate::post::{self, MachineProfile, PostError, ProgramSettings};
 use crate::preview::{self, PreviewInput};
@@ -55,6 +55,17 @@ pub enum JobError {
     Fit { file: String, source: FitError },
     #[error("{file}: {source}")]
     Post { file: String, source: PostError },
+    #[error(
+        "{file}: a tolerance of {tolerance} mm is too fine for the machine profile's {decimals} \
+         decimals: rounding alone moves a point by up to {rounding:.6} mm. Use a tolerance of at \
+         least twice that, or a profile with more decimals"
+    )]
+    ToleranceTooFine {
+        file: String,
+        tolerance: f64,
+        rounding: f64,
+        decimals: usize,
+    },
     #[error("{file}: the edge margin must be zero or a positive number of mm (got {margin})")]
     BadMargin { file: String, margin: f64 },
     #[error(
@@ -121,10 +132,48 @@ pub fn run_job(
         file: file(),
         source,
     })?;
-    let cuts = fit::fit_plan(&plan, s.tolerance).map_err(|source| JobError::Fit {
-        file: file(),
-        source,
-    })?;
+    // Tolerance budget: the program's coordinates are rounded to the profile's decimals, which
+    // moves a point by at most half a step on each axis (√2/2 steps in all); the fit gets the
+    // rest. The deviation is then measured again on the rounded points, as they are written.
+    let units = profile.units();
+    let step = units.to_mm(10f64.powi(-(profile.xy_decimals() as i32)));
+    let rounding = 0.5 * step * std::f64::consts::SQRT_2;
+    if !(s.tolerance.is_finite() && s.tolerance >= 2.0 * rounding) {
+        return Err(JobError::ToleranceTooFine {
+            file: file(),
+            tolerance: s.tolerance,
+            rounding,
+            decimals: profile.xy_decimals(),
+        });
+    }
+    let mut cuts =
+        fit::fit_plan(&plan, s.tolerance - rounding).map_err(|source| JobError::Fit {
+            file: file(),
+            source,
+        })?;
+    let snap = |v: f64| {
+        let written = post::format_number(units.from_mm(v), profile.xy_decimals());
+        written.parse::<f64>().map(|w| units.to_mm(w)).unwrap_or(v)
+    };
+    for (cut, planned) in cuts.iter_mut().zip(&plan.cuts) {
+        let written: Vec<Point> = cut
+            .path
+            .iter()
+            .map(|p| Point::new(snap(p.x), snap(p.y)))
+            .collect();
+        cut.measured_deviation = fit::measure_deviation(&written, &planned.path);
+        cut.tolerance = s.tolerance;
+        if cut.measured_deviation > s.tolerance {
+            return Err(JobError::Fit {
+                file: file(),
+                source: FitError::ToleranceExceeded {
+                    feature: cut.name.clone(),
+                    measured: cut.measured_deviation,
+                    tolerance: s.tolerance,
+                },
+            });
+        }
+    }
     let depth = s
         .depth
         .unwrap_or_else(|| profile.units().to_mm(profile.default_depth()));

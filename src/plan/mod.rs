@@ -149,14 +149,28 @@ pub fn plan_cuts(
     let mut warnings = Vec::new();
     let mut inner = Vec::new();
     for o in openings {
-        inner.push(plan_ellipse(&o.bay, FeatureKind::BayOpening, &o.ellipse, r, d)?);
+        inner.push(plan_ellipse(
+            &o.bay,
+            FeatureKind::BayOpening,
+            &o.ellipse,
+            r,
+            d,
+        )?);
     }
     for h in &part.holes {
         let cut = match &h.shape {
             HoleShape::Ellipse(e) => plan_ellipse(&h.name, FeatureKind::Hole, e, r, d)?,
             HoleShape::Contour(c) => {
                 let ccw = if c.is_ccw() { c.clone() } else { c.reversed() };
-                plan_contour(&h.name, FeatureKind::Hole, CutSide::Inside, &ccw, r, d, &mut warnings)?
+                plan_contour(
+                    &h.name,
+                    FeatureKind::Hole,
+                    CutSide::Inside,
+                    &ccw,
+                    r,
+                    d,
+                    &mut warnings,
+                )?
             }
         };
         inner.push(cut);

@@ -247,7 +247,10 @@ mod tests {
         let o = offset_left(&sq, 1.0).unwrap();
         assert_eq!(o.contour.elements.len(), 8);
         let area = -o.contour.signed_area();
-        assert!((area - (140.0 + std::f64::consts::PI)).abs() < 1e-12, "{area}");
+        assert!(
+            (area - (140.0 + std::f64::consts::PI)).abs() < 1e-12,
+            "{area}"
+        );
         assert!(o.inside_corners.is_empty());
     }
 

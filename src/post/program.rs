@@ -54,17 +54,16 @@ pub enum PostError {
     )]
     NotFinite { feature: String, what: &'static str },
     #[error(
-        "feature \"{feature}\": {what} would move {axis} to {value} {units}, outside the travel envelope {axis} {min} .. {max} {units} of profile \"{profile}\". Move the work zero, check the drawing's units and the depth, or use a profile for a larger machine"
+        "feature \"{feature}\": {what} would move {axis} to {value} {units}, outside the machine's travel {axis} {limits} {units}. Move the work zero, check the drawing's units and the depth, or use a profile for a larger machine"
     )]
     OutsideEnvelope {
         feature: String,
         what: &'static str,
         axis: char,
         value: String,
-        min: String,
-        max: String,
+        /// The allowed range, e.g. `-10.0000 .. 400.0000`.
+        limits: String,
         units: Units,
-        profile: String,
     },
     #[error(
         "the {which} of {value} {units}/min is above the largest feed {max} {units}/min that profile \"{profile}\" allows. Give a lower feed, or correct max_feed in the profile if the machine can go faster"
@@ -306,10 +305,8 @@ fn check_cut(cut: &FittedCut, profile: &MachineProfile, floor: f64) -> Result<()
                 what,
                 axis,
                 value: format_number(value, d),
-                min: format_number(min, d),
-                max: format_number(max, d),
+                limits: format!("{} .. {}", format_number(min, d), format_number(max, d)),
                 units,
-                profile: profile.name().to_string(),
             });
         }
         Ok(())

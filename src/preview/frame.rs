@@ -94,7 +94,7 @@ impl Frame {
     }
 
     /// A drawing point in SVG user space.
-    pub fn to_svg(&self, p: Point) -> (f64, f64) {
+    pub fn svg_xy(&self, p: Point) -> (f64, f64) {
         (p.x, -p.y)
     }
 
@@ -158,8 +158,8 @@ mod tests {
             max: Point::new(190.0, 105.0),
         };
         let f = Frame::around(content);
-        let (x0, y0) = f.to_svg(Point::new(-10.0, 105.0));
-        let (x1, y1) = f.to_svg(Point::new(190.0, 5.0));
+        let (x0, y0) = f.svg_xy(Point::new(-10.0, 105.0));
+        let (x1, y1) = f.svg_xy(Point::new(190.0, 5.0));
         assert!(f.view_x < x0 && x1 < f.view_x + f.view_w);
         assert!(f.view_y + 2.0 * f.font < y0 && y1 < f.legend_top);
         assert!(f.legend_top + 1.6 * LEGEND_ROWS as f64 * f.font < f.view_y + f.view_h);

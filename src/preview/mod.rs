@@ -5,7 +5,7 @@
 //!
 //! One SVG user unit is one millimetre, and the root element's `width` and `height` are given in
 //! mm, so the page prints at 1:1. The drawing's y axis points up; SVG's points down, so every
-//! point is drawn at `(x, −y)` (see [`frame`]). A reader recovers drawing coordinates as
+//! point is drawn at `(x, −y)`. A reader recovers drawing coordinates as
 //! `(x_svg, −y_svg)`.
 //!
 //! # What is drawn, and how to find it
@@ -15,8 +15,8 @@
 //! width the tool sweeps, translucent), `tool-path` (the tool centre), `direction` (arrowheads),
 //! `rapid`, `plunge` (circles at the plunge points), `scale-bar`, `legend`, `title`.
 
-pub mod frame;
-pub mod shapes;
+mod frame;
+mod shapes;
 
 use crate::chain::{HoleShape, Part};
 use crate::fit::FittedCut;
@@ -193,7 +193,7 @@ fn ellipse_group(ellipses: &[(String, Ellipse)], frame: &Frame) -> Group {
                 .set("stroke", palette::ELLIPSE)
                 .set("stroke-width", num(2.0 * u)),
         );
-        let (x, y) = frame.to_svg(e.center());
+        let (x, y) = frame.svg_xy(e.center());
         let label = format!(
             "{name}: {} × {} mm, {}°",
             fixed(2.0 * e.a(), 2),
@@ -282,7 +282,7 @@ fn cut_group(input: &PreviewInput, frame: &Frame) -> Group {
             );
         }
         if cut.plunge.is_finite() {
-            let (x, y) = frame.to_svg(cut.plunge);
+            let (x, y) = frame.svg_xy(cut.plunge);
             paths = paths.add(
                 Circle::new()
                     .set("class", "plunge")

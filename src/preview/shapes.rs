@@ -2,7 +2,7 @@
 //! strings are written here).
 //!
 //! All functions take drawing points (mm, y up) and write them flipped, `(x, −y)`
-//! (see [`super::frame`]).
+//! (see the `frame` module).
 
 use super::frame::num;
 use crate::chain::{Contour, Element};

@@ -44,7 +44,7 @@
 mod raw;
 mod units;
 
-pub use units::{UnknownUnits, Units, UnitsSource};
+pub use units::{Units, UnitsSource, UnknownUnits};
 
 use crate::geom::{ArcSegment, Ellipse, Point, Segment, Vec2};
 use dxf::entities::EntityType;
@@ -329,7 +329,11 @@ pub fn read_dxf(bytes: &[u8], opts: &ReadOptions) -> Result<Drawing, ReadError> 
             _ => None,
         };
         let Some(ent) = matched else {
-            notes.add(&rec.kind, rec.layer.as_deref().unwrap_or("0"), &label_raw(rec));
+            notes.add(
+                &rec.kind,
+                rec.layer.as_deref().unwrap_or("0"),
+                &label_raw(rec),
+            );
             continue;
         };
         next += 1;
@@ -367,9 +371,11 @@ pub fn read_dxf(bytes: &[u8], opts: &ReadOptions) -> Result<Drawing, ReadError> 
                 line: rec.line,
                 kind,
             }),
-            Converted::Degenerate(why) => {
-                notes.add(&format!("{} ({why})", rec.kind), &layer, &label(&handle, rec.line))
-            }
+            Converted::Degenerate(why) => notes.add(
+                &format!("{} ({why})", rec.kind),
+                &layer,
+                &label(&handle, rec.line),
+            ),
             Converted::Unsupported => notes.add(&rec.kind, &layer, &label(&handle, rec.line)),
         }
     }
@@ -573,9 +579,10 @@ impl Notes {
             .find(|(k, l, _)| k == kind && l == layer)
         {
             Some((_, _, labels)) => labels.push(label.to_string()),
-            None => self
-                .groups
-                .push((kind.to_string(), layer.to_string(), vec![label.to_string()])),
+            None => {
+                self.groups
+                    .push((kind.to_string(), layer.to_string(), vec![label.to_string()]))
+            }
         }
     }
 
@@ -593,10 +600,7 @@ impl Notes {
                 } else {
                     format!("{n} {kind} entities")
                 };
-                format!(
-                    "ignored {what} on layer {layer} ({shown}): {}",
-                    hint(&kind)
-                )
+                format!("ignored {what} on layer {layer} ({shown}): {}", hint(&kind))
             })
             .collect()
     }
@@ -610,10 +614,17 @@ fn hint(kind: &str) -> &'static str {
         "degenerate, it encloses and joins nothing"
     } else {
         match base {
-            "INSERT" => "blocks are not expanded; explode the block in the CAD program if its geometry is to be cut",
-            "SPLINE" => "splines are not read; convert them to arcs or a polyline in the CAD program if they are to be cut",
-            "HATCH" | "SOLID" | "TRACE" | "WIPEOUT" => "fills are not cut; draw the boundary with lines, arcs or polylines",
-            "TEXT" | "MTEXT" | "DIMENSION" | "LEADER" | "TOLERANCE" | "ATTRIB" | "ATTDEF" | "RTEXT" | "ARCALIGNEDTEXT" => "annotation is not cut",
+            "INSERT" => {
+                "blocks are not expanded; explode the block in the CAD program if its geometry is to be cut"
+            }
+            "SPLINE" => {
+                "splines are not read; convert them to arcs or a polyline in the CAD program if they are to be cut"
+            }
+            "HATCH" | "SOLID" | "TRACE" | "WIPEOUT" => {
+                "fills are not cut; draw the boundary with lines, arcs or polylines"
+            }
+            "TEXT" | "MTEXT" | "DIMENSION" | "LEADER" | "TOLERANCE" | "ATTRIB" | "ATTDEF"
+            | "RTEXT" | "ARCALIGNEDTEXT" => "annotation is not cut",
             "POLYLINE" => "polygon and polyface meshes are not read",
             _ => "conicut reads LINE, ARC, CIRCLE, LWPOLYLINE, POLYLINE, ELLIPSE and POINT only",
         }
@@ -671,7 +682,8 @@ impl Ctx<'_> {
         if values.iter().all(|v| v.is_finite()) {
             Ok(())
         } else {
-            Err(self.bad("holds a value that is not a finite number; correct it in the CAD program"))
+            Err(self
+                .bad("holds a value that is not a finite number; correct it in the CAD program"))
         }
     }
 }
@@ -733,8 +745,7 @@ fn convert(e: &EntityType, ctx: &Ctx) -> Result<Converted, ReadError> {
             let radius = a.radius * ctx.scale;
             let diff = a.end_angle - a.start_angle;
             let sweep_deg = diff.rem_euclid(360.0);
-            if sweep_deg <= FULL_ARC_TOLERANCE_DEG || 360.0 - sweep_deg <= FULL_ARC_TOLERANCE_DEG
-            {
+            if sweep_deg <= FULL_ARC_TOLERANCE_DEG || 360.0 - sweep_deg <= FULL_ARC_TOLERANCE_DEG {
                 if diff.abs() <= FULL_ARC_TOLERANCE_DEG {
                     return Err(ctx.bad(format!(
                         "its start and end angles are equal ({}°), so it has no length; delete \
@@ -840,14 +851,13 @@ fn ellipse(el: &dxf::entities::Ellipse, ctx: &Ctx) -> Result<Converted, ReadErro
     let mirrored = ctx.mirrored(&el.normal)?;
     let major_len = (mj.x * mj.x + mj.y * mj.y + mj.z * mj.z).sqrt();
     if major_len == 0.0 {
-        return Err(ctx.bad(
-            "its major axis has zero length; delete it or draw it again in the CAD program",
-        ));
+        return Err(ctx
+            .bad("its major axis has zero length; delete it or draw it again in the CAD program"));
     }
     if mj.z.abs() > EXTRUSION_TOLERANCE * major_len {
-        return Err(ctx.bad(
-            "its major axis leaves the XY plane; flatten the drawing in the CAD program",
-        ));
+        return Err(
+            ctx.bad("its major axis leaves the XY plane; flatten the drawing in the CAD program")
+        );
     }
     if el.minor_axis_ratio <= 0.0 {
         return Err(ctx.bad(format!(

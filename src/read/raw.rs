@@ -76,7 +76,7 @@ fn value_is_valid(code: i32, value: &str) -> bool {
 /// Scans the text of an ASCII DXF file. Stops quietly where the text stops being a sequence of
 /// group-code/value pairs (the crate reports that itself); returns `Err` for a numeric value
 /// inside the ENTITIES section that does not parse or is not finite.
-pub(super) fn scan(text: &str) -> Result<RawScan, BadValue> {
+pub(super) fn scan(text: &str) -> Result<RawScan, Box<BadValue>> {
     let text = text.strip_prefix('\u{feff}').unwrap_or(text);
     let lines: Vec<&str> = text
         .split('\n')
@@ -147,19 +147,20 @@ pub(super) fn scan(text: &str) -> Result<RawScan, BadValue> {
                     continue;
                 }
                 if !value_is_valid(code, value) {
-                    return Err(BadValue {
+                    return Err(Box::new(BadValue {
                         line: line_no + 1,
                         code,
                         value: value.to_string(),
                         record: flat.last().cloned(),
-                    });
+                    }));
                 }
                 if let Some(rec) = flat.last_mut() {
                     match code {
                         5 => rec.handle = Some(value.trim().to_string()),
                         8 => rec.layer = Some(value.to_string()),
                         66 => {
-                            rec.entities_follow = value.trim().parse::<f64>().is_ok_and(|v| v != 0.0)
+                            rec.entities_follow =
+                                value.trim().parse::<f64>().is_ok_and(|v| v != 0.0)
                         }
                         _ => {}
                     }
@@ -195,10 +196,8 @@ fn fold(flat: Vec<RawRecord>) -> Vec<RawRecord> {
                     it.next();
                 }
             }
-            "ATTRIB" | "ATTDEF" => {
-                if it.peek().is_some_and(|r| r.kind == "MTEXT") {
-                    it.next();
-                }
+            "ATTRIB" | "ATTDEF" if it.peek().is_some_and(|r| r.kind == "MTEXT") => {
+                it.next();
             }
             _ => {}
         }

@@ -40,8 +40,16 @@ fn arc_degrees_become_radians() {
         panic!("not an arc: {:?}", d.entities[0].kind)
     };
     assert!((a.sweep - 20f64.to_radians()).abs() < 1e-12);
-    assert!(close(a.start_point(), 1.0 + 3.0 * 350f64.to_radians().cos(), 2.0 + 3.0 * 350f64.to_radians().sin()));
-    assert!(close(a.end_point(), 1.0 + 3.0 * 10f64.to_radians().cos(), 2.0 + 3.0 * 10f64.to_radians().sin()));
+    assert!(close(
+        a.start_point(),
+        1.0 + 3.0 * 350f64.to_radians().cos(),
+        2.0 + 3.0 * 350f64.to_radians().sin()
+    ));
+    assert!(close(
+        a.end_point(),
+        1.0 + 3.0 * 10f64.to_radians().cos(),
+        2.0 + 3.0 * 10f64.to_radians().sin()
+    ));
 }
 
 #[test]
@@ -58,8 +66,10 @@ fn mirrored_circle_and_lwpolyline_follow_the_arbitrary_axis_algorithm() {
         }
     );
 
-    let mut p = de::LwPolyline::default();
-    p.extrusion_direction = dxf::Vector::new(0.0, 0.0, -1.0);
+    let mut p = de::LwPolyline {
+        extrusion_direction: dxf::Vector::new(0.0, 0.0, -1.0),
+        ..Default::default()
+    };
     for (x, y, b) in [(0.0, 0.0, 0.5), (10.0, 0.0, 0.0)] {
         p.vertices.push(dxf::LwPolylineVertex {
             x,
@@ -85,21 +95,35 @@ fn mirrored_circle_and_lwpolyline_follow_the_arbitrary_axis_algorithm() {
 fn mirrored_ellipse_minor_axis_flips() {
     // STANDARDS-AND-PRACTICE §2.3: M = (50,0,0), ratio 0.4, N = (0,0,−1): P(π/2) = (0, −20),
     // the parameter runs clockwise seen from +Z.
-    let mut el = de::Ellipse::default();
-    el.center = dxf::Point::new(0.0, 0.0, 0.0);
-    el.major_axis = dxf::Vector::new(50.0, 0.0, 0.0);
-    el.minor_axis_ratio = 0.4;
-    el.normal = dxf::Vector::new(0.0, 0.0, -1.0);
-    el.start_parameter = 0.0;
-    el.end_parameter = std::f64::consts::FRAC_PI_2;
+    let el = de::Ellipse {
+        center: dxf::Point::new(0.0, 0.0, 0.0),
+        major_axis: dxf::Vector::new(50.0, 0.0, 0.0),
+        minor_axis_ratio: 0.4,
+        normal: dxf::Vector::new(0.0, 0.0, -1.0),
+        start_parameter: 0.0,
+        end_parameter: std::f64::consts::FRAC_PI_2,
+    };
     let d = read_one(EntityType::Ellipse(el)).unwrap();
-    let EntityKind::Ellipse { ellipse, start, end } = d.entities[0].kind else {
+    let EntityKind::Ellipse {
+        ellipse,
+        start,
+        end,
+    } = d.entities[0].kind
+    else {
         panic!("not an ellipse")
     };
     assert!((ellipse.a() - 50.0).abs() < 1e-12 && (ellipse.b() - 20.0).abs() < 1e-12);
     // Counter-clockwise from the DXF end point (0, −20) to the DXF start point (50, 0).
-    assert!(close(ellipse.point(start), 0.0, -20.0), "{:?}", ellipse.point(start));
-    assert!(close(ellipse.point(end), 50.0, 0.0), "{:?}", ellipse.point(end));
+    assert!(
+        close(ellipse.point(start), 0.0, -20.0),
+        "{:?}",
+        ellipse.point(start)
+    );
+    assert!(
+        close(ellipse.point(end), 50.0, 0.0),
+        "{:?}",
+        ellipse.point(end)
+    );
     assert!((end - start - std::f64::consts::FRAC_PI_2).abs() < 1e-12);
     // The midpoint of the piece is in the fourth quadrant, as the DXF curve's P(π/4) is.
     let mid = ellipse.point(0.5 * (start + end));
@@ -109,14 +133,21 @@ fn mirrored_ellipse_minor_axis_flips() {
 #[test]
 fn ellipse_parameters_follow_the_axis_normalisation() {
     // Major axis pointing to −x: the normalised ellipse has angle 0, so DXF t maps to t + π.
-    let mut el = de::Ellipse::default();
-    el.center = dxf::Point::new(10.0, 0.0, 0.0);
-    el.major_axis = dxf::Vector::new(-30.0, 0.0, 0.0);
-    el.minor_axis_ratio = 0.5;
-    el.start_parameter = 0.0;
-    el.end_parameter = 1.0;
+    let el = de::Ellipse {
+        center: dxf::Point::new(10.0, 0.0, 0.0),
+        major_axis: dxf::Vector::new(-30.0, 0.0, 0.0),
+        minor_axis_ratio: 0.5,
+        start_parameter: 0.0,
+        end_parameter: 1.0,
+        ..Default::default()
+    };
     let d = read_one(EntityType::Ellipse(el)).unwrap();
-    let EntityKind::Ellipse { ellipse, start, end } = d.entities[0].kind else {
+    let EntityKind::Ellipse {
+        ellipse,
+        start,
+        end,
+    } = d.entities[0].kind
+    else {
         panic!("not an ellipse")
     };
     assert!(ellipse.angle().abs() < 1e-15);
@@ -127,11 +158,13 @@ fn ellipse_parameters_follow_the_axis_normalisation() {
 
 #[test]
 fn full_ellipse_is_exactly_zero_to_two_pi() {
-    let mut el = de::Ellipse::default();
-    el.major_axis = dxf::Vector::new(0.0, 8.0, 0.0);
-    el.minor_axis_ratio = 0.25;
-    el.start_parameter = 0.0;
-    el.end_parameter = TAU;
+    let el = de::Ellipse {
+        major_axis: dxf::Vector::new(0.0, 8.0, 0.0),
+        minor_axis_ratio: 0.25,
+        start_parameter: 0.0,
+        end_parameter: TAU,
+        ..Default::default()
+    };
     let d = read_one(EntityType::Ellipse(el)).unwrap();
     assert!(d.entities[0].kind.is_full_ellipse());
 }
@@ -148,7 +181,10 @@ fn tilted_extrusion_is_refused_naming_the_entity() {
 
 #[test]
 fn zero_length_line_is_noted_not_kept() {
-    let l = de::Line::new(dxf::Point::new(1.0, 1.0, 0.0), dxf::Point::new(1.0, 1.0, 0.0));
+    let l = de::Line::new(
+        dxf::Point::new(1.0, 1.0, 0.0),
+        dxf::Point::new(1.0, 1.0, 0.0),
+    );
     let d = read_one(EntityType::Line(l)).unwrap();
     assert!(d.entities.is_empty());
     assert_eq!(d.notes.len(), 1);
@@ -187,7 +223,10 @@ fn bad_number_names_line_and_entity() {
     );
     let text = String::from_utf8(bytes).unwrap();
     let bad = text.replacen("\r\n 40\r\n1.25\r\n", "\r\n 40\r\nnot-a-number\r\n", 1);
-    assert_ne!(bad, text, "the test must find the radius in the written file");
+    assert_ne!(
+        bad, text,
+        "the test must find the radius in the written file"
+    );
     let e = read_dxf(bad.as_bytes(), &opts(None)).unwrap_err();
     let ReadError::BadNumber { line, code, .. } = &e else {
         panic!("{e}")

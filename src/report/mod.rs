@@ -165,7 +165,15 @@ impl Report {
         let _ = writeln!(
             s,
             "{:<10} {:<11} {:<7} {:>20} {:>9} {:>9} {:>8} {:>6} {:>10}",
-            "feature", "kind", "side", "centre (mm)", "a (mm)", "b (mm)", "angle°", "moves", "dev (mm)"
+            "feature",
+            "kind",
+            "side",
+            "centre (mm)",
+            "a (mm)",
+            "b (mm)",
+            "angle°",
+            "moves",
+            "dev (mm)"
         );
         for f in &self.features {
             let kind = match f.kind {

@@ -1,0 +1,291 @@
+//! The whole job through the `conicut` binary: the demo and a user's drawing, outputs read back
+//! with an outside G-code parser (the `gcode` crate) and checked against the format rules of the
+//! NIST RS274/NGC report (NISTIR 6556) and against the exact tool-centre curve.
+
+use assert_cmd::Command;
+use conicut::geom::{Ellipse, Point};
+use std::fs;
+use std::path::Path;
+
+fn conicut() -> Command {
+    Command::cargo_bin("conicut").expect("the conicut binary is built")
+}
+
+fn run_demo(dir: &Path) -> String {
+    let out = conicut()
+        .current_dir(dir)
+        .arg("demo")
+        .assert()
+        .success()
+        .get_output()
+        .stdout
+        .clone();
+    String::from_utf8(out).expect("utf-8 summary")
+}
+
+/// Checks every line against the format rules and returns the program's lines.
+fn check_format(program: &str) -> Vec<&str> {
+    let lines: Vec<&str> = program.lines().collect();
+    // NISTIR 6556 §3.1: a leading "%" needs a matching closing "%"; M2/M30 ends the program.
+    assert_eq!(lines.first(), Some(&"%"));
+    assert_eq!(lines.last(), Some(&"%"));
+    let m30 = lines.iter().position(|l| l.trim() == "M30").expect("M30");
+    assert_eq!(m30, lines.len() - 2, "M30 right before the closing %");
+    for line in &lines {
+        // §3.3: at most 256 characters a line.
+        assert!(line.len() <= 256, "line too long: {line}");
+        if line.starts_with('(') {
+            // §3.3.4: one comment, no nested parentheses.
+            assert!(line.ends_with(')'));
+            assert_eq!(line.matches('(').count(), 1, "nested comment: {line}");
+            continue;
+        }
+        for word in line.split_whitespace() {
+            let (letter, value) = word.split_at(1);
+            assert!(
+                letter.chars().all(|c| c.is_ascii_uppercase()) || word == "%",
+                "bad word {word}"
+            );
+            if word == "%" {
+                continue;
+            }
+            // §3.3.2.1: no exponent form; and DESIGN.md: fixed decimals, never "-0".
+            assert!(!value.contains(['e', 'E']), "exponent in {word}");
+            assert!(
+                value.parse::<f64>().is_ok(),
+                "not a number in {word} ({line})"
+            );
+            if value.starts_with('-') {
+                assert!(
+                    value
+                        .trim_start_matches('-')
+                        .chars()
+                        .any(|c| ('1'..='9').contains(&c)),
+                    "negative zero in {word}"
+                );
+            }
+            let decimals = value.split('.').nth(1).map(str::len);
+            match letter {
+                "X" | "Y" => assert_eq!(decimals, Some(4), "{word}"),
+                "Z" => assert_eq!(decimals, Some(3), "{word}"),
+                _ => {}
+            }
+        }
+    }
+    lines
+}
+
+#[test]
+fn demo_writes_program_preview_and_report() {
+    let tmp = tempfile::tempdir().unwrap();
+    let summary = run_demo(tmp.path());
+    let out = tmp.path().join("conicut-demo");
+    for name in [
+        "truss-bracket.ngc",
+        "truss-bracket.svg",
+        "truss-bracket-report.txt",
+        "truss-bracket-report.json",
+    ] {
+        let p = out.join(name);
+        assert!(p.is_file(), "{name} missing");
+        assert!(summary.contains(name), "summary names {name}");
+        assert!(!out.join(format!("{name}.partial")).exists());
+    }
+    assert!(summary.contains("bay 1") && summary.contains("outline"));
+
+    let program = fs::read_to_string(out.join("truss-bracket.ngc")).unwrap();
+    check_format(&program);
+    assert!(program.contains("G21") && program.contains("G90") && program.contains("G17"));
+    assert!(program.contains("(SAFETY"));
+    assert!(
+        program.contains("(The machine maker's manual and local safety rules take precedence"),
+        "precedence statement"
+    );
+
+    // An outside parser reads the whole program.
+    let parsed = gcode::parse(&program).expect("the gcode crate parses the program");
+    let motions = parsed
+        .blocks
+        .iter()
+        .flat_map(|b| b.codes.iter())
+        .filter(|c| matches!(c, gcode::Code::General(g) if g.number.major() == 1))
+        .count();
+    assert!(motions > 400, "{motions} G1 blocks");
+
+    let json: serde_json::Value =
+        serde_json::from_str(&fs::read_to_string(out.join("truss-bracket-report.json")).unwrap())
+            .expect("report JSON");
+    let features = json["features"].as_array().expect("features");
+    let openings: Vec<_> = features
+        .iter()
+        .filter(|f| f["kind"] == "bay-opening")
+        .collect();
+    assert!(openings.len() >= 3);
+    for f in features {
+        let dev = f["measured_deviation_mm"].as_f64().unwrap();
+        assert!(dev <= json["tolerance_mm"].as_f64().unwrap(), "{f}");
+        assert!(f["contour_moves"].as_u64().unwrap() >= 4);
+    }
+
+    // Every G1 point of every opening's cut lies on the exact tool-centre curve (the inward
+    // parallel curve at the tool radius) to within the tolerance, read back from the program text
+    // by the outside parser (f32 values: allow 1e-4 mm more).
+    let tol = json["tolerance_mm"].as_f64().unwrap();
+    let r = json["tool_diameter_mm"].as_f64().unwrap() / 2.0;
+    let cuts = split_cuts(&program);
+    for f in openings {
+        let name = f["name"].as_str().unwrap();
+        let e = &f["ellipse"];
+        let ellipse = Ellipse::new(
+            Point::new(
+                e["center_mm"][0].as_f64().unwrap(),
+                e["center_mm"][1].as_f64().unwrap(),
+            ),
+            e["semi_major_mm"].as_f64().unwrap(),
+            e["semi_minor_mm"].as_f64().unwrap(),
+            e["angle_deg"].as_f64().unwrap().to_radians(),
+        )
+        .unwrap();
+        let points = &cuts
+            .iter()
+            .find(|(n, _)| n == name)
+            .unwrap_or_else(|| panic!("cut {name} in program"))
+            .1;
+        // The first G1 with XY is the move in from the plunge point; the rest are on the curve.
+        for p in &points[1..] {
+            let (delta, _) = ellipse.distance_to(*p);
+            assert!(ellipse.contains(*p));
+            assert!(
+                (delta - r).abs() <= tol + 1e-4,
+                "{name}: point {p:?} is {delta} from the ellipse, tool radius {r}"
+            );
+        }
+    }
+}
+
+/// The XY end points of the G1 moves of each cut, by the cut's name from its comment
+/// `(cut N of M: NAME)`, read with the `gcode` crate.
+fn split_cuts(program: &str) -> Vec<(String, Vec<Point>)> {
+    let parsed = gcode::parse(program).expect("parse");
+    let mut cuts: Vec<(String, Vec<Point>)> = Vec::new();
+    for b in &parsed.blocks {
+        for c in &b.comments {
+            let text = c.value.trim_end_matches(')');
+            if let Some((_, name)) = text
+                .strip_prefix("cut ")
+                .and_then(|rest| rest.split_once(": "))
+            {
+                cuts.push((name.to_string(), Vec::new()));
+            }
+        }
+        for code in &b.codes {
+            if let gcode::Code::General(g) = code {
+                if g.number.major() != 1 {
+                    continue;
+                }
+                let get = |l: char| {
+                    g.args
+                        .iter()
+                        .find(|a| a.letter == l)
+                        .and_then(|a| match a.value {
+                            gcode::Value::Literal(v) => Some(v as f64),
+                            _ => None,
+                        })
+                };
+                if let (Some(x), Some(y), Some(cut)) = (get('X'), get('Y'), cuts.last_mut()) {
+                    cut.1.push(Point::new(x, y));
+                }
+            }
+        }
+    }
+    cuts
+}
+
+#[test]
+fn plan_on_the_bundled_drawing_matches_the_demo() {
+    let tmp = tempfile::tempdir().unwrap();
+    run_demo(tmp.path());
+    let root = Path::new(env!("CARGO_MANIFEST_DIR"));
+    conicut()
+        .current_dir(tmp.path())
+        .args(["plan"])
+        .arg(root.join("demo-parts/truss-bracket.dxf"))
+        .arg("--machine")
+        .arg(root.join("machine-profiles/metric-mill.toml"))
+        .args(["--tool-diameter", "6", "--margin", "4", "--out", "mine"])
+        .assert()
+        .success();
+    let demo = fs::read_to_string(tmp.path().join("conicut-demo/truss-bracket.ngc")).unwrap();
+    let mine = fs::read_to_string(tmp.path().join("mine/truss-bracket.ngc")).unwrap();
+    assert_eq!(
+        demo, mine,
+        "the bundled file and the built-in demo give the same program"
+    );
+}
+
+#[test]
+fn refusals_leave_no_output() {
+    let tmp = tempfile::tempdir().unwrap();
+    // A tool wider than twice the smallest radius of curvature b²/a of the openings gouges.
+    let assert = conicut()
+        .current_dir(tmp.path())
+        .args(["demo", "--tool-diameter", "20", "--out", "gouge"])
+        .assert()
+        .failure();
+    let err = String::from_utf8_lossy(&assert.get_output().stderr).into_owned();
+    assert!(err.contains("b²/a"), "{err}");
+    assert!(
+        err.contains("truss-bracket.dxf"),
+        "names the drawing: {err}"
+    );
+    assert!(!tmp.path().join("gouge").exists());
+
+    // A drawing without units is refused unless --units says which.
+    let mut d = dxf::Drawing::new();
+    d.header.version = dxf::enums::AcadVersion::R2000;
+    d.header.default_drawing_units = dxf::enums::Units::Unitless;
+    let square = [(0.0, 0.0), (60.0, 0.0), (60.0, 40.0), (0.0, 40.0)];
+    for i in 0..4 {
+        let (a, b) = (square[i], square[(i + 1) % 4]);
+        let mut e =
+            dxf::entities::Entity::new(dxf::entities::EntityType::Line(dxf::entities::Line::new(
+                dxf::Point::new(a.0, a.1, 0.0),
+                dxf::Point::new(b.0, b.1, 0.0),
+            )));
+        e.common.layer = conicut::chain::DEFAULT_BAY_LAYER.to_string();
+        d.add_entity(e);
+    }
+    let path = tmp.path().join("plain.dxf");
+    d.save_file(&path).unwrap();
+    let root = Path::new(env!("CARGO_MANIFEST_DIR"));
+    let profile = root.join("machine-profiles/metric-mill.toml");
+    let assert = conicut()
+        .current_dir(tmp.path())
+        .arg("plan")
+        .arg(&path)
+        .arg("--machine")
+        .arg(&profile)
+        .args(["--tool-diameter", "6", "--out", "plain-out"])
+        .assert()
+        .failure();
+    let err = String::from_utf8_lossy(&assert.get_output().stderr).into_owned();
+    assert!(err.contains("--units"), "{err}");
+    assert!(!tmp.path().join("plain-out").exists());
+    conicut()
+        .current_dir(tmp.path())
+        .arg("plan")
+        .arg(&path)
+        .arg("--machine")
+        .arg(&profile)
+        .args([
+            "--tool-diameter",
+            "6",
+            "--units",
+            "mm",
+            "--out",
+            "plain-out",
+        ])
+        .assert()
+        .success();
+    assert!(tmp.path().join("plain-out/plain.ngc").is_file());
+}
