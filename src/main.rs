@@ -72,7 +72,8 @@ struct CutArgs {
     /// Largest distance between the emitted path and the exact curve (mm).
     #[arg(long, default_value_t = 0.01, allow_negative_numbers = true)]
     tolerance: f64,
-    /// Cut depth below the work zero (mm, positive). Default: the machine profile's.
+    /// Cut depth below the work zero (mm, positive). Default: the machine profile's (the demo:
+    /// through its 3 mm plate and 0.5 mm into the board below).
     #[arg(long, allow_negative_numbers = true)]
     depth: Option<f64>,
 }
@@ -106,7 +107,7 @@ fn run(cli: Cli) -> Result<()> {
                 margin,
                 tool_diameter,
                 tolerance: cut.tolerance,
-                depth: cut.depth,
+                depth: Some(cut.depth.unwrap_or(conicut::demo::CUT_DEPTH)),
             };
             let bytes = conicut::demo::demo_dxf_bytes();
             let output = run_job(&bytes, &profile, &settings)?;

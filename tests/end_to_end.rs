@@ -212,7 +212,8 @@ fn plan_on_the_bundled_drawing_matches_the_demo() {
         .arg(root.join("demo-parts/truss-bracket.dxf"))
         .arg("--machine")
         .arg(root.join("machine-profiles/metric-mill.toml"))
-        .args(["--tool-diameter", "6", "--margin", "4", "--out", "mine"])
+        .args(["--tool-diameter", "6", "--margin", "4", "--depth", "3.5"])
+        .args(["--out", "mine"])
         .assert()
         .success();
     let demo = fs::read_to_string(tmp.path().join("conicut-demo/truss-bracket.ngc")).unwrap();

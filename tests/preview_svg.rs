@@ -285,8 +285,13 @@ fn ellipse_arcs_end_on_the_major_axis_ends() {
     }
     // The label gives the full axes and the angle.
     let label = by_class(&doc, "ellipse-label")[0];
-    let text: String = label.descendants().filter_map(|n| n.text()).collect();
-    assert!(text.contains("bay 1: 110.00 × 70.00 mm, 20.0°"), "{text}");
+    let text: Vec<&str> = label
+        .descendants()
+        .filter(|n| n.is_text())
+        .filter_map(|n| n.text())
+        .flat_map(|t| t.split_whitespace())
+        .collect();
+    assert_eq!(text.join(" "), "bay 1 110.00 × 70.00 mm at 20.0°");
 }
 
 #[test]

@@ -24,7 +24,7 @@ use crate::geom::{Ellipse, Point};
 use frame::{Bounds, Frame, num, scale_bar_length};
 use shapes::{arrow_d, arrow_spots, contour_d, ellipse_bounds, ellipse_d, polyline_d};
 use svg::Document;
-use svg::node::element::{Circle, Group, Line, Path, Rectangle, Text, Title};
+use svg::node::element::{Circle, Group, Line, Path, Rectangle, TSpan, Text, Title};
 
 /// What the preview shows.
 #[derive(Debug, Clone, Copy)]
@@ -193,27 +193,42 @@ fn ellipse_group(ellipses: &[(String, Ellipse)], frame: &Frame) -> Group {
                 .set("stroke", palette::ELLIPSE)
                 .set("stroke-width", num(2.0 * u)),
         );
+        // Three short lines centred in the ellipse, small enough to fit across it: the
+        // half-width of the ellipse along x is ab / sqrt(b² cos²θ + a² sin²θ), and a character
+        // is taken as 0.6 em wide.
+        let lines = [
+            name.clone(),
+            format!("{} × {} mm", fixed(2.0 * e.a(), 2), fixed(2.0 * e.b(), 2)),
+            format!("at {}°", fixed(e.angle().to_degrees(), 1)),
+        ];
+        let (s, c) = e.angle().sin_cos();
+        let half_width = e.a() * e.b() / ((e.b() * c).powi(2) + (e.a() * s).powi(2)).sqrt();
+        let widest = lines.iter().map(|l| l.chars().count()).max().unwrap_or(1) as f64;
+        let font = frame.font.min(0.85 * 2.0 * half_width / (0.6 * widest));
         let (x, y) = frame.svg_xy(e.center());
-        let label = format!(
-            "{name}: {} × {} mm, {}°",
-            fixed(2.0 * e.a(), 2),
-            fixed(2.0 * e.b(), 2),
-            fixed(e.angle().to_degrees(), 1)
-        );
-        g = g.add(
-            Text::new(label)
-                .set("class", "ellipse-label")
-                .set("data-name", name.as_str())
-                .set("x", num(x))
-                .set("y", num(y))
-                .set("font-size", num(frame.font))
-                .set("text-anchor", "middle")
-                .set("dominant-baseline", "middle")
-                .set("fill", palette::ELLIPSE)
-                .set("stroke", palette::BACKGROUND)
-                .set("stroke-width", num(3.0 * u))
-                .set("paint-order", "stroke"),
-        );
+        let mut text = Text::new("")
+            .set("class", "ellipse-label")
+            .set("data-name", name.as_str())
+            .set("x", num(x))
+            .set("y", num(y - 1.2 * font))
+            .set("font-size", num(font))
+            .set("text-anchor", "middle")
+            .set("dominant-baseline", "middle")
+            .set("fill", palette::ELLIPSE)
+            .set("stroke", palette::BACKGROUND)
+            .set("stroke-width", num(0.25 * font))
+            .set("paint-order", "stroke");
+        for (i, line) in lines.iter().enumerate() {
+            text = text.add(TSpan::new(line.as_str()).set("x", num(x)).set(
+                "dy",
+                if i == 0 {
+                    "0".to_string()
+                } else {
+                    num(1.2 * font)
+                },
+            ));
+        }
+        g = g.add(text);
     }
     g
 }
