@@ -3,10 +3,14 @@
 use anyhow::{Context, Result, bail};
 use clap::{Args, Parser, Subcommand};
 use conicut::chain::{DEFAULT_BAY_LAYER, DEFAULT_GAP_TOLERANCE};
-use conicut::job::{JobOutput, JobSettings, run_job};
+use conicut::geom::Point;
+use conicut::job::{JobOutput, JobSettings, run_job, solve_job};
+use conicut::jobfile::{FeatureSource, FitPoints, JobFile, parse_job_file};
 use conicut::post::MachineProfile;
 use conicut::read::Units;
+use conicut::read::parse_points_csv;
 use conicut::report::OutputFile;
+use std::collections::BTreeMap;
 use std::fs;
 use std::path::{Path, PathBuf};
 
@@ -35,6 +39,19 @@ enum Command {
         /// Cutter diameter (mm).
         #[arg(long, default_value_t = 6.0, allow_negative_numbers = true)]
         tool_diameter: f64,
+        /// A job file saying which ellipse each bay gets (see demo-parts/truss-bracket-job.toml).
+        #[arg(long)]
+        job: Option<PathBuf>,
+    },
+    /// Solve every feature of a drawing and list every candidate, without cutting anything.
+    Solve {
+        /// The DXF drawing.
+        drawing: PathBuf,
+        #[command(flatten)]
+        input: DrawingArgs,
+        /// Print JSON for scripts instead of the table.
+        #[arg(long)]
+        json: bool,
     },
     /// Run the whole job on a drawing of your own.
     Plan {
@@ -50,21 +67,33 @@ enum Command {
         /// current folder.
         #[arg(long)]
         out: Option<PathBuf>,
-        /// Units of a drawing that states none in its header ($INSUNITS): mm or in.
-        #[arg(long)]
-        units: Option<Units>,
-        /// Layer holding the bays (matched ignoring case).
-        #[arg(long, default_value = DEFAULT_BAY_LAYER)]
-        bay_layer: String,
-        /// Edge margin: each bay side is moved inward by this much before solving (mm).
-        #[arg(long, default_value_t = 0.0, allow_negative_numbers = true)]
-        margin: f64,
-        /// Largest gap closed when joining drawing pieces into contours (mm).
-        #[arg(long, default_value_t = DEFAULT_GAP_TOLERANCE, allow_negative_numbers = true)]
-        gap_tolerance: f64,
+        #[command(flatten)]
+        input: DrawingArgs,
         #[command(flatten)]
         cut: CutArgs,
     },
+}
+
+/// How to read the drawing and which ellipses to solve: shared by `solve` and `plan`.
+#[derive(Args, Debug)]
+struct DrawingArgs {
+    /// A job file (TOML) saying, per feature, which ellipse to make and how to cut it. Without
+    /// one, every bay gets the largest ellipse touching all its sides.
+    #[arg(long)]
+    job: Option<PathBuf>,
+    /// Units of a drawing that states none in its header ($INSUNITS): mm or in.
+    #[arg(long)]
+    units: Option<Units>,
+    /// Layer holding the bays (matched ignoring case; a job file's bay_layer wins).
+    #[arg(long, default_value = DEFAULT_BAY_LAYER)]
+    bay_layer: String,
+    /// Edge margin: each bay side is moved inward by this much before solving (mm; a job file's
+    /// margin wins).
+    #[arg(long, default_value_t = 0.0, allow_negative_numbers = true)]
+    margin: f64,
+    /// Largest gap closed when joining drawing pieces into contours (mm).
+    #[arg(long, default_value_t = DEFAULT_GAP_TOLERANCE, allow_negative_numbers = true)]
+    gap_tolerance: f64,
 }
 
 #[derive(Args, Debug)]
@@ -89,6 +118,73 @@ fn main() {
     }
 }
 
+/// Reads the job file and every CSV of points it names (paths relative to the job file).
+fn read_job(path: &Path) -> Result<(JobFile, BTreeMap<String, Vec<Point>>)> {
+    let text = fs::read_to_string(path)
+        .with_context(|| format!("cannot read the job file {}", path.display()))?;
+    let job =
+        parse_job_file(&text, &path.display().to_string()).map_err(|e| anyhow::anyhow!("{e}"))?;
+    let base = path.parent().unwrap_or(Path::new("."));
+    let mut csv = BTreeMap::new();
+    for f in &job.features {
+        if let FeatureSource::Fit {
+            points: FitPoints::Csv(name),
+        } = &f.source
+        {
+            let p = base.join(name);
+            let text = fs::read_to_string(&p).with_context(|| {
+                format!(
+                    "feature \"{}\" (job file line {}): cannot read the points file {}",
+                    f.name,
+                    f.line,
+                    p.display()
+                )
+            })?;
+            let pts = parse_points_csv(&text, &p.display().to_string(), job.units)
+                .map_err(|e| anyhow::anyhow!("{e}"))?;
+            csv.insert(name.clone(), pts);
+        }
+    }
+    Ok((job, csv))
+}
+
+/// The drawing's bytes, its file name and stem.
+fn read_drawing(drawing: &Path) -> Result<(Vec<u8>, String, String)> {
+    let bytes = fs::read(drawing)
+        .with_context(|| format!("cannot read the drawing {}", drawing.display()))?;
+    let file_name = drawing
+        .file_name()
+        .map(|n| n.to_string_lossy().into_owned())
+        .unwrap_or_else(|| drawing.display().to_string());
+    let stem = drawing
+        .file_stem()
+        .map(|n| n.to_string_lossy().into_owned())
+        .unwrap_or_else(|| "part".into());
+    Ok((bytes, file_name, stem))
+}
+
+fn settings(file_name: String, input: &DrawingArgs, cut: Option<&CutArgs>) -> Result<JobSettings> {
+    let (job, csv_points) = match &input.job {
+        Some(p) => {
+            let (j, c) = read_job(p)?;
+            (Some(j), c)
+        }
+        None => (None, BTreeMap::new()),
+    };
+    Ok(JobSettings {
+        file_name,
+        units: input.units,
+        bay_layer: input.bay_layer.clone(),
+        gap_tolerance: input.gap_tolerance,
+        margin: input.margin,
+        tool_diameter: 0.0,
+        tolerance: cut.map(|c| c.tolerance).unwrap_or(0.01),
+        depth: cut.and_then(|c| c.depth),
+        job,
+        csv_points,
+    })
+}
+
 fn run(cli: Cli) -> Result<()> {
     match cli.command {
         Command::Demo {
@@ -96,32 +192,45 @@ fn run(cli: Cli) -> Result<()> {
             cut,
             margin,
             tool_diameter,
+            job,
         } => {
             let profile = MachineProfile::metric_mill()
                 .map_err(|e| anyhow::anyhow!("the bundled metric mill profile: {e}"))?;
-            let settings = JobSettings {
-                file_name: DEMO_NAME.to_string(),
+            let input = DrawingArgs {
+                job,
                 units: None,
                 bay_layer: DEFAULT_BAY_LAYER.to_string(),
-                gap_tolerance: DEFAULT_GAP_TOLERANCE,
                 margin,
-                tool_diameter,
-                tolerance: cut.tolerance,
-                depth: Some(cut.depth.unwrap_or(conicut::demo::CUT_DEPTH)),
+                gap_tolerance: DEFAULT_GAP_TOLERANCE,
             };
+            let mut settings = settings(DEMO_NAME.to_string(), &input, Some(&cut))?;
+            settings.tool_diameter = tool_diameter;
+            settings.depth = Some(cut.depth.unwrap_or(conicut::demo::CUT_DEPTH));
             let bytes = conicut::demo::demo_dxf_bytes();
             let output = run_job(&bytes, &profile, &settings)?;
             finish(output, &out, "truss-bracket")
+        }
+        Command::Solve {
+            drawing,
+            input,
+            json,
+        } => {
+            let (bytes, file_name, _) = read_drawing(&drawing)?;
+            let settings = settings(file_name, &input, None)?;
+            let listing = solve_job(&bytes, &settings)?;
+            if json {
+                println!("{}", listing.to_json());
+            } else {
+                print!("{}", listing.to_text());
+            }
+            Ok(())
         }
         Command::Plan {
             drawing,
             machine,
             tool_diameter,
             out,
-            units,
-            bay_layer,
-            margin,
-            gap_tolerance,
+            input,
             cut,
         } => {
             let profile_text = fs::read_to_string(&machine).with_context(|| {
@@ -129,26 +238,9 @@ fn run(cli: Cli) -> Result<()> {
             })?;
             let profile = MachineProfile::from_toml(&profile_text, &machine.display().to_string())
                 .map_err(|e| anyhow::anyhow!("{e}"))?;
-            let bytes = fs::read(&drawing)
-                .with_context(|| format!("cannot read the drawing {}", drawing.display()))?;
-            let file_name = drawing
-                .file_name()
-                .map(|n| n.to_string_lossy().into_owned())
-                .unwrap_or_else(|| drawing.display().to_string());
-            let stem = drawing
-                .file_stem()
-                .map(|n| n.to_string_lossy().into_owned())
-                .unwrap_or_else(|| "part".into());
-            let settings = JobSettings {
-                file_name,
-                units,
-                bay_layer,
-                gap_tolerance,
-                margin,
-                tool_diameter,
-                tolerance: cut.tolerance,
-                depth: cut.depth,
-            };
+            let (bytes, file_name, stem) = read_drawing(&drawing)?;
+            let mut settings = settings(file_name, &input, Some(&cut))?;
+            settings.tool_diameter = tool_diameter;
             let output = run_job(&bytes, &profile, &settings)?;
             let out = out.unwrap_or_else(|| PathBuf::from(format!("{stem}-conicut")));
             finish(output, &out, &stem)

@@ -116,10 +116,7 @@ fn demo_writes_program_preview_and_report() {
         serde_json::from_str(&fs::read_to_string(out.join("truss-bracket-report.json")).unwrap())
             .expect("report JSON");
     let features = json["features"].as_array().expect("features");
-    let openings: Vec<_> = features
-        .iter()
-        .filter(|f| f["kind"] == "bay-opening")
-        .collect();
+    let openings: Vec<_> = features.iter().filter(|f| f["kind"] == "opening").collect();
     assert!(openings.len() >= 3);
     for f in features {
         let dev = f["measured_deviation_mm"].as_f64().unwrap();

@@ -11,12 +11,13 @@ use std::f64::consts::TAU;
 fn cut(e: Ellipse, r: f64) -> PlannedCut {
     PlannedCut {
         name: "test".into(),
-        kind: FeatureKind::BayOpening,
+        kind: FeatureKind::Opening,
         side: CutSide::Inside,
-        path: ExactPath::EllipseInward {
+        path: ExactPath::EllipseParallel {
             ellipse: e,
-            distance: r,
+            inset: r,
             start: 0.0,
+            clockwise: false,
         },
         plunge: e.center(),
     }

@@ -417,7 +417,7 @@ fn other_kinds_of_machine_are_not_yet_supported() {
 #[test]
 fn header_holds_the_job_the_safety_block_and_the_precedence_statement() {
     let mut cut = square_cut("bay 1", 10.0, 20.0, 30.0);
-    cut.kind = FeatureKind::BayOpening;
+    cut.kind = FeatureKind::Opening;
     cut.measured_deviation = 0.00612;
     let program = write_program(&[cut], &mill(), &settings()).unwrap();
     let first_block = program
@@ -438,7 +438,7 @@ fn header_holds_the_job_the_safety_block_and_the_precedence_statement() {
         "tool diameter 6.0000 mm, cut depth 1.500 mm, tolerance 0.0100 mm"
     ));
     assert!(has(
-        "(1 bay 1: bay opening, tool inside, 5 feed moves, measured deviation 0.0061 mm)"
+        "(1 bay 1: elliptical opening, tool inside, 5 feed moves, measured deviation 0.0061 mm)"
     ));
     let safety = header
         .iter()
@@ -471,7 +471,7 @@ fn header_holds_the_job_the_safety_block_and_the_precedence_statement() {
     let again = write_program(
         &[{
             let mut c = square_cut("bay 1", 10.0, 20.0, 30.0);
-            c.kind = FeatureKind::BayOpening;
+            c.kind = FeatureKind::Opening;
             c.measured_deviation = 0.00612;
             c
         }],

@@ -80,7 +80,7 @@ fn cut_for(name: &str, e: &Ellipse) -> FittedCut {
         .collect();
     FittedCut {
         name: name.into(),
-        kind: FeatureKind::BayOpening,
+        kind: FeatureKind::Opening,
         side: CutSide::Inside,
         plunge: e.center(),
         path,

@@ -28,6 +28,9 @@ pub struct ChainOptions {
     pub gap_tolerance: f64,
     /// The layer holding bays (compared case-insensitively).
     pub bay_layer: String,
+    /// Layers of construction geometry that is neither cut nor a bay (probe points, guide lines
+    /// named by a job file; compared case-insensitively): their entities are left out.
+    pub construction_layers: Vec<String>,
 }
 
 impl Default for ChainOptions {
@@ -35,6 +38,7 @@ impl Default for ChainOptions {
         ChainOptions {
             gap_tolerance: DEFAULT_GAP_TOLERANCE,
             bay_layer: DEFAULT_BAY_LAYER.to_string(),
+            construction_layers: Vec::new(),
         }
     }
 }
@@ -265,6 +269,7 @@ pub(super) fn fmt_handles(handles: &[String]) -> String {
 ///   `bay 1`, `bay 2`, … and `hole 1`, … in order of the lower-left corner of their bounding
 ///   boxes: by x, then by y, then by first handle.
 /// * A bay not inside the outline, and ignored POINT entities, give warnings.
+/// * Entities on the construction layers are left out altogether.
 pub fn build_part(drawing: &Drawing, opts: &ChainOptions) -> Result<Part, ChainError> {
     let tol = opts.gap_tolerance;
     if !(tol.is_finite() && tol >= 0.0) {
@@ -278,6 +283,13 @@ pub fn build_part(drawing: &Drawing, opts: &ChainOptions) -> Result<Part, ChainE
     let mut points: Vec<String> = Vec::new();
     for e in &drawing.entities {
         let key = e.layer.to_lowercase();
+        if opts
+            .construction_layers
+            .iter()
+            .any(|l| l.to_lowercase() == key)
+        {
+            continue;
+        }
         let idx = match layers.iter().position(|l| l.key == key) {
             Some(i) => i,
             None => {

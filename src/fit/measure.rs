@@ -33,12 +33,13 @@ pub fn measure_deviation(path: &[Point], exact: &ExactPath) -> f64 {
 /// Points along the exact curve, in the order of travel.
 fn curve_samples(exact: &ExactPath, count: usize) -> Vec<Point> {
     match exact {
-        ExactPath::EllipseInward {
+        ExactPath::EllipseParallel {
             ellipse,
-            distance,
+            inset,
             start,
+            ..
         } => (0..=count)
-            .map(|k| ellipse.inward_offset_point(start + TAU * k as f64 / count as f64, *distance))
+            .map(|k| ellipse.inward_offset_point(start + TAU * k as f64 / count as f64, *inset))
             .collect(),
         ExactPath::Contour(c) => {
             let total: f64 = c.elements.iter().map(Element::length).sum();
@@ -61,9 +62,8 @@ fn curve_samples(exact: &ExactPath, count: usize) -> Vec<Point> {
 /// Distance from `p` to the exact curve.
 fn distance_to_exact(exact: &ExactPath, p: Point) -> f64 {
     match exact {
-        ExactPath::EllipseInward {
-            ellipse, distance, ..
-        } => {
+        ExactPath::EllipseParallel { ellipse, inset, .. } => {
+            let distance = inset;
             // Start from the anomaly of the nearest point of the ellipse itself (the parallel
             // curve shares its normals), then minimise |p − O_d(t)| by golden-section search
             // in a window around it.

@@ -74,11 +74,18 @@ pub fn fit_cut(cut: &PlannedCut, tolerance: f64) -> Result<FittedCut, FitError> 
         return Err(FitError::BadTolerance(tolerance));
     }
     let path = match &cut.path {
-        ExactPath::EllipseInward {
+        ExactPath::EllipseParallel {
             ellipse,
-            distance,
+            inset,
             start,
-        } => flatten_ellipse_offset(ellipse, *distance, *start, tolerance),
+            clockwise,
+        } => {
+            let mut points = flatten_ellipse_offset(ellipse, *inset, *start, tolerance);
+            if *clockwise {
+                points.reverse();
+            }
+            points
+        }
         ExactPath::Contour(c) => flatten_contour(c, tolerance),
     };
     let measured = measure_deviation(&path, &cut.path);
@@ -100,11 +107,12 @@ pub fn fit_cut(cut: &PlannedCut, tolerance: f64) -> Result<FittedCut, FitError> 
     })
 }
 
-/// Chords of the inward parallel curve `O_d(t)` of `e`, vertices on the curve, chosen greedily:
-/// from each vertex the next is the farthest along the curve whose chord stays within
-/// `tolerance` of the arc it cuts off. The curve is convex when `d < b²/a` (its tangent turns
-/// with the ellipse's, `O′ = P′(1 − dκ)`), so each chord's deviation is the largest distance of
-/// the arc from the chord's line, found by golden-section search, and grows with the chord.
+/// Chords of the parallel curve `O_d(t) = P(t) − d N(t)` of `e` (inside for `d > 0`, outside for
+/// `d < 0`), counter-clockwise from anomaly `start`, vertices on the curve, chosen greedily: from
+/// each vertex the next is the farthest along the curve whose chord stays within `tolerance` of
+/// the arc it cuts off. The curve is convex when `d < b²/a` (its tangent turns with the
+/// ellipse's, `O′ = P′(1 − dκ)`), so each chord's deviation is the largest distance of the arc
+/// from the chord's line, found by golden-section search, and grows with the chord.
 pub fn flatten_ellipse_offset(e: &Ellipse, d: f64, start: f64, tolerance: f64) -> Vec<Point> {
     let curve = |t: f64| e.inward_offset_point(t, d);
     let target = tolerance * TARGET_SHARE;

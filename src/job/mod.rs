@@ -2,15 +2,21 @@
 //! the report out. No files are touched here: the command layer reads the inputs and writes the
 //! outputs.
 
+pub mod features;
+pub mod listing;
+
 use crate::chain::{self, ChainError, ChainOptions, HoleShape};
 use crate::fit::{self, FitError};
 use crate::geom::{Ellipse, Point};
+use crate::jobfile::{CutKind, JobFile};
 use crate::plan::{self, PlanError, PlanOptions};
 use crate::post::{self, MachineProfile, PostError, ProgramSettings};
 use crate::preview::{self, PreviewInput};
 use crate::read::{self, ReadError, ReadOptions, Units};
-use crate::report::{self, Report, ReportInput};
-use crate::solve::{self, SolveError};
+use crate::report::{self, FitSummary, Report, ReportInput, SolvedInfo};
+use features::{FeatureInputs, SolvedFeature};
+use listing::SolveListing;
+use std::collections::BTreeMap;
 
 /// What the user asked for.
 #[derive(Debug, Clone, PartialEq)]
@@ -19,10 +25,11 @@ pub struct JobSettings {
     pub file_name: String,
     /// Units to assume when the drawing states none (`--units`).
     pub units: Option<Units>,
+    /// The layer holding the bays (a job file's `bay_layer` overrides it).
     pub bay_layer: String,
     /// Largest gap closed when chaining pieces into contours (mm).
     pub gap_tolerance: f64,
-    /// Edge margin: the bay's sides are moved inward by this much before solving (mm).
+    /// Edge margin for bays when neither the job file nor its feature states one (mm).
     pub margin: f64,
     /// Cutter diameter (mm).
     pub tool_diameter: f64,
@@ -30,6 +37,11 @@ pub struct JobSettings {
     pub tolerance: f64,
     /// Cut depth (mm, positive); `None` uses the machine profile's default.
     pub depth: Option<f64>,
+    /// The job file, if any: which ellipse each feature gets. Without one, every bay gets the
+    /// largest ellipse touching all its sides.
+    pub job: Option<JobFile>,
+    /// Points read from the CSV files the job file names, by the path as written there (mm).
+    pub csv_points: BTreeMap<String, Vec<Point>>,
 }
 
 /// Everything the job produces.
@@ -45,16 +57,14 @@ pub struct JobOutput {
 pub enum JobError {
     #[error(transparent)]
     Read(#[from] ReadError),
-    #[error("{file}: {source}")]
-    Chain { file: String, source: ChainError },
-    #[error("{file}: {source}")]
-    Solve { file: String, source: SolveError },
-    #[error("{file}: {source}")]
-    Plan { file: String, source: PlanError },
-    #[error("{file}: {source}")]
-    Fit { file: String, source: FitError },
-    #[error("{file}: {source}")]
-    Post { file: String, source: PostError },
+    #[error("{file}: {error}")]
+    Chain { file: String, error: ChainError },
+    #[error("{file}: {error}")]
+    Plan { file: String, error: PlanError },
+    #[error("{file}: {error}")]
+    Fit { file: String, error: FitError },
+    #[error("{file}: {error}")]
+    Post { file: String, error: PostError },
     #[error(
         "{file}: a tolerance of {tolerance} mm is too fine for the machine profile's {decimals} \
          decimals: rounding alone moves a point by up to {rounding:.6} mm. Use a tolerance of at \
@@ -70,17 +80,33 @@ pub enum JobError {
     BadMargin { file: String, margin: f64 },
     #[error(
         "{file}: nothing to cut: the drawing has no bays on layer \"{bay_layer}\", no holes and no \
-         outline. Check the layer names (--bay-layer) and that the contours are closed"
+         outline, and no job file names a feature. Check the layer names (--bay-layer) and that \
+         the contours are closed"
     )]
     NothingToCut { file: String, bay_layer: String },
+    #[error("{file}: {count} feature(s) could not be solved, so nothing was cut:\n{list}")]
+    Unsolved {
+        file: String,
+        count: usize,
+        list: String,
+    },
+    #[error(
+        "{file}: feature \"{feature}\" asks for a pocket; clearing pockets is not supported yet. \
+         Cut it as a hole (cut = \"hole\") for now"
+    )]
+    PocketNotSupported { file: String, feature: String },
 }
 
-/// Runs the whole job.
-pub fn run_job(
-    dxf: &[u8],
-    profile: &MachineProfile,
-    s: &JobSettings,
-) -> Result<JobOutput, JobError> {
+/// The drawing read and sorted, and every feature solved.
+struct Solved {
+    drawing: read::Drawing,
+    part: crate::chain::Part,
+    features: Vec<SolvedFeature>,
+    /// Bays the job file does not mention.
+    unused_bays: Vec<String>,
+}
+
+fn read_and_solve(dxf: &[u8], s: &JobSettings) -> Result<Solved, JobError> {
     let file = || s.file_name.clone();
     if !(s.margin >= 0.0 && s.margin.is_finite()) {
         return Err(JobError::BadMargin {
@@ -95,42 +121,150 @@ pub fn run_job(
             units: s.units,
         },
     )?;
+    let bay_layer = s
+        .job
+        .as_ref()
+        .and_then(|j| j.bay_layer.clone())
+        .unwrap_or_else(|| s.bay_layer.clone());
     let part = chain::build_part(
         &drawing,
         &ChainOptions {
             gap_tolerance: s.gap_tolerance,
-            bay_layer: s.bay_layer.clone(),
+            bay_layer: bay_layer.clone(),
+            construction_layers: s
+                .job
+                .as_ref()
+                .map(JobFile::construction_layers)
+                .unwrap_or_default(),
         },
     )
-    .map_err(|source| JobError::Chain {
+    .map_err(|error| JobError::Chain {
         file: file(),
-        source,
+        error,
     })?;
-    if part.bays.is_empty() && part.holes.is_empty() && part.outline.is_none() {
+    let (specs, default_margin) = match &s.job {
+        Some(job) => (job.features.clone(), job.margin.unwrap_or(s.margin)),
+        None => (features::default_specs(&part), s.margin),
+    };
+    if specs.is_empty() && part.holes.is_empty() && part.outline.is_none() {
         return Err(JobError::NothingToCut {
             file: file(),
-            bay_layer: s.bay_layer.clone(),
+            bay_layer,
         });
     }
-    let openings = part
+    let features = features::solve_features(
+        &specs,
+        &FeatureInputs {
+            part: &part,
+            drawing: &drawing,
+            csv_points: &s.csv_points,
+            default_margin,
+        },
+    );
+    let unused_bays = part
         .bays
         .iter()
-        .map(|b| solve::largest_tangent_ellipse(b, s.margin))
-        .collect::<Result<Vec<_>, _>>()
-        .map_err(|source| JobError::Solve {
+        .filter(|b| !features.iter().any(|f| f.bay.as_ref() == Some(&b.name)))
+        .map(|b| b.name.clone())
+        .collect();
+    Ok(Solved {
+        drawing,
+        part,
+        features,
+        unused_bays,
+    })
+}
+
+/// Solves every feature without cutting anything: what `conicut solve` lists.
+pub fn solve_job(dxf: &[u8], s: &JobSettings) -> Result<SolveListing, JobError> {
+    let solved = read_and_solve(dxf, s)?;
+    let mut warnings = solved.part.warnings.clone();
+    warnings.extend(unused_warnings(&solved.unused_bays));
+    Ok(listing::build(
+        &s.file_name,
+        solved.drawing.units.symbol(),
+        &solved.features,
+        warnings,
+        solved.drawing.notes.clone(),
+    ))
+}
+
+fn unused_warnings(bays: &[String]) -> Vec<String> {
+    bays.iter()
+        .map(|b| format!("{b} is not named in the job file, so it is not cut"))
+        .collect()
+}
+
+/// Runs the whole job.
+pub fn run_job(
+    dxf: &[u8],
+    profile: &MachineProfile,
+    s: &JobSettings,
+) -> Result<JobOutput, JobError> {
+    let file = || s.file_name.clone();
+    let solved = read_and_solve(dxf, s)?;
+    let failures: Vec<String> = solved
+        .features
+        .iter()
+        .filter_map(|f| {
+            f.outcome
+                .as_ref()
+                .err()
+                .map(|e| format!("  - {} ({}): {}", f.name, f.source, e.reason))
+        })
+        .collect();
+    if !failures.is_empty() {
+        return Err(JobError::Unsolved {
             file: file(),
-            source,
-        })?;
+            count: failures.len(),
+            list: failures.join("\n"),
+        });
+    }
+    if let Some(p) = solved.features.iter().find(|f| f.cut == CutKind::Pocket) {
+        return Err(JobError::PocketNotSupported {
+            file: file(),
+            feature: p.name.clone(),
+        });
+    }
+    let part = &solved.part;
+    let mut to_cut = Vec::new();
+    let mut infos = Vec::new();
+    for f in &solved.features {
+        let Ok(sol) = &f.outcome else { continue };
+        to_cut.push(plan::Opening {
+            name: f.name.clone(),
+            ellipse: sol.ellipse,
+            side: match f.cut {
+                CutKind::Boss => plan::CutSide::Outside,
+                CutKind::Hole | CutKind::Pocket => plan::CutSide::Inside,
+            },
+        });
+        infos.push(SolvedInfo {
+            name: f.name.clone(),
+            ellipse: sol.ellipse,
+            source: f.source.clone(),
+            rule: f.rule.clone(),
+            chosen_because: sol.reason.clone(),
+            candidates: sol.candidates.len(),
+            margin_mm: f.margin_mm,
+            residual: sol.candidates[sol.chosen].residual,
+            fit: f.fit.map(|q| FitSummary {
+                points: q.points,
+                rms_residual_mm: q.rms_residual_mm,
+                max_residual_mm: q.max_residual_mm,
+            }),
+        });
+    }
     let plan = plan::plan_cuts(
-        &part,
-        &openings,
+        part,
+        &to_cut,
         &PlanOptions {
             tool_diameter: s.tool_diameter,
         },
     )
-    .map_err(|source| JobError::Plan {
+    .map_err(|error| JobError::Plan {
         file: file(),
-        source,
+        error,
     })?;
     // Tolerance budget: the program's coordinates are rounded to the profile's decimals, which
     // moves a point by at most half a step on each axis (√2/2 steps in all); the fit gets the
@@ -146,11 +280,10 @@ pub fn run_job(
             decimals: profile.xy_decimals(),
         });
     }
-    let mut cuts =
-        fit::fit_plan(&plan, s.tolerance - rounding).map_err(|source| JobError::Fit {
-            file: file(),
-            source,
-        })?;
+    let mut cuts = fit::fit_plan(&plan, s.tolerance - rounding).map_err(|error| JobError::Fit {
+        file: file(),
+        error,
+    })?;
     let snap = |v: f64| {
         let written = post::format_number(units.from_mm(v), profile.xy_decimals());
         written.parse::<f64>().map(|w| units.to_mm(w)).unwrap_or(v)
@@ -166,7 +299,7 @@ pub fn run_job(
         if cut.measured_deviation > s.tolerance {
             return Err(JobError::Fit {
                 file: file(),
-                source: FitError::ToleranceExceeded {
+                error: FitError::ToleranceExceeded {
                     feature: cut.name.clone(),
                     measured: cut.measured_deviation,
                     tolerance: s.tolerance,
@@ -191,14 +324,12 @@ pub fn run_job(
             spindle_speed: None,
         },
     )
-    .map_err(|source| JobError::Post {
+    .map_err(|error| JobError::Post {
         file: file(),
-        source,
+        error,
     })?;
-    let mut ellipses: Vec<(String, Ellipse)> = openings
-        .iter()
-        .map(|o| (o.bay.clone(), o.ellipse))
-        .collect();
+    let mut ellipses: Vec<(String, Ellipse)> =
+        to_cut.iter().map(|o| (o.name.clone(), o.ellipse)).collect();
     let ellipse_holes: Vec<(String, Ellipse)> = part
         .holes
         .iter()
@@ -210,25 +341,26 @@ pub fn run_job(
     ellipses.extend(ellipse_holes.iter().cloned());
     let preview = preview::preview_svg(&PreviewInput {
         title: &s.file_name,
-        part: &part,
+        part,
         ellipses: &ellipses,
         cuts: &cuts,
         tool_diameter: s.tool_diameter,
     });
     let mut warnings = part.warnings.clone();
+    warnings.extend(unused_warnings(&solved.unused_bays));
     warnings.extend(plan.warnings.iter().cloned());
     let report = report::build_report(ReportInput {
         drawing: &s.file_name,
-        drawing_units: drawing.units.symbol(),
+        drawing_units: solved.drawing.units.symbol(),
         machine: profile.name(),
         tool_diameter: s.tool_diameter,
         cut_depth: depth,
         tolerance: s.tolerance,
-        openings: &openings,
+        solved: &infos,
         ellipse_holes: &ellipse_holes,
         cuts: &cuts,
         warnings,
-        notes: drawing.notes.clone(),
+        notes: solved.drawing.notes.clone(),
     });
     Ok(JobOutput {
         program,

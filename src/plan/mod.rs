@@ -7,8 +7,10 @@ use serde::Serialize;
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
 #[serde(rename_all = "kebab-case")]
 pub enum FeatureKind {
-    /// An elliptical opening solved from a bay.
-    BayOpening,
+    /// An elliptical opening solved from a bay or from constraints, cut as a hole.
+    Opening,
+    /// An elliptical boss: the ellipse is kept, the tool runs outside it.
+    Boss,
     /// A hole drawn in the part (circle, closed contour or ellipse).
     Hole,
     /// The part's outer outline.
@@ -29,11 +31,20 @@ pub mod offset;
 
 use crate::chain::{Contour, Element, HoleShape, Part};
 use crate::geom::{Ellipse, Point};
-use crate::solve::BayOpening;
 
 /// The largest share of the tool radius by which a gouge check may be missed: the path is
 /// refused when it comes closer than `(1 − GOUGE_MARGIN) · r` to an edge it must not cut.
 pub const GOUGE_MARGIN: f64 = 1e-6;
+
+/// A solved elliptical feature to cut.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Opening {
+    /// The feature's name, e.g. `bay 1` or a name from the job file.
+    pub name: String,
+    pub ellipse: Ellipse,
+    /// `Inside` for a hole, `Outside` for a boss.
+    pub side: CutSide,
+}
 
 /// Settings for planning.
 #[derive(Debug, Clone, PartialEq)]
@@ -45,12 +56,14 @@ pub struct PlanOptions {
 /// An exact tool-centre path.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub enum ExactPath {
-    /// The inward parallel curve `O_d(t) = P(t) − d N(t)` of `ellipse` at `distance`, travelled
-    /// counter-clockwise once, starting and ending at anomaly `start`.
-    EllipseInward {
+    /// The parallel curve `O_d(t) = P(t) − d N(t)` of `ellipse` at signed distance `inset`
+    /// (positive inside, negative outside), travelled once from anomaly `start`,
+    /// counter-clockwise unless `clockwise`.
+    EllipseParallel {
         ellipse: Ellipse,
-        distance: f64,
+        inset: f64,
         start: f64,
+        clockwise: bool,
     },
     /// A closed contour of lines and arcs that is itself the tool-centre path.
     Contour(Contour),
@@ -60,11 +73,12 @@ impl ExactPath {
     /// The point where the cut starts and ends.
     pub fn start_point(&self) -> Point {
         match self {
-            ExactPath::EllipseInward {
+            ExactPath::EllipseParallel {
                 ellipse,
-                distance,
+                inset,
                 start,
-            } => ellipse.inward_offset_point(*start, *distance),
+                ..
+            } => ellipse.inward_offset_point(*start, *inset),
             ExactPath::Contour(c) => c.start_point().unwrap_or(Point::ORIGIN),
         }
     }
@@ -136,11 +150,7 @@ pub enum PlanError {
 ///
 /// Direction: with the spindle turning clockwise (M3), the tool on the left of travel climb-mills
 /// (NISTIR 6556 App. B.2.1; common practice prefers climb milling on rigid machines).
-pub fn plan_cuts(
-    part: &Part,
-    openings: &[BayOpening],
-    opts: &PlanOptions,
-) -> Result<Plan, PlanError> {
+pub fn plan_cuts(part: &Part, openings: &[Opening], opts: &PlanOptions) -> Result<Plan, PlanError> {
     let d = opts.tool_diameter;
     if !(d > 0.0 && d.is_finite()) {
         return Err(PlanError::BadTool(d));
@@ -149,13 +159,10 @@ pub fn plan_cuts(
     let mut warnings = Vec::new();
     let mut inner = Vec::new();
     for o in openings {
-        inner.push(plan_ellipse(
-            &o.bay,
-            FeatureKind::BayOpening,
-            &o.ellipse,
-            r,
-            d,
-        )?);
+        inner.push(match o.side {
+            CutSide::Inside => plan_ellipse(&o.name, FeatureKind::Opening, &o.ellipse, r, d)?,
+            CutSide::Outside => plan_ellipse_boss(&o.name, &o.ellipse, r),
+        });
     }
     for h in &part.holes {
         let cut = match &h.shape {
@@ -218,15 +225,35 @@ fn plan_ellipse(
         name: name.to_string(),
         kind,
         side: CutSide::Inside,
-        path: ExactPath::EllipseInward {
+        path: ExactPath::EllipseParallel {
             ellipse: *e,
-            distance: r,
+            inset: r,
             start: 0.0,
+            clockwise: false,
         },
         // The centre is at least b ≥ b²/a > r from the edge, and the move out along the major
         // axis stays inside the ellipse.
         plunge: e.center(),
     })
+}
+
+/// The outside cut of an elliptical boss: the outward parallel curve at the tool radius (always
+/// regular), clockwise (climb milling with a clockwise spindle), entered from one more tool radius
+/// out along the major axis.
+fn plan_ellipse_boss(name: &str, e: &Ellipse, r: f64) -> PlannedCut {
+    let axis = crate::geom::Vec2::from_angle(e.angle());
+    PlannedCut {
+        name: name.to_string(),
+        kind: FeatureKind::Boss,
+        side: CutSide::Outside,
+        path: ExactPath::EllipseParallel {
+            ellipse: *e,
+            inset: -r,
+            start: 0.0,
+            clockwise: true,
+        },
+        plunge: e.center() + axis * (e.a() + 2.0 * r),
+    }
 }
 
 /// A cut along a drawn contour with the tool on its left (callers orient the contour so that

@@ -489,7 +489,8 @@ fn header(
 
 fn kind_word(kind: FeatureKind) -> &'static str {
     match kind {
-        FeatureKind::BayOpening => "bay opening",
+        FeatureKind::Opening => "elliptical opening",
+        FeatureKind::Boss => "elliptical boss",
         FeatureKind::Hole => "hole",
         FeatureKind::Outline => "outline",
     }

@@ -41,9 +41,11 @@
 //! entity records it finds one by one with what the crate loaded, refusing the file when one
 //! went missing.
 
+pub mod points;
 mod raw;
 mod units;
 
+pub use points::{PointsError, PointsProblem, parse_points_csv};
 pub use units::{Units, UnitsSource, UnknownUnits};
 
 use crate::geom::{ArcSegment, Ellipse, Point, Segment, Vec2};

@@ -5,7 +5,6 @@
 use crate::fit::FittedCut;
 use crate::geom::Point;
 use crate::plan::{CutSide, FeatureKind};
-use crate::solve::BayOpening;
 use serde::Serialize;
 use std::fmt::Write as _;
 
@@ -26,12 +25,23 @@ pub struct FeatureReport {
     pub name: String,
     pub kind: FeatureKind,
     pub cut_side: CutSide,
-    /// The solved ellipse, for bay openings (and elliptical holes).
+    /// The solved ellipse, for openings and bosses (and elliptical holes).
     pub ellipse: Option<EllipseSummary>,
-    /// Edge margin used when solving (mm), for bay openings.
+    /// Where the ellipse came from, in words (e.g. `bay 2 (4 sides)`, `fit to 20 points`).
+    pub source: Option<String>,
+    /// The rule that picked it, in words (bay features).
+    pub rule: Option<String>,
+    /// Why this ellipse and not another of the candidates.
+    pub chosen_because: Option<String>,
+    /// How many candidates the rule or constraints admitted (listed by `conicut solve`).
+    pub candidates: Option<usize>,
+    /// Edge margin used when solving (mm), for bay features.
     pub margin_mm: Option<f64>,
-    /// Largest relative tangency residual of the solved ellipse against the bay's moved sides.
-    pub tangency_residual: Option<f64>,
+    /// Largest relative residual of the solved ellipse against its constraints (tangency to the
+    /// bay's moved sides, or passing through points); for a fit, the largest distance (mm).
+    pub residual: Option<f64>,
+    /// For a least-squares fit: how well it matches its points.
+    pub fit: Option<FitSummary>,
     /// Where the tool enters the material.
     pub plunge_mm: [f64; 2],
     /// Straight feed moves along the contour (not counting the move in from the plunge point).
@@ -40,6 +50,28 @@ pub struct FeatureReport {
     /// Largest distance between the emitted moves and the exact tool-centre curve (mm).
     pub measured_deviation_mm: f64,
     pub tolerance_mm: f64,
+}
+
+/// How well a least-squares fit matches its points (mm).
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+pub struct FitSummary {
+    pub points: usize,
+    pub rms_residual_mm: f64,
+    pub max_residual_mm: f64,
+}
+
+/// What the solve stage says of one feature, for the report.
+#[derive(Debug, Clone, PartialEq)]
+pub struct SolvedInfo {
+    pub name: String,
+    pub ellipse: crate::geom::Ellipse,
+    pub source: String,
+    pub rule: Option<String>,
+    pub chosen_because: String,
+    pub candidates: usize,
+    pub margin_mm: Option<f64>,
+    pub residual: f64,
+    pub fit: Option<FitSummary>,
 }
 
 /// Everything the report says.
@@ -75,7 +107,7 @@ pub struct ReportInput<'a> {
     pub tool_diameter: f64,
     pub cut_depth: f64,
     pub tolerance: f64,
-    pub openings: &'a [BayOpening],
+    pub solved: &'a [SolvedInfo],
     pub ellipse_holes: &'a [(String, crate::geom::Ellipse)],
     pub cuts: &'a [FittedCut],
     pub warnings: Vec<String>,
@@ -102,8 +134,8 @@ pub fn build_report(input: ReportInput) -> Report {
         .cuts
         .iter()
         .map(|c| {
-            let opening = input.openings.iter().find(|o| o.bay == c.name);
-            let ellipse = opening.map(|o| summary(&o.ellipse)).or_else(|| {
+            let info = input.solved.iter().find(|o| o.name == c.name);
+            let ellipse = info.map(|o| summary(&o.ellipse)).or_else(|| {
                 input
                     .ellipse_holes
                     .iter()
@@ -115,8 +147,13 @@ pub fn build_report(input: ReportInput) -> Report {
                 kind: c.kind,
                 cut_side: c.side,
                 ellipse,
-                margin_mm: opening.map(|o| o.margin),
-                tangency_residual: opening.map(|o| o.tangency_residual),
+                source: info.map(|o| o.source.clone()),
+                rule: info.and_then(|o| o.rule.clone()),
+                chosen_because: info.map(|o| o.chosen_because.clone()),
+                candidates: info.map(|o| o.candidates),
+                margin_mm: info.and_then(|o| o.margin_mm),
+                residual: info.map(|o| o.residual),
+                fit: info.and_then(|o| o.fit),
                 plunge_mm: [c.plunge.x, c.plunge.y],
                 contour_moves: c.path.len().saturating_sub(1),
                 path_length_mm: path_length(&c.path),
@@ -162,9 +199,16 @@ impl Report {
             self.tolerance_mm
         );
         let _ = writeln!(s);
+        let w = self
+            .features
+            .iter()
+            .map(|f| f.name.chars().count())
+            .max()
+            .unwrap_or(0)
+            .max(7);
         let _ = writeln!(
             s,
-            "{:<10} {:<11} {:<7} {:>20} {:>9} {:>9} {:>8} {:>6} {:>10}",
+            "{:<w$} {:<8} {:<7} {:>20} {:>9} {:>9} {:>8} {:>6} {:>10}",
             "feature",
             "kind",
             "side",
@@ -177,7 +221,8 @@ impl Report {
         );
         for f in &self.features {
             let kind = match f.kind {
-                FeatureKind::BayOpening => "opening",
+                FeatureKind::Opening => "opening",
+                FeatureKind::Boss => "boss",
                 FeatureKind::Hole => "hole",
                 FeatureKind::Outline => "outline",
             };
@@ -196,7 +241,7 @@ impl Report {
             };
             let _ = writeln!(
                 s,
-                "{:<10} {:<11} {:<7} {:>20} {:>9} {:>9} {:>8} {:>6} {:>10.6}",
+                "{:<w$} {:<8} {:<7} {:>20} {:>9} {:>9} {:>8} {:>6} {:>10.6}",
                 f.name, kind, side, centre, a, b, ang, f.contour_moves, f.measured_deviation_mm
             );
         }

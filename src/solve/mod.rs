@@ -4,7 +4,17 @@
 //! margin (the sides moved inward before solving), in closed form along the Newton line
 //! ([`quad_family`]).
 
+pub mod candidate;
+pub mod conic;
+pub mod constraints;
+pub mod contained;
+pub mod feature;
+pub mod fit;
+pub mod pentagon;
+pub mod poly;
 pub mod quad_family;
+pub mod quad_rules;
+pub mod triangle;
 
 use crate::chain::Bay;
 use crate::geom::{Ellipse, Line, Point, Vec2};

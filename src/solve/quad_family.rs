@@ -87,6 +87,35 @@ impl TangentFamily {
             - t * (1.0 - t) * self.w.length_squared()
     }
 
+    /// Coefficients of `a² + b²` as a polynomial in `t` (constant term first):
+    /// `|u|² + t (|v|² − |u|² − |w|²) + t² |w|²`.
+    pub fn axes_sum_squared_poly(&self) -> [f64; 3] {
+        let (uu, vv, ww) = (
+            self.u.length_squared(),
+            self.v.length_squared(),
+            self.w.length_squared(),
+        );
+        [uu, vv - uu - ww, ww]
+    }
+
+    /// Coefficients of `a²b²` as a polynomial in `t` (constant term first):
+    /// `K0 t + (K1 − K0) t² − K1 t³`.
+    pub fn axes_product_squared_poly(&self) -> [f64; 4] {
+        let (k0, k1) = self.area_coefficients();
+        [0.0, k0, k1 - k0, -k1]
+    }
+
+    /// Whether the quadrilateral is a parallelogram (the diagonals bisect each other: `|w|` below
+    /// `1e-12` of the half-diagonals), where every member has the same centre.
+    pub fn is_parallelogram(&self) -> bool {
+        self.w.length() <= 1e-12 * self.u.length().max(self.v.length())
+    }
+
+    /// The Newton line's two ends, the midpoints of the diagonals `(M1, M2)`.
+    pub fn newton_segment(&self) -> (Point, Point) {
+        (self.m1, self.m1 + self.w)
+    }
+
     /// The member at `t` as an ellipse.
     pub fn ellipse(&self, t: f64) -> Result<Ellipse, EllipseError> {
         let (sxx, sxy, syy) = self.shape(t);

@@ -1,0 +1,363 @@
+//! Solving every feature a job asks for: from the job file's specs (or, without one, the largest
+//! ellipse in every bay), against the drawing's bays, points and lines.
+
+use crate::chain::{Bay, Part};
+use crate::geom::{Line, Point};
+use crate::jobfile::{
+    BaySelect, CutKind, FeatureSource, FeatureSpec, FitPoints, LineSource, PointSource, Rule,
+};
+use crate::read::{Drawing, EntityKind};
+use crate::solve::candidate::{Candidate, Solution};
+use crate::solve::constraints::conics_through_and_tangent;
+use crate::solve::feature::{Failure, solve_bay};
+use crate::solve::fit::fit_ellipse;
+use serde::Serialize;
+use std::collections::BTreeMap;
+
+/// How well a least-squares fit matches its points.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+pub struct FitQuality {
+    pub points: usize,
+    /// Root-mean-square geometric distance of the points from the fitted ellipse (mm).
+    pub rms_residual_mm: f64,
+    /// Largest geometric distance of a point from the fitted ellipse (mm).
+    pub max_residual_mm: f64,
+}
+
+/// One feature, solved or not.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct SolvedFeature {
+    pub name: String,
+    /// Where the ellipse comes from, in words: `bay 2 (4 sides)`, `3 points and 2 lines`, `fit to
+    /// 20 points`.
+    pub source: String,
+    /// The bay used (bay features), by its name in the drawing.
+    pub bay: Option<String>,
+    /// The rule in words (bay features).
+    pub rule: Option<String>,
+    /// Edge margin used (bay features, mm).
+    pub margin_mm: Option<f64>,
+    pub cut: CutKind,
+    /// The bay's corners after the margin (bay features, mm).
+    pub solved_corners: Option<Vec<Point>>,
+    pub fit: Option<FitQuality>,
+    pub outcome: Result<Solution, Failure>,
+}
+
+/// The specs a job without a job file means: the largest ellipse touching every side of every
+/// bay, cut as a hole.
+pub fn default_specs(part: &Part) -> Vec<FeatureSpec> {
+    part.bays
+        .iter()
+        .map(|b| FeatureSpec {
+            name: b.name.clone(),
+            line: 0,
+            source: FeatureSource::Bay {
+                select: BaySelect::Name(b.name.clone()),
+                rule: Rule::Largest,
+            },
+            cut: CutKind::Hole,
+            margin: None,
+        })
+        .collect()
+}
+
+/// Inputs the features are solved against.
+pub struct FeatureInputs<'a> {
+    pub part: &'a Part,
+    pub drawing: &'a Drawing,
+    /// Points read from the CSV files the job names, by the path as written in the job file (mm).
+    pub csv_points: &'a BTreeMap<String, Vec<Point>>,
+    /// Margin for bay features that state none (mm).
+    pub default_margin: f64,
+}
+
+/// Solves every spec. A spec that cannot be solved gives a [`Failure`] with the reason; the
+/// others are still solved, so that a listing shows everything at once.
+pub fn solve_features(specs: &[FeatureSpec], inputs: &FeatureInputs) -> Vec<SolvedFeature> {
+    specs.iter().map(|s| solve_one(s, inputs)).collect()
+}
+
+fn failure(reason: String) -> Failure {
+    Failure {
+        reason,
+        candidates: Vec::new(),
+    }
+}
+
+fn solve_one(spec: &FeatureSpec, inputs: &FeatureInputs) -> SolvedFeature {
+    let mut out = SolvedFeature {
+        name: spec.name.clone(),
+        source: String::new(),
+        bay: None,
+        rule: None,
+        margin_mm: None,
+        cut: spec.cut,
+        solved_corners: None,
+        fit: None,
+        outcome: Err(failure(String::new())),
+    };
+    match &spec.source {
+        FeatureSource::Bay { select, rule } => {
+            let margin = spec.margin.unwrap_or(inputs.default_margin);
+            out.rule = Some(rule.describe());
+            out.margin_mm = Some(margin);
+            out.outcome = find_bay(inputs.part, select).and_then(|bay| {
+                out.source = format!("{} ({} sides)", bay.name, bay.corners.len());
+                out.bay = Some(bay.name.clone());
+                solve_bay(bay, rule, margin).map(|s| {
+                    out.solved_corners = Some(s.solved_corners);
+                    s.solution
+                })
+            });
+            if out.source.is_empty() {
+                out.source = describe_select(select);
+            }
+        }
+        FeatureSource::Constraints {
+            through,
+            touching,
+            choose,
+        } => {
+            let points = match through {
+                PointSource::Given(p) => Ok(p.clone()),
+                PointSource::Layer(layer) => layer_points(inputs.drawing, layer),
+            };
+            let lines = match touching {
+                LineSource::Given(l) => l
+                    .iter()
+                    .map(|(p, q)| {
+                        Line::through(*p, *q).ok_or_else(|| {
+                            format!(
+                                "a line to touch is given by two equal points ({:.3}, {:.3})",
+                                p.x, p.y
+                            )
+                        })
+                    })
+                    .collect(),
+                LineSource::Layer(layer) => layer_lines(inputs.drawing, layer),
+            };
+            out.outcome = match (points, lines) {
+                (Ok(p), Ok(l)) => {
+                    out.source = format!(
+                        "{} point{} and {} line{}",
+                        p.len(),
+                        if p.len() == 1 { "" } else { "s" },
+                        l.len(),
+                        if l.len() == 1 { "" } else { "s" }
+                    );
+                    solve_constraints(&p, &l, *choose)
+                }
+                (Err(e), _) | (_, Err(e)) => Err(failure(e)),
+            };
+            if out.source.is_empty() {
+                out.source = "points and lines".into();
+            }
+        }
+        FeatureSource::Fit { points } => {
+            let pts = match points {
+                FitPoints::Csv(path) => inputs
+                    .csv_points
+                    .get(path)
+                    .cloned()
+                    .ok_or_else(|| format!("the points file {path} was not read")),
+                FitPoints::Layer(layer) => layer_points(inputs.drawing, layer),
+            };
+            out.source = match &pts {
+                Ok(p) => format!("fit to {} points", p.len()),
+                Err(_) => "fit to measured points".into(),
+            };
+            out.outcome = pts.map_err(failure).and_then(|p| {
+                let f = fit_ellipse(&p).map_err(|e| failure(e.to_string()))?;
+                out.fit = Some(FitQuality {
+                    points: f.points,
+                    rms_residual_mm: f.rms_residual,
+                    max_residual_mm: f.max_residual,
+                });
+                let c = Candidate {
+                    kind: if (f.ellipse.a() - f.ellipse.b()) <= 1e-9 * f.ellipse.a() {
+                        crate::solve::conic::ConicKind::Circle
+                    } else {
+                        crate::solve::conic::ConicKind::Ellipse
+                    },
+                    ellipse: Some(f.ellipse),
+                    parameter: None,
+                    cuttable: true,
+                    note: format!(
+                        "least-squares fit: RMS distance {:.4} mm, largest {:.4} mm",
+                        f.rms_residual, f.max_residual
+                    ),
+                    residual: f.max_residual,
+                };
+                Solution::new(
+                    vec![c],
+                    0,
+                    "the direct least-squares ellipse fit (Halíř–Flusser) to the points".into(),
+                )
+                .ok_or_else(|| failure("the fit gave no ellipse".into()))
+            });
+        }
+    }
+    out
+}
+
+fn describe_select(select: &BaySelect) -> String {
+    match select {
+        BaySelect::Name(n) => n.clone(),
+        BaySelect::Inside(p) => format!("the bay around ({:.3}, {:.3})", p.x, p.y),
+    }
+}
+
+fn find_bay<'a>(part: &'a Part, select: &BaySelect) -> Result<&'a Bay, Failure> {
+    let names = || {
+        let all: Vec<&str> = part.bays.iter().map(|b| b.name.as_str()).collect();
+        if all.is_empty() {
+            "the drawing has no bays".to_string()
+        } else {
+            format!("the drawing's bays are {}", all.join(", "))
+        }
+    };
+    match select {
+        BaySelect::Name(n) => part
+            .bays
+            .iter()
+            .find(|b| b.name.eq_ignore_ascii_case(n))
+            .ok_or_else(|| failure(format!("there is no bay named \"{n}\"; {}", names()))),
+        BaySelect::Inside(p) => {
+            let hits: Vec<&Bay> = part
+                .bays
+                .iter()
+                .filter(|b| inside(&b.corners, *p))
+                .collect();
+            match hits.as_slice() {
+                [one] => Ok(one),
+                [] => Err(failure(format!(
+                    "no bay contains the point ({:.3}, {:.3}) mm; {}",
+                    p.x,
+                    p.y,
+                    names()
+                ))),
+                _ => Err(failure(format!(
+                    "several bays contain the point ({:.3}, {:.3}) mm; name the bay instead",
+                    p.x, p.y
+                ))),
+            }
+        }
+    }
+}
+
+/// Whether `p` lies inside the polygon (crossing number).
+fn inside(corners: &[Point], p: Point) -> bool {
+    let n = corners.len();
+    let mut c = false;
+    for i in 0..n {
+        let (a, b) = (corners[i], corners[(i + 1) % n]);
+        if (a.y > p.y) != (b.y > p.y) {
+            let x = a.x + (p.y - a.y) / (b.y - a.y) * (b.x - a.x);
+            if p.x < x {
+                c = !c;
+            }
+        }
+    }
+    c
+}
+
+fn layer_points(d: &Drawing, layer: &str) -> Result<Vec<Point>, String> {
+    let pts: Vec<Point> = d
+        .entities
+        .iter()
+        .filter(|e| e.layer.eq_ignore_ascii_case(layer))
+        .filter_map(|e| match e.kind {
+            EntityKind::Point(p) => Some(p),
+            _ => None,
+        })
+        .collect();
+    if pts.is_empty() {
+        Err(format!("layer \"{layer}\" holds no POINT entities"))
+    } else {
+        Ok(pts)
+    }
+}
+
+fn layer_lines(d: &Drawing, layer: &str) -> Result<Vec<Line>, String> {
+    let lines: Vec<Line> = d
+        .entities
+        .iter()
+        .filter(|e| e.layer.eq_ignore_ascii_case(layer))
+        .filter_map(|e| match e.kind {
+            EntityKind::Line(s) => s.line(),
+            _ => None,
+        })
+        .collect();
+    if lines.is_empty() {
+        Err(format!("layer \"{layer}\" holds no LINE entities"))
+    } else {
+        Ok(lines)
+    }
+}
+
+/// The conics through the points and touching the lines; picks the ellipse to cut by `choose`
+/// (1-based, as listed), or the only ellipse when there is exactly one.
+fn solve_constraints(
+    points: &[Point],
+    lines: &[Line],
+    choose: Option<usize>,
+) -> Result<Solution, Failure> {
+    let sols = conics_through_and_tangent(points, lines).map_err(|e| failure(e.to_string()))?;
+    let candidates: Vec<Candidate> = sols
+        .iter()
+        .map(|s| {
+            let ellipse = s.ellipse.ok();
+            Candidate {
+                kind: s.kind,
+                ellipse,
+                parameter: None,
+                cuttable: ellipse.is_some(),
+                note: match &s.ellipse {
+                    Ok(_) => "passes through the points and touches the lines".to_string(),
+                    Err(e) => format!("not cut: {e}"),
+                },
+                residual: s.point_residual.max(s.tangency_residual),
+            }
+        })
+        .collect();
+    let cuttable: Vec<usize> = (0..candidates.len())
+        .filter(|&i| candidates[i].cuttable)
+        .collect();
+    let pick = match (choose, cuttable.as_slice()) {
+        (Some(k), _) => {
+            let i = k.wrapping_sub(1);
+            match candidates.get(i) {
+                Some(c) if c.cuttable => Ok((i, format!("solution {k}, as the job file chooses"))),
+                Some(c) => Err(format!(
+                    "the job file chooses solution {k}, which is a {} and cannot be cut",
+                    c.kind
+                )),
+                None => Err(format!(
+                    "the job file chooses solution {k}, but there are only {}",
+                    candidates.len()
+                )),
+            }
+        }
+        (None, [one]) => Ok((
+            *one,
+            "the only ellipse that meets the constraints".to_string(),
+        )),
+        (None, []) => Err(format!(
+            "none of the {} conic(s) through the points and touching the lines is an ellipse",
+            candidates.len()
+        )),
+        (None, several) => Err(format!(
+            "{} ellipses meet these constraints; say which to cut with `choose = N` in the job \
+             file (run `conicut solve` to list them)",
+            several.len()
+        )),
+    };
+    match pick {
+        Ok((i, why)) => Solution::new(candidates.clone(), i, why).ok_or(Failure {
+            reason: "the chosen solution is not an ellipse".into(),
+            candidates,
+        }),
+        Err(reason) => Err(Failure { reason, candidates }),
+    }
+}

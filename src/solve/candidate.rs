@@ -1,0 +1,57 @@
+//! What a solver returns: every candidate it found, which one it picked, and why.
+
+use super::conic::ConicKind;
+use crate::geom::Ellipse;
+use serde::Serialize;
+
+/// One solution a rule or a constraint set admits.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Candidate {
+    pub kind: ConicKind,
+    /// The ellipse, when the candidate is one (circles included).
+    pub ellipse: Option<Ellipse>,
+    /// Position along the Newton line for members of a four-sided bay's family (0 and 1 at the
+    /// diagonals' midpoints).
+    pub parameter: Option<f64>,
+    /// Whether it can be cut: a real ellipse inside the bay (or, for free constraints, a real
+    /// ellipse).
+    pub cuttable: bool,
+    /// What it is or why it cannot be cut, in words.
+    pub note: String,
+    /// Largest relative residual of its constraints (tangency, or points).
+    pub residual: f64,
+}
+
+impl Candidate {
+    pub fn area(&self) -> Option<f64> {
+        self.ellipse.map(|e| e.area())
+    }
+}
+
+/// The outcome of solving one feature.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Solution {
+    /// Every candidate found, in a stable order.
+    pub candidates: Vec<Candidate>,
+    /// Index into `candidates` of the one to cut.
+    pub chosen: usize,
+    /// The chosen candidate's ellipse.
+    pub ellipse: Ellipse,
+    /// Why that one, in words.
+    pub reason: String,
+}
+
+impl Solution {
+    /// A solution choosing `candidates[chosen]`; `None` unless that candidate is a cuttable
+    /// ellipse.
+    pub fn new(candidates: Vec<Candidate>, chosen: usize, reason: String) -> Option<Solution> {
+        let c = candidates.get(chosen)?;
+        let ellipse = c.ellipse.filter(|_| c.cuttable)?;
+        Some(Solution {
+            candidates,
+            chosen,
+            ellipse,
+            reason,
+        })
+    }
+}
