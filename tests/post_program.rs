@@ -19,15 +19,15 @@ fn square_cut(name: &str, x0: f64, y0: f64, side: f64) -> FittedCut {
         Point::new(x0, y0 + side),
         Point::new(x0, y0),
     ];
-    FittedCut {
-        name: name.to_string(),
-        kind: FeatureKind::Hole,
-        side: CutSide::Inside,
-        plunge: Point::new(x0 + side / 2.0, y0 + side / 2.0),
-        path,
-        tolerance: 0.01,
-        measured_deviation: 0.0,
-    }
+    FittedCut::from_points(
+        name,
+        FeatureKind::Hole,
+        CutSide::Inside,
+        Point::new(x0 + side / 2.0, y0 + side / 2.0),
+        &path,
+        0.01,
+        0.0,
+    )
 }
 
 fn settings() -> ProgramSettings {
@@ -200,8 +200,9 @@ fn square_program_parses_back_to_the_same_moves() {
     );
     // Then the path at the cut feed, F written once.
     let path_moves = &m[4..m.len() - 1];
-    assert_eq!(path_moves.len(), cut.path.len(), "{path_moves:?}");
-    for (mv, p) in path_moves.iter().zip(&cut.path) {
+    let points = cut.end_points();
+    assert_eq!(path_moves.len(), points.len(), "{path_moves:?}");
+    for (mv, p) in path_moves.iter().zip(&points) {
         assert_eq!(mv.g, 1);
         assert!(close(mv.x, p.x) && close(mv.y, p.y), "{mv:?} vs {p:?}");
     }
@@ -401,7 +402,9 @@ fn bad_settings_and_bad_cuts_are_refused_without_panic() {
         Err(PostError::NoCuts)
     );
     let mut cut = square_cut("hole 9", 10.0, 10.0, 5.0);
-    cut.path[2].x = f64::NAN;
+    cut.moves[1] = conicut::fit::Move::Line {
+        to: Point::new(f64::NAN, 10.0),
+    };
     let err = write_program(&[cut], &mill(), &settings()).unwrap_err();
     assert!(matches!(&err, PostError::NotFinite { feature, .. } if feature == "hole 9"));
 }
@@ -502,7 +505,12 @@ fn line_numbers_start_at_ten_in_steps_of_ten() {
 fn moves_that_round_to_nothing_are_left_out() {
     let mut cut = square_cut("a", 10.0, 10.0, 5.0);
     // A vertex 20 nm from its neighbour rounds to the same 4-decimal position.
-    cut.path.insert(2, Point::new(15.00002, 10.0));
+    cut.moves.insert(
+        1,
+        conicut::fit::Move::Line {
+            to: Point::new(15.00002, 10.0),
+        },
+    );
     let program = write_program(&[cut], &mill(), &settings()).unwrap();
     assert_eq!(program.matches("X15.0000 Y10.0000").count(), 1, "{program}");
 }

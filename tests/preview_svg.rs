@@ -78,15 +78,15 @@ fn cut_for(name: &str, e: &Ellipse) -> FittedCut {
     let path: Vec<Point> = (0..=n)
         .map(|i| e.inward_offset_point(i as f64 * TAU / n as f64, TOOL / 2.0))
         .collect();
-    FittedCut {
-        name: name.into(),
-        kind: FeatureKind::Opening,
-        side: CutSide::Inside,
-        plunge: e.center(),
-        path,
-        tolerance: 0.05,
-        measured_deviation: 0.03,
-    }
+    FittedCut::from_points(
+        name,
+        FeatureKind::Opening,
+        CutSide::Inside,
+        e.center(),
+        &path,
+        0.05,
+        0.03,
+    )
 }
 
 fn hole_cut() -> FittedCut {
@@ -96,15 +96,15 @@ fn hole_cut() -> FittedCut {
             Point::new(170.0 + 5.0 * t.cos(), 25.0 + 5.0 * t.sin())
         })
         .collect();
-    FittedCut {
-        name: "hole 1".into(),
-        kind: FeatureKind::Hole,
-        side: CutSide::Inside,
-        plunge: Point::new(170.0, 25.0),
-        path,
-        tolerance: 0.05,
-        measured_deviation: 0.01,
-    }
+    FittedCut::from_points(
+        "hole 1",
+        FeatureKind::Hole,
+        CutSide::Inside,
+        Point::new(170.0, 25.0),
+        &path,
+        0.05,
+        0.01,
+    )
 }
 
 struct Fixture {
@@ -310,9 +310,10 @@ fn every_cut_has_a_path_and_every_plunge_a_marker() {
             .expect("a path per cut");
         let pts = polyline(path.attribute("d").unwrap());
         // The drawn path is the lead from the plunge point, then the cut's path.
-        assert_eq!(pts.len(), cut.path.len() + 1);
+        let cut_points = cut.end_points();
+        assert_eq!(pts.len(), cut_points.len() + 1);
         assert!(pts[0].distance(cut.plunge) < 1e-4);
-        for (a, b) in pts[1..].iter().zip(&cut.path) {
+        for (a, b) in pts[1..].iter().zip(&cut_points) {
             assert!(a.distance(*b) < 1e-4, "{a:?} vs {b:?}");
         }
         let marker = plunges
@@ -354,7 +355,9 @@ fn empty_and_bad_input_still_give_a_valid_page() {
     assert!(!svg.contains("NaN"));
 
     let mut cut = hole_cut();
-    cut.path[3] = Point::new(f64::NAN, 1.0);
+    cut.moves[2] = conicut::fit::Move::Line {
+        to: Point::new(f64::NAN, 1.0),
+    };
     cut.plunge = Point::new(f64::INFINITY, 0.0);
     let cuts = [cut];
     let svg = preview_svg(&PreviewInput {
@@ -410,9 +413,9 @@ fn rendered_preview_shows_paths_ellipses_and_arcs_where_they_are() {
 
     // A point on a tool path (a vertex between two moves, away from any arrowhead) is blue.
     let bay_cut = &f.cuts[0];
-    let p = bay_cut.path[30];
+    let p = bay_cut.end_points()[30];
     assert!(is_blue(at(p)), "{:?} at {p:?}", at(p));
-    let p = f.cuts[1].path[20];
+    let p = f.cuts[1].end_points()[20];
     assert!(is_blue(at(p)), "{:?} at {p:?}", at(p));
     // The ellipse's minor-axis ends (curve points, away from the label) are orange.
     let e = f.ellipses[0].1;

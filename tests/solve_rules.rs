@@ -232,3 +232,27 @@ fn five_and_six_sided_bays() {
     ));
     assert!(solve_bay(&bay(&poly(6)), &Rule::Largest, 0.0).is_err());
 }
+
+#[test]
+fn five_sided_bay_cut_from_tangent_lines_recovers_the_ellipse() {
+    // Five tangent lines of a known ellipse, taken in order around it, bound a pentagon whose one
+    // tangent conic is that ellipse, inside the bay (its touching points lie on the sides).
+    use conicut::geom::{Ellipse, Line};
+    let known = Ellipse::new(Point::new(0.0, 0.0), 4.0, 1.0, 0.0).unwrap();
+    let ts = [0.2, 1.3, 2.6, 3.8, 5.0];
+    let lines: Vec<Line> = ts
+        .iter()
+        .map(|&t| {
+            let p = known.point(t);
+            Line::through(p, p + known.derivative(t)).unwrap()
+        })
+        .collect();
+    let corners: Vec<(f64, f64)> = (0..5)
+        .map(|i| {
+            let p = lines[(i + 4) % 5].intersection(&lines[i]).unwrap();
+            (p.x, p.y)
+        })
+        .collect();
+    let s = solve_bay(&bay(&corners), &Rule::Largest, 0.0).unwrap();
+    assert!(close(s.solution.ellipse.a(), 4.0, 1e-9) && close(s.solution.ellipse.b(), 1.0, 1e-9));
+}

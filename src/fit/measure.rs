@@ -1,33 +1,60 @@
-//! Measuring how far an emitted polyline strays from the exact curve it stands for.
+//! Measuring how far emitted moves stray from the exact curve they stand for.
 
+use super::moves::Move;
 use crate::chain::Element;
-use crate::geom::{Point, Segment};
+use crate::geom::{ArcSegment, Point, Segment};
 use crate::plan::ExactPath;
 use std::f64::consts::TAU;
 
 /// Samples taken along every emitted segment (and along the exact curve per segment).
 const SAMPLES_PER_SEGMENT: usize = 16;
 
-/// The deviation between `path` (closed polyline) and `exact`, measured both ways by dense
-/// sampling: the largest distance from a sample of the polyline to the exact curve, and from a
-/// sample of the exact curve to the polyline. 16 samples per segment put a sample within 1/32 of
-/// a chord of the point of largest deviation, so for a chord the estimate is within about 0.4 %
-/// of the true maximum (the sagitta profile is parabolic).
-pub fn measure_deviation(path: &[Point], exact: &ExactPath) -> f64 {
-    if path.len() < 2 {
+/// The deviation between the run of `moves` from `start` and `exact`, measured both ways by
+/// dense sampling: the largest distance from a sample of the moves to the exact curve, and from a
+/// sample of the exact curve to the moves. 16 samples per move put a sample within 1/32 of a move
+/// of the point of largest deviation, so for a chord the estimate is within about 0.4 % of the
+/// true maximum (the sagitta profile is parabolic).
+pub fn measure_deviation(start: Point, moves: &[Move], exact: &ExactPath) -> f64 {
+    if moves.is_empty() {
         return f64::INFINITY;
     }
-    let segments: Vec<Segment> = path.windows(2).map(|w| Segment::new(w[0], w[1])).collect();
-    let curve_samples = curve_samples(exact, segments.len() * SAMPLES_PER_SEGMENT);
-    let to_curve = segments
+    let pieces = pieces_of(start, moves);
+    let curve_samples = curve_samples(exact, pieces.len() * SAMPLES_PER_SEGMENT);
+    let to_curve = pieces
         .iter()
         .flat_map(|s| {
-            (0..=SAMPLES_PER_SEGMENT).map(|k| s.point_at(k as f64 / SAMPLES_PER_SEGMENT as f64))
+            (0..=SAMPLES_PER_SEGMENT).map(|k| piece_point(s, k as f64 / SAMPLES_PER_SEGMENT as f64))
         })
         .map(|p| distance_to_exact(exact, p))
         .fold(0.0, f64::max);
-    let to_path = distance_to_polyline_in_order(&curve_samples, &segments);
+    let to_path = distance_to_pieces_in_order(&curve_samples, &pieces);
     to_curve.max(to_path)
+}
+
+/// The moves as geometric pieces.
+fn pieces_of(start: Point, moves: &[Move]) -> Vec<Element> {
+    let mut from = start;
+    let mut out = Vec::with_capacity(moves.len());
+    for m in moves {
+        out.push(match *m {
+            Move::Line { to } => Element::Line(Segment::new(from, to)),
+            Move::Arc { center, .. } => Element::Arc(ArcSegment {
+                center,
+                radius: from.distance(center),
+                start_angle: (from - center).angle(),
+                sweep: m.sweep(from),
+            }),
+        });
+        from = m.end();
+    }
+    out
+}
+
+fn piece_point(e: &Element, t: f64) -> Point {
+    match e {
+        Element::Line(s) => s.point_at(t),
+        Element::Arc(a) => a.point_at(t),
+    }
 }
 
 /// Points along the exact curve, in the order of travel.
@@ -101,11 +128,11 @@ fn golden_min(f: &impl Fn(f64) -> f64, mut a: f64, mut b: f64) -> f64 {
     fc.min(fd)
 }
 
-/// Largest distance from the curve samples to the polyline. Both run the same way, so each
-/// sample's nearest segment is looked for among the seven around the previous one's. A local
+/// Largest distance from the curve samples to the moves. Both run the same way, so each
+/// sample's nearest move is looked for among the seven around the previous one's. A local
 /// answer can only be too large, never too small; the first sample and any answer longer than
-/// its segment get a full scan.
-fn distance_to_polyline_in_order(samples: &[Point], segments: &[Segment]) -> f64 {
+/// its move get a full scan.
+fn distance_to_pieces_in_order(samples: &[Point], segments: &[Element]) -> f64 {
     let n = segments.len();
     let mut j = 0usize;
     let mut worst: f64 = 0.0;

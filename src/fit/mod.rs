@@ -3,11 +3,11 @@
 
 use crate::geom::Point;
 use crate::plan::{CutSide, FeatureKind};
+pub use moves::Move;
 use serde::Serialize;
 
 /// One feature's cut, ready for a post-processor: the tool enters at `plunge`, moves in a
-/// straight line to `path[0]`, then follows `path` with straight feed moves. `path` is closed
-/// (its last point equals its first).
+/// straight line to `start`, then runs `moves` (lines and arcs), ending back at `start`.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct FittedCut {
     /// The feature's name, e.g. `bay 1`, `hole 2`, `outline`.
@@ -16,16 +16,57 @@ pub struct FittedCut {
     pub side: CutSide,
     /// Where the tool enters the material, in the scrap (mm).
     pub plunge: Point,
-    /// Vertices of the straight feed moves of the tool centre (mm), closed.
-    pub path: Vec<Point>,
+    /// Where the contour starts and ends (mm).
+    pub start: Point,
+    /// The feed moves of the tool centre along the contour (mm).
+    pub moves: Vec<Move>,
     /// The tolerance the fit was asked to keep (mm).
     pub tolerance: f64,
     /// The largest distance between the emitted path and the exact tool-centre curve, measured
     /// by dense sampling in both directions (mm).
     pub measured_deviation: f64,
+    /// The largest change of direction between consecutive moves (degrees).
+    pub largest_kink_deg: f64,
+}
+
+impl FittedCut {
+    /// A cut made of straight moves through `points` (the first is the start; a closed run ends
+    /// where it starts).
+    #[allow(clippy::too_many_arguments)]
+    pub fn from_points(
+        name: &str,
+        kind: FeatureKind,
+        side: CutSide,
+        plunge: Point,
+        points: &[Point],
+        tolerance: f64,
+        measured_deviation: f64,
+    ) -> FittedCut {
+        let start = points.first().copied().unwrap_or(plunge);
+        let moves: Vec<Move> = points.iter().skip(1).map(|&to| Move::Line { to }).collect();
+        FittedCut {
+            name: name.to_string(),
+            kind,
+            side,
+            plunge,
+            start,
+            largest_kink_deg: moves::largest_kink_deg(start, &moves),
+            moves,
+            tolerance,
+            measured_deviation,
+        }
+    }
+
+    /// The start and every move's end point, in order (for lines only, the polyline).
+    pub fn end_points(&self) -> Vec<Point> {
+        std::iter::once(self.start)
+            .chain(self.moves.iter().map(Move::end))
+            .collect()
+    }
 }
 
 mod measure;
+pub mod moves;
 
 pub use measure::measure_deviation;
 
@@ -88,7 +129,10 @@ pub fn fit_cut(cut: &PlannedCut, tolerance: f64) -> Result<FittedCut, FitError> 
         }
         ExactPath::Contour(c) => flatten_contour(c, tolerance),
     };
-    let measured = measure_deviation(&path, &cut.path);
+    let mut fitted = FittedCut::from_points(
+        &cut.name, cut.kind, cut.side, cut.plunge, &path, tolerance, 0.0,
+    );
+    let measured = measure_deviation(fitted.start, &fitted.moves, &cut.path);
     if measured > tolerance {
         return Err(FitError::ToleranceExceeded {
             feature: cut.name.clone(),
@@ -96,15 +140,8 @@ pub fn fit_cut(cut: &PlannedCut, tolerance: f64) -> Result<FittedCut, FitError> 
             tolerance,
         });
     }
-    Ok(FittedCut {
-        name: cut.name.clone(),
-        kind: cut.kind,
-        side: cut.side,
-        plunge: cut.plunge,
-        path,
-        tolerance,
-        measured_deviation: measured,
-    })
+    fitted.measured_deviation = measured;
+    Ok(fitted)
 }
 
 /// Chords of the parallel curve `O_d(t) = P(t) − d N(t)` of `e` (inside for `d > 0`, outside for

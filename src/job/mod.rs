@@ -289,12 +289,21 @@ pub fn run_job(
         written.parse::<f64>().map(|w| units.to_mm(w)).unwrap_or(v)
     };
     for (cut, planned) in cuts.iter_mut().zip(&plan.cuts) {
-        let written: Vec<Point> = cut
-            .path
+        let snap_point = |p: Point| Point::new(snap(p.x), snap(p.y));
+        let start = snap_point(cut.start);
+        let moves: Vec<fit::Move> = cut
+            .moves
             .iter()
-            .map(|p| Point::new(snap(p.x), snap(p.y)))
+            .map(|m| match *m {
+                fit::Move::Line { to } => fit::Move::Line { to: snap_point(to) },
+                fit::Move::Arc { to, center, ccw } => fit::Move::Arc {
+                    to: snap_point(to),
+                    center,
+                    ccw,
+                },
+            })
             .collect();
-        cut.measured_deviation = fit::measure_deviation(&written, &planned.path);
+        cut.measured_deviation = fit::measure_deviation(start, &moves, &planned.path);
         cut.tolerance = s.tolerance;
         if cut.measured_deviation > s.tolerance {
             return Err(JobError::Fit {

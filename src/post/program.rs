@@ -3,7 +3,7 @@
 use super::number::format_number;
 use super::profile::{MachineKind, MachineProfile, Units};
 use super::safety::{PRECEDENCE, SAFETY_HEADING, cautions};
-use crate::fit::FittedCut;
+use crate::fit::{FittedCut, Move};
 use crate::geom::Point;
 use crate::plan::{CutSide, FeatureKind};
 
@@ -38,6 +38,8 @@ pub enum PostError {
     KindNotSupported { profile: String, kind: MachineKind },
     #[error("there are no cuts to write; check that the drawing holds bays, holes or an outline")]
     NoCuts,
+    #[error("feature \"{feature}\": arc moves cannot be written yet; fit it with lines")]
+    ArcsNotWritten { feature: String },
     #[error("{setting} is {value}, which {problem}; {hint}")]
     BadSetting {
         setting: &'static str,
@@ -179,7 +181,7 @@ pub fn write_program(
         w.rapid_z(profile.retract_height());
         w.feed_z(floor, plunge_feed);
         let mut moves = 0;
-        for &p in &cut.path {
+        for p in cut.end_points() {
             if w.feed_xy(units_point(units, p), cut_feed) {
                 moves += 1;
             }
@@ -273,10 +275,15 @@ fn check_feed(profile: &MachineProfile, which: &'static str, feed: f64) -> Resul
 
 /// Checks every position a cut visits against the travel envelope, in the profile's units.
 fn check_cut(cut: &FittedCut, profile: &MachineProfile, floor: f64) -> Result<(), PostError> {
-    if cut.path.len() < 2 {
+    if cut.moves.is_empty() {
         return Err(PostError::EmptyPath {
             feature: cut.name.clone(),
-            points: cut.path.len(),
+            points: cut.moves.len() + 1,
+        });
+    }
+    if cut.moves.iter().any(|m| matches!(m, Move::Arc { .. })) {
+        return Err(PostError::ArcsNotWritten {
+            feature: cut.name.clone(),
         });
     }
     if !cut.plunge.is_finite() {
@@ -285,7 +292,7 @@ fn check_cut(cut: &FittedCut, profile: &MachineProfile, floor: f64) -> Result<()
             what: "the plunge point",
         });
     }
-    if !cut.path.iter().all(|p| p.is_finite()) {
+    if !cut.end_points().iter().all(|p| p.is_finite()) {
         return Err(PostError::NotFinite {
             feature: cut.name.clone(),
             what: "the path",
@@ -317,7 +324,7 @@ fn check_cut(cut: &FittedCut, profile: &MachineProfile, floor: f64) -> Result<()
     let plunge = units_point(units, cut.plunge);
     check("the plunge point", 'X', plunge.x)?;
     check("the plunge point", 'Y', plunge.y)?;
-    for &p in &cut.path {
+    for p in cut.end_points() {
         let q = units_point(units, p);
         check("the tool path", 'X', q.x)?;
         check("the tool path", 'Y', q.y)?;

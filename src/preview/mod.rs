@@ -38,6 +38,12 @@ pub struct PreviewInput<'a> {
     pub tool_diameter: f64,
 }
 
+/// The tool-centre path as points to draw: every move's end, and arcs sampled finely enough to
+/// look smooth (24 points an arc).
+fn drawn_path(cut: &FittedCut) -> Vec<Point> {
+    crate::fit::moves::sample(cut.start, &cut.moves, 24)
+}
+
 /// Colours of our own choosing.
 mod palette {
     pub const BACKGROUND: &str = "#ffffff";
@@ -125,7 +131,8 @@ fn content_bounds(input: &PreviewInput) -> Option<Bounds> {
         0.0
     };
     for cut in input.cuts {
-        for p in cut.path.iter().chain(std::iter::once(&cut.plunge)) {
+        let path = drawn_path(cut);
+        for p in path.iter().chain(std::iter::once(&cut.plunge)) {
             pts.push(Point::new(p.x - r, p.y - r));
             pts.push(Point::new(p.x + r, p.y + r));
         }
@@ -246,13 +253,14 @@ fn cut_group(input: &PreviewInput, frame: &Frame) -> Group {
     let show_band = input.tool_diameter.is_finite() && input.tool_diameter > 0.0;
     let mut previous_end: Option<Point> = None;
     for cut in input.cuts {
-        let closed = cut.path.len() > 2 && cut.path.first() == cut.path.last();
+        let path = drawn_path(cut);
+        let closed = path.len() > 2 && path.first() == path.last();
         if show_band {
             bands = bands.add(
                 Path::new()
                     .set("class", "tool-band")
                     .set("data-name", cut.name.as_str())
-                    .set("d", polyline_d(&cut.path, closed))
+                    .set("d", polyline_d(&path, closed))
                     .set("stroke-width", num(input.tool_diameter)),
             );
         }
@@ -274,9 +282,9 @@ fn cut_group(input: &PreviewInput, frame: &Frame) -> Group {
             );
         }
         // The lead from the plunge point to the path's start, then the path.
-        let mut travel = Vec::with_capacity(cut.path.len() + 1);
+        let mut travel = Vec::with_capacity(path.len() + 1);
         travel.push(cut.plunge);
-        travel.extend(&cut.path);
+        travel.extend(&path);
         paths = paths.add(
             Path::new()
                 .set("class", "tool-path")
@@ -287,7 +295,7 @@ fn cut_group(input: &PreviewInput, frame: &Frame) -> Group {
                 .set("stroke-width", num(1.5 * u))
                 .set("stroke-linejoin", "round"),
         );
-        for (at, dir) in arrow_spots(&cut.path, &[0.2, 0.7]) {
+        for (at, dir) in arrow_spots(&path, &[0.2, 0.7]) {
             paths = paths.add(
                 Path::new()
                     .set("class", "direction")
@@ -319,7 +327,7 @@ fn cut_group(input: &PreviewInput, frame: &Frame) -> Group {
                     .set("fill", palette::PLUNGE),
             );
         }
-        previous_end = cut.path.last().copied();
+        previous_end = path.last().copied();
     }
     Group::new().set("class", "cuts").add(bands).add(paths)
 }

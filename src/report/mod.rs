@@ -3,7 +3,6 @@
 //! The JSON keys are documented in `README.md`; keep the two in step.
 
 use crate::fit::FittedCut;
-use crate::geom::Point;
 use crate::plan::{CutSide, FeatureKind};
 use serde::Serialize;
 use std::fmt::Write as _;
@@ -124,10 +123,6 @@ fn summary(e: &crate::geom::Ellipse) -> EllipseSummary {
     }
 }
 
-fn path_length(path: &[Point]) -> f64 {
-    path.windows(2).map(|w| w[0].distance(w[1])).sum()
-}
-
 /// Builds the report from the stages' results.
 pub fn build_report(input: ReportInput) -> Report {
     let features = input
@@ -155,8 +150,8 @@ pub fn build_report(input: ReportInput) -> Report {
                 residual: info.map(|o| o.residual),
                 fit: info.and_then(|o| o.fit),
                 plunge_mm: [c.plunge.x, c.plunge.y],
-                contour_moves: c.path.len().saturating_sub(1),
-                path_length_mm: path_length(&c.path),
+                contour_moves: c.moves.len(),
+                path_length_mm: crate::fit::moves::total_length(c.start, &c.moves),
                 measured_deviation_mm: c.measured_deviation,
                 tolerance_mm: c.tolerance,
             }

@@ -81,6 +81,20 @@ fn slack(e: &Ellipse, line: &Line) -> f64 {
     line.signed_distance(e.center()) - e.support(line.normal())
 }
 
+/// Whether `e` lies inside the counter-clockwise convex polygon `corners` (up to
+/// [`INSIDE_RELATIVE`] of its size).
+pub fn lies_inside(e: &Ellipse, corners: &[Point]) -> bool {
+    let n = corners.len();
+    let size = corners
+        .iter()
+        .map(|p| p.distance(corners[0]))
+        .fold(0.0, f64::max);
+    let lines: Vec<Line> = (0..n)
+        .filter_map(|i| Line::through(corners[i], corners[(i + 1) % n]))
+        .collect();
+    lines.len() == n && fits(e, &lines, size)
+}
+
 fn fits(e: &Ellipse, lines: &[Line], size: f64) -> bool {
     lines.iter().all(|l| slack(e, l) >= -INSIDE_RELATIVE * size)
 }
@@ -159,6 +173,15 @@ mod tests {
         let c = largest_contained(&pts(&[(0.0, 0.0), (5.0, 0.0), (4.0, 3.0), (1.0, 4.0)])).unwrap();
         assert!((c.ellipse.area() - 10.4764362070).abs() < 1e-9);
         assert_eq!(c.touching.len(), 4);
+    }
+
+    #[test]
+    fn inside_test_sees_an_ellipse_poking_out() {
+        let sq = pts(&[(0.0, 0.0), (2.0, 0.0), (2.0, 2.0), (0.0, 2.0)]);
+        let fits = Ellipse::new(Point::new(1.0, 1.0), 1.0, 0.5, 0.3).unwrap();
+        let pokes = Ellipse::new(Point::new(1.0, 1.0), 1.2, 0.5, 0.0).unwrap();
+        assert!(lies_inside(&fits, &sq));
+        assert!(!lies_inside(&pokes, &sq));
     }
 
     #[test]

@@ -177,6 +177,17 @@ fn five_sided(name: &str, corners: &[Point]) -> Result<Solution, Failure> {
         reason: format!("{name}: {reason}"),
         candidates: vec![],
     })?;
-    let c = ellipse_candidate(e, corners, "the one conic touching all five sides");
+    let mut c = ellipse_candidate(e, corners, "the one conic touching all five sides");
+    if !super::contained::lies_inside(&e, corners) {
+        c.cuttable = false;
+        c.note = "touches the five side lines but reaches outside the bay".into();
+        return Err(Failure {
+            reason: format!(
+                "{name}: the one ellipse touching all five side lines lies partly outside the bay \
+                 (it touches a side's extension); use rule largest-inside"
+            ),
+            candidates: vec![c],
+        });
+    }
     single(c, "five sides fix one conic".into())
 }

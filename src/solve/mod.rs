@@ -150,10 +150,11 @@ pub fn ccw_convex_corners(bay: &str, corners: &[Point]) -> Result<Vec<Point>, So
     if corners.iter().any(|p| !p.is_finite()) {
         return Err(degenerate("a corner is not a finite number".into()));
     }
-    let diameter = corners
-        .iter()
-        .flat_map(|p| corners.iter().map(move |q| p.distance(*q)))
-        .fold(0.0, f64::max);
+    // The bounding box's diagonal: within a factor √2 of the diameter, and cheap.
+    let diameter = match crate::chain::bounds_of(corners) {
+        Some((lo, hi)) => lo.distance(hi),
+        None => 0.0,
+    };
     let area: f64 = (0..n)
         .map(|i| 0.5 * corners[i].to_vec().cross(corners[(i + 1) % n].to_vec()))
         .sum();
@@ -183,7 +184,11 @@ pub fn ccw_convex_corners(bay: &str, corners: &[Point]) -> Result<Vec<Point>, So
         }
     }
     // A strictly left-turning closed polygon with positive area can still wind twice (a
-    // pentagram); the total turn must be one full turn.
+    // pentagram); the total turn must be one full turn. Four turns each below π add up to less
+    // than 4π, so triangles and quadrilaterals cannot wind twice.
+    if n <= 4 {
+        return Ok(pts);
+    }
     let turn: f64 = (0..n)
         .map(|i| {
             let (p, q, r) = (pts[(i + n - 1) % n], pts[i], pts[(i + 1) % n]);

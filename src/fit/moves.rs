@@ -1,0 +1,184 @@
+//! Feed moves as a controller runs them: straight lines and circular arcs.
+
+use crate::geom::{Point, Vec2};
+use serde::Serialize;
+use std::f64::consts::TAU;
+
+/// One feed move, from wherever the previous move ended.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum Move {
+    /// A straight move (G1).
+    Line { to: Point },
+    /// A circular arc (G2 clockwise, G3 counter-clockwise, seen from +Z) about `center`, ending
+    /// at `to`. Its radius is the distance from `center` to the start; the end lies on the same
+    /// circle (to rounding). A sweep of a full turn is never used: split it first.
+    Arc { to: Point, center: Point, ccw: bool },
+}
+
+impl Move {
+    pub fn end(&self) -> Point {
+        match *self {
+            Move::Line { to } | Move::Arc { to, .. } => to,
+        }
+    }
+
+    /// The signed sweep of an arc started at `from` (positive counter-clockwise), in
+    /// (−2π, 2π); 0 for a line.
+    pub fn sweep(&self, from: Point) -> f64 {
+        match *self {
+            Move::Line { .. } => 0.0,
+            Move::Arc { to, center, ccw } => {
+                let a0 = (from - center).angle();
+                let a1 = (to - center).angle();
+                if ccw {
+                    (a1 - a0).rem_euclid(TAU)
+                } else {
+                    -(a0 - a1).rem_euclid(TAU)
+                }
+            }
+        }
+    }
+
+    /// The point at fraction `t` of the move started at `from` (0 at `from`, 1 at the end).
+    /// Along an arc the radius is interpolated between start and end radius, so a slightly
+    /// unequal pair (after rounding) still gives a continuous curve.
+    pub fn point_at(&self, from: Point, t: f64) -> Point {
+        match *self {
+            Move::Line { to } => from.lerp(to, t),
+            Move::Arc { to, center, .. } => {
+                let r0 = from.distance(center);
+                let r1 = to.distance(center);
+                let a0 = (from - center).angle();
+                let sweep = self.sweep(from);
+                center + Vec2::from_angle(a0 + t * sweep) * (r0 + t * (r1 - r0))
+            }
+        }
+    }
+
+    /// Length of the move started at `from`.
+    pub fn length(&self, from: Point) -> f64 {
+        match *self {
+            Move::Line { to } => from.distance(to),
+            Move::Arc { center, .. } => from.distance(center) * self.sweep(from).abs(),
+        }
+    }
+
+    /// The unit tangent at the start of the move started at `from`, in the direction of travel.
+    pub fn start_tangent(&self, from: Point) -> Option<Vec2> {
+        match *self {
+            Move::Line { to } => (to - from).normalized(),
+            Move::Arc { center, ccw, .. } => {
+                let r = (from - center).normalized()?.perp();
+                Some(if ccw { r } else { -r })
+            }
+        }
+    }
+
+    /// The unit tangent at the end of the move started at `from`.
+    pub fn end_tangent(&self, from: Point) -> Option<Vec2> {
+        match *self {
+            Move::Line { to } => (to - from).normalized(),
+            Move::Arc { to, center, ccw } => {
+                let r = (to - center).normalized()?.perp();
+                Some(if ccw { r } else { -r })
+            }
+        }
+    }
+}
+
+/// Points along a run of moves from `start`: every move's end, and `per_arc` points inside each
+/// arc. For drawing and measuring, never for output.
+pub fn sample(start: Point, moves: &[Move], per_arc: usize) -> Vec<Point> {
+    let mut out = vec![start];
+    let mut from = start;
+    for m in moves {
+        if let Move::Arc { .. } = m {
+            for k in 1..per_arc.max(1) {
+                out.push(m.point_at(from, k as f64 / per_arc as f64));
+            }
+        }
+        out.push(m.end());
+        from = m.end();
+    }
+    out
+}
+
+/// Total length of a run of moves from `start`.
+pub fn total_length(start: Point, moves: &[Move]) -> f64 {
+    let mut from = start;
+    let mut sum = 0.0;
+    for m in moves {
+        sum += m.length(from);
+        from = m.end();
+    }
+    sum
+}
+
+/// The largest change of direction between consecutive moves, in degrees (0 for a run that is
+/// tangent-continuous).
+pub fn largest_kink_deg(start: Point, moves: &[Move]) -> f64 {
+    let mut from = start;
+    let mut worst: f64 = 0.0;
+    let mut previous: Option<Vec2> = None;
+    for m in moves {
+        if let (Some(t0), Some(t1)) = (previous, m.start_tangent(from)) {
+            worst = worst.max(t0.cross(t1).atan2(t0.dot(t1)).abs());
+        }
+        previous = m.end_tangent(from);
+        from = m.end();
+    }
+    worst.to_degrees()
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn quarter_arcs_both_ways() {
+        let from = Point::new(1.0, 0.0);
+        let ccw = Move::Arc {
+            to: Point::new(0.0, 1.0),
+            center: Point::ORIGIN,
+            ccw: true,
+        };
+        assert!((ccw.sweep(from) - std::f64::consts::FRAC_PI_2).abs() < 1e-15);
+        assert!((ccw.length(from) - std::f64::consts::FRAC_PI_2).abs() < 1e-15);
+        let mid = ccw.point_at(from, 0.5);
+        assert!((mid.x - mid.y).abs() < 1e-15 && mid.x > 0.0);
+        let cw = Move::Arc {
+            to: Point::new(0.0, 1.0),
+            center: Point::ORIGIN,
+            ccw: false,
+        };
+        assert!((cw.sweep(from) + 3.0 * std::f64::consts::FRAC_PI_2).abs() < 1e-15);
+        assert!(cw.point_at(from, 0.5).x < 0.0);
+    }
+
+    #[test]
+    fn kinks_between_moves() {
+        let start = Point::ORIGIN;
+        let moves = [
+            Move::Line {
+                to: Point::new(1.0, 0.0),
+            },
+            Move::Line {
+                to: Point::new(1.0, 1.0),
+            },
+        ];
+        assert!((largest_kink_deg(start, &moves) - 90.0).abs() < 1e-12);
+        // A line into a tangent arc has no kink.
+        let moves = [
+            Move::Line {
+                to: Point::new(1.0, 0.0),
+            },
+            Move::Arc {
+                to: Point::new(2.0, 1.0),
+                center: Point::new(1.0, 1.0),
+                ccw: true,
+            },
+        ];
+        assert!(largest_kink_deg(start, &moves) < 1e-12);
+    }
+}
