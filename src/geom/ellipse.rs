@@ -196,15 +196,18 @@ impl Ellipse {
 fn nearest_first_quadrant(a: f64, b: f64, x0: f64, y0: f64) -> (f64, f64) {
     if y0 > 0.0 {
         if x0 > 0.0 {
-            let f = |s: f64| {
-                let u = a * x0 / (s + a * a);
-                let v = b * y0 / (s + b * b);
-                u * u + v * v - 1.0
+            // Written in u = s + b² so that a point very near the major axis (tiny y0) keeps
+            // its precision: F(u) = (a x0/(u + a² − b²))² + (b y0/u)² − 1 decreases on u > 0.
+            // At u = b y0 the second term alone is 1, so F ≥ 0; at u = |(a x0, b y0)| both
+            // terms together are at most 1, so F ≤ 0 (Eberly).
+            let gap = a * a - b * b;
+            let f = |u: f64| {
+                let p = a * x0 / (u + gap);
+                let q = b * y0 / u;
+                p * p + q * q - 1.0
             };
-            // F decreases on (−b², ∞). At s = −b² + b y0 the second term alone is 1, so F ≥ 0;
-            // at s = −b² + |(a x0, b y0)| both terms together are at most 1, so F ≤ 0 (Eberly).
-            let mut lo = -b * b + b * y0;
-            let mut hi = -b * b + (a * x0).hypot(b * y0);
+            let mut lo = b * y0;
+            let mut hi = (a * x0).hypot(b * y0);
             for _ in 0..200 {
                 let mid = 0.5 * (lo + hi);
                 if mid == lo || mid == hi {
@@ -216,8 +219,8 @@ fn nearest_first_quadrant(a: f64, b: f64, x0: f64, y0: f64) -> (f64, f64) {
                     hi = mid;
                 }
             }
-            let s = 0.5 * (lo + hi);
-            (a * a * x0 / (s + a * a), b * b * y0 / (s + b * b))
+            let u = 0.5 * (lo + hi);
+            (a * a * x0 / (u + gap), (b * b * y0 / u).min(b))
         } else {
             (0.0, b)
         }
@@ -290,6 +293,23 @@ mod tests {
     }
 
     #[test]
+    fn distance_from_near_the_major_axis_of_an_upright_ellipse() {
+        // Regression: rotating by −π/2 leaves a y of about 4e-17 instead of 0, which used to lose
+        // all precision in the bisection and return a distance of 0.
+        let e = Ellipse::new(Point::new(96.0, 70.0), 38.0, 17.119, FRAC_PI_2).unwrap();
+        let p = Point::new(96.0, 70.7);
+        let (d, _) = e.distance_to(p);
+        let brute = (0..400_000)
+            .map(|i| {
+                e.point(i as f64 * std::f64::consts::TAU / 400_000.0)
+                    .distance(p)
+            })
+            .fold(f64::INFINITY, f64::min);
+        assert!(d <= brute + 1e-12 && d >= brute - 1e-3, "{d} vs {brute}");
+        assert!(d > 17.0);
+    }
+
+    #[test]
     fn distance_to_point_agrees_with_dense_search() {
         let e = Ellipse::new(Point::new(3.0, -1.0), 50.0, 20.0, 0.4).unwrap();
         let probes = [
@@ -298,6 +318,8 @@ mod tests {
             Point::new(-60.0, 0.0),
             Point::new(10.0, 2.0),
             e.point(1.0),
+            // On the major axis up to rounding: the nearest point leaves the axis.
+            e.center() + crate::geom::Vec2::from_angle(e.angle()) * 0.7,
         ];
         for p in probes {
             let (d, _) = e.distance_to(p);
