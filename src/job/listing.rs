@@ -3,6 +3,7 @@
 
 use super::features::SolvedFeature;
 use crate::jobfile::CutKind;
+use crate::report::write_list;
 use crate::solve::candidate::Candidate;
 use crate::solve::conic::ConicKind;
 use serde::Serialize;
@@ -210,18 +211,8 @@ impl SolveListing {
             };
             let _ = writeln!(s, "  {label}: {}", f.reason);
         }
-        if !self.warnings.is_empty() {
-            let _ = writeln!(s, "\nwarnings:");
-            for w in &self.warnings {
-                let _ = writeln!(s, "  - {w}");
-            }
-        }
-        if !self.notes.is_empty() {
-            let _ = writeln!(s, "\nnotes:");
-            for n in &self.notes {
-                let _ = writeln!(s, "  - {n}");
-            }
-        }
+        write_list(&mut s, "warnings", &self.warnings);
+        write_list(&mut s, "notes", &self.notes);
         s
     }
 }

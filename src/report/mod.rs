@@ -172,6 +172,17 @@ pub fn build_report(input: ReportInput) -> Report {
     }
 }
 
+/// Appends a titled list (`warnings:`, `notes:`) to a text report; nothing when it is empty.
+pub fn write_list(s: &mut String, title: &str, items: &[String]) {
+    if items.is_empty() {
+        return;
+    }
+    let _ = writeln!(s, "\n{title}:");
+    for item in items {
+        let _ = writeln!(s, "  - {item}");
+    }
+}
+
 impl Report {
     /// The report as pretty-printed JSON.
     pub fn to_json(&self) -> String {
@@ -240,18 +251,8 @@ impl Report {
                 f.name, kind, side, centre, a, b, ang, f.contour_moves, f.measured_deviation_mm
             );
         }
-        if !self.warnings.is_empty() {
-            let _ = writeln!(s, "\nwarnings:");
-            for w in &self.warnings {
-                let _ = writeln!(s, "  - {w}");
-            }
-        }
-        if !self.notes.is_empty() {
-            let _ = writeln!(s, "\nnotes:");
-            for n in &self.notes {
-                let _ = writeln!(s, "  - {n}");
-            }
-        }
+        write_list(&mut s, "warnings", &self.warnings);
+        write_list(&mut s, "notes", &self.notes);
         if !self.files.is_empty() {
             let _ = writeln!(s, "\nfiles:");
             for f in &self.files {
