@@ -16,6 +16,7 @@
 #![forbid(unsafe_code)]
 
 pub mod chain;
+pub mod check;
 pub mod demo;
 pub mod fit;
 pub mod geom;

@@ -6,7 +6,7 @@ use conicut::chain::{DEFAULT_BAY_LAYER, DEFAULT_GAP_TOLERANCE};
 use conicut::geom::Point;
 use conicut::job::{JobOutput, JobSettings, run_job, solve_job};
 use conicut::jobfile::{FeatureSource, FitPoints, JobFile, parse_job_file};
-use conicut::post::MachineProfile;
+use conicut::post::{BUNDLED_PROFILES, MachineProfile};
 use conicut::read::Units;
 use conicut::read::parse_points_csv;
 use conicut::report::OutputFile;
@@ -25,20 +25,25 @@ struct Cli {
 
 #[derive(Subcommand, Debug)]
 enum Command {
-    /// Run the whole job on the bundled demo part (a truss bracket with four-sided bays) for
-    /// the bundled metric mill profile.
+    /// Run the whole job on the bundled demo part (a truss bracket with four-sided bays) for one
+    /// of the bundled machine profiles.
     Demo {
         /// Folder for the outputs (created if missing).
         #[arg(long, default_value = "conicut-demo")]
         out: PathBuf,
+        /// Which bundled profile: metric-mill (a 6 mm end mill, the default), inch-router,
+        /// laser, plasma or waterjet (cut with the profile's kerf).
+        #[arg(long, default_value = "metric-mill")]
+        machine: String,
         #[command(flatten)]
         cut: CutArgs,
         /// Edge margin: each bay side is moved inward by this much before solving (mm).
         #[arg(long, default_value_t = 4.0, allow_negative_numbers = true)]
         margin: f64,
-        /// Cutter diameter (mm).
-        #[arg(long, default_value_t = 6.0, allow_negative_numbers = true)]
-        tool_diameter: f64,
+        /// Cutter diameter (mm). Default: 6 mm for mills and routers, the profile's kerf width
+        /// for laser, plasma and waterjet.
+        #[arg(long, alias = "kerf", allow_negative_numbers = true)]
+        tool_diameter: Option<f64>,
         /// A job file saying which ellipse each bay gets (see demo-parts/truss-bracket-job.toml).
         #[arg(long)]
         job: Option<PathBuf>,
@@ -60,9 +65,10 @@ enum Command {
         /// Machine profile (TOML), e.g. machine-profiles/metric-mill.toml.
         #[arg(long)]
         machine: PathBuf,
-        /// Cutter diameter (mm).
-        #[arg(long, allow_negative_numbers = true)]
-        tool_diameter: f64,
+        /// Cutter diameter (mm), or the kerf width for laser, plasma and waterjet (`--kerf`);
+        /// those profiles supply their kerf when it is not given.
+        #[arg(long, alias = "kerf", allow_negative_numbers = true)]
+        tool_diameter: Option<f64>,
         /// Folder for the outputs (created if missing). Default: `<drawing name>-conicut` in the
         /// current folder.
         #[arg(long)]
@@ -105,6 +111,13 @@ struct CutArgs {
     /// through its 3 mm plate and 0.5 mm into the board below).
     #[arg(long, allow_negative_numbers = true)]
     depth: Option<f64>,
+    /// Straight moves (G1) only, no arcs (G2/G3).
+    #[arg(long)]
+    lines_only: bool,
+    /// Keep all deviation on the scrap side of the exact curve, so that no edge loses material
+    /// (more moves for the same tolerance).
+    #[arg(long)]
+    scrap_side_only: bool,
 }
 
 /// The demo drawing's file name, as written to `demo-parts/` and named in the outputs.
@@ -180,6 +193,8 @@ fn settings(file_name: String, input: &DrawingArgs, cut: Option<&CutArgs>) -> Re
         tool_diameter: 0.0,
         tolerance: cut.map(|c| c.tolerance).unwrap_or(0.01),
         depth: cut.and_then(|c| c.depth),
+        lines_only: cut.is_some_and(|c| c.lines_only),
+        scrap_side_only: cut.is_some_and(|c| c.scrap_side_only),
         job,
         csv_points,
     })
@@ -189,13 +204,28 @@ fn run(cli: Cli) -> Result<()> {
     match cli.command {
         Command::Demo {
             out,
+            machine,
             cut,
             margin,
             tool_diameter,
             job,
         } => {
-            let profile = MachineProfile::metric_mill()
-                .map_err(|e| anyhow::anyhow!("the bundled metric mill profile: {e}"))?;
+            let wanted = format!("machine-profiles/{machine}.toml");
+            let Some((file, text)) = BUNDLED_PROFILES.iter().find(|(f, _)| *f == wanted) else {
+                let names: Vec<&str> = BUNDLED_PROFILES
+                    .iter()
+                    .filter_map(|(f, _)| f.strip_prefix("machine-profiles/"))
+                    .filter_map(|f| f.strip_suffix(".toml"))
+                    .collect();
+                bail!(
+                    "there is no bundled profile \"{machine}\"; choose one of {}",
+                    names.join(", ")
+                );
+            };
+            let profile =
+                MachineProfile::from_toml(text, file).map_err(|e| anyhow::anyhow!("{e}"))?;
+            // The demo's end mill is 6 mm; cut-through kinds use their kerf.
+            let tool_diameter = tool_diameter.or(profile.kerf_width()).unwrap_or(6.0);
             let input = DrawingArgs {
                 job,
                 units: None,
@@ -208,7 +238,12 @@ fn run(cli: Cli) -> Result<()> {
             settings.depth = Some(cut.depth.unwrap_or(conicut::demo::CUT_DEPTH));
             let bytes = conicut::demo::demo_dxf_bytes();
             let output = run_job(&bytes, &profile, &settings)?;
-            finish(output, &out, "truss-bracket")
+            let stem = if machine == "metric-mill" {
+                "truss-bracket".to_string()
+            } else {
+                format!("truss-bracket-{machine}")
+            };
+            finish(output, &out, &stem)
         }
         Command::Solve {
             drawing,
@@ -240,7 +275,15 @@ fn run(cli: Cli) -> Result<()> {
                 .map_err(|e| anyhow::anyhow!("{e}"))?;
             let (bytes, file_name, stem) = read_drawing(&drawing)?;
             let mut settings = settings(file_name, &input, Some(&cut))?;
-            settings.tool_diameter = tool_diameter;
+            settings.tool_diameter = match tool_diameter.or(profile.kerf_width()) {
+                Some(d) => d,
+                None => bail!(
+                    "give the cutter diameter with --tool-diameter (mm): the {} profile \"{}\" has \
+                     no kerf width to fall back on",
+                    profile.kind(),
+                    profile.name()
+                ),
+            };
             let output = run_job(&bytes, &profile, &settings)?;
             let out = out.unwrap_or_else(|| PathBuf::from(format!("{stem}-conicut")));
             finish(output, &out, &stem)

@@ -3,10 +3,19 @@
 //! crate's own measurement: every chord sampled at 64 points, each compared with the nearest
 //! point of the ellipse; and the exact curve sampled densely and compared with every segment.
 
-use conicut::fit::{fit_cut, flatten_ellipse_offset};
+use conicut::fit::{FitOptions, MoveKind, fit_cut, flatten_ellipse_offset};
 use conicut::geom::{Ellipse, Point, Segment};
 use conicut::plan::{CutSide, ExactPath, FeatureKind, PlannedCut};
 use std::f64::consts::TAU;
+
+/// Two-sided straight moves within `tolerance`.
+fn lines(tolerance: f64) -> FitOptions {
+    FitOptions {
+        tolerance,
+        moves: MoveKind::Lines,
+        scrap_side_only: false,
+    }
+}
 
 fn cut(e: Ellipse, r: f64) -> PlannedCut {
     PlannedCut {
@@ -73,7 +82,7 @@ fn deviation_within_tolerance_for_shapes_tools_and_tolerances() {
         for frac in [0.2, 0.6, 0.95] {
             let r = frac * limit;
             for tol in [0.1, 0.01, 0.001] {
-                let fitted = fit_cut(&cut(e, r), tol).unwrap();
+                let fitted = fit_cut(&cut(e, r), &lines(tol)).unwrap();
                 let points = fitted.end_points();
                 let worst = check(&e, r, tol, &points);
                 assert!(fitted.measured_deviation <= tol);
@@ -109,6 +118,6 @@ fn chord_counts_match_the_published_greedy_construction() {
 #[test]
 fn tolerance_below_the_floor_is_refused() {
     let e = Ellipse::new(Point::ORIGIN, 50.0, 20.0, 0.0).unwrap();
-    assert!(fit_cut(&cut(e, 3.0), 0.0).is_err());
-    assert!(fit_cut(&cut(e, 3.0), f64::NAN).is_err());
+    assert!(fit_cut(&cut(e, 3.0), &lines(0.0)).is_err());
+    assert!(fit_cut(&cut(e, 3.0), &lines(f64::NAN)).is_err());
 }

@@ -6,8 +6,8 @@ use conicut::fit::FittedCut;
 use conicut::geom::Point;
 use conicut::plan::{CutSide, FeatureKind};
 use conicut::post::{
-    METRIC_MILL_TOML, MachineProfile, PRECEDENCE, PostError, ProgramSettings, SAFETY_HEADING,
-    write_program,
+    BUNDLED_PROFILES, METRIC_MILL_TOML, MachineProfile, PRECEDENCE, PostError, ProgramSettings,
+    SAFETY_HEADING, write_program,
 };
 use gcode::{Code, Value};
 
@@ -409,12 +409,149 @@ fn bad_settings_and_bad_cuts_are_refused_without_panic() {
     assert!(matches!(&err, PostError::NotFinite { feature, .. } if feature == "hole 9"));
 }
 
+fn bundled(file: &str) -> MachineProfile {
+    let (name, text) = BUNDLED_PROFILES
+        .iter()
+        .find(|(name, _)| name.ends_with(file))
+        .expect("a bundled profile");
+    MachineProfile::from_toml(text, name).expect("bundled profile loads")
+}
+
+/// The non-comment blocks of a program, line numbers stripped.
+fn blocks(program: &str) -> Vec<String> {
+    program
+        .lines()
+        .filter(|l| *l != "%" && !l.starts_with('(') && !l.starts_with(';'))
+        .map(|l| {
+            l.trim_start_matches(|c: char| c == 'N' || c.is_ascii_digit())
+                .trim()
+                .to_string()
+        })
+        .collect()
+}
+
 #[test]
-fn other_kinds_of_machine_are_not_yet_supported() {
-    let text = METRIC_MILL_TOML.replace("kind = \"mill\"", "kind = \"laser\"");
-    let laser = MachineProfile::from_toml(&text, "laser.toml").unwrap();
-    let err = write_program(&[square_cut("a", 10.0, 10.0, 5.0)], &laser, &settings()).unwrap_err();
-    assert!(err.to_string().contains("not yet supported"), "{err}");
+fn laser_plasma_and_waterjet_pierce_dwell_and_cut_at_height() {
+    // Sequence from the brief for cut-through kinds (STANDARDS-AND-PRACTICE.md §4.3, common
+    // practice): rapid at safe height over the pierce point, down to the pierce height, process
+    // on, pierce dwell G4 P in seconds (NISTIR 6556 §3.5.4), down to the cut height, feed along the
+    // path, process off, up to the safe height.
+    for (file, on, off, safe, pierce, cut_z, dwell) in [
+        ("laser.toml", "M3", "M5", "10.000", "1.500", "0.800", "0.50"),
+        ("plasma.toml", "M3", "M5", "15.00", "3.80", "1.50", "0.80"),
+        (
+            "waterjet.toml",
+            "M3",
+            "M5",
+            "25.000",
+            "3.000",
+            "2.000",
+            "2.00",
+        ),
+    ] {
+        let profile = bundled(file);
+        let cuts = [
+            square_cut("hole 1", 10.0, 20.0, 30.0),
+            square_cut("hole 2", 60.0, 20.0, 30.0),
+        ];
+        let s = ProgramSettings {
+            tool_diameter: profile.kerf_width().unwrap(),
+            depth: 0.0,
+            ..settings()
+        };
+        let program = write_program(&cuts, &profile, &s).unwrap();
+        assert_format_rules(&program);
+        let b = blocks(&program);
+        let at = |i: usize| b[i].as_str();
+        let first = b.iter().position(|l| l.starts_with("G0 X")).unwrap();
+        assert_eq!(at(first - 1), format!("G0 Z{safe}"), "{file}: {b:#?}");
+        assert!(at(first).starts_with("G0 X25.") && at(first).contains(" Y35."));
+        assert_eq!(at(first + 1), format!("G0 Z{pierce}"), "{file}");
+        assert_eq!(at(first + 2), on, "{file}");
+        assert_eq!(at(first + 3), format!("G4 P{dwell}"), "{file}");
+        assert!(
+            at(first + 4).starts_with(&format!("G1 Z{cut_z} F")),
+            "{file}"
+        );
+        assert!(at(first + 5).starts_with("G1 X10.") && at(first + 5).contains(" F"));
+        // Four sides of the square, then off and up.
+        assert_eq!(at(first + 10), off, "{file}: {b:#?}");
+        assert_eq!(at(first + 11), format!("G0 Z{safe}"), "{file}");
+        // Two cuts: the process is switched on and off once per cut, the dwell once per pierce.
+        assert_eq!(b.iter().filter(|l| *l == on).count(), 2, "{file}");
+        assert_eq!(b.iter().filter(|l| *l == off).count(), 2, "{file}");
+        assert_eq!(b.iter().filter(|l| l.starts_with("G4 ")).count(), 2);
+        // Cut-through kinds never go below the sheet, and never write a spindle speed.
+        for m in moves(&program) {
+            assert!(m.z.is_none_or(|z| z > 0.0), "{file}: {m:?}");
+        }
+        assert!(!b.iter().any(|l| l.contains(" S")), "{file}");
+        assert!(program.contains("kerf width the paths allow for"), "{file}");
+        assert!(program.contains("cut through, no depth"), "{file}");
+    }
+}
+
+#[test]
+fn a_kerf_other_than_the_profiles_is_noted_in_the_header() {
+    let laser = bundled("laser.toml");
+    let s = ProgramSettings {
+        tool_diameter: 0.3,
+        ..settings()
+    };
+    let program = write_program(&[square_cut("a", 10.0, 10.0, 5.0)], &laser, &s).unwrap();
+    assert!(
+        program.contains(
+            "(kerf width the paths allow for 0.3000 mm; the profile's kerf width is 0.2000 mm)"
+        ),
+        "{program}"
+    );
+    // A cut-through kind needs a positive kerf but no depth.
+    let s = ProgramSettings {
+        tool_diameter: 0.0,
+        ..settings()
+    };
+    let err = write_program(&[square_cut("a", 10.0, 10.0, 5.0)], &laser, &s).unwrap_err();
+    assert!(err.to_string().contains("kerf width"), "{err}");
+}
+
+#[test]
+fn kerf_width_is_given_in_millimetres() {
+    assert_eq!(bundled("laser.toml").kerf_width(), Some(0.2));
+    assert_eq!(bundled("metric-mill.toml").kerf_width(), None);
+    assert_eq!(bundled("inch-router.toml").kerf_width(), None);
+    let text = BUNDLED_PROFILES[2]
+        .1
+        .replace("units = \"mm\"", "units = \"in\"")
+        .replace("kerf_width = 0.2 ", "kerf_width = 0.01")
+        .replace("xy_decimals = 4", "xy_decimals = 5");
+    let inch_laser = MachineProfile::from_toml(&text, "inch-laser.toml").unwrap();
+    // 0.01 in = 0.254 mm exactly (international inch, 1959).
+    assert!((inch_laser.kerf_width().unwrap() - 0.254).abs() < 1e-12);
+}
+
+#[test]
+fn semicolon_comments_and_millisecond_dwells_are_profile_options() {
+    let text = METRIC_MILL_TOML
+        .replace(
+            "comment_style = \"parentheses\"",
+            "comment_style = \"semicolon\"",
+        )
+        .replace("dwell_unit = \"seconds\"", "dwell_unit = \"milliseconds\"");
+    let p = MachineProfile::from_toml(&text, "semicolon.toml").unwrap();
+    let program = write_program(&[square_cut("a (x)", 10.0, 10.0, 5.0)], &p, &settings()).unwrap();
+    assert!(!program.lines().any(|l| l.starts_with('(')), "{program}");
+    assert!(program.contains("\n; SAFETY - read before running this program\n"));
+    // The metric mill waits 2 s for its spindle: 2000 ms.
+    assert!(program.contains("\nG4 P2000\n"), "{program}");
+    // The outside parser reads `;` comments and finds the same moves as with parentheses.
+    let parens = write_program(
+        &[square_cut("a (x)", 10.0, 10.0, 5.0)],
+        &mill(),
+        &settings(),
+    )
+    .unwrap();
+    assert_eq!(moves(&program), moves(&parens));
+    assert!(parens.contains("\nG4 P2.00\n"));
 }
 
 #[test]
@@ -596,6 +733,15 @@ mod profile_errors {
                 "spindle_on = \"M3 (on\"",
                 "spindle_on",
             ),
+            ("arc_form = \"centre\"", "arc_form = \"radius\"", "arc_form"),
+            ("xy_decimals = 4", "xy_decimals = 2", "xy_decimals"),
+            (
+                "max_feed = 2500.0",
+                "max_feed = 2500.0\npierce_height = 3.0",
+                "pierce_height",
+            ),
+            ("rapid_feed = 5000.0", "rapid_feed = 2000.0", "max_feed"),
+            ("acceleration = 500.0", "acceleration = 0.0", "acceleration"),
         ];
         for (from, to, key) in cases {
             let text = METRIC_MILL_TOML.replace(from, to);
@@ -610,6 +756,37 @@ mod profile_errors {
             assert!(table.is_empty() || text.contains(&format!("[{table}]")));
             assert_eq!(err.line, expected_line, "{to}: {err}");
         }
+    }
+
+    #[test]
+    fn keys_of_other_kinds_are_refused_and_own_keys_required() {
+        // A laser takes beam_on / beam_off, not a plasma's torch words nor a spindle.
+        let laser = BUNDLED_PROFILES[2].1;
+        let text = laser.replace("beam_on = ", "torch_on = ");
+        let err = MachineProfile::from_toml(&text, "laser.toml").unwrap_err();
+        assert_eq!(err.key.as_deref(), Some("torch_on"), "{err}");
+        assert!(err.to_string().contains("plasma profiles"), "{err}");
+        assert!(err.to_string().contains("beam_on and beam_off"), "{err}");
+        let text = format!("spindle_speed = 100.0\n{laser}");
+        let err = MachineProfile::from_toml(&text, "laser.toml").unwrap_err();
+        assert_eq!(
+            (err.key.as_deref(), err.line),
+            (Some("spindle_speed"), Some(1)),
+            "{err}"
+        );
+        // A missing kerf width is named, with the kind that needs it.
+        let text: String = laser
+            .lines()
+            .filter(|l| !l.starts_with("kerf_width"))
+            .map(|l| format!("{l}\n"))
+            .collect();
+        let err = MachineProfile::from_toml(&text, "laser.toml").unwrap_err();
+        assert_eq!(err.key.as_deref(), Some("kerf_width"), "{err}");
+        assert!(err.to_string().contains("a laser profile needs"), "{err}");
+        // Heights in order: the pierce starts above the cut height.
+        let text = laser.replace("cut_height = 0.8", "cut_height = 2.0");
+        let err = MachineProfile::from_toml(&text, "laser.toml").unwrap_err();
+        assert_eq!(err.key.as_deref(), Some("cut_height"), "{err}");
     }
 
     #[test]

@@ -445,3 +445,134 @@ fn rendered_preview_shows_paths_ellipses_and_arcs_where_they_are() {
     let blank = Point::new(185.0, 60.0);
     assert!(is_white(at(blank)), "{:?}", at(blank));
 }
+
+/// The commands of a path's `d`: each letter with its numbers.
+fn commands(d: &str) -> Vec<(char, Vec<f64>)> {
+    let mut out: Vec<(char, Vec<f64>)> = Vec::new();
+    for token in d.split_whitespace() {
+        match token.parse::<f64>() {
+            Ok(v) => out.last_mut().expect("a command first").1.push(v),
+            Err(_) => out.push((token.chars().next().unwrap(), Vec::new())),
+        }
+    }
+    out
+}
+
+#[test]
+fn arc_moves_are_drawn_as_exact_svg_arcs() {
+    use conicut::fit::Move;
+    // A stadium run counter-clockwise (two half turns about (60, 30) and (40, 30), radius 10),
+    // and a three-quarter turn clockwise about (120, 30), radius 10.
+    let mut stadium = FittedCut::from_points(
+        "stadium",
+        FeatureKind::Hole,
+        CutSide::Inside,
+        Point::new(50.0, 30.0),
+        &[Point::new(40.0, 20.0)],
+        0.01,
+        0.0,
+    );
+    stadium.moves = vec![
+        Move::Line {
+            to: Point::new(60.0, 20.0),
+        },
+        Move::Arc {
+            to: Point::new(60.0, 40.0),
+            center: Point::new(60.0, 30.0),
+            ccw: true,
+        },
+        Move::Line {
+            to: Point::new(40.0, 40.0),
+        },
+        Move::Arc {
+            to: Point::new(40.0, 20.0),
+            center: Point::new(40.0, 30.0),
+            ccw: true,
+        },
+    ];
+    let mut hook = FittedCut::from_points(
+        "hook",
+        FeatureKind::Hole,
+        CutSide::Inside,
+        Point::new(120.0, 30.0),
+        &[Point::new(130.0, 30.0)],
+        0.01,
+        0.0,
+    );
+    hook.moves = vec![Move::Arc {
+        to: Point::new(120.0, 40.0),
+        center: Point::new(120.0, 30.0),
+        ccw: false,
+    }];
+    let part = Part::default();
+    let cuts = [stadium, hook];
+    let svg = preview_svg(&PreviewInput {
+        title: "arcs",
+        part: &part,
+        ellipses: &[],
+        cuts: &cuts,
+        tool_diameter: 2.0,
+    });
+    let doc = roxmltree::Document::parse(&svg).unwrap();
+    for (cut, (centres, flag)) in cuts.iter().zip([
+        (vec![Point::new(60.0, 30.0), Point::new(40.0, 30.0)], 0.0),
+        (vec![Point::new(120.0, 30.0)], 1.0),
+    ]) {
+        let path = by_class(&doc, "tool-path")
+            .into_iter()
+            .find(|n| n.attribute("data-name") == Some(cut.name.as_str()))
+            .unwrap();
+        let cmds = commands(path.attribute("d").unwrap());
+        let mut current = (0.0, 0.0);
+        let mut arcs = 0;
+        for (c, v) in &cmds {
+            if *c == 'A' {
+                // SVG 1.1 §8.3.8: A rx ry x-axis-rotation large-arc-flag sweep-flag x y. Every
+                // piece turns at most half a turn (large-arc 0); with the y flip a
+                // counter-clockwise (G3) move has sweep flag 0, a clockwise (G2) one 1
+                // (STANDARDS-AND-PRACTICE.md §7).
+                assert_eq!(&v[..5], &[10.0, 10.0, 0.0, 0.0, flag], "{cmds:?}");
+                let (cx, cy) = svg_arc_centre(
+                    current.0,
+                    current.1,
+                    v[0],
+                    v[1],
+                    v[2],
+                    false,
+                    v[4] == 1.0,
+                    v[5],
+                    v[6],
+                );
+                // Coordinates are written with 4 decimals (0.1 µm); a piece of 135° moves its
+                // centre by well under 1 µm for that rounding.
+                let centre = Point::new(cx, -cy);
+                assert!(
+                    centres.iter().any(|c| c.distance(centre) < 1e-3),
+                    "{}: centre {centre:?}",
+                    cut.name
+                );
+                arcs += 1;
+            }
+            current = (v[v.len() - 2], v[v.len() - 1]);
+        }
+        // Half turns and the three-quarter turn are drawn in two pieces each.
+        assert_eq!(arcs, 2 * centres.len(), "{}: {cmds:?}", cut.name);
+    }
+    // Rendered, the stadium's right end bulges to the right (through (70, 30)) and not to the
+    // left (through (50, 30), where a wrong sweep flag would put it).
+    let ppm = 8.0;
+    let (pixmap, vb) = raster(&svg, ppm);
+    let at = |p: Point| colour_at(&pixmap, vb, ppm, p);
+    let is_blue = |(r, g, b, a): (u8, u8, u8, u8)| a == 255 && b > 150 && r < 90 && g < 140;
+    assert!(
+        is_blue(at(Point::new(70.0, 30.0))),
+        "{:?}",
+        at(Point::new(70.0, 30.0))
+    );
+    assert!(is_blue(at(Point::new(30.0, 30.0))));
+    assert!(!is_blue(at(Point::new(52.0, 30.0))));
+    // The clockwise hook passes (120, 20) and (110, 30), not (127, 37).
+    assert!(is_blue(at(Point::new(120.0, 20.0))));
+    assert!(is_blue(at(Point::new(110.0, 30.0))));
+    assert!(!is_blue(at(Point::new(127.0, 37.0))));
+}

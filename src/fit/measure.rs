@@ -1,34 +1,65 @@
 //! Measuring how far emitted moves stray from the exact curve they stand for.
 
+use super::band::golden_min;
 use super::moves::Move;
 use crate::chain::Element;
 use crate::geom::{ArcSegment, Point, Segment};
 use crate::plan::ExactPath;
+use serde::Serialize;
 use std::f64::consts::TAU;
 
-/// Samples taken along every emitted segment (and along the exact curve per segment).
-const SAMPLES_PER_SEGMENT: usize = 16;
+/// Samples taken along every emitted line (and along the exact curve per line).
+const SAMPLES_PER_LINE: usize = 16;
+
+/// Samples taken along every emitted arc (and along the exact curve per arc): an arc of a spline
+/// spans several of the curve's wiggles against it (two error lobes), and is long.
+const SAMPLES_PER_ARC: usize = 64;
+
+fn samples_for(piece: &Element) -> usize {
+    match piece {
+        Element::Line(_) => SAMPLES_PER_LINE,
+        Element::Arc(_) => SAMPLES_PER_ARC,
+    }
+}
 
 /// The deviation between the run of `moves` from `start` and `exact`, measured both ways by
 /// dense sampling: the largest distance from a sample of the moves to the exact curve, and from a
-/// sample of the exact curve to the moves. 16 samples per move put a sample within 1/32 of a move
+/// sample of the exact curve to the moves. 16 samples per line put a sample within 1/32 of a line
 /// of the point of largest deviation, so for a chord the estimate is within about 0.4 % of the
-/// true maximum (the sagitta profile is parabolic).
+/// true maximum (the sagitta profile is parabolic); arcs get 64 samples, 32 or so per error lobe.
 pub fn measure_deviation(start: Point, moves: &[Move], exact: &ExactPath) -> f64 {
+    measure_both(start, moves, exact).0
+}
+
+/// [`measure_deviation`] and [`measure_sides`] from one sampling of the moves.
+pub(crate) fn measure_both(
+    start: Point,
+    moves: &[Move],
+    exact: &ExactPath,
+) -> (f64, SideDeviation) {
+    let mut sides = SideDeviation {
+        scrap_side: 0.0,
+        part_side: 0.0,
+    };
     if moves.is_empty() {
-        return f64::INFINITY;
+        return (f64::INFINITY, sides);
     }
     let pieces = pieces_of(start, moves);
-    let curve_samples = curve_samples(exact, pieces.len() * SAMPLES_PER_SEGMENT);
-    let to_curve = pieces
-        .iter()
-        .flat_map(|s| {
-            (0..=SAMPLES_PER_SEGMENT).map(|k| piece_point(s, k as f64 / SAMPLES_PER_SEGMENT as f64))
-        })
-        .map(|p| distance_to_exact(exact, p))
-        .fold(0.0, f64::max);
+    for piece in &pieces {
+        let n = samples_for(piece);
+        for k in 0..=n {
+            let d = signed_distance_to_exact(exact, piece_point(piece, k as f64 / n as f64));
+            if d > 0.0 {
+                sides.scrap_side = sides.scrap_side.max(d);
+            } else {
+                sides.part_side = sides.part_side.max(-d);
+            }
+        }
+    }
+    let count = pieces.iter().map(samples_for).sum();
+    let curve_samples = curve_samples(exact, count);
     let to_path = distance_to_pieces_in_order(&curve_samples, &pieces);
-    to_curve.max(to_path)
+    (sides.scrap_side.max(sides.part_side).max(to_path), sides)
 }
 
 /// The moves as geometric pieces.
@@ -86,46 +117,77 @@ fn curve_samples(exact: &ExactPath, count: usize) -> Vec<Point> {
     }
 }
 
-/// Distance from `p` to the exact curve.
-fn distance_to_exact(exact: &ExactPath, p: Point) -> f64 {
+/// Distance from `p` to the exact curve, positive when `p` lies on the scrap side (left of travel:
+/// every planned cut keeps the scrap on its left), negative on the part side.
+fn signed_distance_to_exact(exact: &ExactPath, p: Point) -> f64 {
     match exact {
-        ExactPath::EllipseParallel { ellipse, inset, .. } => {
-            let distance = inset;
+        ExactPath::EllipseParallel {
+            ellipse,
+            inset,
+            clockwise,
+            ..
+        } => {
             // Start from the anomaly of the nearest point of the ellipse itself (the parallel
             // curve shares its normals), then minimise |p − O_d(t)| by golden-section search
             // in a window around it.
             let (_, t_guess) = ellipse.distance_to(p);
-            let f = |t: f64| p.distance(ellipse.inward_offset_point(t, *distance));
-            let mut best = f(t_guess);
+            let f = |t: f64| p.distance(ellipse.inward_offset_point(t, *inset));
+            let mut best = (f(t_guess), t_guess);
             for window in [0.02, 0.2] {
-                best = best.min(golden_min(&f, t_guess - window, t_guess + window));
+                let found = golden_min(&f, t_guess - window, t_guess + window);
+                if found.0 < best.0 {
+                    best = found;
+                }
             }
-            best
+            let (distance, t) = best;
+            // Outward along the common normal; the scrap is inside for a counter-clockwise run,
+            // outside for a clockwise one.
+            let outward =
+                (p - ellipse.inward_offset_point(t, *inset)).dot(ellipse.outward_normal(t));
+            let scrap = if *clockwise {
+                outward > 0.0
+            } else {
+                outward < 0.0
+            };
+            if scrap { distance } else { -distance }
         }
-        ExactPath::Contour(c) => c.distance_to(p),
+        ExactPath::Contour(c) => {
+            // The side of the nearest piece: left of a line's direction; inside the circle of a
+            // counter-clockwise arc, outside that of a clockwise one.
+            let mut best = (f64::INFINITY, true);
+            for e in &c.elements {
+                let d = e.distance_to(p);
+                if d < best.0 {
+                    let left = match e {
+                        Element::Line(s) => (s.end - s.start).cross(p - s.start) > 0.0,
+                        Element::Arc(a) => (p.distance(a.center) < a.radius) == (a.sweep > 0.0),
+                    };
+                    best = (d, left);
+                }
+            }
+            if best.1 { best.0 } else { -best.0 }
+        }
     }
 }
 
-fn golden_min(f: &impl Fn(f64) -> f64, mut a: f64, mut b: f64) -> f64 {
-    let g = 0.5 * (5f64.sqrt() - 1.0);
-    let (mut c, mut d) = (b - g * (b - a), a + g * (b - a));
-    let (mut fc, mut fd) = (f(c), f(d));
-    for _ in 0..100 {
-        if fc < fd {
-            b = d;
-            d = c;
-            fd = fc;
-            c = b - g * (b - a);
-            fc = f(c);
-        } else {
-            a = c;
-            c = d;
-            fc = fd;
-            d = a + g * (b - a);
-            fd = f(d);
-        }
-    }
-    fc.min(fd)
+/// How far a run of moves strays to each side of the exact curve it stands for.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+pub struct SideDeviation {
+    /// The largest distance of a point of the moves from the exact curve on the scrap side (the
+    /// left of travel), mm; 0 when no point lies there.
+    pub scrap_side: f64,
+    /// The largest distance on the part side (the right of travel), mm; 0 when no point lies
+    /// there.
+    pub part_side: f64,
+}
+
+/// The deviation of the run of `moves` from `start` on each side of `exact`, by the same dense
+/// sampling of the moves as [`measure_deviation`] (16 points per line, 64 per arc). Each sample's
+/// side is taken along the exact curve's normal at its nearest point (ellipse paths), or from the
+/// nearest piece (contours: left of a line, inside or outside an arc's circle). The
+/// curve-to-moves direction of [`measure_deviation`] has no side and is not repeated here.
+pub fn measure_sides(start: Point, moves: &[Move], exact: &ExactPath) -> SideDeviation {
+    measure_both(start, moves, exact).1
 }
 
 /// Largest distance from the curve samples to the moves. Both run the same way, so each

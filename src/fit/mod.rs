@@ -1,5 +1,20 @@
 //! Stage 5, fit: approximates each exact tool-centre path by moves the controller understands,
-//! within the tolerance, and measures the deviation it achieved.
+//! within the tolerance, with as few moves as the tolerance allows, and measures the deviation it
+//! achieved.
+//!
+//! "Tolerance" is the largest distance between the emitted path and the exact curve, either way
+//! (mm). The fitters work inside a band around the exact curve: `±tolerance`, or, when the cut
+//! asks to keep all deviation on the scrap side, `[0, tolerance]` on the left of travel (every
+//! planned cut keeps the scrap on its left). The approximations:
+//!
+//! | path | [`MoveKind::Arcs`] | [`MoveKind::Lines`] |
+//! |---|---|---|
+//! | ellipse parallel curve | arc spline (`arcs.rs`): ≈ ∫ (\|κ′\| / (72√3 w))^{1/3} ds arcs, `w` half the band | band polygon (`lines.rs`): ≈ ∫ √(κ / 8W) ds chords, `W` the band's width |
+//! | contour line | the line | the line |
+//! | contour arc | the arc, split below 180° | band polygon on the circle |
+//!
+//! For the two-sided band `w = ε`, `W = 2ε` (the `√(κ/16ε)` count of STANDARDS-AND-PRACTICE
+//! §3.2); the one-sided band is half as wide.
 
 use crate::geom::Point;
 use crate::plan::{CutSide, FeatureKind};
@@ -27,6 +42,10 @@ pub struct FittedCut {
     pub measured_deviation: f64,
     /// The largest change of direction between consecutive moves (degrees).
     pub largest_kink_deg: f64,
+    /// The largest distance of the emitted path from the exact curve on the part side (the right
+    /// of travel), measured by dense sampling (mm); at most `measured_deviation`, and at most
+    /// [`PART_SIDE_SLACK`] for a fit asked to keep to the scrap side.
+    pub part_side_deviation: f64,
 }
 
 impl FittedCut {
@@ -54,6 +73,8 @@ impl FittedCut {
             moves,
             tolerance,
             measured_deviation,
+            // Which side the deviation lies on is not known here.
+            part_side_deviation: measured_deviation,
         }
     }
 
@@ -65,22 +86,57 @@ impl FittedCut {
     }
 }
 
+mod arcs;
+mod band;
+mod lines;
 mod measure;
 pub mod moves;
 
-pub use measure::measure_deviation;
+pub use measure::{SideDeviation, measure_deviation, measure_sides};
 
 use crate::chain::{Contour, Element};
-use crate::geom::{Ellipse, Segment};
+use crate::geom::{ArcSegment, Ellipse};
 use crate::plan::{ExactPath, Plan, PlannedCut};
-use std::f64::consts::{FRAC_PI_2, TAU};
+use band::{Band, CircleCurve, EllipseCurve};
+use std::f64::consts::{FRAC_PI_2, PI, TAU};
 
 /// The smallest tolerance accepted (mm): below this the fixed-decimal output cannot carry it.
 pub const MIN_TOLERANCE: f64 = 1e-5;
 
-/// The share of the tolerance the construction aims for; the rest covers the accuracy of the
-/// search that places each vertex (≈1e-12 mm). The measured deviation is reported separately.
+/// How far (mm) a path fitted with [`FitOptions::scrap_side_only`] may stray to the part side:
+/// rounding in the construction (vertices placed on the exact curve itself) and in the
+/// measurement. It is not spent from the tolerance.
+pub const PART_SIDE_SLACK: f64 = 1e-9;
+
+/// The share of the tolerance the inscribed-chord construction aims for; the rest covers the
+/// accuracy of the search that places each vertex (≈1e-12 mm).
 const TARGET_SHARE: f64 = 1.0 - 1e-6;
+
+/// Which moves approximate the curved parts of a path.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum MoveKind {
+    /// Circular arcs (G2/G3) and straight lines: ellipse paths become an arc spline, contour arcs
+    /// stay exact arcs (split below 180°), contour lines stay lines.
+    Arcs,
+    /// Straight lines only (G1): every curved part becomes a polygon in the tolerance band.
+    Lines,
+}
+
+/// How to fit a planned path.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+pub struct FitOptions {
+    /// The largest distance allowed between the emitted path and the exact tool-centre curve, in
+    /// either direction (mm), at least [`MIN_TOLERANCE`].
+    pub tolerance: f64,
+    /// Arcs and lines, or lines only.
+    pub moves: MoveKind,
+    /// Keep every deviation on the scrap side of the exact curve (the left of travel for every
+    /// planned cut): the emitted path never crosses into the part (beyond [`PART_SIDE_SLACK`]),
+    /// and the tolerance band is one-sided, so half as wide as a two-sided one of the same
+    /// tolerance and the fit needs more moves.
+    pub scrap_side_only: bool,
+}
 
 /// Why a path could not be fitted.
 #[derive(Debug, Clone, PartialEq, thiserror::Error)]
@@ -91,6 +147,21 @@ pub enum FitError {
     )]
     BadTolerance(f64),
     #[error(
+        "{feature}: the tool-centre path is not a smooth convex curve: the inset {inset} mm is not \
+         below the smallest radius of curvature {limit:.4} mm of the ellipse; plan the cut with a \
+         smaller tool"
+    )]
+    IrregularPath {
+        feature: String,
+        inset: f64,
+        limit: f64,
+    },
+    #[error(
+        "{feature}: no arc spline within {tolerance} mm was found; this is a bug, please report it \
+         with the drawing, or fit with lines"
+    )]
+    NoArcSpline { feature: String, tolerance: f64 },
+    #[error(
         "{feature}: the fitted path deviates {measured:.6} mm from the exact curve, more than the \
          tolerance {tolerance} mm; this is a bug, please report it with the drawing"
     )]
@@ -99,57 +170,210 @@ pub enum FitError {
         measured: f64,
         tolerance: f64,
     },
+    #[error(
+        "{feature}: the fitted path strays {measured:.3e} mm to the part side of the exact curve, \
+         though asked to keep to the scrap side; this is a bug, please report it with the drawing"
+    )]
+    PartSideCrossed { feature: String, measured: f64 },
 }
 
-/// Fits every planned cut with straight feed moves within `tolerance` (mm).
-pub fn fit_plan(plan: &Plan, tolerance: f64) -> Result<Vec<FittedCut>, FitError> {
-    plan.cuts.iter().map(|c| fit_cut(c, tolerance)).collect()
+/// Fits every planned cut with `options`.
+pub fn fit_plan(plan: &Plan, options: &FitOptions) -> Result<Vec<FittedCut>, FitError> {
+    plan.cuts.iter().map(|c| fit_cut(c, options)).collect()
 }
 
-/// Fits one cut with straight feed moves whose vertices lie on the exact tool-centre curve, so
-/// the deviation is the sagitta of each chord, kept at or below `tolerance` (guaranteed up to
-/// the accuracy of the vertex search, ≈1e-12 mm), and then measured independently by dense
-/// sampling ([`measure_deviation`]); a measurement above the tolerance is an error.
-pub fn fit_cut(cut: &PlannedCut, tolerance: f64) -> Result<FittedCut, FitError> {
+/// Fits one cut: the ellipse's parallel curve by an arc spline ([`MoveKind::Arcs`]) or a band
+/// polygon ([`MoveKind::Lines`]); a contour's lines as lines and its arcs exactly (split below
+/// 180°) or by band polygons. Every fit is then measured independently by dense sampling
+/// ([`measure_deviation`], and [`measure_sides`] for one-sided fits); a measurement over the
+/// tolerance, or on the part side beyond [`PART_SIDE_SLACK`] for a one-sided fit, is an error.
+///
+/// Bounds (each guaranteed up to the accuracy of its searches, ≈1e-12 mm, which the band's
+/// millionth share absorbs): band polygons lie between the band's edges; arc-spline arcs lie
+/// within half the band's width of its middle curve, measured along the rays from their centres,
+/// for error profiles with one extremum between samples 1/48 of a stretch apart (always so for
+/// the smooth curves here; the measurement confirms it). Two-sided bands are `±tolerance`;
+/// one-sided bands are `[0, tolerance]` on the scrap side. A band's inner edge keeps within 99 %
+/// of the smallest radius of curvature on the concave side (the band is narrowed there, never
+/// widened), so that the curve's normals do not cross inside it.
+pub fn fit_cut(cut: &PlannedCut, options: &FitOptions) -> Result<FittedCut, FitError> {
+    let tolerance = options.tolerance;
     if !(tolerance >= MIN_TOLERANCE && tolerance.is_finite()) {
         return Err(FitError::BadTolerance(tolerance));
     }
-    let path = match &cut.path {
+    let (start, moves) = match &cut.path {
         ExactPath::EllipseParallel {
             ellipse,
             inset,
             start,
             clockwise,
         } => {
-            let mut points = flatten_ellipse_offset(ellipse, *inset, *start, tolerance);
-            if *clockwise {
-                points.reverse();
+            let limit = ellipse.min_radius_of_curvature();
+            if inset.is_nan() || *inset >= limit {
+                return Err(FitError::IrregularPath {
+                    feature: cut.name.clone(),
+                    inset: *inset,
+                    limit,
+                });
             }
-            points
+            fit_ellipse_parallel(ellipse, *inset, *start, *clockwise, options).ok_or_else(|| {
+                FitError::NoArcSpline {
+                    feature: cut.name.clone(),
+                    tolerance,
+                }
+            })?
         }
-        ExactPath::Contour(c) => flatten_contour(c, tolerance),
+        ExactPath::Contour(c) => fit_contour(c, options),
     };
-    let mut fitted = FittedCut::from_points(
-        &cut.name, cut.kind, cut.side, cut.plunge, &path, tolerance, 0.0,
-    );
-    let measured = measure_deviation(fitted.start, &fitted.moves, &cut.path);
-    if measured > tolerance {
+    let (measured, sides) = measure::measure_both(start, &moves, &cut.path);
+    if measured.is_nan() || measured > tolerance {
         return Err(FitError::ToleranceExceeded {
             feature: cut.name.clone(),
             measured,
             tolerance,
         });
     }
-    fitted.measured_deviation = measured;
-    Ok(fitted)
+    if options.scrap_side_only && (sides.part_side.is_nan() || sides.part_side > PART_SIDE_SLACK) {
+        return Err(FitError::PartSideCrossed {
+            feature: cut.name.clone(),
+            measured: sides.part_side,
+        });
+    }
+    Ok(FittedCut {
+        name: cut.name.clone(),
+        kind: cut.kind,
+        side: cut.side,
+        plunge: cut.plunge,
+        start,
+        largest_kink_deg: moves::largest_kink_deg(start, &moves),
+        moves,
+        tolerance,
+        measured_deviation: measured,
+        part_side_deviation: sides.part_side,
+    })
 }
 
-/// Chords of the parallel curve `O_d(t) = P(t) − d N(t)` of `e` (inside for `d > 0`, outside for
-/// `d < 0`), counter-clockwise from anomaly `start`, vertices on the curve, chosen greedily: from
-/// each vertex the next is the farthest along the curve whose chord stays within `tolerance` of
-/// the arc it cuts off. The curve is convex when `d < b²/a` (its tangent turns with the
-/// ellipse's, `O′ = P′(1 − dκ)`), so each chord's deviation is the largest distance of the arc
-/// from the chord's line, found by golden-section search, and grows with the chord.
+/// The parallel curve `O_d(t)` (`d` = `inset`) from anomaly `start`, once round, as a start
+/// point and moves. The fit runs counter-clockwise and is reversed for a clockwise cut; the scrap
+/// is on the left of travel, so inside for counter-clockwise and outside for clockwise cuts.
+/// `None` when no arc spline was found.
+fn fit_ellipse_parallel(
+    e: &Ellipse,
+    inset: f64,
+    start: f64,
+    clockwise: bool,
+    options: &FitOptions,
+) -> Option<(Point, Vec<Move>)> {
+    let curve = EllipseCurve { ellipse: *e, inset };
+    let reach = e.min_radius_of_curvature() - inset;
+    let band = Band::new(
+        options.tolerance,
+        options.scrap_side_only,
+        !clockwise,
+        reach,
+    );
+    let end = start + TAU;
+    let (first, moves) = match options.moves {
+        MoveKind::Lines => {
+            let first = band::ConvexCurve::point(&curve, start, band.hi);
+            let points = lines::band_polygon(&curve, band, start, end, first, first);
+            (first, lines_through(&points))
+        }
+        MoveKind::Arcs => {
+            let s = band.mid();
+            let first = band::ConvexCurve::point(&curve, start, s);
+            let spans = arcs::arc_spline(&curve, s, start, end, band.half_width())?;
+            (first, arcs::spans_to_moves(&curve, s, &spans, first))
+        }
+    };
+    Some(if clockwise {
+        moves::reversed(first, &moves)
+    } else {
+        (first, moves)
+    })
+}
+
+/// A contour as moves: lines as lines; arcs exactly ([`MoveKind::Arcs`], split so that each
+/// sweeps less than 180°) or by a band polygon ([`MoveKind::Lines`]) whose ends are the arc's.
+fn fit_contour(c: &Contour, options: &FitOptions) -> (Point, Vec<Move>) {
+    let Some(first) = c.start_point() else {
+        return (Point::ORIGIN, Vec::new());
+    };
+    let mut moves = Vec::new();
+    let mut at = first;
+    let count = c.elements.len();
+    for (i, element) in c.elements.iter().enumerate() {
+        // The contour closes exactly on its first point.
+        let end = if i + 1 == count { first } else { element.end() };
+        match element {
+            Element::Line(_) => moves.push(Move::Line { to: end }),
+            Element::Arc(a) => match options.moves {
+                MoveKind::Arcs => moves.extend(exact_arc(a, end)),
+                MoveKind::Lines => moves.extend(lines_through(&arc_polygon(a, at, end, options))),
+            },
+        }
+        at = end;
+    }
+    (first, moves)
+}
+
+/// An arc as arc moves of equal sweep, each below 180°, the last ending at `end`.
+fn exact_arc(a: &ArcSegment, end: Point) -> Vec<Move> {
+    let pieces = (a.sweep.abs() / PI).floor() as usize + 1;
+    (1..=pieces)
+        .map(|k| Move::Arc {
+            to: if k == pieces {
+                end
+            } else {
+                a.point_at(k as f64 / pieces as f64)
+            },
+            center: a.center,
+            ccw: a.sweep > 0.0,
+        })
+        .collect()
+}
+
+/// The band polygon of a contour arc from `from` to `to` (its ends), built counter-clockwise
+/// and reversed for a clockwise arc. The scrap is on the left of travel: inside the circle for a
+/// counter-clockwise arc, outside for a clockwise one.
+fn arc_polygon(a: &ArcSegment, from: Point, to: Point, options: &FitOptions) -> Vec<Point> {
+    let curve = CircleCurve {
+        center: a.center,
+        radius: a.radius,
+    };
+    let ccw = a.sweep > 0.0;
+    let band = Band::new(options.tolerance, options.scrap_side_only, ccw, a.radius);
+    let forward = if ccw { *a } else { a.reversed() };
+    let (p, q) = if ccw { (from, to) } else { (to, from) };
+    let mut points = lines::band_polygon(
+        &curve,
+        band,
+        forward.start_angle,
+        forward.start_angle + forward.sweep,
+        p,
+        q,
+    );
+    if !ccw {
+        points.reverse();
+    }
+    points
+}
+
+/// Straight moves through `points` after the first.
+fn lines_through(points: &[Point]) -> Vec<Move> {
+    points.iter().skip(1).map(|&to| Move::Line { to }).collect()
+}
+
+/// The inscribed polygon of the parallel curve `O_d(t) = P(t) − d N(t)` of `e` (inside for
+/// `d > 0`, outside for `d < 0`), counter-clockwise from anomaly `start`, vertices on the curve,
+/// chosen greedily: from each vertex the next is the farthest along the curve whose chord stays
+/// within `tolerance` of the arc it cuts off. This is the usual "chord tolerance" construction
+/// (count ≈ ∫ √(κ/8ε) ds), kept for comparison with published counts; [`fit_cut`] uses band
+/// polygons, which need about 1/√2 as many moves for the same two-sided tolerance.
+///
+/// The curve is convex when `d < b²/a` (its tangent turns with the ellipse's, `O′ = P′(1 − dκ)`),
+/// so each chord's deviation is the largest distance of the arc from the chord's line, found by
+/// golden-section search, and grows with the chord.
 pub fn flatten_ellipse_offset(e: &Ellipse, d: f64, start: f64, tolerance: f64) -> Vec<Point> {
     let curve = |t: f64| e.inward_offset_point(t, d);
     let target = tolerance * TARGET_SHARE;
@@ -212,37 +436,4 @@ fn chord_deviation(curve: &impl Fn(f64) -> Point, t0: f64, t1: f64) -> f64 {
         }
     }
     fc.max(fd)
-}
-
-/// Lines as they are; each arc by equal chords with vertices on the arc, as many as needed for
-/// the sagitta `R (1 − cos(θ/2))` of each to stay within `tolerance`.
-pub fn flatten_contour(c: &Contour, tolerance: f64) -> Vec<Point> {
-    let mut points = Vec::new();
-    let Some(first) = c.start_point() else {
-        return points;
-    };
-    points.push(first);
-    let target = tolerance * TARGET_SHARE;
-    for e in &c.elements {
-        match e {
-            Element::Line(s) => points.push(s.end),
-            Element::Arc(a) => {
-                let max_step = if target >= a.radius {
-                    FRAC_PI_2
-                } else {
-                    (2.0 * (1.0 - target / a.radius).acos()).min(FRAC_PI_2)
-                };
-                let n = (a.sweep.abs() / max_step).ceil().max(1.0) as usize;
-                for k in 1..=n {
-                    points.push(a.point_at(k as f64 / n as f64));
-                }
-            }
-        }
-    }
-    // Close exactly: the last vertex is the first.
-    if let Some(last) = points.last_mut() {
-        *last = first;
-    }
-    points.dedup_by(|a, b| Segment::new(*a, *b).length() == 0.0);
-    points
 }

@@ -104,6 +104,29 @@ pub fn sample(start: Point, moves: &[Move], per_arc: usize) -> Vec<Point> {
     out
 }
 
+/// The same run travelled the other way: it starts where `moves` end and ends at `start`, each
+/// arc about the same centre in the opposite sense.
+pub fn reversed(start: Point, moves: &[Move]) -> (Point, Vec<Move>) {
+    let mut ends: Vec<Point> = std::iter::once(start)
+        .chain(moves.iter().map(Move::end))
+        .collect();
+    let first = ends.pop().unwrap_or(start);
+    let out = moves
+        .iter()
+        .rev()
+        .zip(ends.iter().rev())
+        .map(|(m, &to)| match *m {
+            Move::Line { .. } => Move::Line { to },
+            Move::Arc { center, ccw, .. } => Move::Arc {
+                to,
+                center,
+                ccw: !ccw,
+            },
+        })
+        .collect();
+    (first, out)
+}
+
 /// Total length of a run of moves from `start`.
 pub fn total_length(start: Point, moves: &[Move]) -> f64 {
     let mut from = start;
@@ -180,5 +203,37 @@ mod tests {
             },
         ];
         assert!(largest_kink_deg(start, &moves) < 1e-12);
+    }
+
+    #[test]
+    fn reversed_runs_back_through_the_same_points() {
+        // A line, then a counter-clockwise quarter arc about (1, 1): reversed, the arc runs
+        // clockwise from (2, 1) to (1, 0), then the line back to the origin.
+        let start = Point::ORIGIN;
+        let moves = [
+            Move::Line {
+                to: Point::new(1.0, 0.0),
+            },
+            Move::Arc {
+                to: Point::new(2.0, 1.0),
+                center: Point::new(1.0, 1.0),
+                ccw: true,
+            },
+        ];
+        let (back_start, back) = reversed(start, &moves);
+        assert_eq!(back_start, Point::new(2.0, 1.0));
+        assert_eq!(
+            back,
+            vec![
+                Move::Arc {
+                    to: Point::new(1.0, 0.0),
+                    center: Point::new(1.0, 1.0),
+                    ccw: false,
+                },
+                Move::Line { to: start },
+            ]
+        );
+        assert!((back[0].sweep(back_start) + std::f64::consts::FRAC_PI_2).abs() < 1e-15);
+        assert!((total_length(back_start, &back) - total_length(start, &moves)).abs() < 1e-15);
     }
 }

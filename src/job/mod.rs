@@ -6,6 +6,7 @@ pub mod features;
 pub mod listing;
 
 use crate::chain::{self, ChainError, ChainOptions, HoleShape};
+use crate::check;
 use crate::fit::{self, FitError};
 use crate::geom::{Ellipse, Point};
 use crate::jobfile::{CutKind, JobFile};
@@ -37,6 +38,11 @@ pub struct JobSettings {
     pub tolerance: f64,
     /// Cut depth (mm, positive); `None` uses the machine profile's default.
     pub depth: Option<f64>,
+    /// Straight moves only (G1), no arcs.
+    pub lines_only: bool,
+    /// Keep all deviation on the scrap side of the exact curve (for edges that must not lose
+    /// material).
+    pub scrap_side_only: bool,
     /// The job file, if any: which ellipse each feature gets. Without one, every bay gets the
     /// largest ellipse touching all its sides.
     pub job: Option<JobFile>,
@@ -90,6 +96,11 @@ pub enum JobError {
         count: usize,
         list: String,
     },
+    #[error(
+        "{file}: the written program could not be read back by the checker ({problem}); this is a \
+         bug, please report it with the drawing"
+    )]
+    ReadBack { file: String, problem: String },
     #[error(
         "{file}: feature \"{feature}\" asks for a pocket; clearing pockets is not supported yet. \
          Cut it as a hole (cut = \"hole\") for now"
@@ -267,11 +278,15 @@ pub fn run_job(
         error,
     })?;
     // Tolerance budget: the program's coordinates are rounded to the profile's decimals, which
-    // moves a point by at most half a step on each axis (√2/2 steps in all); the fit gets the
-    // rest. The deviation is then measured again on the rounded points, as they are written.
+    // moves a point by at most half a step on each axis (√2/2 steps in all). An arc's end points
+    // and centre are rounded and the centre moved onto the bisector of the rounded ends, which
+    // keeps the written arc within 2√2 steps of the exact one (the writer's property test,
+    // tests/post_arcs.rs). The fit gets the rest; the deviation is then measured again on the
+    // program as written, read back by the checker.
+    let lines_only = s.lines_only || profile.arc_form() == post::ArcForm::LinesOnly;
     let units = profile.units();
     let step = units.to_mm(10f64.powi(-(profile.xy_decimals() as i32)));
-    let rounding = 0.5 * step * std::f64::consts::SQRT_2;
+    let rounding = if lines_only { 0.5 } else { 2.0 } * step * std::f64::consts::SQRT_2;
     if !(s.tolerance.is_finite() && s.tolerance >= 2.0 * rounding) {
         return Err(JobError::ToleranceTooFine {
             file: file(),
@@ -280,7 +295,16 @@ pub fn run_job(
             decimals: profile.xy_decimals(),
         });
     }
-    let mut cuts = fit::fit_plan(&plan, s.tolerance - rounding).map_err(|error| JobError::Fit {
+    let fit_options = fit::FitOptions {
+        tolerance: s.tolerance - rounding,
+        moves: if lines_only {
+            fit::MoveKind::Lines
+        } else {
+            fit::MoveKind::Arcs
+        },
+        scrap_side_only: s.scrap_side_only,
+    };
+    let mut cuts = fit::fit_plan(&plan, &fit_options).map_err(|error| JobError::Fit {
         file: file(),
         error,
     })?;
@@ -316,9 +340,14 @@ pub fn run_job(
             });
         }
     }
-    let depth = s
-        .depth
-        .unwrap_or_else(|| profile.units().to_mm(profile.default_depth()));
+    // Laser, plasma and waterjet cut through: no depth.
+    let cuts_through = profile.kerf_width().is_some();
+    let depth = if cuts_through {
+        0.0
+    } else {
+        s.depth
+            .unwrap_or_else(|| profile.units().to_mm(profile.default_depth()))
+    };
     let program = post::write_program(
         &cuts,
         profile,
@@ -337,6 +366,32 @@ pub fn run_job(
         file: file(),
         error,
     })?;
+    // Read the program back with the independent checker and measure what it would cut.
+    let trace = check::trace(&program).map_err(|error| JobError::ReadBack {
+        file: file(),
+        problem: error.to_string(),
+    })?;
+    for (cut, planned) in cuts.iter_mut().zip(&plan.cuts) {
+        // The program's comments carry the name with parentheses made square.
+        let written_name = cut.name.replace('(', "[").replace(')', "]");
+        let read_back =
+            check::measured_deviation(&trace, &written_name, &planned.path, s.tolerance)
+                .ok_or_else(|| JobError::ReadBack {
+                    file: file(),
+                    problem: format!("the cut of \"{}\" was not found in the program", cut.name),
+                })?;
+        if read_back > s.tolerance {
+            return Err(JobError::Fit {
+                file: file(),
+                error: FitError::ToleranceExceeded {
+                    feature: cut.name.clone(),
+                    measured: read_back,
+                    tolerance: s.tolerance,
+                },
+            });
+        }
+        cut.measured_deviation = read_back;
+    }
     let mut ellipses: Vec<(String, Ellipse)> =
         to_cut.iter().map(|o| (o.name.clone(), o.ellipse)).collect();
     let ellipse_holes: Vec<(String, Ellipse)> = part
@@ -362,6 +417,7 @@ pub fn run_job(
         drawing: &s.file_name,
         drawing_units: solved.drawing.units.symbol(),
         machine: profile.name(),
+        machine_kind: profile.kind().as_str(),
         tool_diameter: s.tool_diameter,
         cut_depth: depth,
         tolerance: s.tolerance,
@@ -370,6 +426,8 @@ pub fn run_job(
         cuts: &cuts,
         warnings,
         notes: solved.drawing.notes.clone(),
+        program_bounds: trace.bounds,
+        largest_arc_radius_mismatch: trace.largest_arc_radius_mismatch,
     });
     Ok(JobOutput {
         program,

@@ -2,14 +2,16 @@
 //!
 //! The dialect is RS274/NGC as NISTIR 6556 describes it (T. R. Kramer, F. M. Proctor,
 //! E. R. Messina, *The NIST RS274NGC Interpreter – Version 3*, NIST, 2000): `%` delimiters
-//! (§3.1), `( )` comments only (§3.3.4), lines under 256 characters (§3.3), numbers with a fixed
-//! number of decimals and no exponent (§3.3.2.1), G20/G21 units (§3.5.7), G90 absolute distance,
-//! G17 plane, G94 feed per minute, M30 program end (§3.6.1).
+//! (§3.1), `( )` comments (§3.3.4; a `;` style is a profile option), lines under 256 characters
+//! (§3.3), numbers with a fixed number of decimals and no exponent (§3.3.2.1), G20/G21 units
+//! (§3.5.7), G90 absolute distance, G17 plane, G94 feed per minute, arcs in centre format with
+//! `I`, `J` incremental from the arc's start (§3.5.3.2, §3.5.17), G4 dwell (§3.5.4), M30 program
+//! end (§3.6.1).
 //!
-//! Everything the machine decides (units, decimals, line numbers, spindle words, feeds, heights,
-//! travel envelope) comes from a [`MachineProfile`] read from TOML. Every program opens with
-//! safety cautions for the profile's kind of machine and the statement that the machine maker's
-//! manual and local rules take precedence.
+//! Everything the machine decides (kind, units, arc form, decimals, line numbers, comment style,
+//! spindle or process words, feeds, heights, travel envelope) comes from a [`MachineProfile`] read
+//! from TOML. Every program opens with safety cautions for the profile's kind of machine and the
+//! statement that the machine maker's manual and local rules take precedence.
 //!
 //! # Units
 //!
@@ -17,15 +19,18 @@
 //! the profile's units. Lengths are converted to the profile's units only as the program is
 //! written.
 
+mod arcs;
 mod number;
 mod profile;
 mod program;
 mod safety;
 
+pub use arcs::{MAX_SPLITS, RADIUS_MARGIN};
 pub use number::format_number;
 pub use profile::{
-    MAX_DECIMALS, METRIC_MILL_TOML, MM_PER_INCH, MachineKind, MachineProfile, ProfileError,
-    TravelEnvelope, Units,
+    ArcForm, BUNDLED_PROFILES, CommentStyle, Cutter, DwellUnit, MAX_DECIMALS, METRIC_MILL_TOML,
+    MM_PER_INCH, MachineKind, MachineProfile, Process, ProfileError, Spindle, TravelEnvelope,
+    Units, radius_rule,
 };
 pub use program::{PostError, ProgramSettings, sanitize, write_program};
 pub use safety::{PRECEDENCE, SAFETY_HEADING, cautions};

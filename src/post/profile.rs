@@ -8,8 +8,27 @@
 //!
 //! # Keys
 //!
-//! See `machine-profiles/metric-mill.toml` for a complete, commented example. Unknown keys are
-//! refused so that a misspelt key does not silently fall back to a default.
+//! `machine-profiles/` holds a complete, commented example for each kind of machine
+//! (`metric-mill.toml`, `inch-router.toml`, `laser.toml`, `plasma.toml`, `waterjet.toml`). Unknown
+//! keys are refused so that a misspelt key does not silently fall back to a default, and so are
+//! keys of another kind of machine (a `pierce_height` in a mill profile, a `spindle_on` in a
+//! laser profile).
+//!
+//! | key | kinds | meaning |
+//! |---|---|---|
+//! | `name`, `kind`, `units` | all | a short name; `mill`, `router`, `laser`, `plasma`, `waterjet`; `mm` or `in` |
+//! | `arc_form` | all | `centre` (G2/G3 with I, J) or `lines` (G1 only) |
+//! | `xy_decimals`, `z_decimals`, `feed_decimals` | all | digits after the point (defaults 4, 3, 1 in mm; 5, 4, 2 in inch) |
+//! | `line_numbers` | all | `N10`, `N20`, … on every block (default false) |
+//! | `comment_style` | all | `parentheses` (default, NISTIR 6556 §3.3.4) or `semicolon` |
+//! | `dwell_unit` | all | `seconds` (default, NISTIR 6556 §3.5.4) or `milliseconds` for `G4 P` |
+//! | `start_block`, `end_block` | all | blocks after the modal line, and before `M30` |
+//! | `spindle_on`, `spindle_off`, `spindle_speed`, `max_spindle_speed`, `spindle_delay` | mill, router | spindle words, rpm, seconds |
+//! | `retract_height`, `default_depth` | mill, router | plunge start height; depth when the user gives none |
+//! | `beam_on`/`beam_off`, `torch_on`/`torch_off`, `jet_on`/`jet_off` | laser, plasma, waterjet | the words that switch the process |
+//! | `pierce_dwell`, `pierce_height`, `cut_height`, `kerf_width` | laser, plasma, waterjet | seconds; heights above the sheet; the kerf |
+//! | `cut_feed`, `plunge_feed`, `max_feed`, `rapid_feed`, `acceleration` | all | per minute; acceleration per second squared |
+//! | `safe_height`, `[travel]` | all | clearance height; the envelope `x_min` … `z_max` |
 
 use serde::Deserialize;
 use std::fmt;
@@ -119,66 +138,201 @@ impl TravelEnvelope {
     }
 }
 
-/// A machine profile as written in TOML, before its values are checked.
+/// How arcs of the path are written.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum ArcForm {
+    /// `G2`/`G3` with the centre as `I`, `J` offsets from the arc's start (NISTIR 6556 §3.5.3.2,
+    /// §3.5.17). The radius form (`R`, §3.5.3.1) is never written.
+    CentreOffsets,
+    /// Straight moves (`G1`) only; a path holding arcs is refused.
+    LinesOnly,
+}
+
+impl ArcForm {
+    /// The value as written in a profile.
+    pub fn as_str(self) -> &'static str {
+        match self {
+            ArcForm::CentreOffsets => "centre",
+            ArcForm::LinesOnly => "lines",
+        }
+    }
+}
+
+/// How comments are written.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub enum CommentStyle {
+    /// `(text)`, the RS274/NGC comment (NISTIR 6556 §3.3.4).
+    #[default]
+    Parentheses,
+    /// `; text`, to the end of the line (not in NISTIR 6556; some controllers read it).
+    Semicolon,
+}
+
+/// The unit of the `P` word of a `G4` dwell.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub enum DwellUnit {
+    /// Seconds, as NISTIR 6556 §3.5.4 defines it.
+    #[default]
+    Seconds,
+    /// Milliseconds, as some other dialects read it (STANDARDS-AND-PRACTICE.md §1.5, from memory).
+    Milliseconds,
+}
+
+/// What drives the cut on a mill or router: a spindle turning a cutter at a depth.
+///
+/// Heights and depths are in the profile's units; speeds in rpm; the delay in seconds.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Spindle {
+    /// The words that start the spindle (the speed word `S` is added after them).
+    pub on: String,
+    /// The words that stop the spindle.
+    pub off: String,
+    /// Spindle speed used when the user gives none, rpm.
+    pub speed: f64,
+    /// The highest spindle speed a program may ask for, rpm.
+    pub max_speed: f64,
+    /// Seconds to wait after starting the spindle (0: no dwell).
+    pub delay: f64,
+    /// Height just above the stock from which the tool plunges.
+    pub retract_height: f64,
+    /// Cut depth used when the user gives none (positive, below the work zero).
+    pub default_depth: f64,
+}
+
+/// What drives the cut on a laser, plasma or waterjet: a beam, arc or jet switched on above the
+/// sheet after a pierce, cutting through the whole thickness (there is no cut depth).
+///
+/// Heights and the kerf are in the profile's units; the dwell in seconds.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Process {
+    /// The words that switch the beam, torch or jet on.
+    pub on: String,
+    /// The words that switch it off.
+    pub off: String,
+    /// Seconds to wait at the pierce height after switching on (`G4`), before moving down to
+    /// the cut height.
+    pub pierce_dwell: f64,
+    /// Height above the work zero (the sheet's top) at which the process is switched on.
+    pub pierce_height: f64,
+    /// Height above the work zero at which the path is cut.
+    pub cut_height: f64,
+    /// Width of the cut the process makes.
+    pub kerf_width: f64,
+}
+
+/// How the profile's kind of machine cuts.
+#[derive(Debug, Clone, PartialEq)]
+pub enum Cutter {
+    /// Mills and routers.
+    Spindle(Spindle),
+    /// Lasers, plasma tables and waterjets.
+    Process(Process),
+}
+
+/// A machine profile as written in TOML, before its values are checked. Keys that belong to one
+/// kind of machine are optional here and checked against the kind afterwards.
 #[derive(Debug, Deserialize)]
 #[serde(deny_unknown_fields)]
 struct RawProfile {
     name: String,
     kind: MachineKind,
     units: Units,
+    arc_form: String,
     xy_decimals: Option<usize>,
     z_decimals: Option<usize>,
     feed_decimals: Option<usize>,
     #[serde(default)]
     line_numbers: bool,
     #[serde(default)]
+    comment_style: CommentStyle,
+    #[serde(default)]
+    dwell_unit: DwellUnit,
+    #[serde(default)]
     start_block: Vec<String>,
     #[serde(default)]
     end_block: Vec<String>,
-    spindle_on: String,
-    spindle_off: String,
-    spindle_speed: f64,
-    max_spindle_speed: f64,
-    #[serde(default)]
-    spindle_delay: f64,
+    // Mills and routers.
+    spindle_on: Option<String>,
+    spindle_off: Option<String>,
+    spindle_speed: Option<f64>,
+    max_spindle_speed: Option<f64>,
+    spindle_delay: Option<f64>,
+    retract_height: Option<f64>,
+    default_depth: Option<f64>,
+    // Lasers, plasma tables and waterjets.
+    beam_on: Option<String>,
+    beam_off: Option<String>,
+    torch_on: Option<String>,
+    torch_off: Option<String>,
+    jet_on: Option<String>,
+    jet_off: Option<String>,
+    pierce_dwell: Option<f64>,
+    pierce_height: Option<f64>,
+    cut_height: Option<f64>,
+    kerf_width: Option<f64>,
+    // Every kind.
     cut_feed: f64,
     plunge_feed: f64,
     max_feed: f64,
+    rapid_feed: f64,
+    acceleration: f64,
     safe_height: f64,
-    retract_height: f64,
-    default_depth: f64,
     travel: TravelEnvelope,
 }
 
 /// A checked machine profile. Build one with [`MachineProfile::from_toml`]; every value has been
-/// validated (positive feeds, ordered heights and limits, sensible decimals, clean blocks).
+/// validated (positive feeds, ordered heights and limits, sensible decimals, clean blocks, the
+/// keys of its kind of machine and no others).
 #[derive(Debug, Clone, PartialEq)]
 pub struct MachineProfile {
     name: String,
     kind: MachineKind,
     units: Units,
+    arc_form: ArcForm,
     xy_decimals: usize,
     z_decimals: usize,
     feed_decimals: usize,
     line_numbers: bool,
+    comment_style: CommentStyle,
+    dwell_unit: DwellUnit,
     start_block: Vec<String>,
     end_block: Vec<String>,
-    spindle_on: String,
-    spindle_off: String,
-    spindle_speed: f64,
-    max_spindle_speed: f64,
-    spindle_delay: f64,
+    cutter: Cutter,
     cut_feed: f64,
     plunge_feed: f64,
     max_feed: f64,
+    rapid_feed: f64,
+    acceleration: f64,
     safe_height: f64,
-    retract_height: f64,
-    default_depth: f64,
     travel: TravelEnvelope,
 }
 
 /// The generic metric mill profile shipped in `machine-profiles/metric-mill.toml`.
 pub const METRIC_MILL_TOML: &str = include_str!("../../machine-profiles/metric-mill.toml");
+
+/// The profiles shipped in `machine-profiles/`: file name (relative to the crate) and text. All
+/// their values are invented examples (each file says so).
+pub const BUNDLED_PROFILES: [(&str, &str); 5] = [
+    ("machine-profiles/metric-mill.toml", METRIC_MILL_TOML),
+    (
+        "machine-profiles/inch-router.toml",
+        include_str!("../../machine-profiles/inch-router.toml"),
+    ),
+    (
+        "machine-profiles/laser.toml",
+        include_str!("../../machine-profiles/laser.toml"),
+    ),
+    (
+        "machine-profiles/plasma.toml",
+        include_str!("../../machine-profiles/plasma.toml"),
+    ),
+    (
+        "machine-profiles/waterjet.toml",
+        include_str!("../../machine-profiles/waterjet.toml"),
+    ),
+];
 
 /// The most decimals a profile may ask for.
 pub const MAX_DECIMALS: usize = 6;
@@ -187,6 +341,145 @@ pub const MAX_DECIMALS: usize = 6;
 /// NISTIR 6556 §3.3; the rest is left for a line number).
 const MAX_BLOCK_LINE: usize = 200;
 
+/// Keys only mills and routers take.
+const SPINDLE_KEYS: [&str; 7] = [
+    "spindle_on",
+    "spindle_off",
+    "spindle_speed",
+    "max_spindle_speed",
+    "spindle_delay",
+    "retract_height",
+    "default_depth",
+];
+
+/// Keys only lasers, plasma tables and waterjets take (the on/off pair depends on the kind).
+const PROCESS_KEYS: [&str; 10] = [
+    "beam_on",
+    "beam_off",
+    "torch_on",
+    "torch_off",
+    "jet_on",
+    "jet_off",
+    "pierce_dwell",
+    "pierce_height",
+    "cut_height",
+    "kerf_width",
+];
+
+/// The keys that switch the process on and off for a kind of machine that pierces.
+fn on_off_keys(kind: MachineKind) -> Option<(&'static str, &'static str)> {
+    match kind {
+        MachineKind::Laser => Some(("beam_on", "beam_off")),
+        MachineKind::Plasma => Some(("torch_on", "torch_off")),
+        MachineKind::Waterjet => Some(("jet_on", "jet_off")),
+        MachineKind::Mill | MachineKind::Router => None,
+    }
+}
+
+impl RawProfile {
+    /// Whether the optional, kind-specific `key` is set.
+    fn has(&self, key: &str) -> bool {
+        match key {
+            "spindle_on" => self.spindle_on.is_some(),
+            "spindle_off" => self.spindle_off.is_some(),
+            "spindle_speed" => self.spindle_speed.is_some(),
+            "max_spindle_speed" => self.max_spindle_speed.is_some(),
+            "spindle_delay" => self.spindle_delay.is_some(),
+            "retract_height" => self.retract_height.is_some(),
+            "default_depth" => self.default_depth.is_some(),
+            "beam_on" => self.beam_on.is_some(),
+            "beam_off" => self.beam_off.is_some(),
+            "torch_on" => self.torch_on.is_some(),
+            "torch_off" => self.torch_off.is_some(),
+            "jet_on" => self.jet_on.is_some(),
+            "jet_off" => self.jet_off.is_some(),
+            "pierce_dwell" => self.pierce_dwell.is_some(),
+            "pierce_height" => self.pierce_height.is_some(),
+            "cut_height" => self.cut_height.is_some(),
+            "kerf_width" => self.kerf_width.is_some(),
+            _ => false,
+        }
+    }
+
+    fn on_off(&self, kind: MachineKind) -> (Option<&String>, Option<&String>) {
+        match kind {
+            MachineKind::Laser => (self.beam_on.as_ref(), self.beam_off.as_ref()),
+            MachineKind::Plasma => (self.torch_on.as_ref(), self.torch_off.as_ref()),
+            MachineKind::Waterjet => (self.jet_on.as_ref(), self.jet_off.as_ref()),
+            MachineKind::Mill | MachineKind::Router => {
+                (self.spindle_on.as_ref(), self.spindle_off.as_ref())
+            }
+        }
+    }
+}
+
+/// Makes [`ProfileError`]s for one profile text.
+struct Checker<'a> {
+    text: &'a str,
+    file: &'a str,
+}
+
+impl Checker<'_> {
+    fn fail(&self, key: &str, problem: String, hint: &str) -> ProfileError {
+        ProfileError {
+            file: self.file.to_string(),
+            line: find_key_line(self.text, key),
+            key: Some(key.to_string()),
+            problem,
+            hint: hint.to_string(),
+        }
+    }
+
+    /// A kind-specific key that must be present.
+    fn need<T>(&self, value: Option<T>, key: &str, kind: MachineKind) -> Result<T, ProfileError> {
+        value.ok_or_else(|| ProfileError {
+            file: self.file.to_string(),
+            line: None,
+            key: Some(key.to_string()),
+            problem: format!("missing key `{key}`, which a {kind} profile needs"),
+            hint: "add it; machine-profiles/ holds a commented example for each kind of machine"
+                .into(),
+        })
+    }
+
+    fn positive(&self, key: &str, value: f64) -> Result<f64, ProfileError> {
+        if value.is_finite() && value > 0.0 {
+            Ok(value)
+        } else {
+            Err(self.fail(
+                key,
+                format!("{value} is not a positive number"),
+                "give a value greater than zero",
+            ))
+        }
+    }
+
+    fn not_negative(&self, key: &str, value: f64, hint: &str) -> Result<f64, ProfileError> {
+        if value.is_finite() && value >= 0.0 {
+            Ok(value)
+        } else {
+            Err(self.fail(
+                key,
+                format!("{value} is not zero or a positive number"),
+                hint,
+            ))
+        }
+    }
+
+    /// An on or off block: not empty, plain RS274 words.
+    fn words(&self, key: &str, line: &str) -> Result<String, ProfileError> {
+        if line.trim().is_empty() {
+            return Err(self.fail(
+                key,
+                "the block is empty".into(),
+                "give the words, e.g. M3 to switch on or M5 to switch off",
+            ));
+        }
+        check_block_line(line).map_err(|p| self.fail(key, p, "write plain RS274 words"))?;
+        Ok(line.trim().to_string())
+    }
+}
+
 impl MachineProfile {
     /// Reads and checks a profile. `file_name` is used only in messages.
     ///
@@ -194,21 +487,38 @@ impl MachineProfile {
     pub fn from_toml(text: &str, file_name: &str) -> Result<Self, ProfileError> {
         let raw: RawProfile =
             toml::from_str(text).map_err(|e| from_toml_error(&e, text, file_name))?;
-        let fail = |key: &str, problem: String, hint: &str| ProfileError {
-            file: file_name.to_string(),
-            line: find_key_line(text, key),
-            key: Some(key.to_string()),
-            problem,
-            hint: hint.to_string(),
+        let c = Checker {
+            text,
+            file: file_name,
         };
 
         if raw.name.trim().is_empty() {
-            return Err(fail(
+            return Err(c.fail(
                 "name",
                 "the name is empty".into(),
                 "give the profile a short name such as \"metric mill\"",
             ));
         }
+        let arc_form = match raw.arc_form.trim() {
+            "centre" | "center" => ArcForm::CentreOffsets,
+            "lines" => ArcForm::LinesOnly,
+            "radius" => {
+                return Err(c.fail(
+                    "arc_form",
+                    "the radius form (R) is not written: NISTIR 6556 §3.5.3.1 warns that it \
+                     magnifies rounding near half and full turns"
+                        .into(),
+                    "use \"centre\" (G2/G3 with I and J) or \"lines\" (G1 only)",
+                ));
+            }
+            other => {
+                return Err(c.fail(
+                    "arc_form",
+                    format!("\"{other}\" is not an arc form"),
+                    "use \"centre\" (G2/G3 with I and J) or \"lines\" (G1 only)",
+                ));
+            }
+        };
         let (xy_default, z_default, feed_default) = match raw.units {
             Units::Millimetres => (4, 3, 1),
             Units::Inches => (5, 4, 2),
@@ -222,72 +532,63 @@ impl MachineProfile {
             ("feed_decimals", feed_decimals),
         ] {
             if value > MAX_DECIMALS {
-                return Err(fail(
+                return Err(c.fail(
                     key,
                     format!("{value} decimals is more than the {MAX_DECIMALS} allowed"),
                     "use 0 to 6 (4 for mm and 5 for inch suit most controllers)",
                 ));
             }
         }
+        // STANDARDS-AND-PRACTICE.md §1.6: with fewer decimals the two radii of an arc cannot be
+        // kept within 0.002 mm (0.0002 in) of each other.
+        let min_arc_decimals = match raw.units {
+            Units::Millimetres => 3,
+            Units::Inches => 4,
+        };
+        if arc_form == ArcForm::CentreOffsets && xy_decimals < min_arc_decimals {
+            return Err(c.fail(
+                "xy_decimals",
+                format!(
+                    "{xy_decimals} decimals in {} cannot keep an arc's start and end radii within \
+                     the {} {} that NISTIR 6556 §3.5.3.2 allows",
+                    raw.units,
+                    format_limit(raw.units),
+                    raw.units
+                ),
+                &format!("use at least {min_arc_decimals} decimals, or arc_form = \"lines\""),
+            ));
+        }
 
-        let positive = [
-            ("spindle_speed", raw.spindle_speed),
-            ("max_spindle_speed", raw.max_spindle_speed),
+        for (key, value) in [
             ("cut_feed", raw.cut_feed),
             ("plunge_feed", raw.plunge_feed),
             ("max_feed", raw.max_feed),
+            ("rapid_feed", raw.rapid_feed),
+            ("acceleration", raw.acceleration),
             ("safe_height", raw.safe_height),
-            ("retract_height", raw.retract_height),
-            ("default_depth", raw.default_depth),
-        ];
-        for (key, value) in positive {
-            if !(value.is_finite() && value > 0.0) {
-                return Err(fail(
-                    key,
-                    format!("{value} is not a positive number"),
-                    "give a value greater than zero",
-                ));
-            }
-        }
-        if !(raw.spindle_delay.is_finite() && raw.spindle_delay >= 0.0) {
-            return Err(fail(
-                "spindle_delay",
-                format!(
-                    "{} is not zero or a positive number of seconds",
-                    raw.spindle_delay
-                ),
-                "give the seconds to wait for the spindle to reach speed, or 0",
-            ));
-        }
-        if raw.spindle_speed > raw.max_spindle_speed {
-            return Err(fail(
-                "spindle_speed",
-                format!(
-                    "the default spindle speed {} rpm is above max_spindle_speed {} rpm",
-                    raw.spindle_speed, raw.max_spindle_speed
-                ),
-                "lower spindle_speed or correct max_spindle_speed",
-            ));
+        ] {
+            c.positive(key, value)?;
         }
         for (key, value) in [("cut_feed", raw.cut_feed), ("plunge_feed", raw.plunge_feed)] {
             if value > raw.max_feed {
-                return Err(fail(
+                return Err(c.fail(
                     key,
                     format!("{value} is above max_feed {}", raw.max_feed),
                     "lower the feed or correct max_feed",
                 ));
             }
         }
-        if raw.retract_height > raw.safe_height {
-            return Err(fail(
-                "retract_height",
+        if raw.max_feed > raw.rapid_feed {
+            return Err(c.fail(
+                "max_feed",
                 format!(
-                    "retract_height {} is above safe_height {}",
-                    raw.retract_height, raw.safe_height
+                    "max_feed {} is above the rapid rate rapid_feed {}",
+                    raw.max_feed, raw.rapid_feed
                 ),
-                "retract_height is just above the stock; safe_height clears the clamps and must be the larger",
+                "the rapid rate is the machine's fastest; correct one of the two",
             ));
         }
+
         let t = raw.travel;
         for (axis, lo, hi) in [
             ("x", t.x_min, t.x_max),
@@ -296,14 +597,14 @@ impl MachineProfile {
         ] {
             let key = format!("travel.{axis}_min");
             if !(lo.is_finite() && hi.is_finite()) {
-                return Err(fail(
+                return Err(c.fail(
                     &key,
                     "a travel limit is not a finite number".into(),
                     "give finite numbers",
                 ));
             }
             if lo >= hi {
-                return Err(fail(
+                return Err(c.fail(
                     &key,
                     format!("{axis}_min {lo} is not below {axis}_max {hi}"),
                     "the travel minimum must be smaller than the maximum",
@@ -311,7 +612,7 @@ impl MachineProfile {
             }
         }
         if raw.safe_height > t.z_max {
-            return Err(fail(
+            return Err(c.fail(
                 "safe_height",
                 format!(
                     "safe_height {} is above the travel limit z_max {}",
@@ -321,26 +622,15 @@ impl MachineProfile {
             ));
         }
 
-        for (key, line) in [
-            ("spindle_on", &raw.spindle_on),
-            ("spindle_off", &raw.spindle_off),
-        ] {
-            if line.trim().is_empty() {
-                return Err(fail(
-                    key,
-                    "the block is empty".into(),
-                    "give the word, e.g. M3 to start or M5 to stop",
-                ));
-            }
-            check_block_line(line).map_err(|p| fail(key, p, "write plain RS274 words"))?;
-        }
+        let cutter = check_cutter(&raw, &c)?;
+
         for (key, lines) in [
             ("start_block", &raw.start_block),
             ("end_block", &raw.end_block),
         ] {
             for line in lines {
                 check_block_line(line).map_err(|p| {
-                    fail(
+                    c.fail(
                         key,
                         format!("line \"{line}\": {p}"),
                         "write plain RS274 words, one block per string",
@@ -353,27 +643,26 @@ impl MachineProfile {
             name: raw.name.trim().to_string(),
             kind: raw.kind,
             units: raw.units,
+            arc_form,
             xy_decimals,
             z_decimals,
             feed_decimals,
             line_numbers: raw.line_numbers,
+            comment_style: raw.comment_style,
+            dwell_unit: raw.dwell_unit,
             start_block: raw
                 .start_block
                 .iter()
                 .map(|s| s.trim().to_string())
                 .collect(),
             end_block: raw.end_block.iter().map(|s| s.trim().to_string()).collect(),
-            spindle_on: raw.spindle_on.trim().to_string(),
-            spindle_off: raw.spindle_off.trim().to_string(),
-            spindle_speed: raw.spindle_speed,
-            max_spindle_speed: raw.max_spindle_speed,
-            spindle_delay: raw.spindle_delay,
+            cutter,
             cut_feed: raw.cut_feed,
             plunge_feed: raw.plunge_feed,
             max_feed: raw.max_feed,
+            rapid_feed: raw.rapid_feed,
+            acceleration: raw.acceleration,
             safe_height: raw.safe_height,
-            retract_height: raw.retract_height,
-            default_depth: raw.default_depth,
             travel: raw.travel,
         })
     }
@@ -392,6 +681,10 @@ impl MachineProfile {
     pub fn units(&self) -> Units {
         self.units
     }
+    /// How arcs are written: centre offsets (`G2`/`G3` with `I`, `J`) or lines only.
+    pub fn arc_form(&self) -> ArcForm {
+        self.arc_form
+    }
     /// Decimals for X, Y (and arc offsets).
     pub fn xy_decimals(&self) -> usize {
         self.xy_decimals
@@ -408,39 +701,58 @@ impl MachineProfile {
     pub fn line_numbers(&self) -> bool {
         self.line_numbers
     }
-    /// Blocks written after the modal setup line, before the spindle starts.
+    /// How comments are written.
+    pub fn comment_style(&self) -> CommentStyle {
+        self.comment_style
+    }
+    /// The unit of the dwell word `G4 P`.
+    pub fn dwell_unit(&self) -> DwellUnit {
+        self.dwell_unit
+    }
+    /// Blocks written after the modal setup line, before the spindle or process starts.
     pub fn start_block(&self) -> &[String] {
         &self.start_block
     }
-    /// Blocks written after the spindle stops, before the program end.
+    /// Blocks written after the spindle or process stops, before the program end.
     pub fn end_block(&self) -> &[String] {
         &self.end_block
     }
-    /// The words that start the spindle (the speed `S` is added after them).
-    pub fn spindle_on(&self) -> &str {
-        &self.spindle_on
+    /// How the machine cuts: a spindle (mills, routers) or a process that pierces (lasers,
+    /// plasma tables, waterjets).
+    pub fn cutter(&self) -> &Cutter {
+        &self.cutter
     }
-    /// The words that stop the spindle.
-    pub fn spindle_off(&self) -> &str {
-        &self.spindle_off
+    /// The spindle of a mill or router; `None` for the other kinds.
+    pub fn spindle(&self) -> Option<&Spindle> {
+        match &self.cutter {
+            Cutter::Spindle(s) => Some(s),
+            Cutter::Process(_) => None,
+        }
     }
-    /// Default spindle speed, rpm.
-    pub fn spindle_speed(&self) -> f64 {
-        self.spindle_speed
+    /// The process of a laser, plasma table or waterjet; `None` for mills and routers.
+    pub fn process(&self) -> Option<&Process> {
+        match &self.cutter {
+            Cutter::Process(p) => Some(p),
+            Cutter::Spindle(_) => None,
+        }
     }
-    /// The highest spindle speed a program may ask for, rpm.
-    pub fn max_spindle_speed(&self) -> f64 {
-        self.max_spindle_speed
+    /// The kerf width in **millimetres** (converted from the profile's units), for the kinds that
+    /// have one (laser, plasma, waterjet); `None` for mills and routers, whose tool diameter the
+    /// user gives.
+    pub fn kerf_width(&self) -> Option<f64> {
+        self.process().map(|p| self.units.to_mm(p.kerf_width))
     }
-    /// Seconds to wait after starting the spindle (0: no dwell).
-    pub fn spindle_delay(&self) -> f64 {
-        self.spindle_delay
+    /// Cut depth to use when the user gives none, in the profile's units (positive), for mills
+    /// and routers. Lasers, plasma tables and waterjets cut through and have no depth: 0.
+    pub fn default_depth(&self) -> f64 {
+        self.spindle().map_or(0.0, |s| s.default_depth)
     }
     /// Default cutting feed, profile units per minute.
     pub fn cut_feed(&self) -> f64 {
         self.cut_feed
     }
-    /// Default plunge feed, profile units per minute.
+    /// Default feed for moves down into the work: the plunge of a mill or router, the move from
+    /// pierce height to cut height of the other kinds; profile units per minute.
     pub fn plunge_feed(&self) -> f64 {
         self.plunge_feed
     }
@@ -448,21 +760,179 @@ impl MachineProfile {
     pub fn max_feed(&self) -> f64 {
         self.max_feed
     }
-    /// Height that clears clamps and fixtures, profile units above the work zero.
+    /// The rapid (G0) rate, profile units per minute (for time estimates; the machine sets its
+    /// own rapid rate).
+    pub fn rapid_feed(&self) -> f64 {
+        self.rapid_feed
+    }
+    /// The axes' acceleration, profile units per second squared (for time estimates).
+    pub fn acceleration(&self) -> f64 {
+        self.acceleration
+    }
+    /// Height that clears clamps, fixtures and tipped parts, profile units above the work zero.
     pub fn safe_height(&self) -> f64 {
         self.safe_height
-    }
-    /// Height just above the stock from which the tool plunges, profile units.
-    pub fn retract_height(&self) -> f64 {
-        self.retract_height
-    }
-    /// Cut depth to use when the user gives none, profile units (positive).
-    pub fn default_depth(&self) -> f64 {
-        self.default_depth
     }
     /// The travel envelope, profile units relative to the work zero.
     pub fn travel(&self) -> &TravelEnvelope {
         &self.travel
+    }
+}
+
+/// The largest difference between an arc's start and end radius, in `units`: 0.002 mm (G21) or
+/// 0.0002 in (G20) (NISTIR 6556 §3.5.3.2).
+pub fn radius_rule(units: Units) -> f64 {
+    match units {
+        Units::Millimetres => 0.002,
+        Units::Inches => 0.0002,
+    }
+}
+
+fn format_limit(units: Units) -> &'static str {
+    match units {
+        Units::Millimetres => "0.002",
+        Units::Inches => "0.0002",
+    }
+}
+
+/// Checks the keys of the profile's kind of machine, refuses those of the other kinds, and
+/// builds its [`Cutter`].
+fn check_cutter(raw: &RawProfile, c: &Checker) -> Result<Cutter, ProfileError> {
+    let kind = raw.kind;
+    let own_on_off = on_off_keys(kind);
+    let foreign: Vec<&str> = match own_on_off {
+        None => PROCESS_KEYS.to_vec(),
+        Some((on, off)) => SPINDLE_KEYS
+            .iter()
+            .chain(PROCESS_KEYS.iter().take(6))
+            .copied()
+            .filter(|k| *k != on && *k != off)
+            .collect(),
+    };
+    if let Some(key) = foreign.into_iter().find(|k| raw.has(k)) {
+        let belongs = if SPINDLE_KEYS.contains(&key) {
+            "mill and router profiles".to_string()
+        } else {
+            let owner = [
+                MachineKind::Laser,
+                MachineKind::Plasma,
+                MachineKind::Waterjet,
+            ]
+            .into_iter()
+            .find(|k| on_off_keys(*k).is_some_and(|(on, off)| on == key || off == key));
+            match owner {
+                Some(k) => format!("{k} profiles"),
+                None => "laser, plasma and waterjet profiles".to_string(),
+            }
+        };
+        let hint = match own_on_off {
+            Some((on, off)) => format!("remove it; a {kind} profile uses {on} and {off}"),
+            None => "remove it".to_string(),
+        };
+        return Err(c.fail(
+            key,
+            format!("`{key}` is a key for {belongs}, and this is a {kind} profile"),
+            &hint,
+        ));
+    }
+
+    let (on_key, off_key) = own_on_off.unwrap_or(("spindle_on", "spindle_off"));
+    let (on, off) = raw.on_off(kind);
+    let on = c.words(on_key, c.need(on, on_key, kind)?)?;
+    let off = c.words(off_key, c.need(off, off_key, kind)?)?;
+
+    match own_on_off {
+        None => {
+            let speed = c.positive(
+                "spindle_speed",
+                c.need(raw.spindle_speed, "spindle_speed", kind)?,
+            )?;
+            let max_speed = c.positive(
+                "max_spindle_speed",
+                c.need(raw.max_spindle_speed, "max_spindle_speed", kind)?,
+            )?;
+            let delay = c.not_negative(
+                "spindle_delay",
+                raw.spindle_delay.unwrap_or(0.0),
+                "give the seconds to wait for the spindle to reach speed, or 0",
+            )?;
+            let retract_height = c.positive(
+                "retract_height",
+                c.need(raw.retract_height, "retract_height", kind)?,
+            )?;
+            let default_depth = c.positive(
+                "default_depth",
+                c.need(raw.default_depth, "default_depth", kind)?,
+            )?;
+            if speed > max_speed {
+                return Err(c.fail(
+                    "spindle_speed",
+                    format!(
+                        "the default spindle speed {speed} rpm is above max_spindle_speed {max_speed} rpm"
+                    ),
+                    "lower spindle_speed or correct max_spindle_speed",
+                ));
+            }
+            if retract_height > raw.safe_height {
+                return Err(c.fail(
+                    "retract_height",
+                    format!(
+                        "retract_height {retract_height} is above safe_height {}",
+                        raw.safe_height
+                    ),
+                    "retract_height is just above the stock; safe_height clears the clamps and must be the larger",
+                ));
+            }
+            Ok(Cutter::Spindle(Spindle {
+                on,
+                off,
+                speed,
+                max_speed,
+                delay,
+                retract_height,
+                default_depth,
+            }))
+        }
+        Some(_) => {
+            let pierce_dwell = c.not_negative(
+                "pierce_dwell",
+                c.need(raw.pierce_dwell, "pierce_dwell", kind)?,
+                "give the seconds to wait after switching on, from the process chart, or 0",
+            )?;
+            let pierce_height = c.positive(
+                "pierce_height",
+                c.need(raw.pierce_height, "pierce_height", kind)?,
+            )?;
+            let cut_height =
+                c.positive("cut_height", c.need(raw.cut_height, "cut_height", kind)?)?;
+            let kerf_width =
+                c.positive("kerf_width", c.need(raw.kerf_width, "kerf_width", kind)?)?;
+            if cut_height > pierce_height {
+                return Err(c.fail(
+                    "cut_height",
+                    format!("cut_height {cut_height} is above pierce_height {pierce_height}"),
+                    "the process pierces from higher up and then moves down to cut; make pierce_height the larger",
+                ));
+            }
+            if pierce_height > raw.safe_height {
+                return Err(c.fail(
+                    "pierce_height",
+                    format!(
+                        "pierce_height {pierce_height} is above safe_height {}",
+                        raw.safe_height
+                    ),
+                    "safe_height clears tipped parts and clamps and must be the larger",
+                ));
+            }
+            Ok(Cutter::Process(Process {
+                on,
+                off,
+                pierce_dwell,
+                pierce_height,
+                cut_height,
+                kerf_width,
+            }))
+        }
     }
 }
 
@@ -569,14 +1039,15 @@ fn from_toml_error(e: &toml::de::Error, text: &str, file_name: &str) -> ProfileE
                 }
             }),
             problem: message,
-            hint: "add the key; machine-profiles/metric-mill.toml shows every key with a comment"
-                .into(),
+            hint:
+                "add the key; machine-profiles/ holds a commented example for each kind of machine"
+                    .into(),
         };
     }
     let (key, hint) = if message.starts_with("unknown field") {
         (
             quoted,
-            "check the spelling; machine-profiles/metric-mill.toml lists every key",
+            "check the spelling; the example for your kind of machine in machine-profiles/ lists every key",
         )
     } else if message.starts_with("unknown variant") {
         (
@@ -668,7 +1139,9 @@ mod tests {
         assert_eq!(p.units(), Units::Millimetres);
         // STANDARDS-AND-PRACTICE.md §1.6: 4 decimals for X Y and 3 for Z in mm.
         assert_eq!((p.xy_decimals(), p.z_decimals()), (4, 3));
-        assert!(p.retract_height() < p.safe_height());
+        let s = p.spindle().expect("a mill has a spindle");
+        assert!(s.retract_height < p.safe_height());
+        assert_eq!(p.kerf_width(), None);
     }
 
     #[test]

@@ -1,7 +1,11 @@
 //! Writes the fitted cuts as one RS274/NGC program for one machine profile.
 
+use super::arcs::{Piece, arc_extremes, arc_pieces};
 use super::number::format_number;
-use super::profile::{MachineKind, MachineProfile, Units};
+use super::profile::{
+    ArcForm, CommentStyle, Cutter, DwellUnit, MachineKind, MachineProfile, Process, Spindle, Units,
+    radius_rule,
+};
 use super::safety::{PRECEDENCE, SAFETY_HEADING, cautions};
 use crate::fit::{FittedCut, Move};
 use crate::geom::Point;
@@ -15,31 +19,48 @@ pub struct ProgramSettings {
     pub title: String,
     /// The drawing the cuts came from, for the header (a file name, not a path of this machine).
     pub source: String,
-    /// Tool diameter (mm), for the header; the paths already allow for it.
+    /// The width the paths allow for (mm, positive), for the header: the tool diameter on a mill
+    /// or router, the kerf width on a laser, plasma table or waterjet (usually the profile's
+    /// [`MachineProfile::kerf_width`]).
     pub tool_diameter: f64,
-    /// Cut depth (mm, positive): the floor of the cut is at Z = −depth.
+    /// Cut depth (mm, positive) on a mill or router: the floor of the cut is at Z = −depth.
+    /// Unused by lasers, plasma tables and waterjets, which cut through (any value is accepted).
     pub depth: f64,
     /// The tolerance the paths were fitted to (mm), for the header.
     pub tolerance: f64,
     /// Cutting feed (mm/min); `None` uses the profile's.
     pub cut_feed: Option<f64>,
-    /// Plunge feed (mm/min); `None` uses the profile's.
+    /// Feed down into the work (mm/min): the plunge on a mill or router, the move from pierce
+    /// height to cut height on the other kinds; `None` uses the profile's.
     pub plunge_feed: Option<f64>,
-    /// Spindle speed (rpm); `None` uses the profile's.
+    /// Spindle speed (rpm) on a mill or router; `None` uses the profile's. Unused by the other
+    /// kinds.
     pub spindle_speed: Option<f64>,
 }
 
 /// Why a program was not written.
 #[derive(Debug, Clone, PartialEq, thiserror::Error)]
 pub enum PostError {
-    #[error(
-        "machine profile \"{profile}\" is a {kind} profile; programs for a {kind} are not yet supported. Use a mill profile such as machine-profiles/metric-mill.toml"
-    )]
-    KindNotSupported { profile: String, kind: MachineKind },
     #[error("there are no cuts to write; check that the drawing holds bays, holes or an outline")]
     NoCuts,
-    #[error("feature \"{feature}\": arc moves cannot be written yet; fit it with lines")]
-    ArcsNotWritten { feature: String },
+    #[error(
+        "feature \"{feature}\": its path holds arcs, but machine profile \"{profile}\" writes straight moves only (arc_form = \"lines\"). Fit the path with lines for this profile, or set arc_form = \"centre\" if the machine reads G2/G3 with I and J"
+    )]
+    ArcsNotAllowed { feature: String, profile: String },
+    #[error(
+        "feature \"{feature}\": an arc ending at {at} cannot be written with {decimals} decimals so that its start and end radii agree within {limit} {units} (NISTIR 6556 §3.5.3.2), even halved {splits} times (best difference {mismatch} {units}). Give the profile more xy_decimals, or fit the path with lines",
+        limit = radius_rule(*.units),
+        splits = super::arcs::MAX_SPLITS
+    )]
+    ArcRadiusMismatch {
+        feature: String,
+        /// The arc's end as written, e.g. `X12.345 Y6.780`.
+        at: String,
+        decimals: usize,
+        /// The smallest radius difference found, in the program's units.
+        mismatch: String,
+        units: Units,
+    },
     #[error("{setting} is {value}, which {problem}; {hint}")]
     BadSetting {
         setting: &'static str,
@@ -97,40 +118,63 @@ const COMMENT_WIDTH: usize = 100;
 /// The largest line number (NISTIR 6556 §3.3.1: at most five digits).
 const MAX_LINE_NUMBER: u32 = 99_999;
 
+/// Feeds, heights and speeds of one program, resolved from the settings and the profile, in the
+/// profile's units.
+struct Resolved {
+    cut_feed: f64,
+    plunge_feed: f64,
+    /// Spindle speed (rpm); mills and routers only.
+    spindle_speed: f64,
+    /// The floor of a mill or router cut (negative); unused by the other kinds.
+    floor: f64,
+}
+
+/// What was written for one cut, for the header.
+#[derive(Debug, Clone, Copy, Default)]
+struct Written {
+    lines: usize,
+    arcs: usize,
+}
+
 /// Writes `cuts` as one program for `profile`.
 ///
-/// Shape (NISTIR 6556, RS274/NGC): a `%` line; a header of `( )` comments (title, source,
-/// generator and version, units, tool, depth, tolerance, feeds, one line per feature, the
+/// Shape (NISTIR 6556, RS274/NGC): a `%` line; a header of comments (title, source, generator
+/// and version, units, tool or kerf, depth, tolerance, feeds, heights, one line per feature, the
 /// safety block for the profile's kind of machine ending with the precedence statement); a modal
-/// line `G21|G20 G90 G17 G94 G40`; the profile's start block; a rapid to the safe height; the
-/// spindle on with `S` (and a `G4 P` dwell if the profile asks); then per cut a rapid to the safe
-/// height (when not already there), a rapid over the plunge point, a rapid down to the retract
-/// height, a straight plunge at the plunge feed to Z = −depth, feed moves to `path[0]` and along
-/// the path at the cut feed, and a rapid back to the safe height; at the end the spindle off, the
-/// profile's end block, `M30` and `%`.
+/// line `G21|G20 G90 G17 G94 G40`; the profile's start block; a rapid to the safe height; then:
 ///
-/// F is written only when it changes. Moves that round to no movement are left out. Every number
-/// has fixed decimals ([`format_number`]).
+/// * **mill, router**: the spindle on with `S` (and a `G4 P` dwell if the profile asks); per cut
+///   a rapid over the plunge point, a rapid down to the retract height, a straight plunge at the
+///   plunge feed to Z = −depth, a feed move to the path's start and along the path at the cut
+///   feed, and a rapid back to the safe height; at the end the spindle off.
+/// * **laser, plasma, waterjet**: per cut a rapid at the safe height over the pierce point
+///   (the cut's plunge point), a rapid down to the pierce height, the process on, the pierce
+///   dwell `G4 P`, a feed down to the cut height at the plunge feed, a feed move to the path's
+///   start and along the path at the cut feed, the process off, and a rapid up to the safe
+///   height. There is no cut depth.
 ///
-/// Refuses (with a message naming the feature, the coordinate and what to do): a kind of machine
-/// not yet supported, bad settings, any point outside the profile's travel envelope (checked on
-/// the exact value in the profile's units), any feed above the profile's `max_feed`, a spindle
-/// speed above its `max_spindle_speed`.
+/// Then the profile's end block, `M30` and `%`.
+///
+/// Lines are `G1 X Y`; arcs are `G2`/`G3 X Y I J` in centre format (see the `arcs` module: arcs of
+/// half a turn or more split in two, the centre corrected on the bisector of the rounded end
+/// points, the radius rule of NISTIR 6556 §3.5.3.2 verified on the written numbers). F is written
+/// only when it changes. Moves that round to no movement are left out. Every number has fixed
+/// decimals ([`format_number`]).
+///
+/// Refuses (with a message naming the feature, the coordinate and what to do): bad settings, arcs
+/// for a lines-only profile, an arc that cannot keep the radius rule, any point outside the
+/// profile's travel envelope (checked on the exact value in the profile's units, arcs by their
+/// extremes), any feed above the profile's `max_feed` (lines and arcs use the cut feed), a
+/// spindle speed above its `max_spindle_speed`.
 pub fn write_program(
     cuts: &[FittedCut],
     profile: &MachineProfile,
     settings: &ProgramSettings,
 ) -> Result<String, PostError> {
-    if profile.kind() != MachineKind::Mill {
-        return Err(PostError::KindNotSupported {
-            profile: profile.name().to_string(),
-            kind: profile.kind(),
-        });
-    }
     if cuts.is_empty() {
         return Err(PostError::NoCuts);
     }
-    check_settings(settings)?;
+    check_settings(settings, profile.cutter())?;
     let units = profile.units();
     let cut_feed = settings
         .cut_feed
@@ -138,36 +182,44 @@ pub fn write_program(
     let plunge_feed = settings
         .plunge_feed
         .map_or(profile.plunge_feed(), |f| units.from_mm(f));
-    let spindle = settings.spindle_speed.unwrap_or(profile.spindle_speed());
     check_feed(profile, "cut feed", cut_feed)?;
-    check_feed(profile, "plunge feed", plunge_feed)?;
-    if spindle > profile.max_spindle_speed() {
-        return Err(PostError::SpindleTooFast {
-            value: format_number(spindle, 0),
-            max: format_number(profile.max_spindle_speed(), 0),
-            profile: profile.name().to_string(),
-        });
+    let plunge_name = match profile.cutter() {
+        Cutter::Spindle(_) => "plunge feed",
+        Cutter::Process(_) => "feed down to the cut height",
+    };
+    check_feed(profile, plunge_name, plunge_feed)?;
+    let mut spindle_speed = 0.0;
+    if let Cutter::Spindle(s) = profile.cutter() {
+        spindle_speed = settings.spindle_speed.unwrap_or(s.speed);
+        if spindle_speed > s.max_speed {
+            return Err(PostError::SpindleTooFast {
+                value: format_number(spindle_speed, 0),
+                max: format_number(s.max_speed, 0),
+                profile: profile.name().to_string(),
+            });
+        }
     }
-    let floor = -units.from_mm(settings.depth);
+    let r = Resolved {
+        cut_feed,
+        plunge_feed,
+        spindle_speed,
+        floor: -units.from_mm(settings.depth),
+    };
     for cut in cuts {
-        check_cut(cut, profile, floor)?;
+        check_cut(cut, profile, &r)?;
     }
 
     let mut w = Writer::new(profile);
-    let mut summaries = Vec::new();
+    let mut written = Vec::new();
     w.block(format!("{} G90 G17 G94 G40", units.g_word()));
     for line in profile.start_block() {
         w.block(line.clone());
     }
     let safe = profile.safe_height();
     w.rapid_z(safe);
-    w.block(format!(
-        "{} S{}",
-        profile.spindle_on(),
-        format_number(spindle, 0)
-    ));
-    if profile.spindle_delay() > 0.0 {
-        w.block(format!("G4 P{}", format_number(profile.spindle_delay(), 1)));
+    if let Cutter::Spindle(s) = profile.cutter() {
+        w.block(format!("{} S{}", s.on, format_number(spindle_speed, 0)));
+        w.dwell(s.delay);
     }
     for (i, cut) in cuts.iter().enumerate() {
         w.comment(&format!(
@@ -178,18 +230,28 @@ pub fn write_program(
         ));
         w.rapid_z(safe);
         w.rapid_xy(units_point(units, cut.plunge));
-        w.rapid_z(profile.retract_height());
-        w.feed_z(floor, plunge_feed);
-        let mut moves = 0;
-        for p in cut.end_points() {
-            if w.feed_xy(units_point(units, p), cut_feed) {
-                moves += 1;
+        let done = match profile.cutter() {
+            Cutter::Spindle(s) => {
+                w.rapid_z(s.retract_height);
+                w.feed_z(r.floor, plunge_feed);
+                w.path(cut, cut_feed)?
             }
-        }
+            Cutter::Process(p) => {
+                w.rapid_z(p.pierce_height);
+                w.block(p.on.clone());
+                w.dwell(p.pierce_dwell);
+                w.feed_z(p.cut_height, plunge_feed);
+                let done = w.path(cut, cut_feed)?;
+                w.block(p.off.clone());
+                done
+            }
+        };
         w.rapid_z(safe);
-        summaries.push(moves);
+        written.push(done);
     }
-    w.block(profile.spindle_off().to_string());
+    if let Cutter::Spindle(s) = profile.cutter() {
+        w.block(s.off.clone());
+    }
     for line in profile.end_block() {
         w.block(line.clone());
     }
@@ -199,15 +261,7 @@ pub fn write_program(
     }
 
     let mut out = String::from("%\n");
-    for line in header(
-        cuts,
-        &summaries,
-        profile,
-        settings,
-        cut_feed,
-        plunge_feed,
-        spindle,
-    ) {
+    for line in header(cuts, &written, profile, settings, &r) {
         out.push_str(&line);
         out.push('\n');
     }
@@ -219,7 +273,7 @@ pub fn write_program(
     Ok(out)
 }
 
-fn check_settings(s: &ProgramSettings) -> Result<(), PostError> {
+fn check_settings(s: &ProgramSettings, cutter: &Cutter) -> Result<(), PostError> {
     let positive = |setting, value: f64, hint| {
         if value.is_finite() && value > 0.0 {
             Ok(())
@@ -232,16 +286,28 @@ fn check_settings(s: &ProgramSettings) -> Result<(), PostError> {
             })
         }
     };
-    positive(
-        "the tool diameter",
-        s.tool_diameter,
-        "give the cutter's diameter in mm",
-    )?;
-    positive(
-        "the cut depth",
-        s.depth,
-        "give the depth below the work zero as a positive number of mm",
-    )?;
+    match cutter {
+        Cutter::Spindle(_) => {
+            positive(
+                "the tool diameter",
+                s.tool_diameter,
+                "give the cutter's diameter in mm",
+            )?;
+            positive(
+                "the cut depth",
+                s.depth,
+                "give the depth below the work zero as a positive number of mm",
+            )?;
+            if let Some(f) = s.spindle_speed {
+                positive("the spindle speed", f, "give the speed in rpm")?;
+            }
+        }
+        Cutter::Process(_) => positive(
+            "the kerf width",
+            s.tool_diameter,
+            "give the kerf width in mm, or leave it to the machine profile",
+        )?,
+    }
     positive(
         "the tolerance",
         s.tolerance,
@@ -252,9 +318,6 @@ fn check_settings(s: &ProgramSettings) -> Result<(), PostError> {
     }
     if let Some(f) = s.plunge_feed {
         positive("the plunge feed", f, "give the feed in mm/min")?;
-    }
-    if let Some(f) = s.spindle_speed {
-        positive("the spindle speed", f, "give the speed in rpm")?;
     }
     Ok(())
 }
@@ -273,17 +336,20 @@ fn check_feed(profile: &MachineProfile, which: &'static str, feed: f64) -> Resul
     Ok(())
 }
 
-/// Checks every position a cut visits against the travel envelope, in the profile's units.
-fn check_cut(cut: &FittedCut, profile: &MachineProfile, floor: f64) -> Result<(), PostError> {
+/// Checks a cut before anything is written: arcs allowed, every number finite, every position
+/// it visits (arcs by their extremes) inside the travel envelope, in the profile's units.
+fn check_cut(cut: &FittedCut, profile: &MachineProfile, r: &Resolved) -> Result<(), PostError> {
     if cut.moves.is_empty() {
         return Err(PostError::EmptyPath {
             feature: cut.name.clone(),
             points: cut.moves.len() + 1,
         });
     }
-    if cut.moves.iter().any(|m| matches!(m, Move::Arc { .. })) {
-        return Err(PostError::ArcsNotWritten {
+    let has_arcs = cut.moves.iter().any(|m| matches!(m, Move::Arc { .. }));
+    if has_arcs && profile.arc_form() == ArcForm::LinesOnly {
+        return Err(PostError::ArcsNotAllowed {
             feature: cut.name.clone(),
+            profile: profile.name().to_string(),
         });
     }
     if !cut.plunge.is_finite() {
@@ -292,7 +358,11 @@ fn check_cut(cut: &FittedCut, profile: &MachineProfile, floor: f64) -> Result<()
             what: "the plunge point",
         });
     }
-    if !cut.end_points().iter().all(|p| p.is_finite()) {
+    let centres_finite = cut.moves.iter().all(|m| match m {
+        Move::Arc { center, .. } => center.is_finite(),
+        Move::Line { .. } => true,
+    });
+    if !(cut.end_points().iter().all(|p| p.is_finite()) && centres_finite) {
         return Err(PostError::NotFinite {
             feature: cut.name.clone(),
             what: "the path",
@@ -319,15 +389,44 @@ fn check_cut(cut: &FittedCut, profile: &MachineProfile, floor: f64) -> Result<()
         Ok(())
     };
     check("the safe height", 'Z', profile.safe_height())?;
-    check("the retract height", 'Z', profile.retract_height())?;
-    check("the cut depth", 'Z', floor)?;
+    match profile.cutter() {
+        Cutter::Spindle(s) => {
+            check("the retract height", 'Z', s.retract_height)?;
+            check("the cut depth", 'Z', r.floor)?;
+        }
+        Cutter::Process(p) => {
+            check("the pierce height", 'Z', p.pierce_height)?;
+            check("the cut height", 'Z', p.cut_height)?;
+        }
+    }
     let plunge = units_point(units, cut.plunge);
-    check("the plunge point", 'X', plunge.x)?;
-    check("the plunge point", 'Y', plunge.y)?;
-    for p in cut.end_points() {
-        let q = units_point(units, p);
-        check("the tool path", 'X', q.x)?;
-        check("the tool path", 'Y', q.y)?;
+    let entry = match profile.cutter() {
+        Cutter::Spindle(_) => "the plunge point",
+        Cutter::Process(_) => "the pierce point",
+    };
+    check(entry, 'X', plunge.x)?;
+    check(entry, 'Y', plunge.y)?;
+    let mut from = units_point(units, cut.start);
+    check("the tool path", 'X', from.x)?;
+    check("the tool path", 'Y', from.y)?;
+    for m in &cut.moves {
+        let (what, points) = match *m {
+            Move::Line { to } => ("the tool path", vec![units_point(units, to)]),
+            Move::Arc { to, center, ccw } => (
+                "an arc of the tool path",
+                arc_extremes(
+                    from,
+                    units_point(units, to),
+                    units_point(units, center),
+                    ccw,
+                ),
+            ),
+        };
+        for q in &points {
+            check(what, 'X', q.x)?;
+            check(what, 'Y', q.y)?;
+        }
+        from = units_point(units, m.end());
     }
     Ok(())
 }
@@ -341,9 +440,9 @@ struct Writer<'p> {
     profile: &'p MachineProfile,
     lines: Vec<String>,
     line_number: u32,
-    /// Last written X, Y and Z, as formatted text (what the controller will see).
-    x: Option<String>,
-    y: Option<String>,
+    /// Last written X and Y as text, and as the controller reads them.
+    xy: Option<(String, String, Point)>,
+    /// Last written Z, as text.
     z: Option<String>,
     feed: Option<String>,
 }
@@ -354,8 +453,7 @@ impl<'p> Writer<'p> {
             profile,
             lines: Vec::new(),
             line_number: 10,
-            x: None,
-            y: None,
+            xy: None,
             z: None,
             feed: None,
         }
@@ -372,13 +470,9 @@ impl<'p> Writer<'p> {
 
     fn comment(&mut self, text: &str) {
         for line in wrap(text, COMMENT_WIDTH) {
-            self.lines.push(format!("({line})"));
+            self.lines
+                .push(comment_line(self.profile.comment_style(), &line));
         }
-    }
-
-    fn xy(&self, p: Point) -> (String, String) {
-        let d = self.profile.xy_decimals();
-        (format_number(p.x, d), format_number(p.y, d))
     }
 
     fn feed_word(&mut self, feed: f64) -> String {
@@ -388,6 +482,16 @@ impl<'p> Writer<'p> {
         } else {
             self.feed = Some(f.clone());
             format!(" F{f}")
+        }
+    }
+
+    /// `G4 P` for `seconds` in the profile's dwell unit; nothing for no dwell.
+    fn dwell(&mut self, seconds: f64) {
+        if seconds > 0.0 {
+            self.block(format!(
+                "G4 P{}",
+                dwell_value(self.profile.dwell_unit(), seconds)
+            ));
         }
     }
 
@@ -408,42 +512,140 @@ impl<'p> Writer<'p> {
         }
     }
 
+    /// Where the controller is, as it read the last X and Y (`None` before any).
+    fn position(&self) -> Option<Point> {
+        self.xy.as_ref().map(|(_, _, p)| *p)
+    }
+
+    fn at(&self, x: &str, y: &str) -> bool {
+        self.xy
+            .as_ref()
+            .is_some_and(|(wx, wy, _)| wx == x && wy == y)
+    }
+
+    fn written_xy(&self, p: Point) -> (String, String, Point) {
+        let d = self.profile.xy_decimals();
+        let (x, y) = (format_number(p.x, d), format_number(p.y, d));
+        let back = Point::new(x.parse().unwrap_or(p.x), y.parse().unwrap_or(p.y));
+        (x, y, back)
+    }
+
     fn rapid_xy(&mut self, p: Point) {
-        let (x, y) = self.xy(p);
-        if self.x.as_deref() != Some(x.as_str()) || self.y.as_deref() != Some(y.as_str()) {
+        let (x, y, back) = self.written_xy(p);
+        if !self.at(&x, &y) {
             self.block(format!("G0 X{x} Y{y}"));
-            self.x = Some(x);
-            self.y = Some(y);
+            self.xy = Some((x, y, back));
         }
     }
 
     /// A feed move to `p`; returns whether a move was written (false when it rounds to no move).
     fn feed_xy(&mut self, p: Point, feed: f64) -> bool {
-        let (x, y) = self.xy(p);
-        if self.x.as_deref() == Some(x.as_str()) && self.y.as_deref() == Some(y.as_str()) {
+        let (x, y, back) = self.written_xy(p);
+        self.feed_line(x, y, back, feed)
+    }
+
+    fn feed_line(&mut self, x: String, y: String, end: Point, feed: f64) -> bool {
+        if self.at(&x, &y) {
             return false;
         }
         let f = self.feed_word(feed);
         self.block(format!("G1 X{x} Y{y}{f}"));
-        self.x = Some(x);
-        self.y = Some(y);
+        self.xy = Some((x, y, end));
         true
+    }
+
+    /// The feed move from the entry point to the path's start, then the path's moves.
+    fn path(&mut self, cut: &FittedCut, feed: f64) -> Result<Written, PostError> {
+        let units = self.profile.units();
+        let mut done = Written::default();
+        if self.feed_xy(units_point(units, cut.start), feed) {
+            done.lines += 1;
+        }
+        let mut from = units_point(units, cut.start);
+        for m in &cut.moves {
+            let to = units_point(units, m.end());
+            match *m {
+                Move::Line { .. } => {
+                    if self.feed_xy(to, feed) {
+                        done.lines += 1;
+                    }
+                }
+                Move::Arc { center, ccw, .. } => {
+                    let centre = units_point(units, center);
+                    let written_start = self.position().unwrap_or(from);
+                    let d = self.profile.xy_decimals();
+                    let rule = radius_rule(units);
+                    let pieces = arc_pieces(written_start, from, to, centre, ccw, d, rule)
+                        .map_err(|broken| {
+                            let (x, y, _) = self.written_xy(to);
+                            PostError::ArcRadiusMismatch {
+                                feature: cut.name.clone(),
+                                at: format!("X{x} Y{y}"),
+                                decimals: d,
+                                mismatch: format_number(broken.mismatch, d + 1),
+                                units,
+                            }
+                        })?;
+                    for piece in pieces {
+                        match piece {
+                            Piece::Line { x, y, end } => {
+                                if self.feed_line(x, y, end, feed) {
+                                    done.lines += 1;
+                                }
+                            }
+                            Piece::Arc {
+                                x,
+                                y,
+                                i,
+                                j,
+                                ccw,
+                                end,
+                            } => {
+                                let f = self.feed_word(feed);
+                                let g = if ccw { "G3" } else { "G2" };
+                                self.block(format!("{g} X{x} Y{y} I{i} J{j}{f}"));
+                                self.xy = Some((x, y, end));
+                                done.arcs += 1;
+                            }
+                        }
+                    }
+                }
+            }
+            from = to;
+        }
+        Ok(done)
+    }
+}
+
+/// A dwell of `seconds` as the `P` value in `unit`: seconds with 2 decimals, milliseconds
+/// with none.
+fn dwell_value(unit: DwellUnit, seconds: f64) -> String {
+    match unit {
+        DwellUnit::Seconds => format_number(seconds, 2),
+        DwellUnit::Milliseconds => format_number(1000.0 * seconds, 0),
+    }
+}
+
+/// One comment line in the profile's style.
+fn comment_line(style: CommentStyle, text: &str) -> String {
+    match style {
+        CommentStyle::Parentheses => format!("({text})"),
+        CommentStyle::Semicolon => format!("; {text}"),
     }
 }
 
 /// The header comment lines.
 fn header(
     cuts: &[FittedCut],
-    moves: &[usize],
+    written: &[Written],
     profile: &MachineProfile,
     s: &ProgramSettings,
-    cut_feed: f64,
-    plunge_feed: f64,
-    spindle: f64,
+    r: &Resolved,
 ) -> Vec<String> {
     let units = profile.units();
     let u = units.as_str();
     let xy = |mm: f64| format_number(units.from_mm(mm), profile.xy_decimals());
+    let z = |v: f64| format_number(v, profile.z_decimals());
     let fd = |f: f64| format_number(f, profile.feed_decimals());
     let mut text = vec![
         format!("title: {}", sanitize(&s.title)),
@@ -455,43 +657,103 @@ fn header(
             profile.kind()
         ),
         format!("units: {u}, {}, feeds in {u}/min", units.g_word()),
-        format!(
-            "tool diameter {} {u}, cut depth {} {u}, tolerance {} {u}",
-            xy(s.tool_diameter),
-            format_number(units.from_mm(s.depth), profile.z_decimals()),
-            xy(s.tolerance)
-        ),
-        format!(
-            "cut feed {}, plunge feed {}, spindle {} rpm",
-            fd(cut_feed),
-            fd(plunge_feed),
-            format_number(spindle, 0)
-        ),
-        format!(
-            "safe height {}, retract height {} {u}",
-            format_number(profile.safe_height(), profile.z_decimals()),
-            format_number(profile.retract_height(), profile.z_decimals())
-        ),
-        format!("features: {}", cuts.len()),
     ];
-    for (i, (cut, m)) in cuts.iter().zip(moves).enumerate() {
+    match profile.cutter() {
+        Cutter::Spindle(sp) => text.extend(spindle_lines(sp, s, r, profile, &xy, &z, &fd)),
+        Cutter::Process(p) => text.extend(process_lines(p, s, r, profile, &xy, &z, &fd)),
+    }
+    text.push(format!("features: {}", cuts.len()));
+    for (i, (cut, w)) in cuts.iter().zip(written).enumerate() {
+        let arcs = if w.arcs > 0 {
+            format!(": {} lines and {} arcs", w.lines, w.arcs)
+        } else {
+            String::new()
+        };
         text.push(format!(
-            "{} {}: {}, {}, {} feed moves, measured deviation {} {u}",
+            "{} {}: {}, {}, {} feed moves{arcs}, measured deviation {} {u}",
             i + 1,
             sanitize(&cut.name),
             kind_word(cut.kind),
-            side_word(cut.side),
-            m,
+            side_word(cut.side, profile.kind()),
+            w.lines + w.arcs,
             xy(cut.measured_deviation)
         ));
     }
     text.push(SAFETY_HEADING.to_string());
     text.extend(cautions(profile.kind(), units.g_word(), u));
     text.push(PRECEDENCE.to_string());
+    let style = profile.comment_style();
     text.iter()
         .flat_map(|t| wrap(&sanitize(t), COMMENT_WIDTH))
-        .map(|t| format!("({t})"))
+        .map(|t| comment_line(style, &t))
         .collect()
+}
+
+fn spindle_lines(
+    sp: &Spindle,
+    s: &ProgramSettings,
+    r: &Resolved,
+    profile: &MachineProfile,
+    xy: &dyn Fn(f64) -> String,
+    z: &dyn Fn(f64) -> String,
+    fd: &dyn Fn(f64) -> String,
+) -> Vec<String> {
+    let u = profile.units().as_str();
+    vec![
+        format!(
+            "tool diameter {} {u}, cut depth {} {u}, tolerance {} {u}",
+            xy(s.tool_diameter),
+            format_number(-r.floor, profile.z_decimals()),
+            xy(s.tolerance)
+        ),
+        format!(
+            "cut feed {}, plunge feed {}, spindle {} rpm",
+            fd(r.cut_feed),
+            fd(r.plunge_feed),
+            format_number(r.spindle_speed, 0)
+        ),
+        format!(
+            "safe height {}, retract height {} {u}",
+            z(profile.safe_height()),
+            z(sp.retract_height)
+        ),
+    ]
+}
+
+fn process_lines(
+    p: &Process,
+    s: &ProgramSettings,
+    r: &Resolved,
+    profile: &MachineProfile,
+    xy: &dyn Fn(f64) -> String,
+    z: &dyn Fn(f64) -> String,
+    fd: &dyn Fn(f64) -> String,
+) -> Vec<String> {
+    let units = profile.units();
+    let u = units.as_str();
+    let profile_kerf = format_number(p.kerf_width, profile.xy_decimals());
+    let used = xy(s.tool_diameter);
+    let note = if used == profile_kerf {
+        String::new()
+    } else {
+        format!("; the profile's kerf width is {profile_kerf} {u}")
+    };
+    vec![
+        format!("kerf width the paths allow for {used} {u}{note}"),
+        format!("tolerance {} {u}; cut through, no depth", xy(s.tolerance)),
+        format!(
+            "cut feed {}, feed from pierce height to cut height {}, pierce dwell {} s",
+            fd(r.cut_feed),
+            fd(r.plunge_feed),
+            format_number(p.pierce_dwell, 2)
+        ),
+        format!(
+            "safe height {}, pierce height {}, cut height {} {u}",
+            z(profile.safe_height()),
+            z(p.pierce_height),
+            z(p.cut_height)
+        ),
+    ]
 }
 
 fn kind_word(kind: FeatureKind) -> &'static str {
@@ -503,10 +765,13 @@ fn kind_word(kind: FeatureKind) -> &'static str {
     }
 }
 
-fn side_word(side: CutSide) -> &'static str {
-    match side {
-        CutSide::Inside => "tool inside",
-        CutSide::Outside => "tool outside",
+fn side_word(side: CutSide, kind: MachineKind) -> &'static str {
+    let kerf = !matches!(kind, MachineKind::Mill | MachineKind::Router);
+    match (side, kerf) {
+        (CutSide::Inside, false) => "tool inside",
+        (CutSide::Outside, false) => "tool outside",
+        (CutSide::Inside, true) => "kerf inside",
+        (CutSide::Outside, true) => "kerf outside",
     }
 }
 

@@ -17,10 +17,17 @@ pub const PRECEDENCE: &str =
 /// The caution lines for one kind of machine, without the heading and the closing precedence
 /// statement. `units_word` is the program's units word (`G21` or `G20`) and `units` its name.
 pub fn cautions(kind: MachineKind, units_word: &str, units: &str) -> Vec<String> {
-    let check = format!(
-        "conicut wrote this program automatically. Before you run it, check that the units \
-         {units_word} {units}, the work offset and the tool data match your set-up."
-    );
+    let check = match kind {
+        MachineKind::Mill | MachineKind::Router => format!(
+            "conicut wrote this program automatically. Before you run it, check that the units \
+             {units_word} {units}, the work offset and the tool data match your set-up."
+        ),
+        MachineKind::Laser | MachineKind::Plasma | MachineKind::Waterjet => format!(
+            "conicut wrote this program automatically. Before you run it, check that the units \
+             {units_word} {units}, the work offset, the kerf width and the process settings \
+             from the machine's cutting charts match your set-up."
+        ),
+    };
     let mut lines = vec![check];
     let specific: &[&str] = match kind {
         MachineKind::Mill => &[
@@ -33,24 +40,26 @@ pub fn cautions(kind: MachineKind, units_word: &str, units: &str) -> Vec<String>
         MachineKind::Router => &[
             "Run it once in the air first: tool raised clear of the sheet, feed override turned down, hand on the stop button.",
             "Hold the sheet down (clamps, screws or vacuum) so that no hold-down lies under the tool path and small parts cannot fly off.",
-            "Run dust extraction; fine dust is a fire and health hazard. Wear eye and hearing protection.",
-            "Keep hands and loose clothing away from the cutter; never reach in while the spindle turns.",
+            "Keep the guards and the dust hood in place. Chips and dust fly: wear eye and hearing protection and run dust extraction; fine dust is a fire and health hazard.",
+            "Keep hands and loose clothing away from the cutter; never reach in or clear chips while the spindle turns.",
         ],
         MachineKind::Laser => &[
-            "Run only with the interlocked enclosure closed; the beam and its reflections burn eyes and skin. Use eyewear rated for this laser.",
+            "Run only with the interlocked enclosure closed: the beam and its reflections burn eyes and skin and start fires. Wear eyewear rated for this laser whenever the enclosure is open.",
             "Frame or trace the job with the beam off first.",
-            "Fire risk: never leave the machine while it cuts, keep an extinguisher at hand and watch the work after the job.",
-            "Run fume extraction. Do not cut PVC or materials whose fumes you do not know.",
+            "Fire risk: never leave the machine unattended while it cuts, keep an extinguisher at hand, and watch the work and the table for smouldering after the job.",
+            "Run fume extraction. Do not cut PVC, or any material whose fumes you do not know.",
         ],
         MachineKind::Plasma => &[
             "Trace the job with the torch off first, and check the torch height before piercing.",
-            "Fire risk: clear combustibles from the table area, keep an extinguisher at hand, never leave the machine while it cuts and keep a fire watch after the job.",
-            "High voltage: follow the torch maker's lock-out rules before touching consumables.",
-            "Wear eye protection rated for the arc, and run fume extraction; coated and stainless steel give off hazardous fumes.",
+            "Weigh down or clamp the plate, and make sure cut parts cannot tip up into the torch's path.",
+            "Fire risk: clear combustibles from around the table, keep an extinguisher at hand, never leave the machine unattended while it cuts, and keep a fire watch after the job.",
+            "High voltage: follow the torch maker's lock-out rules before touching the torch or its consumables.",
+            "Wear eye protection with a shade rated for the arc, and run fume extraction: coated and stainless steel give off hazardous fumes. Parts and slag stay hot long after the cut.",
         ],
         MachineKind::Waterjet => &[
             "Trace the job with the jet off first.",
-            "The jet cuts flesh and can inject water and abrasive under the skin: never put any part of the body near the nozzle or the jet path.",
+            "Weigh down or clamp the plate, and make sure cut parts cannot tip up into the nozzle's path.",
+            "The jet cuts flesh and can inject water and abrasive under the skin: never put any part of the body near the nozzle or the jet path, and keep the guards in place.",
             "Release the pressure before any work on the pump, the lines or the cutting head.",
             "Wear eye and hearing protection, and keep the catcher tank filled as its maker requires.",
         ],
@@ -80,9 +89,24 @@ mod tests {
                 assert_ne!(a, b);
             }
         }
-        // STANDARDS-AND-PRACTICE.md §5: thermal processes carry a fire warning.
+        let text = |k| cautions(k, "G21", "mm").join(" ");
+        // STANDARDS-AND-PRACTICE.md §5: thermal processes carry a fire warning, never unattended,
+        // and fumes; lasers an enclosure and eyewear; waterjets the jet injury; mills and
+        // routers guards, clamping or hold-downs, and chips.
         for k in [MachineKind::Laser, MachineKind::Plasma] {
-            assert!(cautions(k, "G21", "mm").iter().any(|l| l.contains("Fire")));
+            let t = text(k);
+            for needle in ["Fire", "unattended", "fume"] {
+                assert!(t.contains(needle), "{k}: no {needle:?}");
+            }
+        }
+        assert!(text(MachineKind::Laser).contains("enclosure"));
+        assert!(text(MachineKind::Laser).contains("eyewear"));
+        assert!(text(MachineKind::Waterjet).contains("inject"));
+        for (k, hold) in [(MachineKind::Mill, "Clamp"), (MachineKind::Router, "Hold")] {
+            let t = text(k);
+            for needle in ["guards", hold, "hips"] {
+                assert!(t.contains(needle), "{k}: no {needle:?}");
+            }
         }
     }
 }

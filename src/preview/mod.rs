@@ -22,7 +22,7 @@ use crate::chain::{HoleShape, Part};
 use crate::fit::FittedCut;
 use crate::geom::{Ellipse, Point};
 use frame::{Bounds, Frame, num, scale_bar_length};
-use shapes::{arrow_d, arrow_spots, contour_d, ellipse_bounds, ellipse_d, polyline_d};
+use shapes::{arrow_d, arrow_spots, contour_d, ellipse_bounds, ellipse_d, moves_d, polyline_d};
 use svg::Document;
 use svg::node::element::{Circle, Group, Line, Path, Rectangle, TSpan, Text, Title};
 
@@ -38,8 +38,8 @@ pub struct PreviewInput<'a> {
     pub tool_diameter: f64,
 }
 
-/// The tool-centre path as points to draw: every move's end, and arcs sampled finely enough to
-/// look smooth (24 points an arc).
+/// The tool-centre path as points, for the bounds and the direction arrows (the path itself is
+/// drawn exactly, arcs as arcs): every move's end, and 24 points inside each arc.
 fn drawn_path(cut: &FittedCut) -> Vec<Point> {
     crate::fit::moves::sample(cut.start, &cut.moves, 24)
 }
@@ -254,13 +254,12 @@ fn cut_group(input: &PreviewInput, frame: &Frame) -> Group {
     let mut previous_end: Option<Point> = None;
     for cut in input.cuts {
         let path = drawn_path(cut);
-        let closed = path.len() > 2 && path.first() == path.last();
         if show_band {
             bands = bands.add(
                 Path::new()
                     .set("class", "tool-band")
                     .set("data-name", cut.name.as_str())
-                    .set("d", polyline_d(&path, closed))
+                    .set("d", moves_d(None, cut.start, &cut.moves))
                     .set("stroke-width", num(input.tool_diameter)),
             );
         }
@@ -282,14 +281,11 @@ fn cut_group(input: &PreviewInput, frame: &Frame) -> Group {
             );
         }
         // The lead from the plunge point to the path's start, then the path.
-        let mut travel = Vec::with_capacity(path.len() + 1);
-        travel.push(cut.plunge);
-        travel.extend(&path);
         paths = paths.add(
             Path::new()
                 .set("class", "tool-path")
                 .set("data-name", cut.name.as_str())
-                .set("d", polyline_d(&travel, false))
+                .set("d", moves_d(Some(cut.plunge), cut.start, &cut.moves))
                 .set("fill", "none")
                 .set("stroke", palette::TOOL)
                 .set("stroke-width", num(1.5 * u))

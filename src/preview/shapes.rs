@@ -6,6 +6,7 @@
 
 use super::frame::num;
 use crate::chain::{Contour, Element};
+use crate::fit::Move;
 use crate::geom::{ArcSegment, Ellipse, Point, Vec2};
 use std::f64::consts::PI;
 use std::fmt::Write;
@@ -62,6 +63,72 @@ pub fn contour_d(contour: &Contour) -> String {
         }
     }
     d.push_str(" Z");
+    d
+}
+
+/// `d` for a run of feed moves from `start`, after a straight lead from `lead_from` when given:
+/// `L` for each line, and each arc drawn exactly with circular `A` commands (SVG 1.1 §8.3.8),
+/// split into pieces of less than half a turn so that the large-arc flag is always 0 and never
+/// ambiguous (STANDARDS-AND-PRACTICE.md §7). Closed with `Z` when the run ends where it starts.
+///
+/// The sweep flag accounts for the y flip: a counter-clockwise (G3) arc in the drawing is drawn
+/// with flag 0, a clockwise (G2) one with flag 1. An arc's radius is its start radius
+/// interpolated towards its end radius (they differ only by rounding). Moves with a non-finite
+/// end are left out; an arc with a non-finite centre, or after a left-out move, is drawn as a
+/// line.
+pub fn moves_d(lead_from: Option<Point>, start: Point, moves: &[Move]) -> String {
+    let mut d = String::new();
+    let mut current: Option<Point> = None;
+    for p in lead_from.into_iter().chain(std::iter::once(start)) {
+        if p.is_finite() {
+            let _ = write!(d, "{}{}", if d.is_empty() { "M " } else { " L " }, xy(p));
+            current = Some(p);
+        }
+    }
+    let mut skipped = !start.is_finite();
+    let mut from = start;
+    for m in moves {
+        let end = m.end();
+        if !end.is_finite() {
+            skipped = true;
+            from = end;
+            continue;
+        }
+        if d.is_empty() {
+            let _ = write!(d, "M {}", xy(end));
+            current = Some(end);
+            from = end;
+            continue;
+        }
+        match *m {
+            Move::Arc { center, ccw, .. } if center.is_finite() && !skipped => {
+                let sweep = m.sweep(from);
+                // Half a turn or more in two pieces or more, as the program writes it.
+                let pieces = (sweep.abs() / (PI - 1e-9)).floor() as usize + 1;
+                let flag = if ccw { 0 } else { 1 };
+                let (r0, r1) = (from.distance(center), end.distance(center));
+                for k in 1..=pieces {
+                    let t = k as f64 / pieces as f64;
+                    let to = if k == pieces {
+                        end
+                    } else {
+                        m.point_at(from, t)
+                    };
+                    let r = num(r0 + (t - 0.5 / pieces as f64) * (r1 - r0));
+                    let _ = write!(d, " A {r} {r} 0 0 {flag} {}", xy(to));
+                }
+            }
+            _ => {
+                let _ = write!(d, " L {}", xy(end));
+            }
+        }
+        skipped = false;
+        current = Some(end);
+        from = end;
+    }
+    if moves.len() > 1 && current == Some(start) && lead_from.is_none() {
+        d.push_str(" Z");
+    }
     d
 }
 

@@ -80,7 +80,12 @@ pub struct Report {
     pub drawing: String,
     pub drawing_units: String,
     pub machine: String,
+    /// `mill`, `router`, `laser`, `plasma` or `waterjet`.
+    pub machine_kind: String,
+    /// Tool diameter (mills, routers) or kerf width (laser, plasma, waterjet) the paths allow
+    /// for.
     pub tool_diameter_mm: f64,
+    /// Depth below the work zero; 0 for the kinds that cut through.
     pub cut_depth_mm: f64,
     pub tolerance_mm: f64,
     pub features: Vec<FeatureReport>,
@@ -89,6 +94,18 @@ pub struct Report {
     pub files: Vec<OutputFile>,
     pub warnings: Vec<String>,
     pub notes: Vec<String>,
+    /// Smallest and largest X, Y, Z the program's tool centre reaches (mm), read back from the
+    /// program.
+    pub program_bounds_mm: Option<ProgramBounds>,
+    /// Largest difference between an arc's start and end radius in the program (mm).
+    pub largest_arc_radius_mismatch_mm: f64,
+}
+
+/// The box the tool centre stays in (mm).
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+pub struct ProgramBounds {
+    pub min: [f64; 3],
+    pub max: [f64; 3],
 }
 
 /// One output file.
@@ -103,6 +120,7 @@ pub struct ReportInput<'a> {
     pub drawing: &'a str,
     pub drawing_units: &'a str,
     pub machine: &'a str,
+    pub machine_kind: &'a str,
     pub tool_diameter: f64,
     pub cut_depth: f64,
     pub tolerance: f64,
@@ -111,6 +129,8 @@ pub struct ReportInput<'a> {
     pub cuts: &'a [FittedCut],
     pub warnings: Vec<String>,
     pub notes: Vec<String>,
+    pub program_bounds: Option<([f64; 3], [f64; 3])>,
+    pub largest_arc_radius_mismatch: f64,
 }
 
 fn summary(e: &crate::geom::Ellipse) -> EllipseSummary {
@@ -162,6 +182,7 @@ pub fn build_report(input: ReportInput) -> Report {
         drawing: input.drawing.to_string(),
         drawing_units: input.drawing_units.to_string(),
         machine: input.machine.to_string(),
+        machine_kind: input.machine_kind.to_string(),
         tool_diameter_mm: input.tool_diameter,
         cut_depth_mm: input.cut_depth,
         tolerance_mm: input.tolerance,
@@ -169,6 +190,10 @@ pub fn build_report(input: ReportInput) -> Report {
         files: Vec::new(),
         warnings: input.warnings,
         notes: input.notes,
+        program_bounds_mm: input
+            .program_bounds
+            .map(|(min, max)| ProgramBounds { min, max }),
+        largest_arc_radius_mismatch_mm: input.largest_arc_radius_mismatch,
     }
 }
 
@@ -194,15 +219,18 @@ impl Report {
     pub fn to_text(&self) -> String {
         let mut s = String::new();
         let _ = writeln!(s, "conicut {} report", self.conicut_version);
+        let cutter = if self.cut_depth_mm > 0.0 {
+            format!(
+                "tool {} mm, depth {} mm",
+                self.tool_diameter_mm, self.cut_depth_mm
+            )
+        } else {
+            format!("kerf {} mm, cut through", self.tool_diameter_mm)
+        };
         let _ = writeln!(
             s,
-            "drawing {} ({}), machine: {}, tool {} mm, depth {} mm, tolerance {} mm",
-            self.drawing,
-            self.drawing_units,
-            self.machine,
-            self.tool_diameter_mm,
-            self.cut_depth_mm,
-            self.tolerance_mm
+            "drawing {} ({}), machine: {} ({}), {cutter}, tolerance {} mm",
+            self.drawing, self.drawing_units, self.machine, self.machine_kind, self.tolerance_mm
         );
         let _ = writeln!(s);
         let w = self

@@ -1,0 +1,93 @@
+//! Straight moves with as few vertices as a tolerance band allows.
+//!
+//! The band polygon: vertices on the band's outer edge, each chord as long as it can be while it
+//! stays clear of the band's inner edge (it may touch it). On a convex curve every chord then
+//! lies in the band (its ends are inside the outer edge, which is convex, and it never crosses the
+//! inner edge), so its deviation from the exact curve is at most the band's half-widths on either
+//! side; a chord of a curve of curvature κ whose sagitta is the band's width `W` spans
+//! `h ≈ √(8W/κ)`, which for the two-sided band `W = 2ε` gives the classic count
+//! `N ≈ ∫ √(κ/16ε) ds` (STANDARDS-AND-PRACTICE §3.2; McClure & Vitale for the asymptotics), a
+//! factor √2 fewer than chords with their vertices on the curve.
+
+use super::band::{Band, ConvexCurve, golden_min};
+use crate::geom::Point;
+use std::f64::consts::FRAC_PI_2;
+
+/// The largest parameter span of one chord (keeps the curve under each chord turning by less
+/// than π, so the searches below see one extremum).
+const MAX_STEP: f64 = FRAC_PI_2;
+
+/// Vertices of the band polygon over the curve's parameters `[t0, t_end]` (counter-clockwise):
+/// `first` and `last` are given (they must lie in the band at `t0` and `t_end`; for a closed
+/// curve they are the same point), the vertices between sit on the outer edge `s = band.hi`,
+/// placed greedily: each as far along as the chord to it stays clear of the inner edge
+/// `s = band.lo`.
+///
+/// Bound (guaranteed up to the search accuracy, ≈1e-12 of a chord, which the band's
+/// [`BAND_SHARE`](super::band::BAND_SHARE) absorbs): every chord lies between the band's edges.
+/// Greedy placement from a fixed first vertex uses the fewest chords any polygon with that first
+/// vertex and vertices on the outer edge can, plus at most one for the closing chord.
+pub(crate) fn band_polygon(
+    curve: &impl ConvexCurve,
+    band: Band,
+    t0: f64,
+    t_end: f64,
+    first: Point,
+    last: Point,
+) -> Vec<Point> {
+    let mut points = vec![first];
+    let (mut v, mut tv) = (first, t0);
+    let clear = |v: Point, tv: f64, q: Point, tq: f64| chord_clears(curve, band.lo, v, tv, q, tq);
+    // Each pass places one vertex and advances by at least 1e-9 of a turn; the cap only guards
+    // against a tolerance far below what the output can carry.
+    for _ in 0..10_000_000 {
+        if t_end - tv <= MAX_STEP && clear(v, tv, last, t_end) {
+            points.push(last);
+            return points;
+        }
+        let top = (tv + MAX_STEP).min(t_end);
+        let outer = |t: f64| curve.point(t, band.hi);
+        let mut t1 = if clear(v, tv, outer(top), top) {
+            top
+        } else {
+            let (mut lo, mut hi) = (tv, top);
+            while hi - lo > 1e-13 * (1.0 + hi.abs()) {
+                let mid = 0.5 * (lo + hi);
+                if clear(v, tv, outer(mid), mid) {
+                    lo = mid;
+                } else {
+                    hi = mid;
+                }
+            }
+            lo
+        };
+        if t1 >= t_end {
+            // The outer edge at the end is reachable but the given last point is not: split the
+            // rest in two.
+            t1 = 0.5 * (tv + t_end);
+        }
+        t1 = t1.max(tv + 1e-9);
+        v = outer(t1);
+        tv = t1;
+        points.push(v);
+    }
+    points.push(last);
+    points
+}
+
+/// Whether the chord from `v` (at parameter `tv`) to `q` (at `tq`) stays clear of the inner
+/// edge `s = lo` of the band: the inner edge's arc between the two parameters lies on the chord's
+/// left (the inside of the counter-clockwise curve). The signed distance of a convex arc from a
+/// line has one minimum, found by golden-section search.
+fn chord_clears(curve: &impl ConvexCurve, lo: f64, v: Point, tv: f64, q: Point, tq: f64) -> bool {
+    let Some(u) = (q - v).normalized() else {
+        return true;
+    };
+    let left = |t: f64| u.cross(curve.point(t, lo) - v);
+    let (least, _) = golden_min(&left, tv, tq);
+    least.min(left(tv)).min(left(tq)) >= -ROUNDING_SLACK
+}
+
+/// How far (mm) a chord may seem to cross the inner edge before it counts as crossing: rounding
+/// in the point arithmetic, for a chord that starts on the edge itself.
+const ROUNDING_SLACK: f64 = 1e-12;

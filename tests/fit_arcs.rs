@@ -1,0 +1,562 @@
+//! The fitters (issue 4): arc splines and band polygons on ellipses' parallel curves, one- and
+//! two-sided, and contours of lines and arcs. Every check here is made with geometry computed in
+//! this file (the ellipse's own point-distance and inside test, circle and segment distances),
+//! independently of the crate's measurement; move counts are compared with the asymptotic
+//! estimates computed by `support/fit_estimates.rs` and with the greedy constructions published in
+//! STANDARDS-AND-PRACTICE §0 and §3.4.
+
+#[path = "support/fit_estimates.rs"]
+mod fit_estimates;
+
+use conicut::chain::{Contour, Element};
+use conicut::fit::{FitError, FitOptions, FittedCut, Move, MoveKind, PART_SIDE_SLACK, fit_cut};
+use conicut::geom::{ArcSegment, Ellipse, Point, Segment};
+use conicut::plan::{CutSide, ExactPath, FeatureKind, PlannedCut};
+use std::f64::consts::{PI, TAU};
+
+fn ellipse_cut(e: Ellipse, inset: f64) -> PlannedCut {
+    // As planned: holes (inset > 0) and plain ellipses counter-clockwise, bosses (outside,
+    // inset < 0) clockwise, so the scrap is on the left of travel.
+    PlannedCut {
+        name: "test".into(),
+        kind: if inset < 0.0 {
+            FeatureKind::Boss
+        } else {
+            FeatureKind::Opening
+        },
+        side: if inset < 0.0 {
+            CutSide::Outside
+        } else {
+            CutSide::Inside
+        },
+        path: ExactPath::EllipseParallel {
+            ellipse: e,
+            inset,
+            start: 0.0,
+            clockwise: inset < 0.0,
+        },
+        plunge: e.center(),
+    }
+}
+
+fn options(tolerance: f64, moves: MoveKind, scrap_side_only: bool) -> FitOptions {
+    FitOptions {
+        tolerance,
+        moves,
+        scrap_side_only,
+    }
+}
+
+fn shapes() -> [Ellipse; 3] {
+    [
+        Ellipse::new(Point::ORIGIN, 50.0, 20.0, 0.0).unwrap(),
+        Ellipse::new(Point::new(120.0, -40.0), 30.0, 18.0, 0.7).unwrap(),
+        Ellipse::new(Point::new(-5.0, 300.0), 80.0, 25.0, -1.2).unwrap(),
+    ]
+}
+
+/// Insets for a shape: the ellipse itself, a tool radius of 60 % of b²/a inside, 3 mm outside.
+fn insets(e: &Ellipse) -> [f64; 3] {
+    [0.0, 0.6 * e.min_radius_of_curvature(), -3.0]
+}
+
+/// Points along a fitted path: `per_line` per line and `per_arc` per arc (ends included).
+fn path_samples(cut: &FittedCut, per_line: usize, per_arc: usize) -> Vec<Point> {
+    let mut out = vec![cut.start];
+    let mut from = cut.start;
+    for m in &cut.moves {
+        let n = match m {
+            Move::Line { .. } => per_line,
+            Move::Arc { .. } => per_arc,
+        };
+        for k in 1..=n {
+            out.push(m.point_at(from, k as f64 / n as f64));
+        }
+        from = m.end();
+    }
+    out
+}
+
+/// The moves as segments and arcs (this file's own geometry).
+fn pieces(cut: &FittedCut) -> Vec<Element> {
+    let mut from = cut.start;
+    cut.moves
+        .iter()
+        .map(|m| {
+            let piece = match *m {
+                Move::Line { to } => Element::Line(Segment::new(from, to)),
+                Move::Arc { to, center, ccw } => {
+                    let a0 = (from - center).angle();
+                    let a1 = (to - center).angle();
+                    let sweep = if ccw {
+                        (a1 - a0).rem_euclid(TAU)
+                    } else {
+                        -(a0 - a1).rem_euclid(TAU)
+                    };
+                    Element::Arc(ArcSegment {
+                        center,
+                        radius: from.distance(center),
+                        start_angle: a0,
+                        sweep,
+                    })
+                }
+            };
+            from = m.end();
+            piece
+        })
+        .collect()
+}
+
+/// Largest distance from the exact curve's samples to the path (full scan of the pieces).
+fn curve_to_path(curve: &[Point], path: &[Element]) -> f64 {
+    curve
+        .iter()
+        .map(|q| {
+            path.iter()
+                .map(|p| p.distance_to(*q))
+                .fold(f64::INFINITY, f64::min)
+        })
+        .fold(0.0, f64::max)
+}
+
+/// `(scrap side, part side, both ways)` deviation of a fitted ellipse cut, measured here: a path
+/// point at distance δ from the ellipse, inside (σ = δ) or outside (σ = −δ), lies σ − d inside the
+/// parallel curve at inset d (the family shares the normals; valid within the reach b²/a inside,
+/// everywhere outside). The left of travel is inside for counter-clockwise cuts, outside for
+/// clockwise ones. The other direction samples the exact curve 40 times per move (at least 4000
+/// points) and takes the nearest piece of the path.
+fn ellipse_sides(e: &Ellipse, inset: f64, clockwise: bool, cut: &FittedCut) -> (f64, f64, f64) {
+    let (mut scrap, mut part) = (0.0f64, 0.0f64);
+    for p in path_samples(cut, 24, 200) {
+        let (delta, _) = e.distance_to(p);
+        let sigma = if e.contains(p) { delta } else { -delta };
+        assert!(sigma < e.min_radius_of_curvature(), "beyond the reach");
+        let inward = sigma - inset;
+        let left = if clockwise { -inward } else { inward };
+        if left > 0.0 {
+            scrap = scrap.max(left);
+        } else {
+            part = part.max(-left);
+        }
+    }
+    let n = (40 * cut.moves.len()).max(4000);
+    let curve: Vec<Point> = (0..n)
+        .map(|i| e.inward_offset_point(TAU * i as f64 / n as f64, inset))
+        .collect();
+    let back = curve_to_path(&curve, &pieces(cut));
+    (scrap, part, scrap.max(part).max(back))
+}
+
+#[test]
+fn estimates_reproduce_the_published_integrals() {
+    // STANDARDS-AND-PRACTICE §3.4 (shop-scripts/ellipse_counts.py, cross-checked with mpmath at
+    // 30 digits): for a = 50, b = 20, ∫√κ ds = 34.00150, ∫|κ′|^{1/3} ds = 22.29415, perimeter
+    // 230.1311 mm.
+    let sqrt_k = fit_estimates::sqrt_curvature_integral(50.0, 20.0, 0.0);
+    let cbrt_dk = fit_estimates::cbrt_curvature_rate_integral(50.0, 20.0, 0.0);
+    let perimeter = fit_estimates::perimeter(50.0, 20.0, 0.0);
+    assert!((sqrt_k - 34.00150).abs() < 1e-5, "{sqrt_k}");
+    assert!((cbrt_dk - 22.29415).abs() < 1e-5, "{cbrt_dk}");
+    assert!((perimeter - 230.1311).abs() < 1e-4, "{perimeter}");
+    // §0 table: 85.0 band lines, 120.2 inscribed lines, 20.7 arcs at 0.01 mm.
+    assert!((fit_estimates::band_lines(50.0, 20.0, 0.0, 0.02) - 85.00).abs() < 0.01);
+    assert!((fit_estimates::band_lines(50.0, 20.0, 0.0, 0.01) - 120.21).abs() < 0.01);
+    assert!((fit_estimates::spline_arcs(50.0, 20.0, 0.0, 0.01) - 20.71).abs() < 0.01);
+    // The perimeter of the parallel curve at d is the ellipse's less 2πd (Steiner's formula for
+    // parallel convex curves, from memory; the turning of the tangent is 2π).
+    let p3 = fit_estimates::perimeter(50.0, 20.0, 3.0);
+    assert!((p3 - (perimeter - TAU * 3.0)).abs() < 1e-6, "{p3}");
+}
+
+#[test]
+fn ellipse_fits_stay_within_the_band_both_ways() {
+    for e in shapes() {
+        for inset in insets(&e) {
+            let clockwise = inset < 0.0;
+            let cut = ellipse_cut(e, inset);
+            for tol in [0.1, 0.01, 0.001] {
+                for kind in [MoveKind::Arcs, MoveKind::Lines] {
+                    for one_sided in [false, true] {
+                        let fitted = fit_cut(&cut, &options(tol, kind, one_sided)).unwrap();
+                        let (scrap, part, both) = ellipse_sides(&e, inset, clockwise, &fitted);
+                        let case = format!(
+                            "a {} b {} inset {inset} tol {tol} {kind:?} one-sided {one_sided}",
+                            e.a(),
+                            e.b()
+                        );
+                        assert!(both <= tol, "{case}: deviation {both}");
+                        if one_sided {
+                            assert!(scrap <= tol, "{case}: scrap side {scrap}");
+                            assert!(part <= PART_SIDE_SLACK, "{case}: part side {part}");
+                            assert!(fitted.part_side_deviation <= PART_SIDE_SLACK, "{case}");
+                        }
+                        // The crate's own figure is a measurement of the same thing.
+                        assert!(fitted.measured_deviation <= tol, "{case}");
+                        assert!(
+                            (fitted.measured_deviation - both).abs() <= 0.05 * tol,
+                            "{case}: own {} vs here {both}",
+                            fitted.measured_deviation
+                        );
+                        // Closed: the path ends where it starts.
+                        assert_eq!(fitted.moves.last().map(Move::end), Some(fitted.start));
+                        match kind {
+                            MoveKind::Lines => assert!(
+                                fitted.moves.iter().all(|m| matches!(m, Move::Line { .. })),
+                                "{case}"
+                            ),
+                            MoveKind::Arcs => assert!(
+                                fitted.moves.iter().all(|m| matches!(m, Move::Arc { .. })),
+                                "{case}"
+                            ),
+                        }
+                    }
+                }
+            }
+        }
+    }
+}
+
+#[test]
+fn finest_tolerance_stays_within_the_band() {
+    // 0.0001 mm on the 50 × 20 ellipse and its 3 mm parallel curves, both move kinds and bands.
+    let e = shapes()[0];
+    for inset in [0.0, 3.0, -3.0] {
+        let cut = ellipse_cut(e, inset);
+        for kind in [MoveKind::Arcs, MoveKind::Lines] {
+            for one_sided in [false, true] {
+                let fitted = fit_cut(&cut, &options(1e-4, kind, one_sided)).unwrap();
+                let (scrap, part, both) = ellipse_sides(&e, inset, inset < 0.0, &fitted);
+                assert!(both <= 1e-4, "inset {inset} {kind:?} {one_sided}: {both}");
+                if one_sided {
+                    assert!(scrap <= 1e-4 && part <= PART_SIDE_SLACK, "{scrap} {part}");
+                }
+            }
+        }
+    }
+}
+
+#[test]
+fn arcs_have_consistent_geometry() {
+    for e in shapes() {
+        for inset in insets(&e) {
+            for tol in [0.1, 0.01, 0.001] {
+                for one_sided in [false, true] {
+                    let fitted = fit_cut(
+                        &ellipse_cut(e, inset),
+                        &options(tol, MoveKind::Arcs, one_sided),
+                    )
+                    .unwrap();
+                    let mut from = fitted.start;
+                    for m in &fitted.moves {
+                        let Move::Arc { to, center, ccw } = *m else {
+                            panic!("not an arc")
+                        };
+                        // Start and end on one circle (to 1e-9 mm), sweep below 180°, turning
+                        // the way the cut runs.
+                        let (r0, r1) = (from.distance(center), to.distance(center));
+                        assert!((r0 - r1).abs() <= 1e-9, "radii {r0} {r1}");
+                        assert!(m.sweep(from).abs() < PI, "sweep {}", m.sweep(from));
+                        assert_eq!(ccw, inset >= 0.0);
+                        from = to;
+                    }
+                }
+            }
+        }
+    }
+}
+
+/// The change of direction (degrees) where the last move meets the first: the closing joint.
+fn closing_kink_deg(cut: &FittedCut) -> f64 {
+    let n = cut.moves.len();
+    let points = cut.end_points();
+    let last_from = points[n - 1];
+    let t0 = cut.moves[n - 1].end_tangent(last_from).unwrap();
+    let t1 = cut.moves[0].start_tangent(cut.start).unwrap();
+    t0.cross(t1).atan2(t0.dot(t1)).abs().to_degrees()
+}
+
+/// The largest change of direction between consecutive moves, computed here from the arcs'
+/// radii: the tangent at an arc's end is perpendicular to the radius there.
+fn kink_here(cut: &FittedCut) -> f64 {
+    let points = cut.end_points();
+    let tangent = |i: usize, at_end: bool| {
+        let m = cut.moves[i];
+        let Move::Arc { center, ccw, .. } = m else {
+            panic!("not an arc")
+        };
+        let p = if at_end { points[i + 1] } else { points[i] };
+        let r = p - center;
+        let t = conicut::geom::Vec2::new(-r.y, r.x) / r.length();
+        if ccw { t } else { -t }
+    };
+    (1..cut.moves.len())
+        .map(|i| {
+            let (a, b) = (tangent(i - 1, true), tangent(i, false));
+            a.cross(b).atan2(a.dot(b)).abs().to_degrees()
+        })
+        .fold(0.0, f64::max)
+}
+
+#[test]
+fn kinks_are_reported_and_small() {
+    // STANDARDS-AND-PRACTICE §3.4: the greedy arc spline of the 50 × 20 ellipse has kinks of up
+    // to 1.36° at 0.01 mm and 0.28° at 0.001 mm, all from its short closing span; evening the
+    // spans out removes them. The brief asks for well under 1° at 0.01 mm (common practice: up
+    // to about 0.5° passes unnoticed).
+    let e = shapes()[0];
+    for (tol, limit) in [(0.01, 0.5), (0.001, 0.15), (0.0001, 0.05)] {
+        let fitted = fit_cut(&ellipse_cut(e, 0.0), &options(tol, MoveKind::Arcs, false)).unwrap();
+        let here = kink_here(&fitted);
+        assert!(
+            (fitted.largest_kink_deg - here).abs() < 1e-9,
+            "reported {} vs here {here}",
+            fitted.largest_kink_deg
+        );
+        assert!(here < limit, "tol {tol}: largest kink {here}°");
+        println!(
+            "tol {tol}: {} arcs, largest kink {here:.3}°, closing joint {:.3}°",
+            fitted.moves.len(),
+            closing_kink_deg(&fitted)
+        );
+    }
+    // Every shape and offset, two-sided, at 0.01 and 0.001 mm: under 1°. One-sided kinks are
+    // printed for the report.
+    for e in shapes() {
+        for inset in insets(&e) {
+            for tol in [0.01, 0.001] {
+                let cut = ellipse_cut(e, inset);
+                let two = fit_cut(&cut, &options(tol, MoveKind::Arcs, false)).unwrap();
+                assert!(
+                    kink_here(&two) < 1.0,
+                    "a {} b {} inset {inset} tol {tol}: {}°",
+                    e.a(),
+                    e.b(),
+                    kink_here(&two)
+                );
+                let one = fit_cut(&cut, &options(tol, MoveKind::Arcs, true)).unwrap();
+                println!(
+                    "a {} b {} inset {inset:.2} tol {tol}: kinks two-sided {:.3}°, one-sided {:.3}°",
+                    e.a(),
+                    e.b(),
+                    kink_here(&two),
+                    kink_here(&one)
+                );
+            }
+        }
+    }
+}
+
+/// Asserts `count ≤ max(target × (1 + share), target + 1)`.
+fn within(count: usize, target: f64, share: f64, case: &str) {
+    let allowed = (target * (1.0 + share)).max(target + 1.0);
+    assert!(
+        count as f64 <= allowed,
+        "{case}: {count} moves, target {target:.2}, allowed {allowed:.2}"
+    );
+}
+
+#[test]
+fn move_counts_meet_the_targets() {
+    // Targets (issue 4): lines within 3 % (or one move) of ∫√(κ/8W) ds, W the band's width
+    // (2ε two-sided, ε one-sided); arcs within 25 % (or one move) of ∫(|κ′|/(72√3 w))^{1/3} ds,
+    // w half the band's width (ε two-sided, ε/2 one-sided). Estimates: support/fit_estimates.rs.
+    for e in shapes() {
+        for inset in insets(&e) {
+            let cut = ellipse_cut(e, inset);
+            for tol in [0.1, 0.01, 0.001, 0.0001] {
+                for one_sided in [false, true] {
+                    let width = if one_sided { tol } else { 2.0 * tol };
+                    let case = format!(
+                        "a {} b {} inset {inset} tol {tol} one-sided {one_sided}",
+                        e.a(),
+                        e.b()
+                    );
+                    let lines = fit_cut(&cut, &options(tol, MoveKind::Lines, one_sided)).unwrap();
+                    let target = fit_estimates::band_lines(e.a(), e.b(), inset, width);
+                    within(lines.moves.len(), target, 0.03, &format!("lines, {case}"));
+                    let arcs = fit_cut(&cut, &options(tol, MoveKind::Arcs, one_sided)).unwrap();
+                    let target = fit_estimates::spline_arcs(e.a(), e.b(), inset, width / 2.0);
+                    within(arcs.moves.len(), target, 0.25, &format!("arcs, {case}"));
+                }
+            }
+        }
+    }
+}
+
+#[test]
+fn counts_equal_the_published_greedy_constructions() {
+    // STANDARDS-AND-PRACTICE §3.4, built by shop-scripts/ellipse_construct.py for a = 50, b = 20:
+    // band chords (chords of the +ε offset curve with sagitta 2ε) 86 and 269, inscribed chords
+    // (the one-sided band of a counter-clockwise hole: vertices on the curve, sagitta ε) 121 and
+    // 381, greedy arcs through curve points with minimax radius 21 and 45, at 0.01 and 0.001 mm.
+    let cut = ellipse_cut(shapes()[0], 0.0);
+    for (tol, band, inscribed, arcs) in [(0.01, 86, 121, 21), (0.001, 269, 381, 45)] {
+        let count = |kind, one_sided| {
+            fit_cut(&cut, &options(tol, kind, one_sided))
+                .unwrap()
+                .moves
+                .len()
+        };
+        assert_eq!(count(MoveKind::Lines, false), band, "band lines at {tol}");
+        assert_eq!(
+            count(MoveKind::Lines, true),
+            inscribed,
+            "inscribed at {tol}"
+        );
+        assert_eq!(count(MoveKind::Arcs, false), arcs, "arcs at {tol}");
+    }
+}
+
+fn contour_cut(elements: Vec<Element>, kind: FeatureKind, side: CutSide) -> PlannedCut {
+    let n = elements.len();
+    PlannedCut {
+        name: "contour".into(),
+        kind,
+        side,
+        path: ExactPath::Contour(Contour {
+            elements,
+            layer: "0".into(),
+            handles: vec![String::new(); n],
+        }),
+        plunge: Point::ORIGIN,
+    }
+}
+
+/// A rounded rectangle `w × h` with corner radius `r`, lower-left corner at the origin,
+/// counter-clockwise from the middle of the bottom side.
+fn rounded_rectangle(w: f64, h: f64, r: f64) -> Vec<Element> {
+    let line = |x0, y0, x1, y1| Element::Line(Segment::new(Point::new(x0, y0), Point::new(x1, y1)));
+    let corner = |cx, cy, a0: f64| {
+        Element::Arc(ArcSegment {
+            center: Point::new(cx, cy),
+            radius: r,
+            start_angle: a0,
+            sweep: PI / 2.0,
+        })
+    };
+    vec![
+        line(w / 2.0, 0.0, w - r, 0.0),
+        corner(w - r, r, -PI / 2.0),
+        line(w, r, w, h - r),
+        corner(w - r, h - r, 0.0),
+        line(w - r, h, r, h),
+        corner(r, h - r, PI / 2.0),
+        line(0.0, h - r, 0.0, r),
+        corner(r, r, PI),
+        line(r, 0.0, w / 2.0, 0.0),
+    ]
+}
+
+/// `(scrap side, part side, both ways)` for a contour cut, given the contour's signed distance
+/// function `sdf` (positive on the scrap side): the path's samples by `sdf`, the other way by
+/// distances from the contour's samples to the path's pieces.
+fn contour_sides(c: &Contour, sdf: impl Fn(Point) -> f64, cut: &FittedCut) -> (f64, f64, f64) {
+    let (mut scrap, mut part) = (0.0f64, 0.0f64);
+    for p in path_samples(cut, 24, 200) {
+        let d = sdf(p);
+        if d > 0.0 {
+            scrap = scrap.max(d);
+        } else {
+            part = part.max(-d);
+        }
+    }
+    let curve: Vec<Point> = c
+        .elements
+        .iter()
+        .flat_map(|e| {
+            (0..=400).map(move |k| match e {
+                Element::Line(s) => s.point_at(k as f64 / 400.0),
+                Element::Arc(a) => a.point_at(k as f64 / 400.0),
+            })
+        })
+        .collect();
+    let back = curve_to_path(&curve, &pieces(cut));
+    (scrap, part, scrap.max(part).max(back))
+}
+
+/// Signed distance from the rounded rectangle `w × h`, corner radius `r`, lower-left at the
+/// origin, positive outside (the usual box formula shrunk by `r`, then grown by it).
+fn rounded_rectangle_sdf(w: f64, h: f64, r: f64, p: Point) -> f64 {
+    let qx = (p.x - w / 2.0).abs() - (w / 2.0 - r);
+    let qy = (p.y - h / 2.0).abs() - (h / 2.0 - r);
+    qx.max(0.0).hypot(qy.max(0.0)) + qx.max(qy).min(0.0) - r
+}
+
+#[test]
+fn contour_arcs_stay_exact_and_polygons_stay_in_the_band() {
+    let circle = vec![Element::Arc(ArcSegment::circle(Point::new(10.0, 5.0), 6.0))];
+    let hole = contour_cut(circle, FeatureKind::Hole, CutSide::Inside);
+    // An outline runs clockwise (scrap outside, on the left of clockwise travel).
+    let outline_elements: Vec<Element> = rounded_rectangle(120.0, 80.0, 9.0)
+        .iter()
+        .rev()
+        .map(Element::reversed)
+        .collect();
+    let outline = contour_cut(outline_elements, FeatureKind::Outline, CutSide::Outside);
+    // Scrap inside the hole, outside the outline.
+    let hole_sdf = |p: Point| 6.0 - p.distance(Point::new(10.0, 5.0));
+    let outline_sdf = |p: Point| rounded_rectangle_sdf(120.0, 80.0, 9.0, p);
+    let cases: [(&PlannedCut, &dyn Fn(Point) -> f64); 2] =
+        [(&hole, &hole_sdf), (&outline, &outline_sdf)];
+    for (cut, sdf) in cases {
+        let ExactPath::Contour(c) = &cut.path else {
+            unreachable!()
+        };
+        // Arcs: every contour arc becomes arcs about its own centre, below 180° each, lines stay
+        // lines; the path is the contour (to rounding).
+        let fitted = fit_cut(cut, &options(0.01, MoveKind::Arcs, true)).unwrap();
+        let (_, _, both) = contour_sides(c, sdf, &fitted);
+        assert!(both < 1e-9, "{}: arcs not exact, {both}", cut.name);
+        let mut from = fitted.start;
+        for m in &fitted.moves {
+            if let Move::Arc { to, center, .. } = *m {
+                assert!(m.sweep(from).abs() < PI);
+                assert!((from.distance(center) - to.distance(center)).abs() < 1e-9);
+            }
+            from = m.end();
+        }
+        for tol in [0.1, 0.01, 0.001] {
+            for one_sided in [false, true] {
+                let fitted = fit_cut(cut, &options(tol, MoveKind::Lines, one_sided)).unwrap();
+                let (scrap, part, both) = contour_sides(c, sdf, &fitted);
+                let case = format!("{} tol {tol} one-sided {one_sided}", cut.name);
+                assert!(both <= tol, "{case}: {both}");
+                if one_sided {
+                    assert!(scrap <= tol && part <= PART_SIDE_SLACK, "{case}: {part}");
+                }
+            }
+        }
+    }
+    // The full circle as arcs: three arcs of 120° about the circle's centre.
+    let fitted = fit_cut(&hole, &options(0.01, MoveKind::Arcs, false)).unwrap();
+    assert_eq!(fitted.moves.len(), 3);
+    // The band polygon of a circle of radius R in ±ε: a chord between vertices on R + ε that
+    // touches R − ε turns by 2 acos((R − ε)/(R + ε)), so a full turn needs at least
+    // π / acos((R − ε)/(R + ε)) chords (derived here); fixing the start on the circle itself costs
+    // at most one more.
+    for tol in [0.1, 0.01, 0.001] {
+        let fitted = fit_cut(&hole, &options(tol, MoveKind::Lines, false)).unwrap();
+        let least = PI / ((6.0 - tol) / (6.0 + tol)).acos();
+        let n = fitted.moves.len() as f64;
+        assert!(
+            n >= least && n <= least.ceil() + 1.0,
+            "tol {tol}: {n} vs {least}"
+        );
+    }
+}
+
+#[test]
+fn unfittable_requests_are_refused_with_a_reason() {
+    let e = shapes()[0];
+    for tol in [0.0, -1.0, f64::NAN, f64::INFINITY, 1e-6] {
+        assert!(matches!(
+            fit_cut(&ellipse_cut(e, 3.0), &options(tol, MoveKind::Arcs, false)),
+            Err(FitError::BadTolerance(_))
+        ));
+    }
+    // A tool at b²/a = 8 mm or more would leave cusps: not a convex curve to fit.
+    assert!(matches!(
+        fit_cut(&ellipse_cut(e, 8.0), &options(0.01, MoveKind::Lines, false)),
+        Err(FitError::IrregularPath { .. })
+    ));
+}
