@@ -362,3 +362,35 @@ fn demo_runs_for_every_bundled_machine_kind() {
         assert!(mismatch <= rule, "{machine}: {mismatch}");
     }
 }
+
+#[test]
+fn scrap_side_only_keeps_every_deviation_off_the_part() {
+    // With --scrap-side-only the written path may reach onto the part side only by the output
+    // rounding: for arcs at 4 decimals in mm, 2√2 × 0.0001 mm (the writer's arc bound,
+    // tests/post_arcs.rs); lines-only at √2/2 × 0.0001 mm.
+    let tmp = tempfile::tempdir().unwrap();
+    for (flags, allowance) in [
+        (vec!["--scrap-side-only"], 2.0 * 2f64.sqrt() * 1e-4),
+        (
+            vec!["--scrap-side-only", "--lines-only"],
+            0.5 * 2f64.sqrt() * 1e-4,
+        ),
+    ] {
+        conicut()
+            .current_dir(tmp.path())
+            .arg("demo")
+            .args(&flags)
+            .args(["--out", "one-sided"])
+            .assert()
+            .success();
+        let json: serde_json::Value = serde_json::from_str(
+            &fs::read_to_string(tmp.path().join("one-sided/truss-bracket-report.json")).unwrap(),
+        )
+        .unwrap();
+        for f in json["features"].as_array().unwrap() {
+            let part = f["part_side_deviation_mm"].as_f64().unwrap();
+            assert!(part <= allowance, "{flags:?} {}: {part}", f["name"]);
+            assert!(f["measured_deviation_mm"].as_f64().unwrap() <= 0.01);
+        }
+    }
+}

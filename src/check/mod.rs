@@ -13,7 +13,7 @@
 //! compared with that curve by dense sampling both ways ([`crate::fit::measure_deviation`], the
 //! measurement, not the writer).
 
-use crate::fit::{Move, measure_deviation};
+use crate::fit::{Move, measure_deviation, measure_sides};
 use crate::geom::Point;
 use crate::plan::ExactPath;
 use serde::Serialize;
@@ -329,11 +329,22 @@ pub fn feature_moves(
     Some((start, moves))
 }
 
-/// The deviation of feature `name` as the program would cut it, from its exact tool-centre
-/// curve (mm); `None` when the program holds no such feature.
-pub fn measured_deviation(trace: &Trace, name: &str, exact: &ExactPath, reach: f64) -> Option<f64> {
+/// How feature `name` as the program would cut it strays from its exact tool-centre curve (mm):
+/// both ways, and on the part side (right of travel) alone. `None` when the program holds no
+/// such feature.
+pub fn measured_deviation(
+    trace: &Trace,
+    name: &str,
+    exact: &ExactPath,
+    reach: f64,
+) -> Option<(f64, f64)> {
     let (start, moves) = feature_moves(trace, name, exact, reach)?;
-    (!moves.is_empty()).then(|| measure_deviation(start, &moves, exact))
+    (!moves.is_empty()).then(|| {
+        (
+            measure_deviation(start, &moves, exact),
+            measure_sides(start, &moves, exact).part_side,
+        )
+    })
 }
 
 #[cfg(test)]

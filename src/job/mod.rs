@@ -374,8 +374,10 @@ pub fn run_job(
     for (cut, planned) in cuts.iter_mut().zip(&plan.cuts) {
         // The program's comments carry the name with parentheses made square.
         let written_name = cut.name.replace('(', "[").replace(')', "]");
-        let read_back =
-            check::measured_deviation(&trace, &written_name, &planned.path, s.tolerance)
+        // The fitted start may sit up to the tolerance off the exact start (a band vertex), and
+        // rounding moves it a little more: look for it within twice the tolerance.
+        let (read_back, part_side) =
+            check::measured_deviation(&trace, &written_name, &planned.path, 2.0 * s.tolerance)
                 .ok_or_else(|| JobError::ReadBack {
                     file: file(),
                     problem: format!("the cut of \"{}\" was not found in the program", cut.name),
@@ -390,7 +392,20 @@ pub fn run_job(
                 },
             });
         }
+        // A one-sided fit keeps to the scrap side up to the output rounding, which can move a
+        // written point onto the part side by at most the rounding allowance.
+        if s.scrap_side_only && part_side > rounding {
+            return Err(JobError::ReadBack {
+                file: file(),
+                problem: format!(
+                    "\"{}\" reaches {part_side:.6} mm onto the part side, more than the rounding \
+                     allowance {rounding:.6} mm",
+                    cut.name
+                ),
+            });
+        }
         cut.measured_deviation = read_back;
+        cut.part_side_deviation = part_side;
     }
     let mut ellipses: Vec<(String, Ellipse)> =
         to_cut.iter().map(|o| (o.name.clone(), o.ellipse)).collect();

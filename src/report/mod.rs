@@ -48,6 +48,10 @@ pub struct FeatureReport {
     pub path_length_mm: f64,
     /// Largest distance between the emitted moves and the exact tool-centre curve (mm).
     pub measured_deviation_mm: f64,
+    /// The largest distance onto the part side (right of travel) alone (mm).
+    pub part_side_deviation_mm: f64,
+    /// The largest change of direction between consecutive moves (degrees).
+    pub largest_kink_deg: f64,
     pub tolerance_mm: f64,
 }
 
@@ -173,6 +177,8 @@ pub fn build_report(input: ReportInput) -> Report {
                 contour_moves: c.moves.len(),
                 path_length_mm: crate::fit::moves::total_length(c.start, &c.moves),
                 measured_deviation_mm: c.measured_deviation,
+                part_side_deviation_mm: c.part_side_deviation,
+                largest_kink_deg: c.largest_kink_deg,
                 tolerance_mm: c.tolerance,
             }
         })
