@@ -111,6 +111,10 @@ struct CutArgs {
     /// through its 3 mm plate and 0.5 mm into the board below).
     #[arg(long, allow_negative_numbers = true)]
     depth: Option<f64>,
+    /// Depth of each pass on a mill or router (mm): the cut is made in passes this deep, the
+    /// last one to the full depth. Default: the full depth in one pass.
+    #[arg(long, allow_negative_numbers = true)]
+    stepdown: Option<f64>,
     /// Straight moves (G1) only, no arcs (G2/G3).
     #[arg(long)]
     lines_only: bool,
@@ -193,6 +197,7 @@ fn settings(file_name: String, input: &DrawingArgs, cut: Option<&CutArgs>) -> Re
         tool_diameter: 0.0,
         tolerance: cut.map(|c| c.tolerance).unwrap_or(0.01),
         depth: cut.and_then(|c| c.depth),
+        stepdown: cut.and_then(|c| c.stepdown),
         lines_only: cut.is_some_and(|c| c.lines_only),
         scrap_side_only: cut.is_some_and(|c| c.scrap_side_only),
         job,

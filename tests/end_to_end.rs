@@ -394,3 +394,26 @@ fn scrap_side_only_keeps_every_deviation_off_the_part() {
         }
     }
 }
+
+#[test]
+fn depth_passes_are_read_back_within_tolerance() {
+    // 3.5 mm in passes of 1.5 mm: every feature is cut three times; the checker reads all passes
+    // back and measures them against the same exact curve.
+    let tmp = tempfile::tempdir().unwrap();
+    conicut()
+        .current_dir(tmp.path())
+        .args(["demo", "--stepdown", "1.5", "--out", "passes"])
+        .assert()
+        .success();
+    let program = fs::read_to_string(tmp.path().join("passes/truss-bracket.ngc")).unwrap();
+    let floors = program.lines().filter(|l| l.starts_with("G1 Z-")).count();
+    assert_eq!(floors, 9 * 3, "three floors for each of the nine cuts");
+    let json: serde_json::Value = serde_json::from_str(
+        &fs::read_to_string(tmp.path().join("passes/truss-bracket-report.json")).unwrap(),
+    )
+    .unwrap();
+    assert!((json["program_bounds_mm"]["min"][2].as_f64().unwrap() + 3.5).abs() < 1e-9);
+    for f in json["features"].as_array().unwrap() {
+        assert!(f["measured_deviation_mm"].as_f64().unwrap() <= 0.01, "{f}");
+    }
+}

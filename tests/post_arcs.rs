@@ -34,6 +34,7 @@ fn settings(profile: &MachineProfile) -> ProgramSettings {
         cut_feed: None,
         plunge_feed: None,
         spindle_speed: None,
+        stepdown: None,
     }
 }
 

@@ -40,6 +40,7 @@ fn settings() -> ProgramSettings {
         cut_feed: Some(500.0),
         plunge_feed: Some(120.0),
         spindle_speed: Some(9000.0),
+        stepdown: None,
     }
 }
 
@@ -800,4 +801,39 @@ mod profile_errors {
         let err = MachineProfile::from_toml(&text, "shop.toml").unwrap_err();
         assert_eq!(err.line, Some(line), "{err}");
     }
+}
+
+#[test]
+fn depth_passes_step_down_to_the_full_depth() {
+    // 3.5 mm in passes of at most 1.5 mm: floors at 1.5, 3.0 and 3.5 mm, each followed by the
+    // whole contour (common practice: several passes instead of one deep cut, STANDARDS §4.3).
+    let cut = square_cut("a", 10.0, 10.0, 5.0);
+    let s = ProgramSettings {
+        depth: 3.5,
+        stepdown: Some(1.5),
+        ..settings()
+    };
+    let program = write_program(std::slice::from_ref(&cut), &mill(), &s).unwrap();
+    assert!(
+        program.contains("cut depth 3.500 mm in 3 passes"),
+        "{program}"
+    );
+    let floors: Vec<&str> = program.lines().filter(|l| l.starts_with("G1 Z-")).collect();
+    assert_eq!(floors.len(), 3, "{floors:?}");
+    assert!(floors[0].starts_with("G1 Z-1.500"));
+    assert!(floors[1].starts_with("G1 Z-3.000"));
+    assert!(floors[2].starts_with("G1 Z-3.500"));
+    // Each pass runs the whole square: 4 sides a pass.
+    let sides = program
+        .lines()
+        .filter(|l| l.contains("X15.0000 Y10.0000"))
+        .count();
+    assert_eq!(sides, 3);
+    assert_eq!(
+        conicut::post::pass_depths(3.5, Some(1.5)),
+        vec![1.5, 3.0, 3.5]
+    );
+    assert_eq!(conicut::post::pass_depths(3.0, Some(1.5)), vec![1.5, 3.0]);
+    assert_eq!(conicut::post::pass_depths(3.0, None), vec![3.0]);
+    assert_eq!(conicut::post::pass_depths(1.0, Some(2.0)), vec![1.0]);
 }

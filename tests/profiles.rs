@@ -68,6 +68,7 @@ fn program_for(profile: &MachineProfile) -> String {
         cut_feed: None,
         plunge_feed: None,
         spindle_speed: None,
+        stepdown: None,
     };
     write_program(&[oval_cut()], profile, &settings).expect("the oval is written")
 }

@@ -38,6 +38,8 @@ pub struct JobSettings {
     pub tolerance: f64,
     /// Cut depth (mm, positive); `None` uses the machine profile's default.
     pub depth: Option<f64>,
+    /// Depth of each pass on a mill or router (mm); `None` cuts the full depth at once.
+    pub stepdown: Option<f64>,
     /// Straight moves only (G1), no arcs.
     pub lines_only: bool,
     /// Keep all deviation on the scrap side of the exact curve (for edges that must not lose
@@ -360,6 +362,7 @@ pub fn run_job(
             cut_feed: None,
             plunge_feed: None,
             spindle_speed: None,
+            stepdown: s.stepdown,
         },
     )
     .map_err(|error| JobError::Post {

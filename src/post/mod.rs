@@ -32,5 +32,5 @@ pub use profile::{
     MM_PER_INCH, MachineKind, MachineProfile, Process, ProfileError, Spindle, TravelEnvelope,
     Units, radius_rule,
 };
-pub use program::{PostError, ProgramSettings, sanitize, write_program};
+pub use program::{PostError, ProgramSettings, pass_depths, sanitize, write_program};
 pub use safety::{PRECEDENCE, SAFETY_HEADING, cautions};

@@ -36,6 +36,26 @@ pub struct ProgramSettings {
     /// Spindle speed (rpm) on a mill or router; `None` uses the profile's. Unused by the other
     /// kinds.
     pub spindle_speed: Option<f64>,
+    /// Depth of each pass (mm, positive) on a mill or router: the cut is made in
+    /// `ceil(depth / stepdown)` passes, the last one to the full depth; `None` cuts the full
+    /// depth in one pass. Unused by the other kinds.
+    pub stepdown: Option<f64>,
+}
+
+/// The floors of the passes (mm below the work zero, ascending in depth): every `stepdown` down
+/// to `depth`, the last at exactly `depth`. A pass shallower than a micrometre is merged into the
+/// one before it.
+pub fn pass_depths(depth: f64, stepdown: Option<f64>) -> Vec<f64> {
+    match stepdown {
+        Some(step) if step.is_finite() && step > 0.0 && step < depth => {
+            let n = (depth / step - 1e-9).ceil().max(1.0) as usize;
+            let mut out: Vec<f64> = (1..n).map(|k| k as f64 * step).collect();
+            out.retain(|d| depth - d > 1e-3);
+            out.push(depth);
+            out
+        }
+        _ => vec![depth],
+    }
 }
 
 /// Why a program was not written.
@@ -145,8 +165,10 @@ struct Written {
 ///
 /// * **mill, router**: the spindle on with `S` (and a `G4 P` dwell if the profile asks); per cut
 ///   a rapid over the plunge point, a rapid down to the retract height, a straight plunge at the
-///   plunge feed to Z = −depth, a feed move to the path's start and along the path at the cut
-///   feed, and a rapid back to the safe height; at the end the spindle off.
+///   plunge feed to the first pass's floor, a feed move to the path's start and along the path at
+///   the cut feed, then for every further pass ([`pass_depths`]) a feed straight down at the
+///   path's start and the path again, and a rapid back to the safe height; at the end the
+///   spindle off.
 /// * **laser, plasma, waterjet**: per cut a rapid at the safe height over the pierce point
 ///   (the cut's plunge point), a rapid down to the pierce height, the process on, the pierce
 ///   dwell `G4 P`, a feed down to the cut height at the plunge feed, a feed move to the path's
@@ -233,8 +255,14 @@ pub fn write_program(
         let done = match profile.cutter() {
             Cutter::Spindle(s) => {
                 w.rapid_z(s.retract_height);
-                w.feed_z(r.floor, plunge_feed);
-                w.path(cut, cut_feed)?
+                // One pass per floor; after the first the tool is back at the contour's start,
+                // inside its own slot, and feeds straight down to the next floor there.
+                let mut done = None;
+                for depth in pass_depths(settings.depth, settings.stepdown) {
+                    w.feed_z(-units.from_mm(depth), plunge_feed);
+                    done = Some(w.path(cut, cut_feed)?);
+                }
+                done.unwrap_or_default()
             }
             Cutter::Process(p) => {
                 w.rapid_z(p.pierce_height);
@@ -300,6 +328,13 @@ fn check_settings(s: &ProgramSettings, cutter: &Cutter) -> Result<(), PostError>
             )?;
             if let Some(f) = s.spindle_speed {
                 positive("the spindle speed", f, "give the speed in rpm")?;
+            }
+            if let Some(f) = s.stepdown {
+                positive(
+                    "the stepdown",
+                    f,
+                    "give the depth of each pass as a positive number of mm",
+                )?;
             }
         }
         Cutter::Process(_) => positive(
@@ -701,9 +736,13 @@ fn spindle_lines(
     let u = profile.units().as_str();
     vec![
         format!(
-            "tool diameter {} {u}, cut depth {} {u}, tolerance {} {u}",
+            "tool diameter {} {u}, cut depth {} {u}{}, tolerance {} {u}",
             xy(s.tool_diameter),
             format_number(-r.floor, profile.z_decimals()),
+            match pass_depths(s.depth, s.stepdown).len() {
+                1 => String::new(),
+                n => format!(" in {n} passes"),
+            },
             xy(s.tolerance)
         ),
         format!(
