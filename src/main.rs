@@ -115,6 +115,13 @@ struct CutArgs {
     /// last one to the full depth. Default: the full depth in one pass.
     #[arg(long, allow_negative_numbers = true)]
     stepdown: Option<f64>,
+    /// Ramp into the material on a mill or router no steeper than this (degrees), in a zig-zag
+    /// along the entry line (common practice: 1–3° in steel, up to 5–10° in aluminium).
+    #[arg(long, default_value_t = 3.0, allow_negative_numbers = true)]
+    ramp_angle: f64,
+    /// Plunge straight down instead of ramping (centre-cutting tools only).
+    #[arg(long)]
+    straight_plunge: bool,
     /// Straight moves (G1) only, no arcs (G2/G3).
     #[arg(long)]
     lines_only: bool,
@@ -198,6 +205,7 @@ fn settings(file_name: String, input: &DrawingArgs, cut: Option<&CutArgs>) -> Re
         tolerance: cut.map(|c| c.tolerance).unwrap_or(0.01),
         depth: cut.and_then(|c| c.depth),
         stepdown: cut.and_then(|c| c.stepdown),
+        ramp_angle_deg: cut.filter(|c| !c.straight_plunge).map(|c| c.ramp_angle),
         lines_only: cut.is_some_and(|c| c.lines_only),
         scrap_side_only: cut.is_some_and(|c| c.scrap_side_only),
         job,

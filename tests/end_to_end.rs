@@ -152,8 +152,8 @@ fn demo_writes_program_preview_and_report() {
             .find(|(n, _)| n == name)
             .unwrap_or_else(|| panic!("cut {name} in program"))
             .1;
-        // The first feed move with XY is the move in from the plunge point; the end points of
-        // the rest (lines and arcs) lie on the curve.
+        // The first feed move with XY may be the move in from the plunge point; the end points
+        // of the rest (lines and arcs) lie on the curve.
         assert!(points.len() > 8, "{name}: {} moves read", points.len());
         for p in &points[1..] {
             let (delta, _) = ellipse.distance_to(*p);
@@ -195,6 +195,10 @@ fn split_cuts(program: &str) -> Vec<(String, Vec<Point>)> {
                             _ => None,
                         })
                 };
+                // Moves that change Z are entries (ramps into the material), not the contour.
+                if get('Z').is_some() {
+                    continue;
+                }
                 if let (Some(x), Some(y), Some(cut)) = (get('X'), get('Y'), cuts.last_mut()) {
                     cut.1.push(Point::new(x, y));
                 }
@@ -402,7 +406,14 @@ fn depth_passes_are_read_back_within_tolerance() {
     let tmp = tempfile::tempdir().unwrap();
     conicut()
         .current_dir(tmp.path())
-        .args(["demo", "--stepdown", "1.5", "--out", "passes"])
+        .args([
+            "demo",
+            "--stepdown",
+            "1.5",
+            "--straight-plunge",
+            "--out",
+            "passes",
+        ])
         .assert()
         .success();
     let program = fs::read_to_string(tmp.path().join("passes/truss-bracket.ngc")).unwrap();
@@ -415,5 +426,50 @@ fn depth_passes_are_read_back_within_tolerance() {
     assert!((json["program_bounds_mm"]["min"][2].as_f64().unwrap() + 3.5).abs() < 1e-9);
     for f in json["features"].as_array().unwrap() {
         assert!(f["measured_deviation_mm"].as_f64().unwrap() <= 0.01, "{f}");
+    }
+}
+
+#[test]
+fn ramps_enter_no_steeper_than_asked_and_end_on_the_contour() {
+    // The default entry on a mill is a zig-zag ramp along the entry line, never steeper than
+    // the ramp angle (3° by default; common practice 1–3° in steel, STANDARDS §4.3). Read the
+    // legs back and check each one's slope.
+    let tmp = tempfile::tempdir().unwrap();
+    conicut()
+        .current_dir(tmp.path())
+        .args(["demo", "--stepdown", "1.5", "--out", "ramps"])
+        .assert()
+        .success();
+    let program = fs::read_to_string(tmp.path().join("ramps/truss-bracket.ngc")).unwrap();
+    let trace = conicut::check::trace(&program).expect("the checker reads it");
+    let legs: Vec<_> = trace
+        .moves
+        .iter()
+        .filter(|m| {
+            !m.rapid && m.from[2] != m.to[2] && (m.from[0], m.from[1]) != (m.to[0], m.to[1])
+        })
+        .collect();
+    assert!(
+        legs.len() >= 9 * 3,
+        "at least one ramp leg per pass: {}",
+        legs.len()
+    );
+    for m in &legs {
+        let run = (m.to[0] - m.from[0]).hypot(m.to[1] - m.from[1]);
+        let drop = m.from[2] - m.to[2];
+        assert!(drop > 0.0, "ramps only go down: line {}", m.line);
+        // 3° with the rounding of 3 Z decimals and 4 XY decimals.
+        assert!(
+            drop / run <= 3f64.to_radians().tan() + 2e-3 / run,
+            "line {}: {:.3}°",
+            m.line,
+            (drop / run).atan().to_degrees()
+        );
+    }
+    // No straight plunge below the top of the stock.
+    assert!(!program.lines().any(|l| l.starts_with("G1 Z-")));
+    // Every pass floor is reached.
+    for z in ["Z-1.500", "Z-3.000", "Z-3.500"] {
+        assert!(program.contains(z), "{z}");
     }
 }

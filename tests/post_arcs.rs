@@ -35,6 +35,7 @@ fn settings(profile: &MachineProfile) -> ProgramSettings {
         plunge_feed: None,
         spindle_speed: None,
         stepdown: None,
+        ramp_angle_deg: None,
     }
 }
 

@@ -41,6 +41,7 @@ fn settings() -> ProgramSettings {
         plunge_feed: Some(120.0),
         spindle_speed: Some(9000.0),
         stepdown: None,
+        ramp_angle_deg: None,
     }
 }
 

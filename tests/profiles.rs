@@ -69,6 +69,7 @@ fn program_for(profile: &MachineProfile) -> String {
         plunge_feed: None,
         spindle_speed: None,
         stepdown: None,
+        ramp_angle_deg: None,
     };
     write_program(&[oval_cut()], profile, &settings).expect("the oval is written")
 }

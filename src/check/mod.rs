@@ -288,8 +288,8 @@ fn bounds_of(moves: &[TraceMove]) -> Option<([f64; 3], [f64; 3])> {
 }
 
 /// The feed moves of feature `name` in the XY plane, as a start point and moves, from the first
-/// feed move that ends on its exact curve (within `reach`, mm): the move in from the plunge
-/// point is left out.
+/// constant-depth feed move that starts on its exact curve (within `reach`, mm): the move in from
+/// the plunge point and every move that changes Z (plunges, ramps) are left out.
 pub fn feature_moves(
     trace: &Trace,
     name: &str,
@@ -304,15 +304,18 @@ pub fn feature_moves(
         .map(|f| f.1)
         .unwrap_or(trace.moves.len());
     let start_exact = exact.start_point();
+    // The contour is cut at constant depth: moves that change Z (plunges, ramps into the
+    // material) are entries, not part of it.
     let feeds: Vec<&TraceMove> = trace.moves[first..last]
         .iter()
         .filter(|m| !m.rapid && (m.from[0] != m.to[0] || m.from[1] != m.to[1]))
+        .filter(|m| m.from[2] == m.to[2])
         .collect();
     let begin = feeds
         .iter()
-        .position(|m| Point::new(m.to[0], m.to[1]).distance(start_exact) <= reach)?;
-    let start = Point::new(feeds[begin].to[0], feeds[begin].to[1]);
-    let moves = feeds[begin + 1..]
+        .position(|m| Point::new(m.from[0], m.from[1]).distance(start_exact) <= reach)?;
+    let start = Point::new(feeds[begin].from[0], feeds[begin].from[1]);
+    let moves = feeds[begin..]
         .iter()
         .map(|m| {
             let to = Point::new(m.to[0], m.to[1]);

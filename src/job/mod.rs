@@ -40,6 +40,8 @@ pub struct JobSettings {
     pub depth: Option<f64>,
     /// Depth of each pass on a mill or router (mm); `None` cuts the full depth at once.
     pub stepdown: Option<f64>,
+    /// Ramp entry angle on a mill or router (degrees); `None` plunges straight down.
+    pub ramp_angle_deg: Option<f64>,
     /// Straight moves only (G1), no arcs.
     pub lines_only: bool,
     /// Keep all deviation on the scrap side of the exact curve (for edges that must not lose
@@ -363,6 +365,7 @@ pub fn run_job(
             plunge_feed: None,
             spindle_speed: None,
             stepdown: s.stepdown,
+            ramp_angle_deg: s.ramp_angle_deg,
         },
     )
     .map_err(|error| JobError::Post {

@@ -36,6 +36,12 @@ pub struct ProgramSettings {
     /// Spindle speed (rpm) on a mill or router; `None` uses the profile's. Unused by the other
     /// kinds.
     pub spindle_speed: Option<f64>,
+    /// Entry into the material on a mill or router: `Some(angle)` ramps down in a zig-zag along the
+    /// line from the plunge point to the contour's start, never steeper than `angle` degrees
+    /// (common practice: about 1–3° in steel, up to 5–10° in aluminium, STANDARDS-AND-PRACTICE
+    /// §4.3); `None` plunges straight down (only for centre-cutting tools). Unused by the other
+    /// kinds.
+    pub ramp_angle_deg: Option<f64>,
     /// Depth of each pass (mm, positive) on a mill or router: the cut is made in
     /// `ceil(depth / stepdown)` passes, the last one to the full depth; `None` cuts the full
     /// depth in one pass. Unused by the other kinds.
@@ -258,8 +264,25 @@ pub fn write_program(
                 // One pass per floor; after the first the tool is back at the contour's start,
                 // inside its own slot, and feeds straight down to the next floor there.
                 let mut done = None;
-                for depth in pass_depths(settings.depth, settings.stepdown) {
-                    w.feed_z(-units.from_mm(depth), plunge_feed);
+                let a = units_point(units, cut.plunge);
+                let b = units_point(units, cut.start);
+                let mut z_prev = 0.0;
+                for (k, depth) in pass_depths(settings.depth, settings.stepdown)
+                    .into_iter()
+                    .enumerate()
+                {
+                    let z = -units.from_mm(depth);
+                    match settings.ramp_angle_deg {
+                        Some(angle) => {
+                            if k == 0 {
+                                // Down to the top of the stock, then ramp into it.
+                                w.feed_z(0.0, plunge_feed);
+                            }
+                            w.ramp(a, b, k == 0, z_prev, z, angle, plunge_feed);
+                        }
+                        None => w.feed_z(z, plunge_feed),
+                    }
+                    z_prev = z;
                     done = Some(w.path(cut, cut_feed)?);
                 }
                 done.unwrap_or_default()
@@ -328,6 +351,16 @@ fn check_settings(s: &ProgramSettings, cutter: &Cutter) -> Result<(), PostError>
             )?;
             if let Some(f) = s.spindle_speed {
                 positive("the spindle speed", f, "give the speed in rpm")?;
+            }
+            if let Some(a) = s.ramp_angle_deg
+                && !(a > 0.0 && a <= 45.0)
+            {
+                return Err(PostError::BadSetting {
+                    setting: "the ramp angle",
+                    value: a,
+                    problem: "is not between 0 and 45 degrees",
+                    hint: "give the ramp angle in degrees, e.g. 3",
+                });
             }
             if let Some(f) = s.stepdown {
                 positive(
@@ -570,6 +603,53 @@ impl<'p> Writer<'p> {
         if !self.at(&x, &y) {
             self.block(format!("G0 X{x} Y{y}"));
             self.xy = Some((x, y, back));
+        }
+    }
+
+    /// A feed move to `p` while descending to `z` (a ramp leg).
+    fn feed_xyz(&mut self, p: Point, z: f64, feed: f64) {
+        let (x, y, back) = self.written_xy(p);
+        let zw = format_number(z, self.profile.z_decimals());
+        let f = self.feed_word(feed);
+        self.block(format!("G1 X{x} Y{y} Z{zw}{f}"));
+        self.xy = Some((x, y, back));
+        self.z = Some(zw);
+    }
+
+    /// Zig-zag ramp from `z_from` down to `z_to` along the entry line between `a` (the plunge
+    /// point) and `b` (the contour's start), starting at `start_at_a ? a : b` and always ending at
+    /// `b`. The legs number the fewest, of the right parity, that keep the descent no steeper
+    /// than `angle_deg`; a zero-length entry line falls back to a straight plunge.
+    #[allow(clippy::too_many_arguments)]
+    fn ramp(
+        &mut self,
+        a: Point,
+        b: Point,
+        start_at_a: bool,
+        z_from: f64,
+        z_to: f64,
+        angle_deg: f64,
+        feed: f64,
+    ) {
+        let d = a.distance(b);
+        let drop = z_from - z_to;
+        if d <= 1e-9 || drop <= 0.0 {
+            self.feed_z(z_to, feed);
+            return;
+        }
+        let needed = drop / angle_deg.to_radians().tan() / d;
+        let mut legs = needed.ceil().max(1.0) as usize;
+        // From a the count must be odd to end at b; from b, even.
+        let want_odd = start_at_a;
+        if (legs % 2 == 1) != want_odd {
+            legs += 1;
+        }
+        let mut at_a = start_at_a;
+        for k in 1..=legs {
+            let z = z_from - drop * k as f64 / legs as f64;
+            let target = if at_a { b } else { a };
+            self.feed_xyz(target, z, feed);
+            at_a = !at_a;
         }
     }
 
