@@ -352,26 +352,23 @@ pub fn run_job(
         s.depth
             .unwrap_or_else(|| profile.units().to_mm(profile.default_depth()))
     };
-    let program = post::write_program(
-        &cuts,
-        profile,
-        &ProgramSettings {
-            title: format!("elliptical openings for {}", s.file_name),
-            source: s.file_name.clone(),
-            tool_diameter: s.tool_diameter,
-            depth,
-            tolerance: s.tolerance,
-            cut_feed: None,
-            plunge_feed: None,
-            spindle_speed: None,
-            stepdown: s.stepdown,
-            ramp_angle_deg: s.ramp_angle_deg,
-        },
-    )
-    .map_err(|error| JobError::Post {
+    let program_settings = ProgramSettings {
+        title: format!("elliptical openings for {}", s.file_name),
+        source: s.file_name.clone(),
+        tool_diameter: s.tool_diameter,
+        depth,
+        tolerance: s.tolerance,
+        cut_feed: None,
+        plunge_feed: None,
+        spindle_speed: None,
+        stepdown: s.stepdown,
+        ramp_angle_deg: s.ramp_angle_deg,
+    };
+    let post_error = |error| JobError::Post {
         file: file(),
         error,
-    })?;
+    };
+    let program = post::write_program(&cuts, profile, &program_settings).map_err(post_error)?;
     // Read the program back with the independent checker and measure what it would cut.
     let trace = check::trace(&program).map_err(|error| JobError::ReadBack {
         file: file(),
@@ -412,6 +409,23 @@ pub fn run_job(
         }
         cut.measured_deviation = read_back;
         cut.part_side_deviation = part_side;
+    }
+    // Write the program again so that its header states the figures read back; only header
+    // comments change (the moves depend on nothing that was updated).
+    let program = post::write_program(&cuts, profile, &program_settings).map_err(post_error)?;
+    let same_moves = check::trace(&program).is_ok_and(|again| {
+        again.moves.len() == trace.moves.len()
+            && again
+                .moves
+                .iter()
+                .zip(&trace.moves)
+                .all(|(x, y)| (x.from, x.to, x.arc, x.feed) == (y.from, y.to, y.arc, y.feed))
+    });
+    if !same_moves {
+        return Err(JobError::ReadBack {
+            file: file(),
+            problem: "the program changed its moves when written again".into(),
+        });
     }
     let mut ellipses: Vec<(String, Ellipse)> =
         to_cut.iter().map(|o| (o.name.clone(), o.ellipse)).collect();
