@@ -412,28 +412,6 @@ fn chord_deviation(curve: &impl Fn(f64) -> Point, t0: f64, t1: f64) -> f64 {
     let Some(n) = (q - p).normalized().map(|v| v.perp()) else {
         return 0.0;
     };
-    let dist = |t: f64| n.dot(curve(t) - p).abs();
-    let g = 0.5 * (5f64.sqrt() - 1.0);
-    let (mut a, mut b) = (t0, t1);
-    let (mut c, mut dd) = (b - g * (b - a), a + g * (b - a));
-    let (mut fc, mut fd) = (dist(c), dist(dd));
-    for _ in 0..80 {
-        if fc > fd {
-            b = dd;
-            dd = c;
-            fd = fc;
-            c = b - g * (b - a);
-            fc = dist(c);
-        } else {
-            a = c;
-            c = dd;
-            fc = fd;
-            dd = a + g * (b - a);
-            fd = dist(dd);
-        }
-        if b - a < 1e-15 * (1.0 + t1.abs()) {
-            break;
-        }
-    }
-    fc.max(fd)
+    let (least, _) = band::golden_min(&|t: f64| -n.dot(curve(t) - p).abs(), t0, t1);
+    -least
 }
