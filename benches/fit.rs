@@ -53,7 +53,7 @@ mod fit_estimates;
 
 use conicut::fit::{FitOptions, MoveKind, fit_cut};
 use conicut::geom::{Ellipse, Point};
-use conicut::plan::{CutSide, ExactPath, FeatureKind, PlannedCut};
+use conicut::plan::{FeatureKind, PlannedCut};
 use criterion::{BenchmarkId, Criterion, criterion_group, criterion_main};
 use std::hint::black_box;
 use std::time::Duration;
@@ -86,22 +86,7 @@ fn shapes() -> Vec<(&'static str, Ellipse, f64)> {
 }
 
 fn cut(e: Ellipse, inset: f64) -> PlannedCut {
-    PlannedCut {
-        name: "bench".into(),
-        kind: FeatureKind::Opening,
-        side: if inset < 0.0 {
-            CutSide::Outside
-        } else {
-            CutSide::Inside
-        },
-        path: ExactPath::EllipseParallel {
-            ellipse: e,
-            inset,
-            start: 0.0,
-            clockwise: inset < 0.0,
-        },
-        plunge: e.center(),
-    }
+    PlannedCut::around_ellipse("bench", FeatureKind::Opening, e, inset)
 }
 
 fn options(tolerance: f64, moves: MoveKind, scrap_side_only: bool) -> FitOptions {

@@ -17,26 +17,12 @@ use std::f64::consts::{PI, TAU};
 fn ellipse_cut(e: Ellipse, inset: f64) -> PlannedCut {
     // As planned: holes (inset > 0) and plain ellipses counter-clockwise, bosses (outside,
     // inset < 0) clockwise, so the scrap is on the left of travel.
-    PlannedCut {
-        name: "test".into(),
-        kind: if inset < 0.0 {
-            FeatureKind::Boss
-        } else {
-            FeatureKind::Opening
-        },
-        side: if inset < 0.0 {
-            CutSide::Outside
-        } else {
-            CutSide::Inside
-        },
-        path: ExactPath::EllipseParallel {
-            ellipse: e,
-            inset,
-            start: 0.0,
-            clockwise: inset < 0.0,
-        },
-        plunge: e.center(),
-    }
+    let kind = if inset < 0.0 {
+        FeatureKind::Boss
+    } else {
+        FeatureKind::Opening
+    };
+    PlannedCut::around_ellipse("test", kind, e, inset)
 }
 
 fn options(tolerance: f64, moves: MoveKind, scrap_side_only: bool) -> FitOptions {

@@ -5,7 +5,7 @@
 
 use conicut::fit::{FitOptions, MoveKind, fit_cut, flatten_ellipse_offset};
 use conicut::geom::{Ellipse, Point, Segment};
-use conicut::plan::{CutSide, ExactPath, FeatureKind, PlannedCut};
+use conicut::plan::{FeatureKind, PlannedCut};
 use std::f64::consts::TAU;
 
 /// Two-sided straight moves within `tolerance`.
@@ -18,18 +18,7 @@ fn lines(tolerance: f64) -> FitOptions {
 }
 
 fn cut(e: Ellipse, r: f64) -> PlannedCut {
-    PlannedCut {
-        name: "test".into(),
-        kind: FeatureKind::Opening,
-        side: CutSide::Inside,
-        path: ExactPath::EllipseParallel {
-            ellipse: e,
-            inset: r,
-            start: 0.0,
-            clockwise: false,
-        },
-        plunge: e.center(),
-    }
+    PlannedCut::around_ellipse("test", FeatureKind::Opening, e, r)
 }
 
 /// Checks both directions of the deviation and that no point of the path comes closer to the

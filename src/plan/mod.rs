@@ -97,6 +97,39 @@ pub struct PlannedCut {
     pub plunge: Point,
 }
 
+impl PlannedCut {
+    /// The cut along the parallel curve of `ellipse` at signed distance `inset` from it (the tool
+    /// radius; positive inside, negative outside), with the scrap on the left of travel: inside
+    /// counter-clockwise, entered from the centre (at least b ≥ b²/a > r from the edge, and the
+    /// move out along the major axis stays inside); outside clockwise, entered from one more tool
+    /// radius out along the major axis. Checks nothing: [`plan_cuts`] refuses an inset that
+    /// would gouge.
+    pub fn around_ellipse(name: &str, kind: FeatureKind, ellipse: Ellipse, inset: f64) -> Self {
+        let outside = inset < 0.0;
+        let axis = crate::geom::Vec2::from_angle(ellipse.angle());
+        PlannedCut {
+            name: name.to_string(),
+            kind,
+            side: if outside {
+                CutSide::Outside
+            } else {
+                CutSide::Inside
+            },
+            path: ExactPath::EllipseParallel {
+                ellipse,
+                inset,
+                start: 0.0,
+                clockwise: outside,
+            },
+            plunge: if outside {
+                ellipse.center() + axis * (ellipse.a() - 2.0 * inset)
+            } else {
+                ellipse.center()
+            },
+        }
+    }
+}
+
 /// The cuts in the order they run: every inner feature before the outline.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct Plan {
@@ -221,39 +254,14 @@ fn plan_ellipse(
             max_diameter: 2.0 * limit,
         });
     }
-    Ok(PlannedCut {
-        name: name.to_string(),
-        kind,
-        side: CutSide::Inside,
-        path: ExactPath::EllipseParallel {
-            ellipse: *e,
-            inset: r,
-            start: 0.0,
-            clockwise: false,
-        },
-        // The centre is at least b ≥ b²/a > r from the edge, and the move out along the major
-        // axis stays inside the ellipse.
-        plunge: e.center(),
-    })
+    Ok(PlannedCut::around_ellipse(name, kind, *e, r))
 }
 
 /// The outside cut of an elliptical boss: the outward parallel curve at the tool radius (always
 /// regular), clockwise (climb milling with a clockwise spindle), entered from one more tool radius
 /// out along the major axis.
 fn plan_ellipse_boss(name: &str, e: &Ellipse, r: f64) -> PlannedCut {
-    let axis = crate::geom::Vec2::from_angle(e.angle());
-    PlannedCut {
-        name: name.to_string(),
-        kind: FeatureKind::Boss,
-        side: CutSide::Outside,
-        path: ExactPath::EllipseParallel {
-            ellipse: *e,
-            inset: -r,
-            start: 0.0,
-            clockwise: true,
-        },
-        plunge: e.center() + axis * (e.a() + 2.0 * r),
-    }
+    PlannedCut::around_ellipse(name, FeatureKind::Boss, *e, -r)
 }
 
 /// A cut along a drawn contour with the tool on its left (callers orient the contour so that
