@@ -270,6 +270,12 @@ impl<'t> Context<'t> {
         }
     }
 
+    /// A feature that reached a source's reader without the keys that make that source (the
+    /// callers check first, so this is a safety net rather than an expected message).
+    fn no_source(&self, what: &str, keys: &str) -> JobFileError {
+        self.error(None, None, Kind::Missing, format!("{what} needs {keys}"))
+    }
+
     /// An error at an entry's key.
     fn at(&self, e: &Entry<'_, '_>, kind: Kind, message: String) -> JobFileError {
         self.error(Some(e.line), Some(e.key), kind, message)
@@ -646,9 +652,7 @@ impl<'t> Context<'t> {
         let select = match (entries.get("bay"), entries.get("inside")) {
             (Some(e), _) => BaySelect::Name(self.string(e)?),
             (None, Some(e)) => BaySelect::Inside(self.point_of(e, e.value, scale)?),
-            (None, None) => {
-                unreachable!("bay_source is called only when `bay` or `inside` is present")
-            }
+            (None, None) => return Err(self.no_source(what, "`bay` or `inside`")),
         };
 
         let (keyword, rule_line, rule_given) = match entries.get("rule") {
@@ -730,7 +734,14 @@ impl<'t> Context<'t> {
                 let e = value("centre")?;
                 Rule::CentreNear(self.point_of(e, e.value, scale)?)
             }
-            _ => unreachable!("every keyword of RULES is matched"),
+            other => {
+                return Err(self.error(
+                    Some(line),
+                    Some("rule"),
+                    Kind::BadValue,
+                    format!("{what}: the rule \"{other}\" is not known"),
+                ));
+            }
         };
         Ok(FeatureSource::Bay { select, rule })
     }
@@ -779,7 +790,7 @@ impl<'t> Context<'t> {
             .rfind(|e| e.key == "through" || e.key == "touching")
             .or_else(|| entries.first_of(&CONSTRAINT_SOURCE))
         else {
-            unreachable!("constraints_source is called only when a constraint key is present")
+            return Err(self.no_source(what, "`through` or `touching`"));
         };
         match (&through, &touching) {
             (PointSource::Given(p), LineSource::Given(t))
@@ -879,7 +890,7 @@ impl<'t> Context<'t> {
         let points = match (entries.get("fit_csv"), entries.get("fit_layer")) {
             (Some(e), _) => FitPoints::Csv(self.string(e)?),
             (None, Some(e)) => FitPoints::Layer(self.string(e)?),
-            (None, None) => unreachable!("a fit source is present"),
+            (None, None) => return Err(self.no_source(what, "`fit_csv` or `fit_layer`")),
         };
         Ok(FeatureSource::Fit { points })
     }
