@@ -6,6 +6,7 @@ use conicut::chain::{DEFAULT_BAY_LAYER, DEFAULT_GAP_TOLERANCE};
 use conicut::geom::Point;
 use conicut::job::{JobOutput, JobSettings, run_job, solve_job};
 use conicut::jobfile::{FeatureSource, FitPoints, JobFile, parse_job_file};
+use conicut::plan::Direction;
 use conicut::post::{BUNDLED_PROFILES, MachineProfile};
 use conicut::read::Units;
 use conicut::read::parse_points_csv;
@@ -115,13 +116,24 @@ struct CutArgs {
     /// last one to the full depth. Default: the full depth in one pass.
     #[arg(long, allow_negative_numbers = true)]
     stepdown: Option<f64>,
-    /// Ramp into the material on a mill or router no steeper than this (degrees), in a zig-zag
-    /// along the entry line (common practice: 1–3° in steel, up to 5–10° in aluminium).
+    /// How a mill or router enters the material: helix (a helix about the plunge point where
+    /// there is room, the zig-zag elsewhere), zigzag (back and forth along the first entry
+    /// move), or straight (plunge straight down: centre-cutting tools only).
+    #[arg(long, value_enum, default_value_t = EntryArg::Helix)]
+    entry: EntryArg,
+    /// The steepest descent of a helix or zig-zag entry (degrees; common practice: 1–3° in
+    /// steel, up to 5–10° in aluminium).
     #[arg(long, default_value_t = 3.0, allow_negative_numbers = true)]
     ramp_angle: f64,
-    /// Plunge straight down instead of ramping (centre-cutting tools only).
-    #[arg(long)]
-    straight_plunge: bool,
+    /// Climb (default) or conventional milling; thermal cuts keep the usual direction.
+    #[arg(long, value_enum, default_value_t = DirectionArg::Climb)]
+    direction: DirectionArg,
+    /// Mills and routers: leave this much stock (mm, radial) for a finishing pass at full depth.
+    #[arg(long, allow_negative_numbers = true)]
+    finish_allowance: Option<f64>,
+    /// Pockets: distance between clearing rings (mm). Default: 40 % of the tool diameter.
+    #[arg(long, allow_negative_numbers = true)]
+    stepover: Option<f64>,
     /// Straight moves (G1) only, no arcs (G2/G3).
     #[arg(long)]
     lines_only: bool,
@@ -129,6 +141,21 @@ struct CutArgs {
     /// (more moves for the same tolerance).
     #[arg(long)]
     scrap_side_only: bool,
+}
+
+/// How a mill or router enters the material.
+#[derive(clap::ValueEnum, Clone, Copy, Debug, PartialEq, Eq)]
+enum EntryArg {
+    Helix,
+    Zigzag,
+    Straight,
+}
+
+/// Climb or conventional milling.
+#[derive(clap::ValueEnum, Clone, Copy, Debug, PartialEq, Eq)]
+enum DirectionArg {
+    Climb,
+    Conventional,
 }
 
 /// The demo drawing's file name, as written to `demo-parts/` and named in the outputs.
@@ -205,7 +232,18 @@ fn settings(file_name: String, input: &DrawingArgs, cut: Option<&CutArgs>) -> Re
         tolerance: cut.map(|c| c.tolerance).unwrap_or(0.01),
         depth: cut.and_then(|c| c.depth),
         stepdown: cut.and_then(|c| c.stepdown),
-        ramp_angle_deg: cut.filter(|c| !c.straight_plunge).map(|c| c.ramp_angle),
+        ramp_angle_deg: cut
+            .filter(|c| c.entry != EntryArg::Straight)
+            .map(|c| c.ramp_angle),
+        helical_entry: cut.is_none_or(|c| c.entry == EntryArg::Helix),
+        leads: None,
+        direction: match cut.map(|c| c.direction) {
+            Some(DirectionArg::Conventional) => Direction::Conventional,
+            _ => Direction::Climb,
+        },
+        tabs: None,
+        finish_allowance: cut.and_then(|c| c.finish_allowance),
+        pocket_stepover: cut.and_then(|c| c.stepover),
         lines_only: cut.is_some_and(|c| c.lines_only),
         scrap_side_only: cut.is_some_and(|c| c.scrap_side_only),
         job,

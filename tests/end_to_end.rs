@@ -167,19 +167,25 @@ fn demo_writes_program_preview_and_report() {
 }
 
 /// The XY end points of the G1, G2 and G3 moves of each cut, by the cut's name from its comment
-/// `(cut N of M: NAME)`, read with the `gcode` crate.
+/// `(cut N of M: NAME)`, read with the `gcode` crate: only the moves after a `(contour)` comment
+/// (not the entry, leads, overcut or lead-out).
 fn split_cuts(program: &str) -> Vec<(String, Vec<Point>)> {
     let parsed = gcode::parse(program).expect("parse");
     let mut cuts: Vec<(String, Vec<Point>)> = Vec::new();
+    let mut in_contour = false;
     for b in &parsed.blocks {
         for c in &b.comments {
-            let text = c.value.trim_end_matches(')');
+            let text = c.value.trim_start_matches('(').trim_end_matches(')');
+            in_contour = text == "contour";
             if let Some((_, name)) = text
                 .strip_prefix("cut ")
                 .and_then(|rest| rest.split_once(": "))
             {
                 cuts.push((name.to_string(), Vec::new()));
             }
+        }
+        if !in_contour {
+            continue;
         }
         for code in &b.codes {
             if let gcode::Code::General(g) = code {
@@ -410,7 +416,8 @@ fn depth_passes_are_read_back_within_tolerance() {
             "demo",
             "--stepdown",
             "1.5",
-            "--straight-plunge",
+            "--entry",
+            "straight",
             "--out",
             "passes",
         ])
@@ -418,7 +425,11 @@ fn depth_passes_are_read_back_within_tolerance() {
         .success();
     let program = fs::read_to_string(tmp.path().join("passes/truss-bracket.ngc")).unwrap();
     let floors = program.lines().filter(|l| l.starts_with("G1 Z-")).count();
-    assert_eq!(floors, 9 * 3, "three floors for each of the nine cuts");
+    assert_eq!(
+        floors,
+        9 * 3,
+        "three straight plunges for each of the nine cuts"
+    );
     let json: serde_json::Value = serde_json::from_str(
         &fs::read_to_string(tmp.path().join("passes/truss-bracket-report.json")).unwrap(),
     )
@@ -455,7 +466,15 @@ fn ramps_enter_no_steeper_than_asked_and_end_on_the_contour() {
         legs.len()
     );
     for m in &legs {
-        let run = (m.to[0] - m.from[0]).hypot(m.to[1] - m.from[1]);
+        // The length travelled in XY: the chord of a line, the arc of a helix turn.
+        let chord = (m.to[0] - m.from[0]).hypot(m.to[1] - m.from[1]);
+        let run = match m.arc {
+            None => chord,
+            Some((c, _)) => {
+                let radius = (m.from[0] - c[0]).hypot(m.from[1] - c[1]);
+                2.0 * radius * (0.5 * chord / radius).min(1.0).asin()
+            }
+        };
         let drop = m.from[2] - m.to[2];
         assert!(drop > 0.0, "ramps only go down: line {}", m.line);
         // 3° with the rounding of 3 Z decimals and 4 XY decimals.
@@ -466,8 +485,25 @@ fn ramps_enter_no_steeper_than_asked_and_end_on_the_contour() {
             (drop / run).atan().to_degrees()
         );
     }
-    // No straight plunge below the top of the stock.
-    assert!(!program.lines().any(|l| l.starts_with("G1 Z-")));
+    // No straight plunge into material: a move straight down ends no deeper than a floor the
+    // tool has already cut at that point (a later pass going back down its entry).
+    let mut cut_to: Vec<([f64; 2], f64)> = Vec::new();
+    for m in &trace.moves {
+        let xy = [m.to[0], m.to[1]];
+        let straight_down = (m.from[0], m.from[1]) == (m.to[0], m.to[1]) && m.to[2] < m.from[2];
+        if straight_down && !m.rapid && m.to[2] < 0.0 {
+            assert!(
+                cut_to
+                    .iter()
+                    .any(|(p, z)| (p[0] - xy[0]).hypot(p[1] - xy[1]) < 1e-6 && *z <= m.to[2]),
+                "line {}: a straight plunge into uncut material",
+                m.line
+            );
+        }
+        if !m.rapid {
+            cut_to.push(([m.to[0], m.to[1]], m.to[2]));
+        }
+    }
     // Every pass floor is reached.
     for z in ["Z-1.500", "Z-3.000", "Z-3.500"] {
         assert!(program.contains(z), "{z}");

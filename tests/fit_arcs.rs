@@ -11,7 +11,7 @@ mod fit_estimates;
 use conicut::chain::{Contour, Element};
 use conicut::fit::{FitError, FitOptions, FittedCut, Move, MoveKind, PART_SIDE_SLACK, fit_cut};
 use conicut::geom::{ArcSegment, Ellipse, Point, Segment};
-use conicut::plan::{CutSide, ExactPath, FeatureKind, PlannedCut};
+use conicut::plan::{CutSide, Edge, ExactPath, FeatureKind, PlannedCut};
 use std::f64::consts::{PI, TAU};
 
 fn ellipse_cut(e: Ellipse, inset: f64) -> PlannedCut {
@@ -395,17 +395,19 @@ fn counts_equal_the_published_greedy_constructions() {
 
 fn contour_cut(elements: Vec<Element>, kind: FeatureKind, side: CutSide) -> PlannedCut {
     let n = elements.len();
-    PlannedCut {
-        name: "contour".into(),
+    let contour = Contour {
+        elements,
+        layer: "0".into(),
+        handles: vec![String::new(); n],
+    };
+    PlannedCut::new(
+        "contour",
         kind,
         side,
-        path: ExactPath::Contour(Contour {
-            elements,
-            layer: "0".into(),
-            handles: vec![String::new(); n],
-        }),
-        plunge: Point::ORIGIN,
-    }
+        ExactPath::Contour(contour.clone()),
+        Point::ORIGIN,
+        Edge::Contour(contour),
+    )
 }
 
 /// A rounded rectangle `w × h` with corner radius `r`, lower-left corner at the origin,

@@ -18,15 +18,9 @@ fn plan_one(e: Ellipse, diameter: f64) -> Result<(), PlanError> {
         name: "test".into(),
         ellipse: e,
         side: CutSide::Inside,
+        pocket: false,
     };
-    plan_cuts(
-        &part,
-        &[o],
-        &PlanOptions {
-            tool_diameter: diameter,
-        },
-    )
-    .map(|_| ())
+    plan_cuts(&part, &[o], &PlanOptions::plain(diameter)).map(|_| ())
 }
 
 #[test]
@@ -60,6 +54,7 @@ fn demo() -> (Part, Vec<Opening>) {
             name: b.name.clone(),
             ellipse: solve_bay(b, &Rule::Largest, 4.0).unwrap().solution.ellipse,
             side: CutSide::Inside,
+            pocket: false,
         })
         .collect();
     (part, openings)
@@ -69,14 +64,7 @@ fn demo() -> (Part, Vec<Opening>) {
 fn plunges_and_moves_in_stay_in_the_scrap() {
     let (part, openings) = demo();
     let r = 3.0;
-    let plan = plan_cuts(
-        &part,
-        &openings,
-        &PlanOptions {
-            tool_diameter: 2.0 * r,
-        },
-    )
-    .unwrap();
+    let plan = plan_cuts(&part, &openings, &PlanOptions::plain(2.0 * r)).unwrap();
     let outline = part.outline.as_ref().unwrap();
     for cut in &plan.cuts {
         let start = cut.path.start_point();

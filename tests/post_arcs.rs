@@ -36,6 +36,8 @@ fn settings(profile: &MachineProfile) -> ProgramSettings {
         spindle_speed: None,
         stepdown: None,
         ramp_angle_deg: None,
+        helical_entry: false,
+        tab_height: 0.0,
     }
 }
 
@@ -189,7 +191,9 @@ fn nist_centre_format_example_reads_back() {
     )
     .unwrap();
     assert!(
-        program.contains("\nG1 X7.0000 Y7.0000 F400.0\nG2 X10.0000 Y16.0000 I3.0000 J4.0000\n"),
+        program.contains(
+            "\nG1 X7.0000 Y7.0000 F400.0\n(contour)\nG2 X10.0000 Y16.0000 I3.0000 J4.0000\n"
+        ),
         "{program}"
     );
     let reads = feed_moves(&program);

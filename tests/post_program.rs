@@ -42,6 +42,8 @@ fn settings() -> ProgramSettings {
         spindle_speed: Some(9000.0),
         stepdown: None,
         ramp_angle_deg: None,
+        helical_entry: false,
+        tab_height: 0.0,
     }
 }
 
@@ -200,8 +202,9 @@ fn square_program_parses_back_to_the_same_moves() {
         "plunge: {:?}",
         m[3]
     );
-    // Then the path at the cut feed, F written once.
-    let path_moves = &m[4..m.len() - 1];
+    // Then the path at the cut feed, F written once, then up to the retract and the safe
+    // height.
+    let path_moves = &m[4..m.len() - 2];
     let points = cut.end_points();
     assert_eq!(path_moves.len(), points.len(), "{path_moves:?}");
     for (mv, p) in path_moves.iter().zip(&points) {
@@ -580,7 +583,7 @@ fn header_holds_the_job_the_safety_block_and_the_precedence_statement() {
         "tool diameter 6.0000 mm, cut depth 1.500 mm, tolerance 0.0100 mm"
     ));
     assert!(has(
-        "(1 bay 1: elliptical opening, tool inside, 5 feed moves, measured deviation 0.0061 mm)"
+        "(1 bay 1: elliptical opening, tool inside, 4 feed moves, measured deviation 0.0061 mm)"
     ));
     let safety = header
         .iter()

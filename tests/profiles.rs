@@ -70,6 +70,8 @@ fn program_for(profile: &MachineProfile) -> String {
         spindle_speed: None,
         stepdown: None,
         ramp_angle_deg: None,
+        helical_entry: false,
+        tab_height: 0.0,
     };
     write_program(&[oval_cut()], profile, &settings).expect("the oval is written")
 }

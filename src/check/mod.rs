@@ -8,9 +8,10 @@
 //! it cannot follow (G91, the R arc form, another plane) is an error with the line, never a
 //! guess.
 //!
-//! Measuring: the program's cut comments `(cut N of M: NAME)` mark where each feature starts; the
-//! feed moves of a feature, from the first one that reaches its exact tool-centre curve, are
-//! compared with that curve by dense sampling both ways ([`crate::fit::measure_deviation`], the
+//! Measuring: the program's cut comments `(cut N of M: NAME)` mark where each feature starts, and
+//! the comments `(contour)`, `(lead-in)`, … the parts of its cut; the feed moves after each
+//! `(contour)` comment, from the first one that reaches the exact tool-centre curve, are compared
+//! with that curve by dense sampling both ways ([`crate::fit::measure_deviation`], the
 //! measurement, not the writer).
 
 use crate::fit::{Move, measure_deviation, measure_sides};
@@ -46,6 +47,9 @@ pub struct Trace {
     pub moves: Vec<TraceMove>,
     /// Features by name with the index of their first move.
     pub features: Vec<(String, usize)>,
+    /// Every comment after the header, with the index of the move that follows it: the writer
+    /// marks the parts of a cut (`clearing`, `lead-in`, `contour`, `overcut`, `lead-out`).
+    pub marks: Vec<(String, usize)>,
     /// Largest difference between an arc's start and end radius (mm).
     pub largest_arc_radius_mismatch: f64,
     /// Smallest and largest X, Y, Z the tool centre reaches (mm), arcs included.
@@ -139,6 +143,7 @@ pub fn trace(program: &str) -> Result<Trace, CheckError> {
     let mut st = State::default();
     let mut moves = Vec::new();
     let mut features = Vec::new();
+    let mut marks = Vec::new();
     let mut mismatch: f64 = 0.0;
     for (i, raw) in program.lines().enumerate() {
         let line = i + 1;
@@ -148,6 +153,7 @@ pub fn trace(program: &str) -> Result<Trace, CheckError> {
         }
         let (ws, comments) = words(t, line)?;
         for c in &comments {
+            marks.push((c.trim().to_string(), moves.len()));
             if let Some((_, name)) = c
                 .trim()
                 .strip_prefix("cut ")
@@ -255,6 +261,7 @@ pub fn trace(program: &str) -> Result<Trace, CheckError> {
     Ok(Trace {
         moves,
         features,
+        marks,
         largest_arc_radius_mismatch: mismatch,
         bounds,
     })
@@ -287,15 +294,8 @@ fn bounds_of(moves: &[TraceMove]) -> Option<([f64; 3], [f64; 3])> {
     lo[0].is_finite().then_some((lo, hi))
 }
 
-/// The feed moves of feature `name` in the XY plane, as a start point and moves, from the first
-/// constant-depth feed move that starts on its exact curve (within `reach`, mm): the move in from
-/// the plunge point and every move that changes Z (plunges, ramps) are left out.
-pub fn feature_moves(
-    trace: &Trace,
-    name: &str,
-    exact: &ExactPath,
-    reach: f64,
-) -> Option<(Point, Vec<Move>)> {
+/// The moves of feature `name`, by index: from its cut comment to the next feature's.
+fn feature_range(trace: &Trace, name: &str) -> Option<std::ops::Range<usize>> {
     let idx = trace.features.iter().position(|(n, _)| n == name)?;
     let first = trace.features[idx].1;
     let last = trace
@@ -303,12 +303,55 @@ pub fn feature_moves(
         .get(idx + 1)
         .map(|f| f.1)
         .unwrap_or(trace.moves.len());
+    Some(first..last)
+}
+
+/// The indices of feature `name`'s moves that follow a comment `mark` (up to the next comment),
+/// in order.
+pub fn marked_moves(trace: &Trace, name: &str, mark: &str) -> Vec<usize> {
+    let Some(range) = feature_range(trace, name) else {
+        return Vec::new();
+    };
+    let mut out = Vec::new();
+    for (k, (text, at)) in trace.marks.iter().enumerate() {
+        if text != mark || !range.contains(at) {
+            continue;
+        }
+        let end = trace
+            .marks
+            .get(k + 1)
+            .map_or(trace.moves.len(), |m| m.1)
+            .min(range.end);
+        out.extend(*at..end);
+    }
+    out
+}
+
+/// The moves of `name` that are not its contour: clearing, leads, overcut, entries (ramps and
+/// helices) and rapids, by index.
+pub fn moves_off_contour(trace: &Trace, name: &str) -> Vec<usize> {
+    let Some(range) = feature_range(trace, name) else {
+        return Vec::new();
+    };
+    let contour = marked_moves(trace, name, "contour");
+    range.filter(|i| !contour.contains(i)).collect()
+}
+
+/// The contour of feature `name` in the XY plane, as a start point and moves: the feed moves
+/// after each `contour` comment of the feature (one run per pass), from the first that starts on
+/// its exact curve (within `reach`, mm). Moves that change Z (the rise over a tab and back) are
+/// left out; the moves over a tab are kept, since they follow the contour in XY.
+pub fn feature_moves(
+    trace: &Trace,
+    name: &str,
+    exact: &ExactPath,
+    reach: f64,
+) -> Option<(Point, Vec<Move>)> {
     let start_exact = exact.start_point();
-    // The contour is cut at constant depth: moves that change Z (plunges, ramps into the
-    // material) are entries, not part of it.
-    let feeds: Vec<&TraceMove> = trace.moves[first..last]
-        .iter()
-        .filter(|m| !m.rapid && (m.from[0] != m.to[0] || m.from[1] != m.to[1]))
+    let feeds: Vec<&TraceMove> = marked_moves(trace, name, "contour")
+        .into_iter()
+        .map(|i| &trace.moves[i])
+        .filter(|m| m.from[0] != m.to[0] || m.from[1] != m.to[1])
         .filter(|m| m.from[2] == m.to[2])
         .collect();
     let begin = feeds

@@ -21,8 +21,9 @@ use crate::plan::{CutSide, FeatureKind};
 pub use moves::Move;
 use serde::Serialize;
 
-/// One feature's cut, ready for a post-processor: the tool enters at `plunge`, moves in a
-/// straight line to `start`, then runs `moves` (lines and arcs), ending back at `start`.
+/// One feature's cut, ready for a post-processor: the tool enters at `plunge`, runs `clearing`
+/// (pockets only), then `lead_in` to `start`, then `moves` (lines and arcs) round the contour
+/// back to `start`, then `overcut` and `lead_out`.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct FittedCut {
     /// The feature's name, e.g. `bay 1`, `hole 2`, `outline`.
@@ -31,10 +32,26 @@ pub struct FittedCut {
     pub side: CutSide,
     /// Where the tool enters the material, in the scrap (mm).
     pub plunge: Point,
+    /// Pockets: the clearing rings and the links between them, from `plunge` (mm).
+    pub clearing: Vec<Move>,
+    /// From the end of the clearing (or `plunge`) to `start` (mm).
+    pub lead_in: Vec<Move>,
     /// Where the contour starts and ends (mm).
     pub start: Point,
     /// The feed moves of the tool centre along the contour (mm).
     pub moves: Vec<Move>,
+    /// The first stretch of the contour cut again, from `start` (mm).
+    pub overcut: Vec<Move>,
+    /// From the end of the overcut (or `start`) into the scrap (mm).
+    pub lead_out: Vec<Move>,
+    /// Stretches of `moves` left uncut, as distances along them from `start` (mm), ascending and
+    /// apart.
+    pub tabs: Vec<(f64, f64)>,
+    /// A finishing cut: made once at the full depth.
+    pub full_depth_only: bool,
+    /// How far the tool centre may wander from `plunge` without touching the finished edge
+    /// (mm): room for a helical entry.
+    pub entry_room: f64,
     /// The tolerance the fit was asked to keep (mm).
     pub tolerance: f64,
     /// The largest distance between the emitted path and the exact tool-centre curve, measured
@@ -68,6 +85,13 @@ impl FittedCut {
             kind,
             side,
             plunge,
+            clearing: Vec::new(),
+            lead_in: vec![Move::Line { to: start }],
+            overcut: Vec::new(),
+            lead_out: Vec::new(),
+            tabs: Vec::new(),
+            full_depth_only: false,
+            entry_room: 0.0,
             start,
             largest_kink_deg: moves::largest_kink_deg(start, &moves),
             moves,
@@ -83,6 +107,23 @@ impl FittedCut {
         std::iter::once(self.start)
             .chain(self.moves.iter().map(Move::end))
             .collect()
+    }
+
+    /// Where the lead-in begins: the end of the clearing, or the plunge point.
+    pub fn lead_in_start(&self) -> Point {
+        self.clearing.last().map_or(self.plunge, Move::end)
+    }
+
+    /// Where the lead-out begins: the end of the overcut, or the start.
+    pub fn lead_out_start(&self) -> Point {
+        self.overcut.last().map_or(self.start, Move::end)
+    }
+
+    /// Where the cut ends: the end of the lead-out, of the overcut, or the start.
+    pub fn end(&self) -> Point {
+        self.lead_out
+            .last()
+            .map_or(self.lead_out_start(), Move::end)
     }
 }
 
@@ -239,11 +280,40 @@ pub fn fit_cut(cut: &PlannedCut, options: &FitOptions) -> Result<FittedCut, FitE
             measured: sides.part_side,
         });
     }
+    let clearing = fit_clearing(cut, options)?;
+    let lead_in_from = clearing.last().map_or(cut.plunge, Move::end);
+    let lead_in = if cut.lead_in.is_empty() {
+        vec![Move::Line { to: start }]
+    } else {
+        elements_to_moves(&cut.lead_in, lead_in_from, Some(start), options)
+    };
+    let overcut = moves::leading_stretch(start, &moves, cut.overcut);
+    let lead_out_from = overcut.last().map_or(start, Move::end);
+    let lead_out = elements_to_moves(&cut.lead_out, lead_out_from, None, options);
+    let length = moves::total_length(start, &moves);
+    let tabs = cut
+        .tabs
+        .iter()
+        .map(|t| {
+            let mid = t.at.rem_euclid(1.0) * length;
+            (
+                (mid - 0.5 * t.length).max(0.0),
+                (mid + 0.5 * t.length).min(length),
+            )
+        })
+        .collect();
     Ok(FittedCut {
         name: cut.name.clone(),
         kind: cut.kind,
         side: cut.side,
         plunge: cut.plunge,
+        clearing,
+        lead_in,
+        overcut,
+        lead_out,
+        tabs,
+        full_depth_only: cut.full_depth_only,
+        entry_room: cut.entry_room,
         start,
         largest_kink_deg: moves::largest_kink_deg(start, &moves),
         moves,
@@ -291,6 +361,60 @@ fn fit_ellipse_parallel(
     } else {
         (first, moves)
     })
+}
+
+/// The clearing rings of a pocket as moves from the plunge point: a straight link to each ring's
+/// start, then the ring fitted like any path (within the tolerance of its exact curve).
+fn fit_clearing(cut: &PlannedCut, options: &FitOptions) -> Result<Vec<Move>, FitError> {
+    let mut out = Vec::new();
+    for ring in &cut.clearing {
+        let (first, ring_moves) = match ring {
+            ExactPath::EllipseParallel {
+                ellipse,
+                inset,
+                start,
+                clockwise,
+            } => fit_ellipse_parallel(ellipse, *inset, *start, *clockwise, options).ok_or_else(
+                || FitError::NoArcSpline {
+                    feature: cut.name.clone(),
+                    tolerance: options.tolerance,
+                },
+            )?,
+            ExactPath::Contour(c) => fit_contour(c, options),
+        };
+        out.push(Move::Line { to: first });
+        out.extend(ring_moves);
+    }
+    Ok(out)
+}
+
+/// Exact lead elements as moves from `from`: lines as lines, arcs as arcs (split below 180°) or,
+/// for lines only, band polygons within the tolerance. The last move ends exactly at `end` when
+/// given (the path's start), so that the lead meets the path without a gap.
+fn elements_to_moves(
+    elements: &[Element],
+    from: Point,
+    end: Option<Point>,
+    options: &FitOptions,
+) -> Vec<Move> {
+    let mut out = Vec::new();
+    let mut at = from;
+    let count = elements.len();
+    for (i, element) in elements.iter().enumerate() {
+        let to = match end {
+            Some(p) if i + 1 == count => p,
+            _ => element.end(),
+        };
+        match element {
+            Element::Line(_) => out.push(Move::Line { to }),
+            Element::Arc(a) => match options.moves {
+                MoveKind::Arcs => out.extend(exact_arc(a, to)),
+                MoveKind::Lines => out.extend(lines_through(&arc_polygon(a, at, to, options))),
+            },
+        }
+        at = to;
+    }
+    out
 }
 
 /// A contour as moves: lines as lines; arcs exactly ([`MoveKind::Arcs`], split so that each

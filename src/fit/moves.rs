@@ -138,6 +138,66 @@ pub fn total_length(start: Point, moves: &[Move]) -> f64 {
     sum
 }
 
+/// The move `m` (started at `from`) cut short at fraction `t` of its length: it ends at
+/// `m.point_at(from, t)`, or at `m`'s own end for `t ≥ 1`. A move's start is wherever the
+/// previous one ended, so the same function gives the remainder of a move cut earlier.
+fn ending_at(m: &Move, from: Point, t: f64) -> Move {
+    let to = if t >= 1.0 {
+        m.end()
+    } else {
+        m.point_at(from, t)
+    };
+    match *m {
+        Move::Line { .. } => Move::Line { to },
+        Move::Arc { center, ccw, .. } => Move::Arc { to, center, ccw },
+    }
+}
+
+/// The run of moves from `start` cut at the distances `at` along it (mm; values outside the run
+/// or not finite are ignored): the pieces between consecutive cuts, in order, each a run that
+/// starts where the one before ends. With no cuts, one piece: the whole run.
+pub fn split_at(start: Point, moves: &[Move], at: &[f64]) -> Vec<Vec<Move>> {
+    let mut cuts: Vec<f64> = at.iter().copied().filter(|d| d.is_finite()).collect();
+    cuts.sort_by(f64::total_cmp);
+    let mut pieces: Vec<Vec<Move>> = vec![Vec::new()];
+    let mut next = cuts.into_iter().peekable();
+    let mut from = start;
+    let mut walked = 0.0;
+    for m in moves {
+        let len = m.length(from);
+        while let Some(&d) = next.peek() {
+            if d <= walked {
+                next.next();
+                continue;
+            }
+            if d >= walked + len {
+                break;
+            }
+            let current = pieces.len() - 1;
+            pieces[current].push(ending_at(m, from, (d - walked) / len));
+            pieces.push(Vec::new());
+            next.next();
+        }
+        let current = pieces.len() - 1;
+        pieces[current].push(ending_at(m, from, 1.0));
+        walked += len;
+        from = m.end();
+    }
+    pieces
+}
+
+/// The first `length` (mm) of the run of moves from `start`, the last move cut short; empty for
+/// a length of zero or less, the whole run for one longer than it.
+pub fn leading_stretch(start: Point, moves: &[Move], length: f64) -> Vec<Move> {
+    if length.is_nan() || length <= 0.0 {
+        return Vec::new();
+    }
+    split_at(start, moves, &[length])
+        .into_iter()
+        .next()
+        .unwrap_or_default()
+}
+
 /// The largest change of direction between consecutive moves, in degrees (0 for a run that is
 /// tangent-continuous).
 pub fn largest_kink_deg(start: Point, moves: &[Move]) -> f64 {

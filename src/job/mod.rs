@@ -10,7 +10,7 @@ use crate::check;
 use crate::fit::{self, FitError};
 use crate::geom::{Ellipse, Point};
 use crate::jobfile::{CutKind, JobFile};
-use crate::plan::{self, PlanError, PlanOptions};
+use crate::plan::{self, Direction, LeadOptions, PlanError, PlanOptions, TabOptions};
 use crate::post::{self, MachineProfile, PostError, ProgramSettings};
 use crate::preview::{self, PreviewInput};
 use crate::read::{self, ReadError, ReadOptions, Units};
@@ -42,6 +42,20 @@ pub struct JobSettings {
     pub stepdown: Option<f64>,
     /// Ramp entry angle on a mill or router (degrees); `None` plunges straight down.
     pub ramp_angle_deg: Option<f64>,
+    /// With a ramp angle: a helical entry where the cut leaves room for one (the zig-zag
+    /// elsewhere).
+    pub helical_entry: bool,
+    /// Leads, overcut and lead-out; `None` uses the machine profile's.
+    pub leads: Option<LeadOptions>,
+    /// Climb (the default) or conventional milling.
+    pub direction: Direction,
+    /// Tabs on the outline, if any.
+    pub tabs: Option<TabOptions>,
+    /// Mills and routers: radial stock (mm) left by the roughing passes for one finishing pass
+    /// at full depth; `None`: no finishing pass.
+    pub finish_allowance: Option<f64>,
+    /// Pockets: distance between clearing rings (mm); `None`: 40 % of the tool diameter.
+    pub pocket_stepover: Option<f64>,
     /// Straight moves only (G1), no arcs.
     pub lines_only: bool,
     /// Keep all deviation on the scrap side of the exact curve (for edges that must not lose
@@ -235,12 +249,6 @@ pub fn run_job(
             list: failures.join("\n"),
         });
     }
-    if let Some(p) = solved.features.iter().find(|f| f.cut == CutKind::Pocket) {
-        return Err(JobError::PocketNotSupported {
-            file: file(),
-            feature: p.name.clone(),
-        });
-    }
     let part = &solved.part;
     let mut to_cut = Vec::new();
     let mut infos = Vec::new();
@@ -253,6 +261,7 @@ pub fn run_job(
                 CutKind::Boss => plan::CutSide::Outside,
                 CutKind::Hole | CutKind::Pocket => plan::CutSide::Inside,
             },
+            pocket: f.cut == CutKind::Pocket,
         });
         infos.push(SolvedInfo {
             name: f.name.clone(),
@@ -275,6 +284,11 @@ pub fn run_job(
         &to_cut,
         &PlanOptions {
             tool_diameter: s.tool_diameter,
+            leads: s.leads.unwrap_or(LeadOptions::STRAIGHT),
+            direction: s.direction,
+            tabs: s.tabs,
+            finish_allowance: s.finish_allowance,
+            pocket_stepover: s.pocket_stepover.unwrap_or(0.4 * s.tool_diameter),
         },
     )
     .map_err(|error| JobError::Plan {
@@ -363,6 +377,8 @@ pub fn run_job(
         spindle_speed: None,
         stepdown: s.stepdown,
         ramp_angle_deg: s.ramp_angle_deg,
+        helical_entry: s.helical_entry,
+        tab_height: s.tabs.map_or(0.0, |t| t.height),
     };
     let post_error = |error| JobError::Post {
         file: file(),

@@ -15,6 +15,8 @@ pub enum FeatureKind {
     Hole,
     /// The part's outer outline.
     Outline,
+    /// An elliptical pocket: cleared to the depth by rings, then finished along the edge.
+    Pocket,
 }
 
 /// Which side of the drawn edge the tool centre runs on.
@@ -42,15 +44,146 @@ pub struct Opening {
     /// The feature's name, e.g. `bay 1` or a name from the job file.
     pub name: String,
     pub ellipse: Ellipse,
-    /// `Inside` for a hole, `Outside` for a boss.
+    /// `Inside` for a hole or pocket, `Outside` for a boss.
     pub side: CutSide,
+    /// Clear the whole inside (a pocket), not just the edge; only with `Inside`.
+    pub pocket: bool,
 }
 
 /// Settings for planning.
 #[derive(Debug, Clone, PartialEq)]
 pub struct PlanOptions {
-    /// Cutter diameter (mm).
+    /// Cutter diameter (mm): the tool on a mill or router, the kerf width on a thermal or
+    /// waterjet table.
     pub tool_diameter: f64,
+    /// How the tool gets onto and off each contour.
+    pub leads: LeadOptions,
+    /// Climb or conventional (mills; thermal cuts keep the usual direction, which is the climb
+    /// sense).
+    pub direction: Direction,
+    /// Tabs (micro-joints) on the outline, if any.
+    pub tabs: Option<TabOptions>,
+    /// Mills and routers: leave this much (mm, radial) for a finishing pass at full depth; the
+    /// roughing cut runs at the tool radius plus this allowance. `None`: no finishing pass.
+    pub finish_allowance: Option<f64>,
+    /// Pockets: the distance between clearing rings (mm), at most the tool diameter.
+    pub pocket_stepover: f64,
+}
+
+impl PlanOptions {
+    /// The plan of earlier versions: a straight move from the plunge point to the path, no
+    /// overcut or lead-out, climb direction, no tabs, no finishing pass, pockets cleared at 40 %
+    /// of the tool diameter (common practice: 30–50 %).
+    pub fn plain(tool_diameter: f64) -> Self {
+        PlanOptions {
+            tool_diameter,
+            leads: LeadOptions::STRAIGHT,
+            direction: Direction::Climb,
+            tabs: None,
+            finish_allowance: None,
+            pocket_stepover: 0.4 * tool_diameter,
+        }
+    }
+}
+
+/// The shape of a lead-in (and of the lead-out, mirrored).
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum LeadKind {
+    /// A straight move from the plunge or pierce point to the path's start.
+    Straight,
+    /// A straight lead along the path's normal, `length` long.
+    Line,
+    /// A quarter-circle arc of `radius`, tangent to the path at its start.
+    Arc,
+    /// A straight line `length` long, then a quarter-circle arc of `radius` tangent to both.
+    LineArc,
+}
+
+/// Lead geometry: how the tool reaches and leaves the path, in the scrap.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+pub struct LeadOptions {
+    pub kind: LeadKind,
+    /// The straight part (mm).
+    pub length: f64,
+    /// The arc part's radius (mm).
+    pub radius: f64,
+    /// How far past the start the path is cut again before leaving (mm, zero or more).
+    pub overcut: f64,
+    /// Whether to leave by a lead-out (the lead-in's shape, mirrored) or stop on the path.
+    pub lead_out: bool,
+}
+
+impl LeadOptions {
+    /// A straight move in, no overcut, no lead-out.
+    pub const STRAIGHT: LeadOptions = LeadOptions {
+        kind: LeadKind::Straight,
+        length: 0.0,
+        radius: 0.0,
+        overcut: 0.0,
+        lead_out: false,
+    };
+}
+
+/// Which way the tool travels relative to the spindle's rotation (clockwise spindle, M3).
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum Direction {
+    /// Tool on the left of travel, scrap on the left: holes counter-clockwise, outlines
+    /// clockwise (NISTIR 6556 App. B.2.1).
+    Climb,
+    /// The other way round: for machines with backlash or scaly stock.
+    Conventional,
+}
+
+/// Where tabs go and how big they are.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+pub struct TabOptions {
+    /// How many tabs per outline; when `None`, `spacing` decides.
+    pub count: Option<usize>,
+    /// The distance between tabs along the path (mm), used when `count` is `None`.
+    pub spacing: f64,
+    /// Length of each tab along the path (mm), measured between the tool's edges.
+    pub width: f64,
+    /// Mills and routers: the tab's height above the floor of the cut (mm). Thermal and waterjet
+    /// tabs are gaps in the cut and have no height.
+    pub height: f64,
+}
+
+/// A stretch of a cut left uncut: raised to the tab height on a mill or router, the beam or jet
+/// off on the other kinds.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+pub struct Tab {
+    /// The tab's middle as a share of the path's length from its start (0 ≤ at < 1).
+    pub at: f64,
+    /// The length along the tool-centre path (mm) over which the tool does not cut: the tab's
+    /// width plus the tool's diameter.
+    pub length: f64,
+}
+
+/// The finished edge a cut makes: what leads, pierces and clearing moves must keep away from.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub enum Edge {
+    Ellipse(Ellipse),
+    Contour(Contour),
+}
+
+impl Edge {
+    /// The distance from `p` to the edge (mm).
+    pub fn distance_to(&self, p: Point) -> f64 {
+        match self {
+            Edge::Ellipse(e) => e.distance_to(p).0,
+            Edge::Contour(c) => c.distance_to(p),
+        }
+    }
+
+    /// Whether `p` is inside the closed edge.
+    pub fn contains(&self, p: Point) -> bool {
+        match self {
+            Edge::Ellipse(e) => e.contains(p),
+            Edge::Contour(c) => c.contains(p),
+        }
+    }
 }
 
 /// An exact tool-centre path.
@@ -92,9 +225,28 @@ pub struct PlannedCut {
     pub side: CutSide,
     /// The tool-centre path.
     pub path: ExactPath,
-    /// Where the tool enters the material (in the scrap); it then moves straight to the path's
-    /// start.
+    /// Where the tool enters the material (in the scrap).
     pub plunge: Point,
+    /// Pockets: the clearing rings, innermost first, cut before the lead-in. The tool feeds
+    /// straight from the plunge point to the first ring's start and from each ring's end to the
+    /// next ring's start.
+    pub clearing: Vec<ExactPath>,
+    /// Exact moves from the plunge point (or the last clearing ring's end) to the path's start;
+    /// empty for a straight move.
+    pub lead_in: Vec<Element>,
+    /// How far past the start the path is cut again after closing (mm).
+    pub overcut: f64,
+    /// Exact moves from the end of the overcut into the scrap; empty for none.
+    pub lead_out: Vec<Element>,
+    /// Stretches left uncut.
+    pub tabs: Vec<Tab>,
+    /// A finishing cut: made once, at the full depth, after the roughing passes.
+    pub full_depth_only: bool,
+    /// The finished edge this cut makes.
+    pub edge: Edge,
+    /// How far the tool centre may wander from the plunge point in every direction without
+    /// touching the finished edge (mm): room for a helical entry. Zero when there is none.
+    pub entry_room: f64,
 }
 
 impl PlannedCut {
@@ -107,26 +259,70 @@ impl PlannedCut {
     pub fn around_ellipse(name: &str, kind: FeatureKind, ellipse: Ellipse, inset: f64) -> Self {
         let outside = inset < 0.0;
         let axis = crate::geom::Vec2::from_angle(ellipse.angle());
-        PlannedCut {
-            name: name.to_string(),
+        PlannedCut::new(
+            name,
             kind,
-            side: if outside {
+            if outside {
                 CutSide::Outside
             } else {
                 CutSide::Inside
             },
-            path: ExactPath::EllipseParallel {
+            ExactPath::EllipseParallel {
                 ellipse,
                 inset,
                 start: 0.0,
                 clockwise: outside,
             },
-            plunge: if outside {
+            if outside {
                 ellipse.center() + axis * (ellipse.a() - 2.0 * inset)
             } else {
                 ellipse.center()
             },
+            Edge::Ellipse(ellipse),
+        )
+        .with_entry_room(inset.abs())
+    }
+
+    /// A cut along `path` entered at `plunge` by a straight move, making `edge`: no clearing,
+    /// leads, overcut or tabs, every pass, no entry room (see [`PlannedCut::with_entry_room`]).
+    pub fn new(
+        name: &str,
+        kind: FeatureKind,
+        side: CutSide,
+        path: ExactPath,
+        plunge: Point,
+        edge: Edge,
+    ) -> Self {
+        PlannedCut {
+            name: name.to_string(),
+            kind,
+            side,
+            path,
+            plunge,
+            clearing: Vec::new(),
+            lead_in: Vec::new(),
+            overcut: 0.0,
+            lead_out: Vec::new(),
+            tabs: Vec::new(),
+            full_depth_only: false,
+            edge,
+            entry_room: 0.0,
         }
+    }
+
+    /// Sets `entry_room` from the edge and the tool radius `r`: the plunge point's distance from
+    /// the finished edge less the tool radius, if the plunge point is on the scrap side.
+    pub fn with_entry_room(mut self, r: f64) -> Self {
+        let scrap_side = match self.side {
+            CutSide::Inside => self.edge.contains(self.plunge),
+            CutSide::Outside => !self.edge.contains(self.plunge),
+        };
+        self.entry_room = if scrap_side {
+            (self.edge.distance_to(self.plunge) - r).max(0.0)
+        } else {
+            0.0
+        };
+        self
     }
 }
 
@@ -329,13 +525,15 @@ fn plan_contour(
             }
         }
     };
-    Ok(PlannedCut {
-        name: name.to_string(),
+    Ok(PlannedCut::new(
+        name,
         kind,
         side,
-        path: ExactPath::Contour(path),
+        ExactPath::Contour(path),
         plunge,
-    })
+        Edge::Contour(contour.clone()),
+    )
+    .with_entry_room(r))
 }
 
 /// The centre and radius when the contour is one full circle.

@@ -46,6 +46,13 @@ pub struct ProgramSettings {
     /// `ceil(depth / stepdown)` passes, the last one to the full depth; `None` cuts the full
     /// depth in one pass. Unused by the other kinds.
     pub stepdown: Option<f64>,
+    /// With a ramp angle: enter by a helix about the plunge point where the cut leaves room for
+    /// one ([`helix_radius`]), by the zig-zag elsewhere. Unused by the other kinds.
+    pub helical_entry: bool,
+    /// Mills and routers: the height of tabs above the floor of the cut (mm); passes whose floor
+    /// lies below the tab top rise to it over each tab. Unused by the other kinds, whose tabs
+    /// are gaps.
+    pub tab_height: f64,
 }
 
 /// The floors of the passes (mm below the work zero, ascending in depth): every `stepdown` down
@@ -260,39 +267,46 @@ pub fn write_program(
         w.rapid_xy(units_point(units, cut.plunge));
         let done = match profile.cutter() {
             Cutter::Spindle(s) => {
-                w.rapid_z(s.retract_height);
-                // One pass per floor; after the first the tool is back at the contour's start,
-                // inside its own slot, and feeds straight down to the next floor there.
-                let mut done = None;
-                let a = units_point(units, cut.plunge);
-                let b = units_point(units, cut.start);
+                let floors = if cut.full_depth_only {
+                    vec![settings.depth]
+                } else {
+                    pass_depths(settings.depth, settings.stepdown)
+                };
+                let tab_top = -units.from_mm(settings.depth - settings.tab_height);
+                let mut done = Written::default();
                 let mut z_prev = 0.0;
-                for (k, depth) in pass_depths(settings.depth, settings.stepdown)
-                    .into_iter()
-                    .enumerate()
-                {
+                let passes = floors.len();
+                for (k, depth) in floors.into_iter().enumerate() {
                     let z = -units.from_mm(depth);
-                    match settings.ramp_angle_deg {
-                        Some(angle) => {
-                            if k == 0 {
-                                // Down to the top of the stock, then ramp into it.
-                                w.feed_z(0.0, plunge_feed);
-                            }
-                            w.ramp(a, b, k == 0, z_prev, z, angle, plunge_feed);
-                        }
-                        None => w.feed_z(z, plunge_feed),
+                    if passes > 1 {
+                        w.comment(&format!("pass {} of {passes}", k + 1));
                     }
+                    w.rapid_z(s.retract_height);
+                    w.rapid_xy(units_point(units, cut.plunge));
+                    // Down to the top of the stock, or to the floor the last pass left around
+                    // the plunge point, then into the new depth.
+                    if settings.ramp_angle_deg.is_some() {
+                        w.feed_z(z_prev, plunge_feed);
+                    }
+                    let consumed = w.enter(cut, settings, z_prev, z, plunge_feed)?;
+                    let tabs = if cut.tabs.is_empty() || z >= tab_top {
+                        None
+                    } else {
+                        Some((tab_top, z))
+                    };
+                    done = w.cut_runs(cut, consumed, cut_feed, tabs)?;
                     z_prev = z;
-                    done = Some(w.path(cut, cut_feed)?);
                 }
-                done.unwrap_or_default()
+                w.rapid_z(s.retract_height);
+                done
             }
             Cutter::Process(p) => {
                 w.rapid_z(p.pierce_height);
                 w.block(p.on.clone());
                 w.dwell(p.pierce_dwell);
                 w.feed_z(p.cut_height, plunge_feed);
-                let done = w.path(cut, cut_feed)?;
+                let gaps = (!cut.tabs.is_empty()).then_some(p);
+                let done = w.cut_runs_process(cut, cut_feed, plunge_feed, gaps)?;
                 w.block(p.off.clone());
                 done
             }
@@ -606,82 +620,36 @@ impl<'p> Writer<'p> {
         }
     }
 
-    /// A feed move to `p` while descending to `z` (a ramp leg).
-    fn feed_xyz(&mut self, p: Point, z: f64, feed: f64) {
-        let (x, y, back) = self.written_xy(p);
-        let zw = format_number(z, self.profile.z_decimals());
-        let f = self.feed_word(feed);
-        self.block(format!("G1 X{x} Y{y} Z{zw}{f}"));
-        self.xy = Some((x, y, back));
-        self.z = Some(zw);
-    }
-
-    /// Zig-zag ramp from `z_from` down to `z_to` along the entry line between `a` (the plunge
-    /// point) and `b` (the contour's start), starting at `start_at_a ? a : b` and always ending at
-    /// `b`. The legs number the fewest, of the right parity, that keep the descent no steeper
-    /// than `angle_deg`; a zero-length entry line falls back to a straight plunge.
-    #[allow(clippy::too_many_arguments)]
-    fn ramp(
-        &mut self,
-        a: Point,
-        b: Point,
-        start_at_a: bool,
-        z_from: f64,
-        z_to: f64,
-        angle_deg: f64,
-        feed: f64,
-    ) {
-        let d = a.distance(b);
-        let drop = z_from - z_to;
-        if d <= 1e-9 || drop <= 0.0 {
-            self.feed_z(z_to, feed);
-            return;
-        }
-        let needed = drop / angle_deg.to_radians().tan() / d;
-        let mut legs = needed.ceil().max(1.0) as usize;
-        // From a the count must be odd to end at b; from b, even.
-        let want_odd = start_at_a;
-        if (legs % 2 == 1) != want_odd {
-            legs += 1;
-        }
-        let mut at_a = start_at_a;
-        for k in 1..=legs {
-            let z = z_from - drop * k as f64 / legs as f64;
-            let target = if at_a { b } else { a };
-            self.feed_xyz(target, z, feed);
-            at_a = !at_a;
-        }
-    }
-
     /// A feed move to `p`; returns whether a move was written (false when it rounds to no move).
     fn feed_xy(&mut self, p: Point, feed: f64) -> bool {
         let (x, y, back) = self.written_xy(p);
-        self.feed_line(x, y, back, feed)
+        self.feed_move(x, y, back, None, feed, None)
     }
 
-    fn feed_line(&mut self, x: String, y: String, end: Point, feed: f64) -> bool {
-        if self.at(&x, &y) {
-            return false;
-        }
-        let f = self.feed_word(feed);
-        self.block(format!("G1 X{x} Y{y}{f}"));
-        self.xy = Some((x, y, end));
-        true
-    }
-
-    /// The feed move from the entry point to the path's start, then the path's moves.
-    fn path(&mut self, cut: &FittedCut, feed: f64) -> Result<Written, PostError> {
+    /// A run of feed moves from wherever the tool is (`from`, the run's exact start in mm),
+    /// lines as `G1`, arcs as `G2`/`G3` in centre format. With `z`, the run descends linearly
+    /// from the first to the second height (a ramp leg), each written block carrying its Z.
+    /// Returns what was written.
+    fn run(
+        &mut self,
+        feature: &str,
+        from: Point,
+        moves: &[Move],
+        feed: f64,
+        z: Option<(f64, f64)>,
+    ) -> Result<Written, PostError> {
         let units = self.profile.units();
         let mut done = Written::default();
-        if self.feed_xy(units_point(units, cut.start), feed) {
-            done.lines += 1;
-        }
-        let mut from = units_point(units, cut.start);
-        for m in &cut.moves {
+        let mut from = units_point(units, from);
+        let count = moves.len().max(1) as f64;
+        for (k, m) in moves.iter().enumerate() {
             let to = units_point(units, m.end());
+            // The height at share `share` of this move, for a ramp leg.
+            let z_at = |share: f64| z.map(|(z0, z1)| z0 + (z1 - z0) * (k as f64 + share) / count);
             match *m {
                 Move::Line { .. } => {
-                    if self.feed_xy(to, feed) {
+                    let (x, y, back) = self.written_xy(to);
+                    if self.feed_move(x, y, back, z_at(1.0), feed, None) {
                         done.lines += 1;
                     }
                 }
@@ -694,17 +662,19 @@ impl<'p> Writer<'p> {
                         .map_err(|broken| {
                             let (x, y, _) = self.written_xy(to);
                             PostError::ArcRadiusMismatch {
-                                feature: cut.name.clone(),
+                                feature: feature.to_string(),
                                 at: format!("X{x} Y{y}"),
                                 decimals: d,
                                 mismatch: format_number(broken.mismatch, d + 1),
                                 units,
                             }
                         })?;
-                    for piece in pieces {
+                    let n = pieces.len().max(1) as f64;
+                    for (p, piece) in pieces.into_iter().enumerate() {
+                        let zp = z_at((p + 1) as f64 / n);
                         match piece {
                             Piece::Line { x, y, end } => {
-                                if self.feed_line(x, y, end, feed) {
+                                if self.feed_move(x, y, end, zp, feed, None) {
                                     done.lines += 1;
                                 }
                             }
@@ -716,10 +686,8 @@ impl<'p> Writer<'p> {
                                 ccw,
                                 end,
                             } => {
-                                let f = self.feed_word(feed);
                                 let g = if ccw { "G3" } else { "G2" };
-                                self.block(format!("{g} X{x} Y{y} I{i} J{j}{f}"));
-                                self.xy = Some((x, y, end));
+                                self.feed_move(x, y, end, zp, feed, Some((g, i, j)));
                                 done.arcs += 1;
                             }
                         }
@@ -730,6 +698,289 @@ impl<'p> Writer<'p> {
         }
         Ok(done)
     }
+
+    /// One feed block to the written `x`, `y` (read back as `end`), descending to `z` if given,
+    /// as `G1`, or as the arc `(G2|G3, I, J)`. A straight move that rounds to no movement and
+    /// changes no height is left out; returns whether a block was written.
+    fn feed_move(
+        &mut self,
+        x: String,
+        y: String,
+        end: Point,
+        z: Option<f64>,
+        feed: f64,
+        arc: Option<(&str, String, String)>,
+    ) -> bool {
+        let zw = z.map(|v| format_number(v, self.profile.z_decimals()));
+        let z_changes = zw.is_some() && zw != self.z;
+        if arc.is_none() && self.at(&x, &y) && !z_changes {
+            return false;
+        }
+        let z_word = zw
+            .as_ref()
+            .filter(|_| z_changes)
+            .map_or(String::new(), |v| format!(" Z{v}"));
+        let f = self.feed_word(feed);
+        match arc {
+            Some((g, i, j)) => self.block(format!("{g} X{x} Y{y}{z_word} I{i} J{j}{f}")),
+            None => self.block(format!("G1 X{x} Y{y}{z_word}{f}")),
+        }
+        self.xy = Some((x, y, end));
+        if z_changes {
+            self.z = zw;
+        }
+        true
+    }
+
+    /// Into the material on a mill or router, at the plunge point, from `z_from` (where the tool
+    /// is) down to `z_to`: straight down without a ramp angle; with one, a helix about the plunge
+    /// point where the cut leaves room for it, otherwise a zig-zag along the first entry move
+    /// (the first clearing move or the first lead-in move), never steeper than the angle.
+    /// Returns how many entry moves the zig-zag has already made (0 or 1).
+    fn enter(
+        &mut self,
+        cut: &FittedCut,
+        settings: &ProgramSettings,
+        z_from: f64,
+        z_to: f64,
+        feed: f64,
+    ) -> Result<usize, PostError> {
+        let Some(angle) = settings.ramp_angle_deg else {
+            self.feed_z(z_to, feed);
+            return Ok(0);
+        };
+        let units = self.profile.units();
+        let drop = z_from - z_to;
+        if drop <= 0.0 {
+            return Ok(0);
+        }
+        let slope = angle.to_radians().tan();
+        if settings.helical_entry {
+            let radius = helix_radius(settings.tool_diameter);
+            if cut.entry_room >= radius {
+                self.helix(cut, radius, z_from, z_to, slope, feed)?;
+                return Ok(0);
+            }
+        }
+        let first = cut.clearing.first().or(cut.lead_in.first());
+        let Some(first) = first.copied() else {
+            self.feed_z(z_to, feed);
+            return Ok(0);
+        };
+        let length = units.from_mm(first.length(cut.plunge));
+        if length <= 1e-9 {
+            self.feed_z(z_to, feed);
+            return Ok(0);
+        }
+        // An odd number of legs ends at the move's end: forward, back, forward, ...
+        let mut legs = (drop / slope / length).ceil().max(1.0) as usize;
+        if legs.is_multiple_of(2) {
+            legs += 1;
+        }
+        let back = crate::fit::moves::reversed(cut.plunge, &[first]).1;
+        for k in 0..legs {
+            let z0 = z_from - drop * k as f64 / legs as f64;
+            let z1 = z_from - drop * (k + 1) as f64 / legs as f64;
+            if k % 2 == 0 {
+                self.run(&cut.name, cut.plunge, &[first], feed, Some((z0, z1)))?;
+            } else {
+                self.run(&cut.name, first.end(), &back, feed, Some((z0, z1)))?;
+            }
+        }
+        Ok(1)
+    }
+
+    /// A helical entry about the plunge point: out to the helix at `radius` (mm), round it in
+    /// half-turn arcs descending no steeper than `slope` to `z_to`, once more round at the
+    /// floor, and back to the plunge point.
+    fn helix(
+        &mut self,
+        cut: &FittedCut,
+        radius: f64,
+        z_from: f64,
+        z_to: f64,
+        slope: f64,
+        feed: f64,
+    ) -> Result<(), PostError> {
+        let units = self.profile.units();
+        let c = cut.plunge;
+        let east = Point::new(c.x + radius, c.y);
+        let west = Point::new(c.x - radius, c.y);
+        // Counter-clockwise: climb milling on the helix wall with a clockwise spindle.
+        let half_turn = units.from_mm(std::f64::consts::PI * radius);
+        let drop = z_from - z_to;
+        let halves = (drop / slope / half_turn).ceil().max(1.0) as usize;
+        self.feed_xy(units_point(units, east), feed);
+        let mut at = east;
+        for k in 0..halves {
+            let to = if at == east { west } else { east };
+            let z0 = z_from - drop * k as f64 / halves as f64;
+            let z1 = z_from - drop * (k + 1) as f64 / halves as f64;
+            let arc = Move::Arc {
+                to,
+                center: c,
+                ccw: true,
+            };
+            self.run(&cut.name, at, &[arc], feed, Some((z0, z1)))?;
+            at = to;
+        }
+        // Once round at the floor to clear the helix's bottom, then back to the centre.
+        for _ in 0..2 {
+            let to = if at == east { west } else { east };
+            let arc = Move::Arc {
+                to,
+                center: c,
+                ccw: true,
+            };
+            self.run(&cut.name, at, &[arc], feed, None)?;
+            at = to;
+        }
+        self.feed_xy(units_point(units, c), feed);
+        Ok(())
+    }
+
+    /// The runs of a cut at one depth on a mill or router: the clearing and the lead-in (less the
+    /// `skip` entry moves the ramp already made), the contour (rising to the tab top over each
+    /// tab when `tabs` gives the tab top and the floor), the overcut and the lead-out, each after
+    /// a comment naming it. Returns what the contour took.
+    fn cut_runs(
+        &mut self,
+        cut: &FittedCut,
+        skip: usize,
+        feed: f64,
+        tabs: Option<(f64, f64)>,
+    ) -> Result<Written, PostError> {
+        let name = &cut.name;
+        let skip_clearing = skip.min(cut.clearing.len());
+        let skip_lead = skip - skip_clearing;
+        if cut.clearing.len() > skip_clearing {
+            self.comment("clearing");
+            let from = if skip_clearing == 0 {
+                cut.plunge
+            } else {
+                cut.clearing[skip_clearing - 1].end()
+            };
+            self.run(name, from, &cut.clearing[skip_clearing..], feed, None)?;
+        }
+        if cut.lead_in.len() > skip_lead {
+            self.comment("lead-in");
+            let from = if skip_lead == 0 {
+                cut.lead_in_start()
+            } else {
+                cut.lead_in[skip_lead - 1].end()
+            };
+            self.run(name, from, &cut.lead_in[skip_lead..], feed, None)?;
+        }
+        self.comment("contour");
+        let done = match tabs {
+            None => self.run(name, cut.start, &cut.moves, feed, None)?,
+            Some((top, floor)) => {
+                let mut done = Written::default();
+                let (pieces, inside) = tab_pieces(cut);
+                let mut from = cut.start;
+                for (piece, in_tab) in pieces.iter().zip(inside) {
+                    if in_tab {
+                        self.feed_z(top, feed);
+                    }
+                    let w = self.run(name, from, piece, feed, None)?;
+                    done.lines += w.lines;
+                    done.arcs += w.arcs;
+                    if in_tab {
+                        self.feed_z(floor, feed);
+                    }
+                    from = piece.last().map_or(from, Move::end);
+                }
+                done
+            }
+        };
+        self.leave(cut, feed)?;
+        Ok(done)
+    }
+
+    /// The overcut and the lead-out, each after a comment naming it.
+    fn leave(&mut self, cut: &FittedCut, feed: f64) -> Result<(), PostError> {
+        if !cut.overcut.is_empty() {
+            self.comment("overcut");
+            self.run(&cut.name, cut.start, &cut.overcut, feed, None)?;
+        }
+        if !cut.lead_out.is_empty() {
+            self.comment("lead-out");
+            self.run(&cut.name, cut.lead_out_start(), &cut.lead_out, feed, None)?;
+        }
+        Ok(())
+    }
+
+    /// The runs of a cut on a laser, plasma table or waterjet, the process already on at the
+    /// pierce point: the lead-in, the contour (with `gaps`, the process off over each tab, moved
+    /// across at the pierce height and pierced again after it), the overcut and the lead-out.
+    fn cut_runs_process(
+        &mut self,
+        cut: &FittedCut,
+        feed: f64,
+        down_feed: f64,
+        gaps: Option<&Process>,
+    ) -> Result<Written, PostError> {
+        let name = &cut.name;
+        if !cut.lead_in.is_empty() {
+            self.comment("lead-in");
+            self.run(name, cut.lead_in_start(), &cut.lead_in, feed, None)?;
+        }
+        self.comment("contour");
+        let done = match gaps {
+            None => self.run(name, cut.start, &cut.moves, feed, None)?,
+            Some(p) => {
+                let mut done = Written::default();
+                let (pieces, inside) = tab_pieces(cut);
+                let mut from = cut.start;
+                for (piece, in_tab) in pieces.iter().zip(inside) {
+                    if in_tab {
+                        self.block(p.off.clone());
+                        self.rapid_z(p.pierce_height);
+                    }
+                    let w = self.run(name, from, piece, feed, None)?;
+                    done.lines += w.lines;
+                    done.arcs += w.arcs;
+                    if in_tab {
+                        self.block(p.on.clone());
+                        self.dwell(p.pierce_dwell);
+                        self.feed_z(p.cut_height, down_feed);
+                    }
+                    from = piece.last().map_or(from, Move::end);
+                }
+                done
+            }
+        };
+        self.leave(cut, feed)?;
+        Ok(done)
+    }
+}
+
+/// The radius of a helical entry's path (mm) for a tool of diameter `d`: a quarter of the
+/// diameter, so that the helix cuts a bore of 1.5 d and leaves no core under a tool that does not
+/// cut at its centre (common practice: helix diameter at least half the tool's,
+/// STANDARDS-AND-PRACTICE §4.3).
+pub fn helix_radius(d: f64) -> f64 {
+    0.25 * d
+}
+
+/// The contour of `cut` cut at its tab spans: the pieces in order, and for each whether it lies
+/// over a tab.
+fn tab_pieces(cut: &FittedCut) -> (Vec<Vec<Move>>, Vec<bool>) {
+    let at: Vec<f64> = cut.tabs.iter().flat_map(|&(a, b)| [a, b]).collect();
+    let pieces = crate::fit::moves::split_at(cut.start, &cut.moves, &at);
+    // Piece k starts at the k-th cut; odd cuts open a tab, even ones close it. A cut at the
+    // very start or end of the run makes no piece, so walk the lengths instead of counting.
+    let mut inside = Vec::with_capacity(pieces.len());
+    let mut from = cut.start;
+    let mut walked = 0.0;
+    for piece in &pieces {
+        let len = crate::fit::moves::total_length(from, piece);
+        let mid = walked + 0.5 * len;
+        inside.push(cut.tabs.iter().any(|&(a, b)| mid > a && mid < b));
+        walked += len;
+        from = piece.last().map_or(from, Move::end);
+    }
+    (pieces, inside)
 }
 
 /// A dwell of `seconds` as the `P` value in `unit`: seconds with 2 decimals, milliseconds
@@ -881,6 +1132,7 @@ fn kind_word(kind: FeatureKind) -> &'static str {
         FeatureKind::Boss => "elliptical boss",
         FeatureKind::Hole => "hole",
         FeatureKind::Outline => "outline",
+        FeatureKind::Pocket => "elliptical pocket",
     }
 }
 

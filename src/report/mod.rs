@@ -265,6 +265,7 @@ impl Report {
                 FeatureKind::Boss => "boss",
                 FeatureKind::Hole => "hole",
                 FeatureKind::Outline => "outline",
+                FeatureKind::Pocket => "pocket",
             };
             let side = match f.cut_side {
                 CutSide::Inside => "inside",
