@@ -4,9 +4,9 @@ use anyhow::{Context, Result, bail};
 use clap::{Args, Parser, Subcommand};
 use conicut::chain::{DEFAULT_BAY_LAYER, DEFAULT_GAP_TOLERANCE};
 use conicut::geom::Point;
-use conicut::job::{JobOutput, JobSettings, run_job, solve_job};
+use conicut::job::{JobOutput, JobSettings, LeadRequest, TabRequest, run_job, solve_job};
 use conicut::jobfile::{FeatureSource, FitPoints, JobFile, parse_job_file};
-use conicut::plan::Direction;
+use conicut::plan::{Direction, LeadKind};
 use conicut::post::{BUNDLED_PROFILES, MachineProfile};
 use conicut::read::Units;
 use conicut::read::parse_points_csv;
@@ -134,6 +134,35 @@ struct CutArgs {
     /// Pockets: distance between clearing rings (mm). Default: 40 % of the tool diameter.
     #[arg(long, allow_negative_numbers = true)]
     stepover: Option<f64>,
+    /// The lead-in's shape: straight (a straight move from the plunge or pierce point), line,
+    /// arc, or line-arc. Default: the machine profile's.
+    #[arg(long, value_enum)]
+    lead: Option<LeadArg>,
+    /// Length of the lead's straight part (mm). Default: the machine profile's.
+    #[arg(long, allow_negative_numbers = true)]
+    lead_length: Option<f64>,
+    /// Radius of the lead's arc (mm). Default: the machine profile's.
+    #[arg(long, allow_negative_numbers = true)]
+    lead_radius: Option<f64>,
+    /// Cut this far past the start again before leaving (mm). Default: the machine profile's.
+    #[arg(long, allow_negative_numbers = true)]
+    overcut: Option<f64>,
+    /// Stop on the contour instead of leaving by a lead-out.
+    #[arg(long)]
+    no_lead_out: bool,
+    /// Tabs on the outline: this many, spread along it.
+    #[arg(long)]
+    tabs: Option<usize>,
+    /// Tabs on the outline: one about every this many mm along it.
+    #[arg(long, allow_negative_numbers = true)]
+    tab_spacing: Option<f64>,
+    /// Length of each tab along the edge (mm). Default by kind of machine.
+    #[arg(long, allow_negative_numbers = true)]
+    tab_width: Option<f64>,
+    /// Mills and routers: height of each tab above the floor of the cut (mm). Default by kind
+    /// of machine.
+    #[arg(long, allow_negative_numbers = true)]
+    tab_height: Option<f64>,
     /// Straight moves (G1) only, no arcs (G2/G3).
     #[arg(long)]
     lines_only: bool,
@@ -149,6 +178,15 @@ enum EntryArg {
     Helix,
     Zigzag,
     Straight,
+}
+
+/// The lead-in's shape.
+#[derive(clap::ValueEnum, Clone, Copy, Debug, PartialEq, Eq)]
+enum LeadArg {
+    Straight,
+    Line,
+    Arc,
+    LineArc,
 }
 
 /// Climb or conventional milling.
@@ -236,12 +274,30 @@ fn settings(file_name: String, input: &DrawingArgs, cut: Option<&CutArgs>) -> Re
             .filter(|c| c.entry != EntryArg::Straight)
             .map(|c| c.ramp_angle),
         helical_entry: cut.is_none_or(|c| c.entry == EntryArg::Helix),
-        leads: None,
+        leads: cut.map_or_else(LeadRequest::default, |c| LeadRequest {
+            kind: c.lead.map(|l| match l {
+                LeadArg::Straight => LeadKind::Straight,
+                LeadArg::Line => LeadKind::Line,
+                LeadArg::Arc => LeadKind::Arc,
+                LeadArg::LineArc => LeadKind::LineArc,
+            }),
+            length: c.lead_length,
+            radius: c.lead_radius,
+            overcut: c.overcut,
+            lead_out: c.no_lead_out.then_some(false),
+        }),
         direction: match cut.map(|c| c.direction) {
             Some(DirectionArg::Conventional) => Direction::Conventional,
             _ => Direction::Climb,
         },
-        tabs: None,
+        tabs: cut
+            .filter(|c| c.tabs.is_some() || c.tab_spacing.is_some())
+            .map(|c| TabRequest {
+                count: c.tabs,
+                spacing: c.tab_spacing,
+                width: c.tab_width,
+                height: c.tab_height,
+            }),
         finish_allowance: cut.and_then(|c| c.finish_allowance),
         pocket_stepover: cut.and_then(|c| c.stepover),
         lines_only: cut.is_some_and(|c| c.lines_only),

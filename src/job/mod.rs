@@ -10,7 +10,7 @@ use crate::check;
 use crate::fit::{self, FitError};
 use crate::geom::{Ellipse, Point};
 use crate::jobfile::{CutKind, JobFile};
-use crate::plan::{self, Direction, LeadOptions, PlanError, PlanOptions, TabOptions};
+use crate::plan::{self, Direction, LeadKind, LeadOptions, PlanError, PlanOptions, TabOptions};
 use crate::post::{self, MachineProfile, PostError, ProgramSettings};
 use crate::preview::{self, PreviewInput};
 use crate::read::{self, ReadError, ReadOptions, Units};
@@ -45,12 +45,13 @@ pub struct JobSettings {
     /// With a ramp angle: a helical entry where the cut leaves room for one (the zig-zag
     /// elsewhere).
     pub helical_entry: bool,
-    /// Leads, overcut and lead-out; `None` uses the machine profile's.
-    pub leads: Option<LeadOptions>,
+    /// Leads, overcut and lead-out the user asked for; what is not given comes from the machine
+    /// profile.
+    pub leads: LeadRequest,
     /// Climb (the default) or conventional milling.
     pub direction: Direction,
     /// Tabs on the outline, if any.
-    pub tabs: Option<TabOptions>,
+    pub tabs: Option<TabRequest>,
     /// Mills and routers: radial stock (mm) left by the roughing passes for one finishing pass
     /// at full depth; `None`: no finishing pass.
     pub finish_allowance: Option<f64>,
@@ -66,6 +67,32 @@ pub struct JobSettings {
     pub job: Option<JobFile>,
     /// Points read from the CSV files the job file names, by the path as written there (mm).
     pub csv_points: BTreeMap<String, Vec<Point>>,
+}
+
+/// Lead settings the user gave (`None`: the machine profile's).
+#[derive(Debug, Clone, Copy, PartialEq, Default)]
+pub struct LeadRequest {
+    pub kind: Option<LeadKind>,
+    /// The straight part (mm).
+    pub length: Option<f64>,
+    /// The arc part's radius (mm).
+    pub radius: Option<f64>,
+    /// Overcut past the start (mm).
+    pub overcut: Option<f64>,
+    /// Whether to leave by a lead-out.
+    pub lead_out: Option<bool>,
+}
+
+/// Tabs the user asked for: a count or a spacing; width and height default by kind of machine.
+#[derive(Debug, Clone, Copy, PartialEq, Default)]
+pub struct TabRequest {
+    pub count: Option<usize>,
+    /// Distance between tabs along the outline (mm).
+    pub spacing: Option<f64>,
+    /// Length of each tab along the edge (mm).
+    pub width: Option<f64>,
+    /// Mills and routers: height above the floor of the cut (mm).
+    pub height: Option<f64>,
 }
 
 /// Everything the job produces.
@@ -224,6 +251,28 @@ fn unused_warnings(bays: &[String]) -> Vec<String> {
         .collect()
 }
 
+/// The leads to use: what the user gave, the rest from the profile.
+fn resolve_leads(r: &LeadRequest, _profile: &MachineProfile) -> LeadOptions {
+    let base = LeadOptions::STRAIGHT;
+    LeadOptions {
+        kind: r.kind.unwrap_or(base.kind),
+        length: r.length.unwrap_or(base.length),
+        radius: r.radius.unwrap_or(base.radius),
+        overcut: r.overcut.unwrap_or(base.overcut),
+        lead_out: r.lead_out.unwrap_or(base.lead_out),
+    }
+}
+
+/// The tabs to use: what the user gave, width and height by kind of machine otherwise.
+fn resolve_tabs(t: &TabRequest, _profile: &MachineProfile) -> TabOptions {
+    TabOptions {
+        count: t.count,
+        spacing: t.spacing.unwrap_or(0.0),
+        width: t.width.unwrap_or(0.0),
+        height: t.height.unwrap_or(0.0),
+    }
+}
+
 /// Runs the whole job.
 pub fn run_job(
     dxf: &[u8],
@@ -284,9 +333,9 @@ pub fn run_job(
         &to_cut,
         &PlanOptions {
             tool_diameter: s.tool_diameter,
-            leads: s.leads.unwrap_or(LeadOptions::STRAIGHT),
+            leads: resolve_leads(&s.leads, profile),
             direction: s.direction,
-            tabs: s.tabs,
+            tabs: s.tabs.map(|t| resolve_tabs(&t, profile)),
             finish_allowance: s.finish_allowance,
             pocket_stepover: s.pocket_stepover.unwrap_or(0.4 * s.tool_diameter),
         },
@@ -378,7 +427,7 @@ pub fn run_job(
         stepdown: s.stepdown,
         ramp_angle_deg: s.ramp_angle_deg,
         helical_entry: s.helical_entry,
-        tab_height: s.tabs.map_or(0.0, |t| t.height),
+        tab_height: s.tabs.map_or(0.0, |t| resolve_tabs(&t, profile).height),
     };
     let post_error = |error| JobError::Post {
         file: file(),

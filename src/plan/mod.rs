@@ -29,7 +29,10 @@ pub enum CutSide {
     Outside,
 }
 
+pub mod leads;
 pub mod offset;
+pub mod pocket;
+pub mod tabs;
 
 use crate::chain::{Contour, Element, HoleShape, Part};
 use crate::geom::{Ellipse, Point};
@@ -389,6 +392,11 @@ pub fn plan_cuts(part: &Part, openings: &[Opening], opts: &PlanOptions) -> Resul
     let mut inner = Vec::new();
     for o in openings {
         inner.push(match o.side {
+            CutSide::Inside if o.pocket => {
+                let mut cut = plan_ellipse(&o.name, FeatureKind::Pocket, &o.ellipse, r, d)?;
+                cut.clearing = pocket::clearing_rings(&o.name, &o.ellipse, r, opts)?;
+                cut
+            }
             CutSide::Inside => plan_ellipse(&o.name, FeatureKind::Opening, &o.ellipse, r, d)?,
             CutSide::Outside => plan_ellipse_boss(&o.name, &o.ellipse, r),
         });
@@ -427,7 +435,11 @@ pub fn plan_cuts(part: &Part, openings: &[Opening], opts: &PlanOptions) -> Resul
             d,
             &mut warnings,
         )?);
+        if let (Some(tabs), Some(last)) = (&opts.tabs, cuts.last_mut()) {
+            last.tabs = tabs::place_tabs(last, tabs, opts, &mut warnings)?;
+        }
     }
+    leads::add_leads(&mut cuts, opts, &mut warnings)?;
     Ok(Plan { cuts, warnings })
 }
 
