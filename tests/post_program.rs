@@ -334,6 +334,31 @@ fn points_outside_the_travel_envelope_are_refused() {
         ),
         "{err:?}"
     );
+
+    // A lead-out that swings outside the envelope though both its ends are inside: clockwise
+    // about (5, 12) from (5, -4) to (5, 28), radius 16, it passes X = -11, below the -10 mm
+    // limit. Every run of a cut is checked, arcs by their extremes.
+    let mut cut = square_cut("hole 5", 10.0, 10.0, 5.0);
+    cut.lead_out = vec![conicut::fit::Move::Arc {
+        to: Point::new(5.0, 28.0),
+        center: Point::new(5.0, 12.0),
+        ccw: false,
+    }];
+    cut.overcut = vec![conicut::fit::Move::Line {
+        to: Point::new(5.0, -4.0),
+    }];
+    let err = write_program(&[cut], &mill(), &settings()).unwrap_err();
+    assert!(
+        matches!(
+            &err,
+            PostError::OutsideEnvelope {
+                what: "an arc of the tool path",
+                axis: 'X',
+                ..
+            }
+        ),
+        "{err:?}"
+    );
 }
 
 #[test]

@@ -160,6 +160,10 @@ struct Resolved {
     spindle_speed: f64,
     /// The floor of a mill or router cut (negative); unused by the other kinds.
     floor: f64,
+    /// The tool diameter (mm), for the helix's reach.
+    tool_diameter: f64,
+    /// Whether entries may be helical.
+    helical: bool,
 }
 
 /// What was written for one cut, for the header.
@@ -239,6 +243,8 @@ pub fn write_program(
         plunge_feed,
         spindle_speed,
         floor: -units.from_mm(settings.depth),
+        tool_diameter: settings.tool_diameter,
+        helical: settings.helical_entry && settings.ramp_angle_deg.is_some(),
     };
     for cut in cuts {
         check_cut(cut, profile, &r)?;
@@ -427,7 +433,18 @@ fn check_cut(cut: &FittedCut, profile: &MachineProfile, r: &Resolved) -> Result<
             points: cut.moves.len() + 1,
         });
     }
-    let has_arcs = cut.moves.iter().any(|m| matches!(m, Move::Arc { .. }));
+    // Every run of the cut from where it starts: the clearing and lead-in from the plunge
+    // point, the contour and overcut from the start, the lead-out from the overcut's end.
+    let runs: [(Point, &[Move]); 5] = [
+        (cut.plunge, &cut.clearing),
+        (cut.lead_in_start(), &cut.lead_in),
+        (cut.start, &cut.moves),
+        (cut.start, &cut.overcut),
+        (cut.lead_out_start(), &cut.lead_out),
+    ];
+    let has_arcs = runs
+        .iter()
+        .any(|(_, run)| run.iter().any(|m| matches!(m, Move::Arc { .. })));
     if has_arcs && profile.arc_form() == ArcForm::LinesOnly {
         return Err(PostError::ArcsNotAllowed {
             feature: cut.name.clone(),
@@ -440,11 +457,14 @@ fn check_cut(cut: &FittedCut, profile: &MachineProfile, r: &Resolved) -> Result<
             what: "the plunge point",
         });
     }
-    let centres_finite = cut.moves.iter().all(|m| match m {
-        Move::Arc { center, .. } => center.is_finite(),
-        Move::Line { .. } => true,
+    let all_finite = runs.iter().all(|(from, run)| {
+        from.is_finite()
+            && run.iter().all(|m| match m {
+                Move::Arc { to, center, .. } => to.is_finite() && center.is_finite(),
+                Move::Line { to } => to.is_finite(),
+            })
     });
-    if !(cut.end_points().iter().all(|p| p.is_finite()) && centres_finite) {
+    if !all_finite {
         return Err(PostError::NotFinite {
             feature: cut.name.clone(),
             what: "the path",
@@ -488,27 +508,38 @@ fn check_cut(cut: &FittedCut, profile: &MachineProfile, r: &Resolved) -> Result<
     };
     check(entry, 'X', plunge.x)?;
     check(entry, 'Y', plunge.y)?;
-    let mut from = units_point(units, cut.start);
-    check("the tool path", 'X', from.x)?;
-    check("the tool path", 'Y', from.y)?;
-    for m in &cut.moves {
-        let (what, points) = match *m {
-            Move::Line { to } => ("the tool path", vec![units_point(units, to)]),
-            Move::Arc { to, center, ccw } => (
-                "an arc of the tool path",
-                arc_extremes(
-                    from,
-                    units_point(units, to),
-                    units_point(units, center),
-                    ccw,
+    for (start, run) in runs {
+        let mut from = units_point(units, start);
+        check("the tool path", 'X', from.x)?;
+        check("the tool path", 'Y', from.y)?;
+        for m in run {
+            let (what, points) = match *m {
+                Move::Line { to } => ("the tool path", vec![units_point(units, to)]),
+                Move::Arc { to, center, ccw } => (
+                    "an arc of the tool path",
+                    arc_extremes(
+                        from,
+                        units_point(units, to),
+                        units_point(units, center),
+                        ccw,
+                    ),
                 ),
-            ),
-        };
-        for q in &points {
-            check(what, 'X', q.x)?;
-            check(what, 'Y', q.y)?;
+            };
+            for q in &points {
+                check(what, 'X', q.x)?;
+                check(what, 'Y', q.y)?;
+            }
+            from = units_point(units, m.end());
         }
-        from = units_point(units, m.end());
+    }
+    // A helical entry reaches one helix radius round the plunge point.
+    let helix = helix_radius(r.tool_diameter);
+    if profile.spindle().is_some() && r.helical && cut.entry_room >= helix {
+        let reach = units.from_mm(helix);
+        for (dx, dy) in [(reach, 0.0), (-reach, 0.0), (0.0, reach), (0.0, -reach)] {
+            check("the helical entry", 'X', plunge.x + dx)?;
+            check("the helical entry", 'Y', plunge.y + dy)?;
+        }
     }
     Ok(())
 }
