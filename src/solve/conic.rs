@@ -420,7 +420,9 @@ pub fn ellipse_from_conjugate_semi_diameters(
         return Err(dependent);
     }
     let svd = Matrix2::new(p.x, q.x, p.y, q.y).svd(true, false);
-    let u = svd.u.expect("requested U");
+    let Some(u) = svd.u else {
+        return Err(dependent);
+    };
     let sv = svd.singular_values;
     let (major, minor) = if sv[0] >= sv[1] { (0, 1) } else { (1, 0) };
     let angle = u[(1, major)].atan2(u[(0, major)]);
