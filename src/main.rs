@@ -260,6 +260,15 @@ fn settings(file_name: String, input: &DrawingArgs, cut: Option<&CutArgs>) -> Re
         }
         None => (None, BTreeMap::new()),
     };
+    if let Some(c) = cut {
+        let sized = c.tab_width.is_some() || c.tab_height.is_some();
+        if sized && c.tabs.is_none() && c.tab_spacing.is_none() {
+            bail!(
+                "--tab-width and --tab-height size tabs, but no tabs were asked for: add --tabs N or \
+                 --tab-spacing MM"
+            );
+        }
+    }
     Ok(JobSettings {
         file_name,
         units: input.units,

@@ -120,20 +120,29 @@ impl Contour {
             .fold(f64::INFINITY, f64::min)
     }
 
-    /// Whether `p` lies inside the contour (non-zero winding number). Points on the contour
-    /// itself may go either way.
+    /// Whether `p` lies inside the contour (non-zero winding number), exactly for arcs too.
+    /// Points on the contour itself may go either way.
+    ///
+    /// A line adds the angle it subtends at `p`. An arc adds the angle its chord subtends, plus
+    /// one turn in the arc's sense when `p` lies in the region between the chord and the arc
+    /// (inside the circle, on the arc's side of the chord): the closed loop "arc, then chord
+    /// back" winds once round exactly those points.
     pub fn contains(&self, p: Point) -> bool {
-        // Winding number by summing the angle each piece subtends at p.
         let mut total = 0.0;
         for e in &self.elements {
             match e {
                 Element::Line(s) => total += angle_between(s.start - p, s.end - p),
                 Element::Arc(a) => {
-                    let n = (a.sweep.abs() / 0.5).ceil().max(1.0) as usize;
-                    for i in 0..n {
-                        let q0 = a.point_at(i as f64 / n as f64);
-                        let q1 = a.point_at((i + 1) as f64 / n as f64);
-                        total += angle_between(q0 - p, q1 - p);
+                    let (s, t) = (a.start_point(), a.end_point());
+                    let full = a.is_full_circle();
+                    if !full {
+                        total += angle_between(s - p, t - p);
+                    }
+                    if p.distance(a.center) < a.radius {
+                        let side = |q: Point| (t - s).cross(q - s);
+                        if full || side(p) * side(a.point_at(0.5)) > 0.0 {
+                            total += std::f64::consts::TAU * a.sweep.signum();
+                        }
                     }
                 }
             }

@@ -28,14 +28,17 @@ fn samples_for(piece: &Element) -> usize {
 /// of the point of largest deviation, so for a chord the estimate is within about 0.4 % of the
 /// true maximum (the sagitta profile is parabolic); arcs get 64 samples, 32 or so per error lobe.
 pub fn measure_deviation(start: Point, moves: &[Move], exact: &ExactPath) -> f64 {
-    measure_both(start, moves, exact).0
+    measure_with_sides(start, moves, exact, true).0
 }
 
-/// [`measure_deviation`] and [`measure_sides`] from one sampling of the moves.
-pub(crate) fn measure_both(
+/// [`measure_deviation`] and the deviation on each side from one sampling of the moves, with
+/// the scrap on the left of travel when `scrap_left` (a climb cut) and on the right otherwise (a
+/// conventional cut): see [`measure_sides`].
+pub fn measure_with_sides(
     start: Point,
     moves: &[Move],
     exact: &ExactPath,
+    scrap_left: bool,
 ) -> (f64, SideDeviation) {
     let mut sides = SideDeviation {
         scrap_side: 0.0,
@@ -49,6 +52,7 @@ pub(crate) fn measure_both(
         let n = samples_for(piece);
         for k in 0..=n {
             let d = signed_distance_to_exact(exact, piece_point(piece, k as f64 / n as f64));
+            let d = if scrap_left { d } else { -d };
             if d > 0.0 {
                 sides.scrap_side = sides.scrap_side.max(d);
             } else {
@@ -117,8 +121,8 @@ fn curve_samples(exact: &ExactPath, count: usize) -> Vec<Point> {
     }
 }
 
-/// Distance from `p` to the exact curve, positive when `p` lies on the scrap side (left of travel:
-/// every planned cut keeps the scrap on its left), negative on the part side.
+/// Distance from `p` to the exact curve, positive when `p` lies on the left of travel (the scrap
+/// side of a climb cut), negative on the right.
 fn signed_distance_to_exact(exact: &ExactPath, p: Point) -> f64 {
     match exact {
         ExactPath::EllipseParallel {
@@ -140,16 +144,16 @@ fn signed_distance_to_exact(exact: &ExactPath, p: Point) -> f64 {
                 }
             }
             let (distance, t) = best;
-            // Outward along the common normal; the scrap is inside for a counter-clockwise run,
-            // outside for a clockwise one.
+            // Outward along the common normal; the left of travel is inside for a
+            // counter-clockwise run, outside for a clockwise one.
             let outward =
                 (p - ellipse.inward_offset_point(t, *inset)).dot(ellipse.outward_normal(t));
-            let scrap = if *clockwise {
+            let left = if *clockwise {
                 outward > 0.0
             } else {
                 outward < 0.0
             };
-            if scrap { distance } else { -distance }
+            if left { distance } else { -distance }
         }
         ExactPath::Contour(c) => {
             // The side of the nearest piece: left of a line's direction; inside the circle of a
@@ -174,20 +178,23 @@ fn signed_distance_to_exact(exact: &ExactPath, p: Point) -> f64 {
 #[derive(Debug, Clone, Copy, PartialEq, Serialize)]
 pub struct SideDeviation {
     /// The largest distance of a point of the moves from the exact curve on the scrap side (the
-    /// left of travel), mm; 0 when no point lies there.
+    /// left of travel for a climb cut, the right for a conventional one), mm; 0 when no point
+    /// lies there.
     pub scrap_side: f64,
-    /// The largest distance on the part side (the right of travel), mm; 0 when no point lies
-    /// there.
+    /// The largest distance on the part side (the right of travel for a climb cut, the left for
+    /// a conventional one), mm; 0 when no point lies there.
     pub part_side: f64,
 }
 
-/// The deviation of the run of `moves` from `start` on each side of `exact`, by the same dense
-/// sampling of the moves as [`measure_deviation`] (16 points per line, 64 per arc). Each sample's
-/// side is taken along the exact curve's normal at its nearest point (ellipse paths), or from the
-/// nearest piece (contours: left of a line, inside or outside an arc's circle). The
+/// The deviation of the run of `moves` from `start` on each side of `exact`, with the scrap on
+/// the left of travel (climb cuts; use [`measure_with_sides`] for a cut whose scrap is on the
+/// right), by the same dense sampling of the moves as [`measure_deviation`] (16 points per line,
+/// 64 per arc). Each sample's side is taken along the exact curve's normal at its nearest point
+/// (ellipse paths), or from the nearest piece (contours: left of a line, inside or outside an
+/// arc's circle). The
 /// curve-to-moves direction of [`measure_deviation`] has no side and is not repeated here.
 pub fn measure_sides(start: Point, moves: &[Move], exact: &ExactPath) -> SideDeviation {
-    measure_both(start, moves, exact).1
+    measure_with_sides(start, moves, exact, true).1
 }
 
 /// Largest distance from the curve samples to the moves. Both run the same way, so each

@@ -4,8 +4,9 @@
 //!
 //! "Tolerance" is the largest distance between the emitted path and the exact curve, either way
 //! (mm). The fitters work inside a band around the exact curve: `±tolerance`, or, when the cut
-//! asks to keep all deviation on the scrap side, `[0, tolerance]` on the left of travel (every
-//! planned cut keeps the scrap on its left). The approximations:
+//! asks to keep all deviation on the scrap side, `[0, tolerance]` on the scrap side: the left of
+//! travel for a climb cut, the right for a conventional one ([`PlannedCut::scrap_left`]). The
+//! approximations:
 //!
 //! | path | [`MoveKind::Arcs`] | [`MoveKind::Lines`] |
 //! |---|---|---|
@@ -63,6 +64,11 @@ pub struct FittedCut {
     /// of travel), measured by dense sampling (mm); at most `measured_deviation`, and at most
     /// [`PART_SIDE_SLACK`] for a fit asked to keep to the scrap side.
     pub part_side_deviation: f64,
+    /// Whether the scrap lies on the left of travel (climb) or on the right (conventional); see
+    /// [`PlannedCut::scrap_left`](crate::plan::PlannedCut::scrap_left).
+    pub scrap_left: bool,
+    /// Radial stock (mm) this cut leaves for a finishing cut (a roughing cut), else 0.
+    pub allowance: f64,
 }
 
 impl FittedCut {
@@ -99,6 +105,8 @@ impl FittedCut {
             measured_deviation,
             // Which side the deviation lies on is not known here.
             part_side_deviation: measured_deviation,
+            scrap_left: true,
+            allowance: 0.0,
         }
     }
 
@@ -133,7 +141,7 @@ mod lines;
 mod measure;
 pub mod moves;
 
-pub use measure::{SideDeviation, measure_deviation, measure_sides};
+pub use measure::{SideDeviation, measure_deviation, measure_sides, measure_with_sides};
 
 use crate::chain::{Contour, Element};
 use crate::geom::{ArcSegment, Ellipse};
@@ -172,10 +180,11 @@ pub struct FitOptions {
     pub tolerance: f64,
     /// Arcs and lines, or lines only.
     pub moves: MoveKind,
-    /// Keep every deviation on the scrap side of the exact curve (the left of travel for every
-    /// planned cut): the emitted path never crosses into the part (beyond [`PART_SIDE_SLACK`]),
-    /// and the tolerance band is one-sided, so half as wide as a two-sided one of the same
-    /// tolerance and the fit needs more moves.
+    /// Keep every deviation on the scrap side of the exact curve (the left of travel for a climb
+    /// cut, the right for a conventional one: [`PlannedCut::scrap_left`]): the emitted path
+    /// never crosses into the part (beyond [`PART_SIDE_SLACK`]), and the tolerance band is
+    /// one-sided, so half as wide as a two-sided one of the same tolerance and the fit needs
+    /// more moves.
     pub scrap_side_only: bool,
 }
 
@@ -257,16 +266,15 @@ pub fn fit_cut(cut: &PlannedCut, options: &FitOptions) -> Result<FittedCut, FitE
                     limit,
                 });
             }
-            fit_ellipse_parallel(ellipse, *inset, *start, *clockwise, options).ok_or_else(|| {
-                FitError::NoArcSpline {
+            fit_ellipse_parallel(ellipse, *inset, *start, *clockwise, cut.scrap_left, options)
+                .ok_or_else(|| FitError::NoArcSpline {
                     feature: cut.name.clone(),
                     tolerance,
-                }
-            })?
+                })?
         }
-        ExactPath::Contour(c) => fit_contour(c, options),
+        ExactPath::Contour(c) => fit_contour(c, cut.scrap_left, options),
     };
-    let (measured, sides) = measure::measure_both(start, &moves, &cut.path);
+    let (measured, sides) = measure::measure_with_sides(start, &moves, &cut.path, cut.scrap_left);
     if measured.is_nan() || measured > tolerance {
         return Err(FitError::ToleranceExceeded {
             feature: cut.name.clone(),
@@ -320,18 +328,22 @@ pub fn fit_cut(cut: &PlannedCut, options: &FitOptions) -> Result<FittedCut, FitE
         tolerance,
         measured_deviation: measured,
         part_side_deviation: sides.part_side,
+        scrap_left: cut.scrap_left,
+        allowance: cut.allowance,
     })
 }
 
 /// The parallel curve `O_d(t)` (`d` = `inset`) from anomaly `start`, once round, as a start
 /// point and moves. The fit runs counter-clockwise and is reversed for a clockwise cut; the scrap
-/// is on the left of travel, so inside for counter-clockwise and outside for clockwise cuts.
+/// is on the left of travel when `scrap_left` (inside for counter-clockwise and outside for
+/// clockwise cuts), on the right otherwise (a conventional cut).
 /// `None` when no arc spline was found.
 fn fit_ellipse_parallel(
     e: &Ellipse,
     inset: f64,
     start: f64,
     clockwise: bool,
+    scrap_left: bool,
     options: &FitOptions,
 ) -> Option<(Point, Vec<Move>)> {
     let curve = EllipseCurve { ellipse: *e, inset };
@@ -339,7 +351,7 @@ fn fit_ellipse_parallel(
     let band = Band::new(
         options.tolerance,
         options.scrap_side_only,
-        !clockwise,
+        clockwise != scrap_left,
         reach,
     );
     let end = start + TAU;
@@ -374,13 +386,12 @@ fn fit_clearing(cut: &PlannedCut, options: &FitOptions) -> Result<Vec<Move>, Fit
                 inset,
                 start,
                 clockwise,
-            } => fit_ellipse_parallel(ellipse, *inset, *start, *clockwise, options).ok_or_else(
-                || FitError::NoArcSpline {
+            } => fit_ellipse_parallel(ellipse, *inset, *start, *clockwise, true, options)
+                .ok_or_else(|| FitError::NoArcSpline {
                     feature: cut.name.clone(),
                     tolerance: options.tolerance,
-                },
-            )?,
-            ExactPath::Contour(c) => fit_contour(c, options),
+                })?,
+            ExactPath::Contour(c) => fit_contour(c, true, options),
         };
         out.push(Move::Line { to: first });
         out.extend(ring_moves);
@@ -409,7 +420,9 @@ fn elements_to_moves(
             Element::Line(_) => out.push(Move::Line { to }),
             Element::Arc(a) => match options.moves {
                 MoveKind::Arcs => out.extend(exact_arc(a, to)),
-                MoveKind::Lines => out.extend(lines_through(&arc_polygon(a, at, to, options))),
+                MoveKind::Lines => {
+                    out.extend(lines_through(&arc_polygon(a, at, to, true, options)))
+                }
             },
         }
         at = to;
@@ -419,7 +432,7 @@ fn elements_to_moves(
 
 /// A contour as moves: lines as lines; arcs exactly ([`MoveKind::Arcs`], split so that each
 /// sweeps less than 180°) or by a band polygon ([`MoveKind::Lines`]) whose ends are the arc's.
-fn fit_contour(c: &Contour, options: &FitOptions) -> (Point, Vec<Move>) {
+fn fit_contour(c: &Contour, scrap_left: bool, options: &FitOptions) -> (Point, Vec<Move>) {
     let Some(first) = c.start_point() else {
         return (Point::ORIGIN, Vec::new());
     };
@@ -433,7 +446,9 @@ fn fit_contour(c: &Contour, options: &FitOptions) -> (Point, Vec<Move>) {
             Element::Line(_) => moves.push(Move::Line { to: end }),
             Element::Arc(a) => match options.moves {
                 MoveKind::Arcs => moves.extend(exact_arc(a, end)),
-                MoveKind::Lines => moves.extend(lines_through(&arc_polygon(a, at, end, options))),
+                MoveKind::Lines => {
+                    moves.extend(lines_through(&arc_polygon(a, at, end, scrap_left, options)))
+                }
             },
         }
         at = end;
@@ -458,15 +473,27 @@ fn exact_arc(a: &ArcSegment, end: Point) -> Vec<Move> {
 }
 
 /// The band polygon of a contour arc from `from` to `to` (its ends), built counter-clockwise
-/// and reversed for a clockwise arc. The scrap is on the left of travel: inside the circle for a
-/// counter-clockwise arc, outside for a clockwise one.
-fn arc_polygon(a: &ArcSegment, from: Point, to: Point, options: &FitOptions) -> Vec<Point> {
+/// and reversed for a clockwise arc. With `scrap_left` the scrap is on the left of travel:
+/// inside the circle for a counter-clockwise arc, outside for a clockwise one; otherwise on the
+/// right.
+fn arc_polygon(
+    a: &ArcSegment,
+    from: Point,
+    to: Point,
+    scrap_left: bool,
+    options: &FitOptions,
+) -> Vec<Point> {
     let curve = CircleCurve {
         center: a.center,
         radius: a.radius,
     };
     let ccw = a.sweep > 0.0;
-    let band = Band::new(options.tolerance, options.scrap_side_only, ccw, a.radius);
+    let band = Band::new(
+        options.tolerance,
+        options.scrap_side_only,
+        ccw == scrap_left,
+        a.radius,
+    );
     let forward = if ccw { *a } else { a.reversed() };
     let (p, q) = if ccw { (from, to) } else { (to, from) };
     let mut points = lines::band_polygon(

@@ -4,6 +4,7 @@
 
 pub mod features;
 pub mod listing;
+pub mod scrap;
 
 use crate::chain::{self, ChainError, ChainOptions, HoleShape};
 use crate::check;
@@ -48,12 +49,15 @@ pub struct JobSettings {
     /// Leads, overcut and lead-out the user asked for; what is not given comes from the machine
     /// profile.
     pub leads: LeadRequest,
-    /// Climb (the default) or conventional milling.
+    /// Climb (the default) or conventional milling. Laser, plasma and waterjet keep the usual
+    /// direction (outline clockwise, holes counter-clockwise); a conventional request is ignored
+    /// there with a warning in the report.
     pub direction: Direction,
     /// Tabs on the outline, if any.
     pub tabs: Option<TabRequest>,
     /// Mills and routers: radial stock (mm) left by the roughing passes for one finishing pass
-    /// at full depth; `None`: no finishing pass.
+    /// at full depth; `None`: no finishing pass. Refused on laser, plasma and waterjet, and when
+    /// not positive.
     pub finish_allowance: Option<f64>,
     /// Pockets: distance between clearing rings (mm); `None`: 40 % of the tool diameter.
     pub pocket_stepover: Option<f64>,
@@ -67,6 +71,37 @@ pub struct JobSettings {
     pub job: Option<JobFile>,
     /// Points read from the CSV files the job file names, by the path as written there (mm).
     pub csv_points: BTreeMap<String, Vec<Point>>,
+}
+
+impl JobSettings {
+    /// The command line's defaults for the drawing `file_name` cut with a tool (or kerf) of
+    /// `tool_diameter` mm: no edge margin, 0.01 mm tolerance, the profile's depth in one pass, a
+    /// helical entry no steeper than 3°, climb milling, the profile's leads, no tabs, no
+    /// finishing pass, arcs, two-sided tolerance, every bay's largest ellipse.
+    pub fn new(file_name: &str, tool_diameter: f64) -> Self {
+        JobSettings {
+            file_name: file_name.to_string(),
+            units: None,
+            bay_layer: chain::DEFAULT_BAY_LAYER.to_string(),
+            gap_tolerance: chain::DEFAULT_GAP_TOLERANCE,
+            margin: 0.0,
+            tool_diameter,
+            tolerance: 0.01,
+            depth: None,
+            stepdown: None,
+            ramp_angle_deg: Some(3.0),
+            helical_entry: true,
+            leads: LeadRequest::default(),
+            direction: Direction::Climb,
+            tabs: None,
+            finish_allowance: None,
+            pocket_stepover: None,
+            lines_only: false,
+            scrap_side_only: false,
+            job: None,
+            csv_points: BTreeMap::new(),
+        }
+    }
 }
 
 /// Lead settings the user gave (`None`: the machine profile's).
@@ -147,10 +182,40 @@ pub enum JobError {
     )]
     ReadBack { file: String, problem: String },
     #[error(
-        "{file}: feature \"{feature}\" asks for a pocket; clearing pockets is not supported yet. \
-         Cut it as a hole (cut = \"hole\") for now"
+        "{file}: program line {line} ({part} of \"{feature}\") brings the tool centre to \
+         ({x:.4}, {y:.4}) mm: {problem}. This is a bug, please report it with the drawing; \
+         nothing was written"
     )]
-    PocketNotSupported { file: String, feature: String },
+    OffScrap {
+        file: String,
+        feature: String,
+        part: String,
+        line: usize,
+        x: f64,
+        y: f64,
+        problem: String,
+    },
+    #[error(
+        "{file}: a finishing allowance ({allowance} mm) applies to mills and routers only: a \
+         {machine} cuts through in one pass. Leave out --finish-allowance"
+    )]
+    FinishCutsThrough {
+        file: String,
+        allowance: f64,
+        machine: String,
+    },
+    #[error(
+        "{file}: feature \"{feature}\" is a pocket, but a {machine} cuts through the sheet and \
+         cannot clear a pocket to a depth. Cut it as a hole (cut = \"hole\") on this machine, or \
+         use a mill or router profile for the pocket"
+    )]
+    PocketCutsThrough {
+        file: String,
+        feature: String,
+        machine: String,
+    },
+    #[error("{file}: tabs on the outline: {problem}")]
+    BadTabs { file: String, problem: String },
 }
 
 /// The drawing read and sorted, and every feature solved.
@@ -252,8 +317,8 @@ fn unused_warnings(bays: &[String]) -> Vec<String> {
 }
 
 /// The leads to use: what the user gave, the rest from the profile.
-fn resolve_leads(r: &LeadRequest, _profile: &MachineProfile) -> LeadOptions {
-    let base = LeadOptions::STRAIGHT;
+fn resolve_leads(r: &LeadRequest, profile: &MachineProfile) -> LeadOptions {
+    let base = profile.lead_options();
     LeadOptions {
         kind: r.kind.unwrap_or(base.kind),
         length: r.length.unwrap_or(base.length),
@@ -263,14 +328,118 @@ fn resolve_leads(r: &LeadRequest, _profile: &MachineProfile) -> LeadOptions {
     }
 }
 
-/// The tabs to use: what the user gave, width and height by kind of machine otherwise.
-fn resolve_tabs(t: &TabRequest, _profile: &MachineProfile) -> TabOptions {
-    TabOptions {
-        count: t.count,
-        spacing: t.spacing.unwrap_or(0.0),
-        width: t.width.unwrap_or(0.0),
-        height: t.height.unwrap_or(0.0),
+/// Tab width on a mill or router when none is given (mm): router tabs are a few mm long (common
+/// practice, STANDARDS-AND-PRACTICE §4.3).
+pub const MILL_TAB_WIDTH: f64 = 4.0;
+/// Tab height above the floor of the cut on a mill or router when none is given (mm): about
+/// 1–3 mm (common practice, §4.3).
+pub const MILL_TAB_HEIGHT: f64 = 1.0;
+/// Micro-joint (gap) width on a laser, plasma table or waterjet when none is given (mm): laser
+/// sheet bridges are about 0.2–1 mm wide (common practice, §4.3).
+pub const THERMAL_TAB_WIDTH: f64 = 0.5;
+
+/// The tabs to use: what the user gave, width and height by kind of machine otherwise. Refuses a
+/// request with both or neither of count and spacing, a count below 1, a spacing or width that
+/// is not a positive number of mm, a mill or router tab height outside (0, cut depth), and a
+/// height on the kinds that cut through (their tabs are gaps).
+fn resolve_tabs(
+    t: &TabRequest,
+    profile: &MachineProfile,
+    s: &JobSettings,
+) -> Result<TabOptions, JobError> {
+    let bad = |problem: String| JobError::BadTabs {
+        file: s.file_name.clone(),
+        problem,
+    };
+    let spacing = match (t.count, t.spacing) {
+        (Some(_), Some(_)) => {
+            return Err(bad(
+                "give either a count (--tabs) or a spacing (--tab-spacing), not both".into(),
+            ));
+        }
+        (None, None) => {
+            return Err(bad(
+                "give a count (--tabs N) or a spacing along the outline (--tab-spacing MM)".into(),
+            ));
+        }
+        (Some(0), None) => return Err(bad("the count must be at least 1 (got 0)".into())),
+        (Some(_), None) => 0.0,
+        (None, Some(sp)) if sp > 0.0 && sp.is_finite() => sp,
+        (None, Some(sp)) => {
+            return Err(bad(format!(
+                "the spacing must be a positive number of mm (got {sp})"
+            )));
+        }
+    };
+    let cuts_through = profile.kerf_width().is_some();
+    let width = t.width.unwrap_or(if cuts_through {
+        THERMAL_TAB_WIDTH
+    } else {
+        MILL_TAB_WIDTH
+    });
+    if !(width > 0.0 && width.is_finite()) {
+        return Err(bad(format!(
+            "the width must be a positive number of mm (got {width})"
+        )));
     }
+    let height = if cuts_through {
+        if let Some(h) = t.height {
+            return Err(bad(format!(
+                "a tab height ({h} mm) applies to mills and routers only: on a {} a tab is a gap \
+                 in the cut. Leave the height out",
+                profile.kind()
+            )));
+        }
+        0.0
+    } else {
+        let depth = s
+            .depth
+            .unwrap_or_else(|| profile.units().to_mm(profile.default_depth()));
+        let h = t.height.unwrap_or(MILL_TAB_HEIGHT);
+        if !(h > 0.0 && h < depth) {
+            return Err(bad(format!(
+                "the height must be above 0 mm and below the cut depth {depth} mm (got {h} mm); \
+                 tabs are usually 1–3 mm high"
+            )));
+        }
+        h
+    };
+    Ok(TabOptions {
+        count: t.count,
+        spacing,
+        width,
+        height,
+    })
+}
+
+/// The settings only mills and routers act on. Laser, plasma and waterjet cut through in one
+/// pass: a finishing allowance is refused ([`JobError::FinishCutsThrough`]). They always cut in
+/// the usual direction for thermal cutting (outline clockwise, holes counter-clockwise: the
+/// squarer side of a plasma kerf, on the right of travel with the usual swirl, falls on the part;
+/// STANDARDS-AND-PRACTICE §4.1): conventional milling is a milling matter, so a request for it is
+/// ignored with the warning returned here rather than refused (the program is still right).
+fn mill_only_settings(
+    s: &JobSettings,
+    profile: &MachineProfile,
+) -> Result<(Direction, Option<String>), JobError> {
+    if profile.spindle().is_some() {
+        return Ok((s.direction, None));
+    }
+    if let Some(allowance) = s.finish_allowance {
+        return Err(JobError::FinishCutsThrough {
+            file: s.file_name.clone(),
+            allowance,
+            machine: profile.kind().to_string(),
+        });
+    }
+    let warning = (s.direction == Direction::Conventional).then(|| {
+        format!(
+            "the conventional direction applies to mills and routers only and was ignored: the \
+             {} cuts in the usual direction (outline clockwise, holes counter-clockwise)",
+            profile.kind()
+        )
+    });
+    Ok((Direction::Climb, warning))
 }
 
 /// Runs the whole job.
@@ -281,6 +450,16 @@ pub fn run_job(
 ) -> Result<JobOutput, JobError> {
     let file = || s.file_name.clone();
     let solved = read_and_solve(dxf, s)?;
+    // Laser, plasma and waterjet cut through the sheet: a pocket cannot be cleared to a depth.
+    if profile.kerf_width().is_some()
+        && let Some(f) = solved.features.iter().find(|f| f.cut == CutKind::Pocket)
+    {
+        return Err(JobError::PocketCutsThrough {
+            file: file(),
+            feature: f.name.clone(),
+            machine: profile.kind().to_string(),
+        });
+    }
     let failures: Vec<String> = solved
         .features
         .iter()
@@ -328,16 +507,22 @@ pub fn run_job(
             }),
         });
     }
+    let tabs = match &s.tabs {
+        Some(t) => Some(resolve_tabs(t, profile, s)?),
+        None => None,
+    };
+    let (direction, direction_warning) = mill_only_settings(s, profile)?;
     let plan = plan::plan_cuts(
         part,
         &to_cut,
         &PlanOptions {
             tool_diameter: s.tool_diameter,
             leads: resolve_leads(&s.leads, profile),
-            direction: s.direction,
-            tabs: s.tabs.map(|t| resolve_tabs(&t, profile)),
+            direction,
+            tabs,
             finish_allowance: s.finish_allowance,
             pocket_stepover: s.pocket_stepover.unwrap_or(0.4 * s.tool_diameter),
+            pierce_clearance: profile.pierce_clearance(),
         },
     )
     .map_err(|error| JobError::Plan {
@@ -426,8 +611,9 @@ pub fn run_job(
         spindle_speed: None,
         stepdown: s.stepdown,
         ramp_angle_deg: s.ramp_angle_deg,
-        helical_entry: s.helical_entry,
-        tab_height: s.tabs.map_or(0.0, |t| resolve_tabs(&t, profile).height),
+        // A helix is written as arcs: not for straight moves only.
+        helical_entry: s.helical_entry && !lines_only,
+        tab_height: tabs.map_or(0.0, |t| t.height),
     };
     let post_error = |error| JobError::Post {
         file: file(),
@@ -444,8 +630,16 @@ pub fn run_job(
         let written_name = cut.name.replace('(', "[").replace(')', "]");
         // The fitted start may sit up to the tolerance off the exact start (a band vertex), and
         // rounding moves it a little more: look for it within twice the tolerance.
+        // The part side is measured against the cut's own scrap side (the right of travel for a
+        // conventional cut).
         let (read_back, part_side) =
-            check::measured_deviation(&trace, &written_name, &planned.path, 2.0 * s.tolerance)
+            check::feature_moves(&trace, &written_name, &planned.path, 2.0 * s.tolerance)
+                .filter(|(_, moves)| !moves.is_empty())
+                .map(|(start, moves)| {
+                    let (both, sides) =
+                        fit::measure_with_sides(start, &moves, &planned.path, planned.scrap_left);
+                    (both, sides.part_side)
+                })
                 .ok_or_else(|| JobError::ReadBack {
                     file: file(),
                     problem: format!("the cut of \"{}\" was not found in the program", cut.name),
@@ -475,6 +669,28 @@ pub fn run_job(
         cut.measured_deviation = read_back;
         cut.part_side_deviation = part_side;
     }
+    // Every move off the contour (entries, clearing, leads, overcut, lead-out) keeps the tool
+    // off the finished part, read back from the program (see `scrap`).
+    scrap::check_scrap(
+        &trace,
+        &plan.cuts,
+        &scrap::ScrapRules {
+            tool_radius: s.tool_diameter / 2.0,
+            tolerance: s.tolerance,
+            rounding,
+            pierce_clearance: profile.pierce_clearance(),
+            skip_above_stock: profile.spindle().is_some(),
+        },
+    )
+    .map_err(|v| JobError::OffScrap {
+        file: file(),
+        feature: v.feature,
+        part: v.part,
+        line: v.line,
+        x: v.at.x,
+        y: v.at.y,
+        problem: v.problem,
+    })?;
     // Write the program again so that its header states the figures read back; only header
     // comments change (the moves depend on nothing that was updated).
     let program = post::write_program(&cuts, profile, &program_settings).map_err(post_error)?;
@@ -513,6 +729,7 @@ pub fn run_job(
     let mut warnings = part.warnings.clone();
     warnings.extend(unused_warnings(&solved.unused_bays));
     warnings.extend(plan.warnings.iter().cloned());
+    warnings.extend(direction_warning);
     let report = report::build_report(ReportInput {
         drawing: &s.file_name,
         drawing_units: solved.drawing.units.symbol(),
@@ -528,6 +745,9 @@ pub fn run_job(
         notes: solved.drawing.notes.clone(),
         program_bounds: trace.bounds,
         largest_arc_radius_mismatch: trace.largest_arc_radius_mismatch,
+        tab_height: tabs
+            .filter(|t| t.height > 0.0 && !cuts_through)
+            .map(|t| t.height),
     });
     Ok(JobOutput {
         program,

@@ -1,13 +1,1054 @@
 //! Leads: how the tool reaches each contour from the plunge or pierce point, and leaves it, in
 //! the scrap.
+//!
+//! # Shapes
+//!
+//! At the path's start `S` let `T` be the unit tangent in the direction of travel and `N` the
+//! unit normal pointing into the scrap: into a hole or opening, out of the outline or a boss.
+//! `N` is found from the cut's side, not from its direction, so conventional cuts get the same
+//! leads mirrored. With the straight length `L` and the arc radius `R`:
+//!
+//! | kind | lead-in, from the plunge or pierce point to `S` | lead-out, from the overcut's end `E` |
+//! |---|---|---|
+//! | straight | a straight move from the planned plunge point | none: the cut stops on the path |
+//! | line | `S + L N` → `S`, along the normal | `E` → `E + L N` |
+//! | arc | a quarter circle about `S + R N`, from `S + R N − R T` to `S` | a quarter circle about `E + R N`, from `E` to `E + R N + R T` |
+//! | line-arc | `S + (R + L) N − R T` → `S + R N − R T` along `−N`, then the arc | the arc, then `L` further along `N` |
+//!
+//! The arc's circle touches the path at `S` from the scrap side (its centre lies on the normal),
+//! so the tool joins the path along its tangent and leaves no dwell mark; the straight part of a
+//! line-arc lead is tangent to the arc. NISTIR 6556 App. B.3.1 builds its cutter-compensation
+//! entry the same way (a tangent line, then a tangent arc of radius above the tool radius); conicut
+//! programs the tool centre, so only the arc-radius rule carries over (below). The lead-out is the
+//! lead-in's mirror image about the normal at `E`, the point `overcut` mm along the path past the
+//! start (exact: arc length along the ellipse's parallel curve by Simpson's rule, or along the
+//! contour's pieces).
+//!
+//! # Where a lead may go
+//!
+//! Every point of a lead, sampled every [`SAMPLE_SPACING`] mm along each piece (arcs included),
+//! must keep the tool off the finished part:
+//!
+//! * on its own cut's scrap side of the finished edge (arcs of a drawn contour followed exactly,
+//!   not by chords), at least `r (1 − GOUGE_MARGIN)` from it (`r` the tool radius; a roughing cut
+//!   keeps its finishing allowance too);
+//! * at least `r (1 − GOUGE_MARGIN)` from every other cut's finished edge, and outside every
+//!   boss;
+//! * on a laser, plasma table or waterjet (`opts.pierce_clearance` is `Some(c)`), the pierce
+//!   point (the lead's first point) at least `c` from every finished edge: one kerf plus the
+//!   pierce crater (common practice, STANDARDS-AND-PRACTICE §4.3);
+//! * on a mill or router (`opts.pierce_clearance` is `None`), every lead arc wider than the tool:
+//!   radius above `r` (NISTIR 6556 App. B.3.1). An arc radius asked for that is not above `r` is
+//!   replaced by [`ARC_OVER_TOOL`]` · r`, with a warning.
+//!
+//! Between two samples the distance to an edge can dip by at most half the spacing (it changes
+//! no faster than the point moves); that can happen only where a lead runs along an edge, which
+//! happens only where it joins the path (there it moves away from the edge). The program is
+//! checked again after it is written (`job::scrap`), within the job's tolerance.
+//!
+//! # Finding room
+//!
+//! For a cut along an ellipse's parallel curve the start may move (the anomaly `start` of
+//! [`ExactPath::EllipseParallel`]): an inside cut tries the ends of the minor axis first, where
+//! the path is flattest and the ellipse widest, then the ends of the major axis; an outside cut
+//! keeps its start first. A contour keeps its start. At each size, full, then halved up to
+//! [`HALVINGS`] times (never below the tool radius for a mill's arc), every start is tried; the
+//! first lead that keeps all the rules is taken, and a shrunk one is reported in a warning. On
+//! a cut-through machine a lead whose only fault is a pierce point too near an edge has its
+//! straight part lengthened along the normal (an arc lead gets one) until the pierce point
+//! clears, with a warning: in a small hole this gives a short lead from near the centre.
+//! When none fits (a small hole), the cut falls back on a straight move from the planned plunge
+//! point (the centre of a round or elliptical hole: "a lead from near the centre", §4.3), with a
+//! warning; on a cut-through machine whose planned pierce point is too near an edge, on a line
+//! lead along the normal long enough to clear it. When even that breaks a rule the plan is
+//! refused ([`PlanError::NoRoomForLead`]): a lead is never put into the part silently.
+//!
+//! Pockets keep their plunge point (their clearing starts there); their lead-in starts at the end
+//! of the last clearing ring and runs straight to the lead's first point, then along the lead.
+//!
+//! The lead-out has the lead-in's shape and size (half the size on holes, openings and pockets of
+//! cut-through machines: "keep lead-outs short on holes", the slug may drop, §4.3), shrunk by
+//! halves when it does not fit, and left out with a warning when nothing fits.
+//!
+//! # Overcut and entry room
+//!
+//! `overcut` is set on every cut, at most half the path's length (longer ones are cut down with a
+//! warning). `entry_room` is set again from the final plunge point: its distance from the nearest
+//! finished edge, any cut's, less the tool radius (and a roughing cut's allowance from its own
+//! edge), zero unless the point is on the cut's scrap side.
 
-use super::{PlanError, PlanOptions, PlannedCut};
+use super::{
+    CutSide, Edge, ExactPath, FeatureKind, GOUGE_MARGIN, LeadKind, LeadOptions, PlanError,
+    PlanOptions, PlannedCut,
+};
+use crate::chain::Element;
+use crate::geom::{ArcSegment, Point, Segment, Vec2};
+use std::f64::consts::{FRAC_PI_2, PI, TAU};
 
-/// Adds the lead-in, overcut and lead-out that `opts.leads` asks for to every cut.
+/// Spacing (mm) of the points at which a lead is checked against the edges; at most
+/// [`MAX_SAMPLES`] per piece.
+pub const SAMPLE_SPACING: f64 = 0.02;
+
+/// The most points checked on one piece of a lead.
+pub const MAX_SAMPLES: usize = 4096;
+
+/// How many times a lead that does not fit is halved before the cut falls back on a straight
+/// entry: down to 1/8 of the size asked for, below which a lead is hardly better than a straight
+/// move (our choice).
+pub const HALVINGS: u32 = 3;
+
+/// On a mill or router, the lead arc's radius used when the radius asked for is not above the
+/// tool radius: 1.25 tool radii (our choice; NISTIR 6556 App. B.3.1 asks only for more than one).
+pub const ARC_OVER_TOOL: f64 = 1.25;
+
+/// Simpson steps over a full turn of an ellipse's parallel curve when measuring length along it
+/// (the overcut's end). The integrand `|P′| (1 − d κ)` is smooth and periodic; the unit test
+/// finds the length within 1e-6 mm of a 200 000-chord polyline over 25 mm of a 30 × 12 mm
+/// ellipse's parallel curve. The fitted overcut is measured along the fitted moves, which differ
+/// from the exact path by the tolerance, far more than this.
+const ELLIPSE_STEPS: usize = 4096;
+
+/// Points this close (mm) count as one when deciding whether a link move is needed.
+const SAME_POINT: f64 = 1e-9;
+
+/// Adds the lead-in, overcut and lead-out that `opts.leads` asks for to every cut, in the scrap
+/// (see the module docs for the shapes and rules). Pushes one warning per cut whose leads were
+/// shrunk, replaced or left out, naming the feature and what was done.
+///
+/// Refuses lead settings that are not usable numbers ([`PlanError::BadLead`]) and a cut for which
+/// no entry keeps the rules ([`PlanError::NoRoomForLead`]).
 pub fn add_leads(
-    _cuts: &mut [PlannedCut],
-    _opts: &PlanOptions,
-    _warnings: &mut Vec<String>,
+    cuts: &mut [PlannedCut],
+    opts: &PlanOptions,
+    warnings: &mut Vec<String>,
 ) -> Result<(), PlanError> {
+    let r = opts.tool_diameter / 2.0;
+    let mut leads = checked(&opts.leads, opts.pierce_clearance)?;
+    let mill = opts.pierce_clearance.is_none();
+    if mill && uses_arc(leads.kind) && leads.radius <= r {
+        let radius = ARC_OVER_TOOL * r;
+        warnings.push(format!(
+            "the lead arc radius {} mm is not larger than the {} mm tool's radius {r} mm (NISTIR \
+             6556 App. B.3.1 asks for an entry arc wider than the tool): arcs of {ARC_OVER_TOOL} × \
+             {r} = {radius} mm are used instead",
+            leads.radius, opts.tool_diameter
+        ));
+        leads.radius = radius;
+    }
+    let obstacles: Vec<Obstacle> = cuts.iter().map(Obstacle::of).collect();
+    for (i, cut) in cuts.iter_mut().enumerate() {
+        let room = Room {
+            r,
+            obstacles: &obstacles,
+            own: i,
+            own_extra: cut.allowance.max(0.0),
+            pierce_clearance: opts.pierce_clearance,
+            mill_arc_min: mill.then_some(r),
+        };
+        let mut notes = Vec::new();
+        let scale = place_lead_in(cut, &room, &leads, &mut notes)?;
+        set_overcut(cut, leads.overcut, &mut notes);
+        if leads.lead_out && leads.kind != LeadKind::Straight {
+            let mut base = scale.unwrap_or(1.0);
+            if !mill && cut.side == CutSide::Inside {
+                base *= 0.5;
+            }
+            place_lead_out(cut, &room, &leads, base, &mut notes);
+        }
+        cut.entry_room = room.entry_room(cut.plunge);
+        if !notes.is_empty() {
+            warnings.push(format!("{}: {}", cut.name, notes.join("; ")));
+        }
+    }
     Ok(())
+}
+
+/// The lead settings, checked: lengths finite and not negative, a straight part for line leads
+/// and an arc for arc leads.
+fn checked(leads: &LeadOptions, pierce_clearance: Option<f64>) -> Result<LeadOptions, PlanError> {
+    let bad = |setting: &'static str, value: f64, hint: &'static str| PlanError::BadLead {
+        setting,
+        value,
+        hint,
+    };
+    let usable = |v: f64| v.is_finite() && v >= 0.0;
+    if !usable(leads.length) {
+        return Err(bad(
+            "lead length",
+            leads.length,
+            "give zero or a positive number of mm (--lead-length, or lead_length in the machine \
+             profile)",
+        ));
+    }
+    if !usable(leads.radius) {
+        return Err(bad(
+            "lead radius",
+            leads.radius,
+            "give zero or a positive number of mm (--lead-radius, or lead_radius in the machine \
+             profile)",
+        ));
+    }
+    if !usable(leads.overcut) {
+        return Err(bad(
+            "overcut",
+            leads.overcut,
+            "give zero or a positive number of mm (--overcut, or overcut in the machine profile)",
+        ));
+    }
+    if let Some(c) = pierce_clearance
+        && !usable(c)
+    {
+        return Err(bad(
+            "pierce clearance",
+            c,
+            "give zero or a positive number of mm (pierce_clearance in the machine profile)",
+        ));
+    }
+    if matches!(leads.kind, LeadKind::Line | LeadKind::LineArc) && leads.length <= 0.0 {
+        return Err(bad(
+            "lead length",
+            leads.length,
+            "a line or line-arc lead needs a straight part longer than 0 mm: give --lead-length, \
+             set lead_length in the machine profile, or choose --lead arc",
+        ));
+    }
+    if uses_arc(leads.kind) && leads.radius <= 0.0 {
+        return Err(bad(
+            "lead radius",
+            leads.radius,
+            "an arc or line-arc lead needs an arc radius above 0 mm: give --lead-radius, set \
+             lead_radius in the machine profile, or choose --lead line",
+        ));
+    }
+    Ok(*leads)
+}
+
+fn uses_arc(kind: LeadKind) -> bool {
+    matches!(kind, LeadKind::Arc | LeadKind::LineArc)
+}
+
+fn kind_word(kind: LeadKind) -> &'static str {
+    match kind {
+        LeadKind::Straight => "straight",
+        LeadKind::Line => "line",
+        LeadKind::Arc => "arc",
+        LeadKind::LineArc => "line-arc",
+    }
+}
+
+/// A lead's size in words, e.g. `4 mm arc` or `2 mm line and 1 mm arc`.
+fn size_words(kind: LeadKind, length: f64, radius: f64) -> String {
+    match kind {
+        LeadKind::Straight => "straight move".into(),
+        LeadKind::Line => format!("{} mm line", round3(length)),
+        LeadKind::Arc => format!("{} mm arc", round3(radius)),
+        LeadKind::LineArc => format!("{} mm line and {} mm arc", round3(length), round3(radius)),
+    }
+}
+
+/// `v` rounded to 0.001 for messages.
+fn round3(v: f64) -> f64 {
+    (v * 1000.0).round() / 1000.0
+}
+
+/// What a lead must keep away from: one cut's finished edge.
+struct Obstacle {
+    edge: Edge,
+    side: CutSide,
+    boss: bool,
+    /// A cheap region holding the edge, for skipping far edges: a disc (centre, radius) or a
+    /// box (min, max).
+    reach: Reach,
+}
+
+enum Reach {
+    Disc(Point, f64),
+    Box(Point, Point),
+    Unknown,
+}
+
+impl Obstacle {
+    fn of(cut: &PlannedCut) -> Obstacle {
+        let reach = match &cut.edge {
+            Edge::Ellipse(e) => Reach::Disc(e.center(), e.a()),
+            Edge::Contour(c) => match c.bounds() {
+                Some((lo, hi)) => Reach::Box(lo, hi),
+                None => Reach::Unknown,
+            },
+        };
+        Obstacle {
+            edge: cut.edge.clone(),
+            side: cut.side,
+            boss: cut.kind == FeatureKind::Boss,
+            reach,
+        }
+    }
+
+    /// A lower bound of the distance from `p` to the edge (0 when unknown).
+    fn lower_bound(&self, p: Point) -> f64 {
+        match self.reach {
+            Reach::Disc(c, a) => (p.distance(c) - a).max(0.0),
+            Reach::Box(lo, hi) => {
+                let dx = (lo.x - p.x).max(p.x - hi.x).max(0.0);
+                let dy = (lo.y - p.y).max(p.y - hi.y).max(0.0);
+                dx.hypot(dy)
+            }
+            Reach::Unknown => 0.0,
+        }
+    }
+
+    /// Whether `p` is at least `limit` from the edge.
+    fn clear_by(&self, p: Point, limit: f64) -> bool {
+        self.lower_bound(p) >= limit || self.edge.distance_to(p) >= limit
+    }
+
+    /// Whether `p` lies on this cut's scrap side of its edge.
+    fn on_scrap_side(&self, p: Point) -> bool {
+        match self.side {
+            CutSide::Inside => Edge::contains(&self.edge, p),
+            CutSide::Outside => !Edge::contains(&self.edge, p),
+        }
+    }
+}
+
+
+/// The rules for the leads of one cut (module docs).
+struct Room<'a> {
+    r: f64,
+    obstacles: &'a [Obstacle],
+    own: usize,
+    /// Distance kept from the own edge on top of the tool radius (a roughing cut's allowance).
+    own_extra: f64,
+    pierce_clearance: Option<f64>,
+    /// Mills and routers: lead arcs must be wider than this (the tool radius).
+    mill_arc_min: Option<f64>,
+}
+
+impl Room<'_> {
+    fn limit(&self) -> f64 {
+        self.r * (1.0 - GOUGE_MARGIN)
+    }
+
+    fn point_ok(&self, p: Point) -> bool {
+        let limit = self.limit();
+        self.obstacles.iter().enumerate().all(|(k, o)| {
+            if k == self.own {
+                o.on_scrap_side(p) && o.clear_by(p, limit + self.own_extra)
+            } else {
+                !(o.boss && Edge::contains(&o.edge, p)) && o.clear_by(p, limit)
+            }
+        })
+    }
+
+    /// The point rules, and the pierce clearance from every edge on cut-through machines.
+    fn pierce_ok(&self, p: Point) -> bool {
+        self.point_ok(p)
+            && self
+                .pierce_clearance
+                .is_none_or(|c| self.obstacles.iter().all(|o| o.clear_by(p, c)))
+    }
+
+    fn elements_ok(&self, elements: &[Element]) -> bool {
+        elements
+            .iter()
+            .all(|e| samples(e).into_iter().all(|p| self.point_ok(p)))
+    }
+
+    /// The distance from `p` to the nearest finished edge, any cut's.
+    fn nearest_edge(&self, p: Point) -> f64 {
+        self.obstacles
+            .iter()
+            .map(|o| o.edge.distance_to(p))
+            .fold(f64::INFINITY, f64::min)
+    }
+
+    /// Room for a helical entry about `p` (see [`PlannedCut::entry_room`]), from every edge.
+    fn entry_room(&self, p: Point) -> f64 {
+        let Some(own) = self.obstacles.get(self.own) else {
+            return 0.0;
+        };
+        if !own.on_scrap_side(p) {
+            return 0.0;
+        }
+        let nearest = self
+            .obstacles
+            .iter()
+            .enumerate()
+            .map(|(k, o)| {
+                let extra = if k == self.own { self.own_extra } else { 0.0 };
+                o.edge.distance_to(p) - extra
+            })
+            .fold(f64::INFINITY, f64::min);
+        (nearest - self.r).max(0.0)
+    }
+
+    /// Whether an arc of this radius is allowed (mills: wider than the tool).
+    fn arc_allowed(&self, radius: f64) -> bool {
+        self.mill_arc_min.is_none_or(|min| radius > min)
+    }
+}
+
+/// Points along a piece every [`SAMPLE_SPACING`] mm or closer, both ends included.
+fn samples(e: &Element) -> Vec<Point> {
+    let n = ((e.length() / SAMPLE_SPACING).ceil() as usize).clamp(1, MAX_SAMPLES);
+    (0..=n)
+        .map(|k| {
+            let t = k as f64 / n as f64;
+            match e {
+                Element::Line(s) => s.point_at(t),
+                Element::Arc(a) => a.point_at(t),
+            }
+        })
+        .collect()
+}
+
+/// A point of a path with its unit tangent (direction of travel) and the unit normal into the
+/// scrap.
+#[derive(Debug, Clone, Copy)]
+struct Frame {
+    at: Point,
+    tangent: Vec2,
+    scrap: Vec2,
+}
+
+/// The frame `along` mm along `path` from its start (`along` at most the path's length), for a
+/// cut on `side`.
+fn frame_at(path: &ExactPath, side: CutSide, along: f64) -> Option<Frame> {
+    match path {
+        ExactPath::EllipseParallel {
+            ellipse,
+            inset,
+            start,
+            clockwise,
+        } => {
+            let sense = if *clockwise { -1.0 } else { 1.0 };
+            let speed = |t: f64| ellipse_speed(ellipse, *inset, t);
+            let t = anomaly_at_length(&speed, *start, sense, along);
+            let tangent = ellipse.derivative(t).normalized()? * sense;
+            let outward = ellipse.outward_normal(t);
+            Some(Frame {
+                at: ellipse.inward_offset_point(t, *inset),
+                tangent,
+                scrap: match side {
+                    CutSide::Inside => -outward,
+                    CutSide::Outside => outward,
+                },
+            })
+        }
+        ExactPath::Contour(c) => {
+            // The scrap is on the left of travel when an inside path runs counter-clockwise or
+            // an outside path clockwise.
+            let scrap_left = (side == CutSide::Inside) == c.is_ccw();
+            let mut left = along.max(0.0);
+            let count = c.elements.len();
+            for (k, e) in c.elements.iter().enumerate() {
+                let len = e.length();
+                if left <= len || k + 1 == count {
+                    let t = if len > 0.0 {
+                        (left / len).clamp(0.0, 1.0)
+                    } else {
+                        0.0
+                    };
+                    let (at, tangent) = match e {
+                        Element::Line(s) => (s.point_at(t), s.direction().normalized()?),
+                        Element::Arc(a) => (a.point_at(t), a.tangent_at(t)),
+                    };
+                    let normal = tangent.perp();
+                    return Some(Frame {
+                        at,
+                        tangent,
+                        scrap: if scrap_left { normal } else { -normal },
+                    });
+                }
+                left -= len;
+            }
+            None
+        }
+    }
+}
+
+/// `|dO/dt|` for the parallel curve `O(t) = P(t) − d N(t)`: `|P′(t)| |1 − d κ(t)|`.
+fn ellipse_speed(e: &crate::geom::Ellipse, inset: f64, t: f64) -> f64 {
+    e.derivative(t).length() * (1.0 - inset * e.curvature(t)).abs()
+}
+
+/// Simpson's rule for `∫ speed` from `t` over `h` (signed).
+fn simpson(speed: &impl Fn(f64) -> f64, t: f64, h: f64) -> f64 {
+    (h.abs() / 6.0) * (speed(t) + 4.0 * speed(t + 0.5 * h) + speed(t + h))
+}
+
+/// The anomaly reached after `along` mm from `start` travelling in `sense` (±1).
+fn anomaly_at_length(speed: &impl Fn(f64) -> f64, start: f64, sense: f64, along: f64) -> f64 {
+    if along.is_nan() || along <= 0.0 {
+        return start;
+    }
+    let h = TAU / ELLIPSE_STEPS as f64;
+    let mut t = start;
+    let mut walked = 0.0;
+    for _ in 0..ELLIPSE_STEPS {
+        let step = simpson(speed, t, sense * h);
+        if walked + step >= along {
+            // Bisect within this step: the length grows with the step.
+            let (mut lo, mut hi) = (0.0, h);
+            for _ in 0..60 {
+                let mid = 0.5 * (lo + hi);
+                if walked + simpson(speed, t, sense * mid) < along {
+                    lo = mid;
+                } else {
+                    hi = mid;
+                }
+            }
+            return t + sense * 0.5 * (lo + hi);
+        }
+        walked += step;
+        t += sense * h;
+    }
+    t
+}
+
+/// The length of a path (mm).
+fn path_length(path: &ExactPath) -> f64 {
+    match path {
+        ExactPath::EllipseParallel { ellipse, inset, .. } => {
+            let h = TAU / ELLIPSE_STEPS as f64;
+            let speed = |t: f64| ellipse_speed(ellipse, *inset, t);
+            (0..ELLIPSE_STEPS)
+                .map(|k| simpson(&speed, k as f64 * h, h))
+                .sum()
+        }
+        ExactPath::Contour(c) => c.elements.iter().map(Element::length).sum(),
+    }
+}
+
+/// The quarter circle of radius `radius` about `center` from `from`, turning in `sense` (±1).
+fn quarter(center: Point, radius: f64, from: Point, sense: f64) -> ArcSegment {
+    ArcSegment {
+        center,
+        radius,
+        start_angle: (from - center).angle(),
+        sweep: sense * FRAC_PI_2,
+    }
+}
+
+/// The lead-in of `kind` ending at the frame's point (module docs); empty for straight.
+fn lead_in_shape(kind: LeadKind, f: &Frame, length: f64, radius: f64) -> Vec<Element> {
+    let (s, t, n) = (f.at, f.tangent, f.scrap);
+    let sense = if t.cross(n) >= 0.0 { 1.0 } else { -1.0 };
+    let arc = || {
+        let c = s + n * radius;
+        quarter(c, radius, c - t * radius, sense)
+    };
+    match kind {
+        LeadKind::Straight => Vec::new(),
+        LeadKind::Line => vec![Element::Line(Segment::new(s + n * length, s))],
+        LeadKind::Arc => vec![Element::Arc(arc())],
+        LeadKind::LineArc => {
+            let a = arc();
+            let p = a.start_point();
+            vec![
+                Element::Line(Segment::new(p + n * length, p)),
+                Element::Arc(a),
+            ]
+        }
+    }
+}
+
+/// The lead-out of `kind` starting at the frame's point: the lead-in's mirror image.
+fn lead_out_shape(kind: LeadKind, f: &Frame, length: f64, radius: f64) -> Vec<Element> {
+    let (e, t, n) = (f.at, f.tangent, f.scrap);
+    let sense = if t.cross(n) >= 0.0 { 1.0 } else { -1.0 };
+    let arc = || quarter(e + n * radius, radius, e, sense);
+    match kind {
+        LeadKind::Straight => Vec::new(),
+        LeadKind::Line => vec![Element::Line(Segment::new(e, e + n * length))],
+        LeadKind::Arc => vec![Element::Arc(arc())],
+        LeadKind::LineArc => {
+            let a = arc();
+            let q = a.end_point();
+            vec![
+                Element::Arc(a),
+                Element::Line(Segment::new(q, q + n * length)),
+            ]
+        }
+    }
+}
+
+/// The starts to try for a cut: anomalies for an ellipse's parallel curve (inside: the ends of
+/// the minor axis, then the planned start and its opposite; outside: the planned start first),
+/// `None` (keep) for a contour.
+fn start_candidates(cut: &PlannedCut) -> Vec<Option<f64>> {
+    let ExactPath::EllipseParallel { start, .. } = cut.path else {
+        return vec![None];
+    };
+    let list = match cut.side {
+        CutSide::Inside => [FRAC_PI_2, 3.0 * FRAC_PI_2, start, start + PI],
+        CutSide::Outside => [start, start + PI, FRAC_PI_2, 3.0 * FRAC_PI_2],
+    };
+    let mut out: Vec<Option<f64>> = Vec::new();
+    for t in list {
+        let t = t.rem_euclid(TAU);
+        let seen = out.iter().flatten().any(|u| {
+            let d = (t - u).rem_euclid(TAU);
+            d.min(TAU - d) < 1e-12
+        });
+        if !seen {
+            out.push(Some(t));
+        }
+    }
+    out
+}
+
+/// `path` starting at anomaly `start` (ellipse paths; others unchanged).
+fn with_start(path: &ExactPath, start: Option<f64>) -> ExactPath {
+    match (path, start) {
+        (
+            ExactPath::EllipseParallel {
+                ellipse,
+                inset,
+                clockwise,
+                ..
+            },
+            Some(t),
+        ) => ExactPath::EllipseParallel {
+            ellipse: *ellipse,
+            inset: *inset,
+            start: t,
+            clockwise: *clockwise,
+        },
+        _ => path.clone(),
+    }
+}
+
+/// Where a pocket's lead-in begins: the end of its last clearing ring (a closed ring ends where
+/// it starts); `None` for cuts without clearing.
+fn ring_end(cut: &PlannedCut) -> Option<Point> {
+    cut.clearing.last().map(ExactPath::start_point)
+}
+
+/// Places the lead-in on `cut` and returns the share of the asked size used (`None` for a
+/// straight entry, asked for or fallen back on).
+fn place_lead_in(
+    cut: &mut PlannedCut,
+    room: &Room,
+    leads: &LeadOptions,
+    notes: &mut Vec<String>,
+) -> Result<Option<f64>, PlanError> {
+    if leads.kind == LeadKind::Straight {
+        if straight_ok(cut, room) {
+            return Ok(None);
+        }
+    } else {
+        if let Some(found) = search(cut, room, leads.kind, leads.length, leads.radius)? {
+            let scale = found.scale;
+            if scale < 1.0 {
+                notes.push(format!(
+                    "the {} lead was shrunk to {} to fit",
+                    kind_word(leads.kind),
+                    size_words(leads.kind, leads.length * scale, leads.radius * scale)
+                ));
+            }
+            extension_note(found, room, notes);
+            return Ok(Some(scale));
+        }
+        if straight_ok(cut, room) {
+            let from = ring_end(cut).unwrap_or(cut.plunge);
+            notes.push(format!(
+                "no room for the {} lead ({}): entered by a straight move from ({:.3}, {:.3})",
+                kind_word(leads.kind),
+                size_words(leads.kind, leads.length, leads.radius),
+                from.x,
+                from.y
+            ));
+            return Ok(None);
+        }
+    }
+    // A cut-through machine whose planned pierce point is too near an edge: a line lead along
+    // the normal, long enough to clear it.
+    if let Some(c) = room.pierce_clearance
+        && cut.clearing.is_empty()
+    {
+        let length = leads.length.max(c).max(room.r);
+        if let Some(Found { scale, extension }) = search(cut, room, LeadKind::Line, length, 0.0)? {
+            let pierce = cut.plunge;
+            notes.push(format!(
+                "the planned pierce point was nearer than {c} mm to an edge: pierced at \
+                 ({:.3}, {:.3}) and entered by a {}",
+                pierce.x,
+                pierce.y,
+                size_words(LeadKind::Line, length * scale + extension, 0.0)
+            ));
+            return Ok(Some(scale));
+        }
+    }
+    Err(PlanError::NoRoomForLead {
+        feature: cut.name.clone(),
+        detail: match room.pierce_clearance {
+            Some(c) => format!(
+                "no pierce point was found in the scrap at least {c} mm (the profile's \
+                 pierce_clearance) from every finished edge with a lead that keeps the \
+                 {} mm kerf clear of them. Lower pierce_clearance in the machine profile, \
+                 shorten the lead (--lead-length, --lead-radius), or enlarge the feature",
+                2.0 * room.r
+            ),
+            None => format!(
+                "no entry was found that keeps the {} mm tool clear of every finished edge. Use \
+                 a smaller tool or a shorter lead (--lead-length, --lead-radius)",
+                2.0 * room.r
+            ),
+        },
+    })
+}
+
+/// Notes a lead lengthened for the pierce clearance.
+fn extension_note(found: Found, room: &Room, notes: &mut Vec<String>) {
+    if let (true, Some(c)) = (found.extension > 0.0, room.pierce_clearance) {
+        notes.push(format!(
+            "the lead's straight part was lengthened by {} mm to keep the pierce point {c} mm \
+             from every edge",
+            round3(found.extension)
+        ));
+    }
+}
+
+/// Whether the planned straight entry keeps the rules: the move from the plunge point (or a
+/// pocket's last ring) to the path's start, and the pierce point.
+fn straight_ok(cut: &PlannedCut, room: &Room) -> bool {
+    let start = cut.path.start_point();
+    match ring_end(cut) {
+        Some(from) => room.elements_ok(&[Element::Line(Segment::new(from, start))]),
+        None => {
+            room.pierce_ok(cut.plunge)
+                && room.elements_ok(&[Element::Line(Segment::new(cut.plunge, start))])
+        }
+    }
+}
+
+/// A lead found by [`search`]: its share of the asked size, and how far (mm) its straight part
+/// was lengthened to keep the pierce clearance (0 when it was not).
+#[derive(Debug, Clone, Copy)]
+struct Found {
+    scale: f64,
+    extension: f64,
+}
+
+/// The lead `kind` with its straight part lengthened by `extension` (an arc gains one).
+fn extended(kind: LeadKind, length: f64, extension: f64) -> (LeadKind, f64) {
+    match kind {
+        LeadKind::Arc => (LeadKind::LineArc, extension),
+        other => (other, length + extension),
+    }
+}
+
+/// Tries the lead of `kind` at full size and halved up to [`HALVINGS`] times, at every start
+/// candidate; sets the first that keeps the rules on `cut` (its start, lead-in and plunge point)
+/// and returns what was used. On a cut-through machine, a lead whose only fault is a pierce
+/// point nearer than the clearance to an edge has its straight part lengthened along the normal
+/// (an arc lead gets one) by 1, 1.5, 2 and 3 times the shortfall, plus one sample spacing.
+fn search(
+    cut: &mut PlannedCut,
+    room: &Room,
+    kind: LeadKind,
+    length: f64,
+    radius: f64,
+) -> Result<Option<Found>, PlanError> {
+    let from = ring_end(cut);
+    // The lead's moves: a pocket's link from its last ring, then the shape.
+    let with_link = |shape: Vec<Element>| -> Option<(Point, Vec<Element>)> {
+        let first = shape.first().map(Element::start)?;
+        let mut elements = Vec::with_capacity(shape.len() + 1);
+        if let Some(p) = from
+            && p.distance(first) > SAME_POINT
+        {
+            elements.push(Element::Line(Segment::new(p, first)));
+        }
+        elements.extend(shape);
+        Some((first, elements))
+    };
+    for k in 0..=HALVINGS {
+        let scale = 0.5f64.powi(k as i32);
+        let (l, rad) = (length * scale, radius * scale);
+        if uses_arc(kind) && !room.arc_allowed(rad) {
+            break;
+        }
+        for start in start_candidates(cut) {
+            let path = with_start(&cut.path, start);
+            let Some(f) = frame_at(&path, cut.side, 0.0) else {
+                continue;
+            };
+            let Some((first, elements)) = with_link(lead_in_shape(kind, &f, l, rad)) else {
+                continue;
+            };
+            if !room.elements_ok(&elements) {
+                continue;
+            }
+            let mut found = None;
+            if from.is_some() || room.pierce_ok(first) {
+                found = Some((first, elements, 0.0));
+            } else if let Some(c) = room.pierce_clearance {
+                let shortfall = (c - room.nearest_edge(first)).max(0.0);
+                for factor in [1.0, 1.5, 2.0, 3.0] {
+                    let extension = factor * shortfall + SAMPLE_SPACING;
+                    let (kind2, l2) = extended(kind, l, extension);
+                    let Some((first2, elements2)) = with_link(lead_in_shape(kind2, &f, l2, rad))
+                    else {
+                        continue;
+                    };
+                    if room.pierce_ok(first2) && room.elements_ok(&elements2) {
+                        found = Some((first2, elements2, extension));
+                        break;
+                    }
+                }
+            }
+            if let Some((first, elements, extension)) = found {
+                cut.path = path;
+                cut.lead_in = elements;
+                if from.is_none() {
+                    cut.plunge = first;
+                }
+                return Ok(Some(Found { scale, extension }));
+            }
+        }
+    }
+    Ok(None)
+}
+
+/// Sets the overcut, at most half the path's length.
+fn set_overcut(cut: &mut PlannedCut, overcut: f64, notes: &mut Vec<String>) {
+    let half = 0.5 * path_length(&cut.path);
+    if overcut > half {
+        notes.push(format!(
+            "the {} mm overcut is more than half the path ({:.3} mm): cut down to that",
+            round3(overcut),
+            half
+        ));
+        cut.overcut = half;
+    } else {
+        cut.overcut = overcut;
+    }
+}
+
+/// Places the lead-out at the end of the overcut: the lead-in's shape at `base` times the asked
+/// size, halved up to [`HALVINGS`] times until it fits; none (with a note) when nothing fits.
+fn place_lead_out(
+    cut: &mut PlannedCut,
+    room: &Room,
+    leads: &LeadOptions,
+    base: f64,
+    notes: &mut Vec<String>,
+) {
+    let Some(f) = frame_at(&cut.path, cut.side, cut.overcut) else {
+        return;
+    };
+    for k in 0..=HALVINGS {
+        let scale = base * 0.5f64.powi(k as i32);
+        let (l, rad) = (leads.length * scale, leads.radius * scale);
+        if uses_arc(leads.kind) && !room.arc_allowed(rad) {
+            break;
+        }
+        let shape = lead_out_shape(leads.kind, &f, l, rad);
+        if room.elements_ok(&shape) {
+            if k > 0 {
+                notes.push(format!(
+                    "the lead-out was shrunk to a {} to fit",
+                    size_words(leads.kind, l, rad)
+                ));
+            }
+            cut.lead_out = shape;
+            return;
+        }
+    }
+    notes.push(format!(
+        "no room for the {} lead-out: the cut ends on the path",
+        kind_word(leads.kind)
+    ));
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::chain::{Contour, Part};
+    use crate::geom::Ellipse;
+    use crate::plan::{Opening, plan_cuts};
+
+    fn options(d: f64, kind: LeadKind, length: f64, radius: f64) -> PlanOptions {
+        let mut o = PlanOptions::plain(d);
+        o.leads = LeadOptions {
+            kind,
+            length,
+            radius,
+            overcut: 1.0,
+            lead_out: true,
+        };
+        o
+    }
+
+    fn circle_hole(cx: f64, cy: f64, radius: f64) -> Contour {
+        Contour {
+            elements: vec![Element::Arc(ArcSegment::circle(Point::new(cx, cy), radius))],
+            layer: "0".into(),
+            handles: vec![],
+        }
+    }
+
+    #[test]
+    fn arc_lead_is_tangent_and_inside_an_opening() {
+        // A 40 × 20 ellipse, 6 mm tool: the arc lead of radius 4 goes to an end of the minor
+        // axis, where the path's tangent is along the major axis.
+        let e = Ellipse::new(Point::new(0.0, 0.0), 40.0, 20.0, 0.0).unwrap();
+        let open = Opening {
+            name: "bay".into(),
+            ellipse: e,
+            side: CutSide::Inside,
+            pocket: false,
+        };
+        let plan = plan_cuts(
+            &Part::default(),
+            &[open],
+            &options(6.0, LeadKind::Arc, 0.0, 4.0),
+        )
+        .unwrap();
+        assert!(plan.warnings.is_empty(), "{:?}", plan.warnings);
+        let cut = &plan.cuts[0];
+        let ExactPath::EllipseParallel { start, .. } = cut.path else {
+            panic!("ellipse path");
+        };
+        assert!((start - FRAC_PI_2).abs() < 1e-12);
+        // Independent: the path's start is (0, 20 − 3) and its tangent (−1, 0) (counter-
+        // clockwise at the top of the ellipse).
+        let s = cut.path.start_point();
+        assert!(s.distance(Point::new(0.0, 17.0)) < 1e-12);
+        let Element::Arc(a) = cut.lead_in[0] else {
+            panic!("an arc");
+        };
+        assert!(a.end_point().distance(s) < 1e-12);
+        let t = a.tangent_at(1.0);
+        assert!((t.x + 1.0).abs() < 1e-12 && t.y.abs() < 1e-12, "{t:?}");
+        // The plunge is the arc's start: 4 below and 4 along +x from the start.
+        assert!(cut.plunge.distance(Point::new(4.0, 13.0)) < 1e-12);
+        // Overcut 1 mm, and the lead-out leaves towards the centre.
+        assert_eq!(cut.overcut, 1.0);
+        let out_end = cut.lead_out.last().unwrap().end();
+        assert!(out_end.y < 17.0 - 3.9, "{out_end:?}");
+    }
+
+    #[test]
+    fn small_hole_falls_back_to_a_straight_entry_with_a_warning() {
+        // Ø9 hole, 6 mm tool: the path is a 1.5 mm circle and no arc wider than the tool fits.
+        let part = Part {
+            holes: vec![crate::chain::Hole {
+                name: "hole 1".into(),
+                layer: "0".into(),
+                shape: crate::chain::HoleShape::Contour(circle_hole(10.0, 10.0, 4.5)),
+            }],
+            ..Part::default()
+        };
+        let plan = plan_cuts(&part, &[], &options(6.0, LeadKind::Arc, 0.0, 4.0)).unwrap();
+        let cut = &plan.cuts[0];
+        assert!(cut.lead_in.is_empty());
+        assert_eq!(cut.plunge, Point::new(10.0, 10.0));
+        assert!(cut.lead_out.is_empty());
+        assert_eq!(plan.warnings.len(), 1, "{:?}", plan.warnings);
+        assert!(plan.warnings[0].starts_with("hole 1: no room for the arc lead"));
+    }
+
+    #[test]
+    fn too_narrow_a_mill_arc_is_widened_with_a_warning() {
+        let e = Ellipse::new(Point::new(0.0, 0.0), 40.0, 20.0, 0.0).unwrap();
+        let open = Opening {
+            name: "bay".into(),
+            ellipse: e,
+            side: CutSide::Inside,
+            pocket: false,
+        };
+        let plan = plan_cuts(
+            &Part::default(),
+            &[open],
+            &options(6.0, LeadKind::Arc, 0.0, 2.0),
+        )
+        .unwrap();
+        let Element::Arc(a) = plan.cuts[0].lead_in[0] else {
+            panic!("an arc");
+        };
+        assert!((a.radius - 3.75).abs() < 1e-12);
+        assert!(plan.warnings[0].contains("NISTIR 6556"));
+    }
+
+    #[test]
+    fn thermal_pierce_keeps_its_clearance_or_the_plan_is_refused() {
+        let part = Part {
+            holes: vec![crate::chain::Hole {
+                name: "hole 1".into(),
+                layer: "0".into(),
+                shape: crate::chain::HoleShape::Contour(circle_hole(0.0, 0.0, 4.5)),
+            }],
+            ..Part::default()
+        };
+        let mut o = options(1.0, LeadKind::LineArc, 5.0, 2.5);
+        o.pierce_clearance = Some(3.0);
+        let plan = plan_cuts(&part, &[], &o).unwrap();
+        let cut = &plan.cuts[0];
+        // Independent: the pierce point's distance from the circle is 4.5 − |p|.
+        assert!(4.5 - cut.plunge.distance(Point::ORIGIN) >= 3.0 - 1e-12);
+        // No point of a Ø9 hole is 5 mm from its edge.
+        o.pierce_clearance = Some(5.0);
+        let err = plan_cuts(&part, &[], &o).unwrap_err();
+        assert!(matches!(err, PlanError::NoRoomForLead { .. }), "{err}");
+        assert!(err.to_string().contains("pierce_clearance"));
+    }
+
+    #[test]
+    fn inside_follows_arcs_exactly() {
+        // 0.05 mm inside a Ø9 mm circle in every direction, and 0.05 mm outside (independent:
+        // the distance from the centre).
+        let edge = Edge::Contour(circle_hole(15.0, 15.0, 4.5));
+        let c = Point::new(15.0, 15.0);
+        for k in 0..720 {
+            let dir = Vec2::from_angle(k as f64 * PI / 360.0);
+            assert!(Edge::contains(&edge, c + dir * 4.45), "{k}");
+            assert!(!Edge::contains(&edge, c + dir * 4.55), "{k}");
+        }
+    }
+
+    #[test]
+    fn bad_settings_are_refused() {
+        let e = Ellipse::new(Point::new(0.0, 0.0), 40.0, 20.0, 0.0).unwrap();
+        let open = Opening {
+            name: "bay".into(),
+            ellipse: e,
+            side: CutSide::Inside,
+            pocket: false,
+        };
+        for (kind, length, radius) in [
+            (LeadKind::Line, 0.0, 1.0),
+            (LeadKind::Arc, 1.0, 0.0),
+            (LeadKind::LineArc, -1.0, 1.0),
+            (LeadKind::Arc, 1.0, f64::NAN),
+        ] {
+            let err = plan_cuts(
+                &Part::default(),
+                std::slice::from_ref(&open),
+                &options(6.0, kind, length, radius),
+            )
+            .unwrap_err();
+            assert!(matches!(err, PlanError::BadLead { .. }), "{err}");
+        }
+    }
+
+    #[test]
+    fn arc_length_along_an_ellipse_parallel_matches_a_fine_polyline() {
+        // Independent: a 200 000-chord polyline of the same parallel curve.
+        let e = Ellipse::new(Point::new(1.0, 2.0), 30.0, 12.0, 0.3).unwrap();
+        let inset = 3.0;
+        let speed = |t: f64| ellipse_speed(&e, inset, t);
+        let t1 = anomaly_at_length(&speed, 0.4, 1.0, 25.0);
+        let n = 200_000;
+        let mut walked = 0.0;
+        let mut prev = e.inward_offset_point(0.4, inset);
+        for k in 1..=n {
+            let p = e.inward_offset_point(0.4 + (t1 - 0.4) * k as f64 / n as f64, inset);
+            walked += prev.distance(p);
+            prev = p;
+        }
+        assert!((walked - 25.0).abs() < 1e-6, "{walked}");
+    }
 }

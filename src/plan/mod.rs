@@ -71,6 +71,11 @@ pub struct PlanOptions {
     pub finish_allowance: Option<f64>,
     /// Pockets: the distance between clearing rings (mm), at most the tool diameter.
     pub pocket_stepover: f64,
+    /// Laser, plasma and waterjet (`Some`): the pierce point's least distance from every
+    /// finished edge (mm; one kerf plus the pierce crater, STANDARDS-AND-PRACTICE §4.3).
+    /// Mills and routers (`None`): no pierce, but every lead arc must be wider than the tool
+    /// (NISTIR 6556 App. B.3.1). See [`leads`].
+    pub pierce_clearance: Option<f64>,
 }
 
 impl PlanOptions {
@@ -85,6 +90,7 @@ impl PlanOptions {
             tabs: None,
             finish_allowance: None,
             pocket_stepover: 0.4 * tool_diameter,
+            pierce_clearance: None,
         }
     }
 }
@@ -218,6 +224,25 @@ impl ExactPath {
             ExactPath::Contour(c) => c.start_point().unwrap_or(Point::ORIGIN),
         }
     }
+
+    /// The same path travelled the other way from the same start point (exact: the ellipse's
+    /// parallel curve with the other sense, a contour's pieces in reverse order, each reversed).
+    pub fn reversed(&self) -> ExactPath {
+        match self {
+            ExactPath::EllipseParallel {
+                ellipse,
+                inset,
+                start,
+                clockwise,
+            } => ExactPath::EllipseParallel {
+                ellipse: *ellipse,
+                inset: *inset,
+                start: *start,
+                clockwise: !clockwise,
+            },
+            ExactPath::Contour(c) => ExactPath::Contour(c.reversed()),
+        }
+    }
 }
 
 /// One feature's planned cut.
@@ -250,6 +275,14 @@ pub struct PlannedCut {
     /// How far the tool centre may wander from the plunge point in every direction without
     /// touching the finished edge (mm): room for a helical entry. Zero when there is none.
     pub entry_room: f64,
+    /// Whether the scrap lies on the left of travel (climb milling with a clockwise spindle,
+    /// and the usual thermal direction: holes counter-clockwise, outline and bosses clockwise);
+    /// `false` for a conventional cut, which runs the other way with the scrap on the right.
+    /// Leads, one-sided fits and side measurements follow it.
+    pub scrap_left: bool,
+    /// Radial stock (mm) this cut leaves on the finished edge for a finishing cut that follows
+    /// it: the finishing allowance on a roughing cut, 0 on a cut that makes the edge.
+    pub allowance: f64,
 }
 
 impl PlannedCut {
@@ -310,6 +343,8 @@ impl PlannedCut {
             full_depth_only: false,
             edge,
             entry_room: 0.0,
+            scrap_left: true,
+            allowance: 0.0,
         }
     }
 
@@ -327,6 +362,21 @@ impl PlannedCut {
         };
         self
     }
+
+    /// The same cut travelled the other way, exactly: the path and the clearing rings reversed
+    /// (each still starts and ends where it did), the scrap on the other side of travel, tabs
+    /// kept where they are (their shares measured from the start the other way round). The plunge
+    /// point, the edge and the entry room do not change. For cuts without leads (the planner
+    /// reverses before [`leads::add_leads`]): leads, overcut and lead-out are not reversed.
+    pub fn reversed(mut self) -> Self {
+        self.path = self.path.reversed();
+        self.clearing = self.clearing.iter().map(ExactPath::reversed).collect();
+        self.scrap_left = !self.scrap_left;
+        for t in &mut self.tabs {
+            t.at = (1.0 - t.at).rem_euclid(1.0);
+        }
+        self
+    }
 }
 
 /// The cuts in the order they run: every inner feature before the outline.
@@ -341,6 +391,44 @@ pub struct Plan {
 pub enum PlanError {
     #[error("the tool diameter must be a positive number of millimetres (got {0})")]
     BadTool(f64),
+    #[error("the {setting} {value} mm cannot be used: {hint}")]
+    BadLead {
+        setting: &'static str,
+        value: f64,
+        hint: &'static str,
+    },
+    #[error("{feature}: no room for a lead-in: {detail}")]
+    NoRoomForLead { feature: String, detail: String },
+    #[error(
+        "the finishing allowance must be a positive number of millimetres (got {0}); common \
+         practice is 0.1–0.5 mm of radial stock"
+    )]
+    BadFinishAllowance(f64),
+    #[error(
+        "{feature}: a finishing allowance of {allowance} mm is too big for this ellipse: the \
+         roughing path runs at the tool radius plus the allowance, {inset} mm inside the edge, \
+         which must stay below the smallest radius of curvature b²/a = {limit:.4} mm. {advice}"
+    )]
+    AllowanceTooBig {
+        feature: String,
+        allowance: f64,
+        inset: f64,
+        limit: f64,
+        /// What to do: the largest allowance that fits, or a smaller tool.
+        advice: String,
+    },
+    #[error(
+        "{feature}: with a finishing allowance of {allowance} mm the roughing path ({distance} mm \
+         from the edge: the tool radius plus the allowance) does not fit {detail}; use a smaller \
+         allowance or a smaller tool"
+    )]
+    RoughingDoesNotFit {
+        feature: String,
+        allowance: f64,
+        distance: f64,
+        /// Where, e.g. `near (12.000, 3.500) mm`.
+        detail: String,
+    },
     #[error(
         "{feature}: a {diameter} mm tool would gouge the ellipse: its radius {radius} mm is not \
          below the smallest radius of curvature b²/a = {limit:.4} mm (at the ends of the major \
@@ -375,6 +463,18 @@ pub enum PlanError {
         x: f64,
         y: f64,
     },
+    #[error(
+        "{feature}: a pocket stepover of {stepover} mm is {problem}; give a stepover \
+         (--stepover) from {min} mm to {diameter} mm, the {diameter} mm tool's diameter (common \
+         practice: 30–50 % of the diameter)"
+    )]
+    BadStepover {
+        feature: String,
+        stepover: f64,
+        problem: &'static str,
+        diameter: f64,
+        min: f64,
+    },
 }
 
 /// Plans every cut: the solved openings and the drawn holes inside (tool inside, climb milling
@@ -382,10 +482,26 @@ pub enum PlanError {
 ///
 /// Direction: with the spindle turning clockwise (M3), the tool on the left of travel climb-mills
 /// (NISTIR 6556 App. B.2.1; common practice prefers climb milling on rigid machines).
+/// [`Direction::Conventional`] reverses every cut exactly ([`PlannedCut::reversed`]: holes
+/// clockwise, outline and bosses counter-clockwise, plunge points unchanged) before tabs and
+/// leads are placed, so that both follow the direction of travel.
+///
+/// Finishing pass (`opts.finish_allowance = Some(s)`, mills and routers): every cut becomes two,
+/// "NAME roughing" on the parallel path at r + s in every depth pass, then NAME at r once at the
+/// full depth (`full_depth_only`); tabs are kept on both, a pocket's clearing on the roughing cut
+/// (see `add_finishing_cuts` in the source). Refused: an allowance that is not positive
+/// ([`PlanError::BadFinishAllowance`]), one that puts the roughing path of an ellipse at or past
+/// b²/a ([`PlanError::AllowanceTooBig`], naming the largest that fits) or a contour's offset out
+/// of existence ([`PlanError::RoughingDoesNotFit`]).
 pub fn plan_cuts(part: &Part, openings: &[Opening], opts: &PlanOptions) -> Result<Plan, PlanError> {
     let d = opts.tool_diameter;
     if !(d > 0.0 && d.is_finite()) {
         return Err(PlanError::BadTool(d));
+    }
+    if let Some(s) = opts.finish_allowance
+        && !(s > 0.0 && s.is_finite())
+    {
+        return Err(PlanError::BadFinishAllowance(s));
     }
     let r = d / 2.0;
     let mut warnings = Vec::new();
@@ -394,7 +510,7 @@ pub fn plan_cuts(part: &Part, openings: &[Opening], opts: &PlanOptions) -> Resul
         inner.push(match o.side {
             CutSide::Inside if o.pocket => {
                 let mut cut = plan_ellipse(&o.name, FeatureKind::Pocket, &o.ellipse, r, d)?;
-                cut.clearing = pocket::clearing_rings(&o.name, &o.ellipse, r, opts)?;
+                cut.clearing = pocket::clearing_rings(&o.name, &o.ellipse, r, opts, &mut warnings)?;
                 cut
             }
             CutSide::Inside => plan_ellipse(&o.name, FeatureKind::Opening, &o.ellipse, r, d)?,
@@ -419,14 +535,17 @@ pub fn plan_cuts(part: &Part, openings: &[Opening], opts: &PlanOptions) -> Resul
         };
         inner.push(cut);
     }
-    let mut cuts = order_nearest_first(inner);
+    let mut cuts: Vec<PlannedCut> = order_nearest_first(inner)
+        .into_iter()
+        .map(|c| directed(c, opts.direction))
+        .collect();
     if let Some(outline) = &part.outline {
         let cw = if outline.is_ccw() {
             outline.reversed()
         } else {
             outline.clone()
         };
-        cuts.push(plan_contour(
+        let outline_cut = plan_contour(
             "outline",
             FeatureKind::Outline,
             CutSide::Outside,
@@ -434,10 +553,14 @@ pub fn plan_cuts(part: &Part, openings: &[Opening], opts: &PlanOptions) -> Resul
             r,
             d,
             &mut warnings,
-        )?);
+        )?;
+        cuts.push(directed(outline_cut, opts.direction));
         if let (Some(tabs), Some(last)) = (&opts.tabs, cuts.last_mut()) {
             last.tabs = tabs::place_tabs(last, tabs, opts, &mut warnings)?;
         }
+    }
+    if let Some(s) = opts.finish_allowance {
+        cuts = add_finishing_cuts(cuts, s, r, d)?;
     }
     leads::add_leads(&mut cuts, opts, &mut warnings)?;
     Ok(Plan { cuts, warnings })
@@ -582,6 +705,219 @@ fn check_clearance(
         }
     }
     Ok(())
+}
+
+/// The cut in `direction`: as planned for climb, reversed for conventional.
+fn directed(cut: PlannedCut, direction: Direction) -> PlannedCut {
+    match direction {
+        Direction::Climb => cut,
+        Direction::Conventional => cut.reversed(),
+    }
+}
+
+/// Splits every cut into a roughing cut and a finishing cut, in that order, for a finishing
+/// allowance `s` (mm, radial; common practice 0.1–0.5 mm, STANDARDS-AND-PRACTICE §4.3) with a
+/// tool of radius `r` and diameter `d`:
+///
+/// * the roughing cut, named "NAME roughing", runs on the parallel path at `r + s` from the
+///   finished edge (an ellipse's parallel curve, a contour's exact offset), in every depth pass,
+///   in the same direction and from the same start anomaly as the finishing cut, and leaves `s`
+///   of stock on the edge (`allowance = s`). Its plunge point and entry room are planned for
+///   `r + s`, so an entry cannot cut into the stock. Inside an ellipse `r + s` must stay below
+///   b²/a (less [`GOUGE_MARGIN`]), else [`PlanError::AllowanceTooBig`] names the largest
+///   allowance that fits; a contour whose offset at `r + s` fails gives
+///   [`PlanError::RoughingDoesNotFit`]. A pocket's clearing rings stay on the roughing cut, less
+///   any ring closer to the edge than `r + s` (the roughing contour takes its place; the rings
+///   further in stay no further apart than before, so no island is left);
+/// * the finishing cut is the cut as planned at `r`, made once at the full depth
+///   (`full_depth_only`), without clearing.
+///
+/// Tabs placed on a cut are kept on both: each tab's middle is carried to the nearest point of
+/// the roughing contour, with the same length.
+fn add_finishing_cuts(
+    cuts: Vec<PlannedCut>,
+    s: f64,
+    r: f64,
+    d: f64,
+) -> Result<Vec<PlannedCut>, PlanError> {
+    let mut out = Vec::with_capacity(2 * cuts.len());
+    for mut finish in cuts {
+        let rough = roughing_cut(&finish, s, r, d)?;
+        finish.full_depth_only = true;
+        finish.clearing.clear();
+        finish.allowance = 0.0;
+        out.push(rough);
+        out.push(finish);
+    }
+    Ok(out)
+}
+
+/// The roughing cut of `finish` at `r + s` from its edge (see [`add_finishing_cuts`]).
+fn roughing_cut(finish: &PlannedCut, s: f64, r: f64, d: f64) -> Result<PlannedCut, PlanError> {
+    let name = format!("{} roughing", finish.name);
+    let rr = r + s;
+    let mut rough = match &finish.edge {
+        Edge::Ellipse(e) => {
+            if finish.side == CutSide::Inside {
+                let limit = e.min_radius_of_curvature();
+                if rr >= limit * (1.0 - GOUGE_MARGIN) {
+                    let largest = limit * (1.0 - GOUGE_MARGIN) - r;
+                    // Rounded down to 0.1 µm, so that the allowance named fits.
+                    let shown = (largest * 1e4).floor() / 1e4;
+                    let advice = if shown > 0.0 && shown < largest {
+                        format!("Use an allowance of at most {shown:.4} mm")
+                    } else {
+                        "No finishing allowance fits with this tool; use a smaller tool for a \
+                         finishing pass"
+                            .to_string()
+                    };
+                    return Err(PlanError::AllowanceTooBig {
+                        feature: finish.name.clone(),
+                        allowance: s,
+                        inset: rr,
+                        limit,
+                        advice,
+                    });
+                }
+                PlannedCut::around_ellipse(&name, finish.kind, *e, rr)
+            } else {
+                PlannedCut::around_ellipse(&name, finish.kind, *e, -rr)
+            }
+        }
+        Edge::Contour(drawn) => {
+            // Inside-corner warnings were given for the finishing cut already.
+            let mut ignored = Vec::new();
+            plan_contour(&name, finish.kind, finish.side, drawn, rr, d, &mut ignored).map_err(
+                |e| {
+                    let detail = match e {
+                        PlanError::ArcTooTight { radius, x, y, .. } => {
+                            format!("at an arc of radius {radius:.4} mm near ({x:.3}, {y:.3}) mm")
+                        }
+                        PlanError::ToolDoesNotFit { x, y, .. } => {
+                            format!("near ({x:.3}, {y:.3}) mm")
+                        }
+                        other => format!("({other})"),
+                    };
+                    PlanError::RoughingDoesNotFit {
+                        feature: finish.name.clone(),
+                        allowance: s,
+                        distance: rr,
+                        detail,
+                    }
+                },
+            )?
+        }
+    };
+    if !finish.scrap_left {
+        rough = rough.reversed();
+    }
+    rough.tabs = tabs_moved(&finish.tabs, &finish.path, &rough.path);
+    rough.clearing = finish
+        .clearing
+        .iter()
+        .filter(|ring| ring_distance(ring, &finish.edge) >= rr * (1.0 - GOUGE_MARGIN))
+        .cloned()
+        .collect();
+    rough.allowance = s;
+    Ok(rough)
+}
+
+/// The smallest distance of a clearing ring from the edge: its inset for a parallel curve
+/// (every point of a regular parallel curve lies at that distance), the nearest vertex for a
+/// contour (rings of pieces with their vertices on the level set).
+fn ring_distance(ring: &ExactPath, edge: &Edge) -> f64 {
+    match ring {
+        ExactPath::EllipseParallel { inset, .. } => inset.abs(),
+        ExactPath::Contour(c) => c
+            .elements
+            .iter()
+            .map(|e| edge.distance_to(e.start()))
+            .fold(f64::INFINITY, f64::min),
+    }
+}
+
+/// `tabs` placed on contour `from`, carried to contour `to`: each tab's middle moved to the
+/// nearest point of `to`, its length kept. Shares on an ellipse path are kept as they are.
+fn tabs_moved(tabs: &[Tab], from: &ExactPath, to: &ExactPath) -> Vec<Tab> {
+    match (from, to) {
+        (ExactPath::Contour(a), ExactPath::Contour(b)) => tabs
+            .iter()
+            .map(|t| Tab {
+                at: share_nearest(b, point_at_share(a, t.at)).rem_euclid(1.0),
+                length: t.length,
+            })
+            .collect(),
+        _ => tabs.to_vec(),
+    }
+}
+
+fn element_point(e: &Element, t: f64) -> Point {
+    match e {
+        Element::Line(s) => s.point_at(t),
+        Element::Arc(a) => a.point_at(t),
+    }
+}
+
+/// The point at `share` of the contour's length from its start.
+fn point_at_share(c: &Contour, share: f64) -> Point {
+    let total: f64 = c.elements.iter().map(Element::length).sum();
+    let mut left = share.rem_euclid(1.0) * total;
+    for e in &c.elements {
+        let len = e.length();
+        if left <= len && len > 0.0 {
+            return element_point(e, left / len);
+        }
+        left -= len;
+    }
+    c.start_point().unwrap_or(Point::ORIGIN)
+}
+
+/// The share of the contour's length from its start to the point of the contour nearest `p`.
+fn share_nearest(c: &Contour, p: Point) -> f64 {
+    let total: f64 = c.elements.iter().map(Element::length).sum();
+    if total <= 0.0 {
+        return 0.0;
+    }
+    let mut walked = 0.0;
+    let mut best = (f64::INFINITY, 0.0);
+    for e in &c.elements {
+        let len = e.length();
+        let t = match e {
+            Element::Line(s) => {
+                let v = s.end - s.start;
+                let vv = v.dot(v);
+                if vv > 0.0 {
+                    ((p - s.start).dot(v) / vv).clamp(0.0, 1.0)
+                } else {
+                    0.0
+                }
+            }
+            Element::Arc(a) => {
+                let sweep = a.sweep.abs();
+                let angle = (p - a.center).angle();
+                let rel = if a.sweep >= 0.0 {
+                    (angle - a.start_angle).rem_euclid(std::f64::consts::TAU)
+                } else {
+                    (a.start_angle - angle).rem_euclid(std::f64::consts::TAU)
+                };
+                if sweep <= 0.0 {
+                    0.0
+                } else if rel <= sweep {
+                    rel / sweep
+                } else if p.distance(a.start_point()) <= p.distance(a.end_point()) {
+                    0.0
+                } else {
+                    1.0
+                }
+            }
+        };
+        let dist = p.distance(element_point(e, t));
+        if dist < best.0 {
+            best = (dist, (walked + t * len) / total);
+        }
+        walked += len;
+    }
+    best.1
 }
 
 /// Orders cuts by nearest neighbour, starting nearest to the work zero.

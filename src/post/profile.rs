@@ -29,7 +29,16 @@
 //! | `pierce_dwell`, `pierce_height`, `cut_height`, `kerf_width` | laser, plasma, waterjet | seconds; heights above the sheet; the kerf |
 //! | `cut_feed`, `plunge_feed`, `max_feed`, `rapid_feed`, `acceleration` | all | per minute; acceleration per second squared |
 //! | `safe_height`, `[travel]` | all | clearance height; the envelope `x_min` … `z_max` |
+//! | `lead` | all | the lead-in's shape: `straight` (default), `line`, `arc` or `line-arc` |
+//! | `lead_length`, `lead_radius` | all | the lead's straight part and arc radius (a line lead needs a length above 0, an arc lead a radius above 0; mills and routers: an arc wider than the tool, NISTIR 6556 App. B.3.1) |
+//! | `overcut`, `lead_out` | all | how far past the start the path is cut again (default 0); whether to leave by the mirrored lead (default: true unless the lead is straight) |
+//! | `pierce_clearance` | laser, plasma, waterjet | the pierce point's least distance from every finished edge: one kerf plus the pierce crater (default 0: the kerf's half-width only) |
+//!
+//! Lead keys left out give the behaviour of earlier versions: a straight move from the plunge or
+//! pierce point, no overcut, no lead-out. The bundled profiles set them (common practice,
+//! STANDARDS-AND-PRACTICE §4.3).
 
+use crate::plan::{LeadKind, LeadOptions};
 use serde::Deserialize;
 use std::fmt;
 
@@ -272,6 +281,13 @@ struct RawProfile {
     pierce_height: Option<f64>,
     cut_height: Option<f64>,
     kerf_width: Option<f64>,
+    pierce_clearance: Option<f64>,
+    // Leads, every kind (optional).
+    lead: Option<String>,
+    lead_length: Option<f64>,
+    lead_radius: Option<f64>,
+    overcut: Option<f64>,
+    lead_out: Option<bool>,
     // Every kind.
     cut_feed: f64,
     plunge_feed: f64,
@@ -307,6 +323,10 @@ pub struct MachineProfile {
     acceleration: f64,
     safe_height: f64,
     travel: TravelEnvelope,
+    /// Lead defaults, in mm.
+    leads: LeadOptions,
+    /// Cut-through kinds: the pierce point's least distance from the finished edges, in mm.
+    pierce_clearance: Option<f64>,
 }
 
 /// The generic metric mill profile shipped in `machine-profiles/metric-mill.toml`.
@@ -353,7 +373,7 @@ const SPINDLE_KEYS: [&str; 7] = [
 ];
 
 /// Keys only lasers, plasma tables and waterjets take (the on/off pair depends on the kind).
-const PROCESS_KEYS: [&str; 10] = [
+const PROCESS_KEYS: [&str; 11] = [
     "beam_on",
     "beam_off",
     "torch_on",
@@ -364,6 +384,7 @@ const PROCESS_KEYS: [&str; 10] = [
     "pierce_height",
     "cut_height",
     "kerf_width",
+    "pierce_clearance",
 ];
 
 /// The keys that switch the process on and off for a kind of machine that pierces.
@@ -397,6 +418,7 @@ impl RawProfile {
             "pierce_height" => self.pierce_height.is_some(),
             "cut_height" => self.cut_height.is_some(),
             "kerf_width" => self.kerf_width.is_some(),
+            "pierce_clearance" => self.pierce_clearance.is_some(),
             _ => false,
         }
     }
@@ -623,6 +645,16 @@ impl MachineProfile {
         }
 
         let cutter = check_cutter(&raw, &c)?;
+        let leads = check_leads(&raw, &c)?;
+        let pierce_clearance = match cutter {
+            Cutter::Process(_) => Some(raw.units.to_mm(c.not_negative(
+                "pierce_clearance",
+                raw.pierce_clearance.unwrap_or(0.0),
+                "give the pierce point's least distance from the finished edge: one kerf plus \
+                 the pierce crater, or 0",
+            )?)),
+            Cutter::Spindle(_) => None,
+        };
 
         for (key, lines) in [
             ("start_block", &raw.start_block),
@@ -664,6 +696,8 @@ impl MachineProfile {
             acceleration: raw.acceleration,
             safe_height: raw.safe_height,
             travel: raw.travel,
+            leads,
+            pierce_clearance,
         })
     }
 
@@ -776,6 +810,16 @@ impl MachineProfile {
     /// The travel envelope, profile units relative to the work zero.
     pub fn travel(&self) -> &TravelEnvelope {
         &self.travel
+    }
+    /// The lead-in, overcut and lead-out used when the user gives none, in **millimetres**
+    /// (converted from the profile's units).
+    pub fn lead_options(&self) -> LeadOptions {
+        self.leads
+    }
+    /// Laser, plasma and waterjet: the pierce point's least distance from every finished edge,
+    /// in **millimetres** (0 when the profile gives none); `None` for mills and routers.
+    pub fn pierce_clearance(&self) -> Option<f64> {
+        self.pierce_clearance
     }
 }
 
@@ -934,6 +978,59 @@ fn check_cutter(raw: &RawProfile, c: &Checker) -> Result<Cutter, ProfileError> {
             }))
         }
     }
+}
+
+/// Reads the lead keys: the shape, lengths not negative (a line lead needs a length above 0, an
+/// arc lead a radius above 0), converted to mm. Left out: a straight lead, no overcut, no
+/// lead-out.
+fn check_leads(raw: &RawProfile, c: &Checker) -> Result<LeadOptions, ProfileError> {
+    let kind = match raw.lead.as_deref().map(str::trim) {
+        None | Some("straight") => LeadKind::Straight,
+        Some("line") => LeadKind::Line,
+        Some("arc") => LeadKind::Arc,
+        Some("line-arc") => LeadKind::LineArc,
+        Some(other) => {
+            return Err(c.fail(
+                "lead",
+                format!("\"{other}\" is not a lead shape"),
+                "use \"straight\", \"line\", \"arc\" or \"line-arc\"",
+            ));
+        }
+    };
+    let hint = "give zero or a positive length";
+    let length = c.not_negative("lead_length", raw.lead_length.unwrap_or(0.0), hint)?;
+    let radius = c.not_negative("lead_radius", raw.lead_radius.unwrap_or(0.0), hint)?;
+    let overcut = c.not_negative("overcut", raw.overcut.unwrap_or(0.0), hint)?;
+    if matches!(kind, LeadKind::Line | LeadKind::LineArc) && length <= 0.0 {
+        return Err(c.fail(
+            if raw.lead_length.is_some() {
+                "lead_length"
+            } else {
+                "lead"
+            },
+            "a line or line-arc lead needs a straight part: lead_length is missing or 0".into(),
+            "set lead_length above 0, or choose lead = \"arc\"",
+        ));
+    }
+    if matches!(kind, LeadKind::Arc | LeadKind::LineArc) && radius <= 0.0 {
+        return Err(c.fail(
+            if raw.lead_radius.is_some() {
+                "lead_radius"
+            } else {
+                "lead"
+            },
+            "an arc or line-arc lead needs an arc: lead_radius is missing or 0".into(),
+            "set lead_radius above 0, or choose lead = \"line\"",
+        ));
+    }
+    let units = raw.units;
+    Ok(LeadOptions {
+        kind,
+        length: units.to_mm(length),
+        radius: units.to_mm(radius),
+        overcut: units.to_mm(overcut),
+        lead_out: raw.lead_out.unwrap_or(kind != LeadKind::Straight),
+    })
 }
 
 /// Checks one line of a start or end block: printable ASCII, no `%`, no nested or unclosed

@@ -176,16 +176,18 @@ struct Written {
 /// Writes `cuts` as one program for `profile`.
 ///
 /// Shape (NISTIR 6556, RS274/NGC): a `%` line; a header of comments (title, source, generator
-/// and version, units, tool or kerf, depth, tolerance, feeds, heights, one line per feature, the
-/// safety block for the profile's kind of machine ending with the precedence statement); a modal
+/// and version, units, tool or kerf, depth, tolerance, feeds, heights, the direction of travel
+/// read from the cuts, on mills and routers the entry and any finishing pass, one line per
+/// feature, the safety block for the profile's kind of machine ending with the precedence
+/// statement); a modal
 /// line `G21|G20 G90 G17 G94 G40`; the profile's start block; a rapid to the safe height; then:
 ///
 /// * **mill, router**: the spindle on with `S` (and a `G4 P` dwell if the profile asks); per cut
-///   a rapid over the plunge point, a rapid down to the retract height, a straight plunge at the
-///   plunge feed to the first pass's floor, a feed move to the path's start and along the path at
-///   the cut feed, then for every further pass ([`pass_depths`]) a feed straight down at the
-///   path's start and the path again, and a rapid back to the safe height; at the end the
-///   spindle off.
+///   and per pass ([`pass_depths`]; one pass at the full depth for a finishing cut,
+///   [`FittedCut::full_depth_only`]) a rapid over the plunge point and down to the retract height,
+///   the entry into the pass's depth at the plunge point (a straight plunge without a ramp angle;
+///   with one a helix, or a zig-zag ramp, see `Writer::enter`), then the runs of the cut at the
+///   cut feed; a rapid back to the safe height; at the end the spindle off.
 /// * **laser, plasma, waterjet**: per cut a rapid at the safe height over the pierce point
 ///   (the cut's plunge point), a rapid down to the pierce height, the process on, the pierce
 ///   dwell `G4 P`, a feed down to the cut height at the plunge feed, a feed move to the path's
@@ -244,7 +246,7 @@ pub fn write_program(
         spindle_speed,
         floor: -units.from_mm(settings.depth),
         tool_diameter: settings.tool_diameter,
-        helical: settings.helical_entry && settings.ramp_angle_deg.is_some(),
+        helical: helical(settings, profile),
     };
     for cut in cuts {
         check_cut(cut, profile, &r)?;
@@ -766,7 +768,10 @@ impl<'p> Writer<'p> {
     /// Into the material on a mill or router, at the plunge point, from `z_from` (where the tool
     /// is) down to `z_to`: straight down without a ramp angle; with one, a helix about the plunge
     /// point where the cut leaves room for it, otherwise a zig-zag along the first entry move
-    /// (the first clearing move or the first lead-in move), never steeper than the angle.
+    /// (the first clearing move or the first lead-in move), never steeper than the angle. When
+    /// that move is shorter than one output step and the plunge point is the contour's start (a
+    /// path entered on itself), the zig-zag runs along the contour's first move instead, an even
+    /// number of legs so that it ends at the start; only a cut with neither plunges straight.
     /// Returns how many entry moves the zig-zag has already made (0 or 1).
     fn enter(
         &mut self,
@@ -786,44 +791,78 @@ impl<'p> Writer<'p> {
             return Ok(0);
         }
         let slope = angle.to_radians().tan();
-        if settings.helical_entry {
+        if helical(settings, self.profile) {
             let radius = helix_radius(settings.tool_diameter);
             if cut.entry_room >= radius {
                 self.helix(cut, radius, z_from, z_to, slope, feed)?;
                 return Ok(0);
             }
         }
-        let first = cut.clearing.first().or(cut.lead_in.first());
-        let Some(first) = first.copied() else {
-            self.feed_z(z_to, feed);
-            return Ok(0);
-        };
-        let length = units.from_mm(first.length(cut.plunge));
-        if length <= 1e-9 {
-            self.feed_z(z_to, feed);
-            return Ok(0);
+        // A move shorter than one output step cannot carry a ramp.
+        let step = 10f64.powi(-(self.profile.xy_decimals() as i32));
+        let usable = |from: Point, m: &Move| units.from_mm(m.length(from)) >= step;
+        let first = cut.clearing.first().or(cut.lead_in.first()).copied();
+        if let Some(first) = first.filter(|m| usable(cut.plunge, m)) {
+            // An odd number of legs ends at the move's end: forward, back, forward, ...
+            self.zig_zag(cut, cut.plunge, first, z_from, z_to, slope, feed, true)?;
+            return Ok(1);
         }
-        // An odd number of legs ends at the move's end: forward, back, forward, ...
+        // The tool stands on the contour's start with nothing to cut before it.
+        let half_step = 0.5 * units.to_mm(step);
+        let at_start = cut.clearing.is_empty()
+            && cut.plunge.distance(cut.start) <= half_step
+            && crate::fit::moves::total_length(cut.plunge, &cut.lead_in) <= half_step;
+        match cut.moves.first().copied() {
+            Some(first) if at_start && usable(cut.start, &first) => {
+                // An even number of legs ends back at the contour's start.
+                self.zig_zag(cut, cut.start, first, z_from, z_to, slope, feed, false)?;
+            }
+            _ => self.feed_z(z_to, feed),
+        }
+        Ok(0)
+    }
+
+    /// Back and forth along the move `m` from `from`, descending from `z_from` to `z_to` no
+    /// steeper than `slope` along the move (each leg drops at most `slope` × its length): an odd
+    /// number of legs, ending at the move's end, when `end_at_far_end`, else an even number,
+    /// ending back at `from`.
+    #[allow(clippy::too_many_arguments)]
+    fn zig_zag(
+        &mut self,
+        cut: &FittedCut,
+        from: Point,
+        m: Move,
+        z_from: f64,
+        z_to: f64,
+        slope: f64,
+        feed: f64,
+        end_at_far_end: bool,
+    ) -> Result<(), PostError> {
+        let units = self.profile.units();
+        let length = units.from_mm(m.length(from));
+        let drop = z_from - z_to;
         let mut legs = (drop / slope / length).ceil().max(1.0) as usize;
-        if legs.is_multiple_of(2) {
+        if legs.is_multiple_of(2) == end_at_far_end {
             legs += 1;
         }
-        let back = crate::fit::moves::reversed(cut.plunge, &[first]).1;
+        let back = crate::fit::moves::reversed(from, &[m]).1;
         for k in 0..legs {
             let z0 = z_from - drop * k as f64 / legs as f64;
             let z1 = z_from - drop * (k + 1) as f64 / legs as f64;
             if k % 2 == 0 {
-                self.run(&cut.name, cut.plunge, &[first], feed, Some((z0, z1)))?;
+                self.run(&cut.name, from, &[m], feed, Some((z0, z1)))?;
             } else {
-                self.run(&cut.name, first.end(), &back, feed, Some((z0, z1)))?;
+                self.run(&cut.name, m.end(), &back, feed, Some((z0, z1)))?;
             }
         }
-        Ok(1)
+        Ok(())
     }
 
     /// A helical entry about the plunge point: out to the helix at `radius` (mm), round it in
-    /// half-turn arcs descending no steeper than `slope` to `z_to`, once more round at the
-    /// floor, and back to the plunge point.
+    /// half-turn arcs descending no steeper than `slope` along the arc to `z_to`, once more round
+    /// at the floor, and back to the plunge point. It turns the way the cut does: counter-
+    /// clockwise for a climb cut (the bore's wall on the right of travel: climb milling with a
+    /// clockwise spindle), clockwise for a conventional one.
     fn helix(
         &mut self,
         cut: &FittedCut,
@@ -837,7 +876,7 @@ impl<'p> Writer<'p> {
         let c = cut.plunge;
         let east = Point::new(c.x + radius, c.y);
         let west = Point::new(c.x - radius, c.y);
-        // Counter-clockwise: climb milling on the helix wall with a clockwise spindle.
+        let ccw = cut.scrap_left;
         let half_turn = units.from_mm(std::f64::consts::PI * radius);
         let drop = z_from - z_to;
         let halves = (drop / slope / half_turn).ceil().max(1.0) as usize;
@@ -847,22 +886,14 @@ impl<'p> Writer<'p> {
             let to = if at == east { west } else { east };
             let z0 = z_from - drop * k as f64 / halves as f64;
             let z1 = z_from - drop * (k + 1) as f64 / halves as f64;
-            let arc = Move::Arc {
-                to,
-                center: c,
-                ccw: true,
-            };
+            let arc = Move::Arc { to, center: c, ccw };
             self.run(&cut.name, at, &[arc], feed, Some((z0, z1)))?;
             at = to;
         }
         // Once round at the floor to clear the helix's bottom, then back to the centre.
         for _ in 0..2 {
             let to = if at == east { west } else { east };
-            let arc = Move::Arc {
-                to,
-                center: c,
-                ccw: true,
-            };
+            let arc = Move::Arc { to, center: c, ccw };
             self.run(&cut.name, at, &[arc], feed, None)?;
             at = to;
         }
@@ -986,6 +1017,14 @@ impl<'p> Writer<'p> {
     }
 }
 
+/// Whether entries may be helical: asked for, with a ramp angle, and the profile writes arcs (a
+/// helix is a run of arcs).
+fn helical(settings: &ProgramSettings, profile: &MachineProfile) -> bool {
+    settings.helical_entry
+        && settings.ramp_angle_deg.is_some()
+        && profile.arc_form() != ArcForm::LinesOnly
+}
+
 /// The radius of a helical entry's path (mm) for a tool of diameter `d`: a quarter of the
 /// diameter, so that the helix cuts a bore of 1.5 d and leaves no core under a tool that does not
 /// cut at its centre (common practice: helix diameter at least half the tool's,
@@ -1059,6 +1098,7 @@ fn header(
         Cutter::Spindle(sp) => text.extend(spindle_lines(sp, s, r, profile, &xy, &z, &fd)),
         Cutter::Process(p) => text.extend(process_lines(p, s, r, profile, &xy, &z, &fd)),
     }
+    text.extend(direction_lines(cuts, profile, s, &xy));
     text.push(format!("features: {}", cuts.len()));
     for (i, (cut, w)) in cuts.iter().zip(written).enumerate() {
         let arcs = if w.arcs > 0 {
@@ -1066,8 +1106,15 @@ fn header(
         } else {
             String::new()
         };
+        let pass = if cut.allowance > 0.0 {
+            format!(", roughing, leaves {} {u}", xy(cut.allowance))
+        } else if cut.full_depth_only && profile.spindle().is_some() {
+            ", finishing, once at full depth".to_string()
+        } else {
+            String::new()
+        };
         text.push(format!(
-            "{} {}: {}, {}, {} feed moves{arcs}, measured deviation {} {u}",
+            "{} {}: {}, {}{pass}, {} feed moves{arcs}, measured deviation {} {u}",
             i + 1,
             sanitize(&cut.name),
             kind_word(cut.kind),
@@ -1084,6 +1131,70 @@ fn header(
         .flat_map(|t| wrap(&sanitize(t), COMMENT_WIDTH))
         .map(|t| comment_line(style, &t))
         .collect()
+}
+
+/// The header lines on the direction of travel (every kind) and, on mills and routers, the entry
+/// and the finishing pass. The direction is read from the cuts themselves (each one's scrap side),
+/// so the line states what the program does.
+fn direction_lines(
+    cuts: &[FittedCut],
+    profile: &MachineProfile,
+    s: &ProgramSettings,
+    xy: &dyn Fn(f64) -> String,
+) -> Vec<String> {
+    let u = profile.units().as_str();
+    let climb = cuts.iter().filter(|c| c.scrap_left).count();
+    let conventional = cuts.len() - climb;
+    let mut out = Vec::new();
+    out.push(match (profile.spindle().is_some(), climb, conventional) {
+        (true, _, 0) => "direction: climb, spindle M3: holes and pockets counter-clockwise, \
+                         outline and bosses clockwise"
+            .to_string(),
+        (true, 0, _) => "direction: conventional, spindle M3: holes and pockets clockwise, \
+                         outline and bosses counter-clockwise"
+            .to_string(),
+        (false, _, 0) => "direction: holes counter-clockwise, outline clockwise, the part on the \
+                          right of travel"
+            .to_string(),
+        (_, climb, conventional) => format!(
+            "direction: {climb} cuts climb, the part on the right of travel; {conventional} \
+             conventional, the part on the left"
+        ),
+    });
+    if profile.spindle().is_none() {
+        return out;
+    }
+    out.push(match s.ramp_angle_deg {
+        None => {
+            "entry: straight plunge at the plunge feed, for centre-cutting tools only".to_string()
+        }
+        Some(a) if helical(s, profile) => format!(
+            "entry: helix of radius {} {u} about the plunge point, no steeper than {} degrees \
+             along the arc, where the cut leaves room for it; a zig-zag ramp no steeper than {} \
+             degrees elsewhere",
+            xy(helix_radius(s.tool_diameter)),
+            format_number(a, 2),
+            format_number(a, 2)
+        ),
+        Some(a) => format!(
+            "entry: zig-zag ramp along the first entry move, no steeper than {} degrees",
+            format_number(a, 2)
+        ),
+    });
+    let allowance = cuts.iter().map(|c| c.allowance).fold(0.0, f64::max);
+    let finishing = cuts.iter().filter(|c| c.full_depth_only).count();
+    if allowance > 0.0 {
+        out.push(format!(
+            "finishing pass: the roughing cuts leave {} {u} of radial stock; {finishing} \
+             finishing cuts then run once at the full depth",
+            xy(allowance)
+        ));
+    } else if finishing > 0 {
+        out.push(format!(
+            "finishing pass: {finishing} cuts run once at the full depth"
+        ));
+    }
+    out
 }
 
 fn spindle_lines(

@@ -58,7 +58,7 @@ pub struct Frame {
 }
 
 /// Number of legend rows (two columns each).
-pub const LEGEND_ROWS: usize = 4;
+pub const LEGEND_ROWS: usize = 5;
 
 impl Frame {
     /// A page around `content` with room above for the title and below for the legend.

@@ -12,15 +12,20 @@
 //!
 //! Every element carries a `class` naming what it is, and features carry `data-name`:
 //! `outline`, `hole`, `bay`, `ellipse` (two `A` arcs, exact), `ellipse-label`, `tool-band` (the
-//! width the tool sweeps, translucent), `tool-path` (the tool centre), `direction` (arrowheads),
-//! `rapid`, `plunge` (circles at the plunge points), `scale-bar`, `legend`, `title`.
+//! width the tool sweeps, translucent), `tool-path` (the tool centre along the contour, from its
+//! start round to it), `clearing` (a pocket's clearing rings and links, from the plunge point),
+//! `lead-in` (from the plunge point, or the clearing's end, to the contour's start), `overcut`
+//! (the contour's first stretch cut again), `lead-out`, `direction` (arrowheads), `rapid`,
+//! `plunge` (circles at the plunge points), `tab` (the stretch of the tool-centre path left
+//! uncut, `data-from` and `data-to` its ends in mm along the contour from its start),
+//! `tab-marker` (a diamond at each tab's middle), `scale-bar`, `legend`, `title`.
 
 mod frame;
 mod shapes;
 
 use crate::chain::{HoleShape, Part};
-use crate::fit::FittedCut;
-use crate::geom::{Ellipse, Point};
+use crate::fit::{FittedCut, Move};
+use crate::geom::{Ellipse, Point, Vec2};
 use frame::{Bounds, Frame, num, scale_bar_length};
 use shapes::{arrow_d, arrow_spots, contour_d, ellipse_bounds, ellipse_d, moves_d, polyline_d};
 use svg::Document;
@@ -44,6 +49,61 @@ fn drawn_path(cut: &FittedCut) -> Vec<Point> {
     crate::fit::moves::sample(cut.start, &cut.moves, 24)
 }
 
+/// Every move the tool makes at feed for `cut`, each run with the point it starts from: the
+/// clearing, the lead-in, the contour, the overcut and the lead-out, with the class each is
+/// drawn with.
+fn runs(cut: &FittedCut) -> [(&'static str, Point, &[Move]); 5] {
+    [
+        ("clearing", cut.plunge, &cut.clearing),
+        ("lead-in", cut.lead_in_start(), &cut.lead_in),
+        ("tool-path", cut.start, &cut.moves),
+        ("overcut", cut.start, &cut.overcut),
+        ("lead-out", cut.lead_out_start(), &cut.lead_out),
+    ]
+}
+
+/// The stretch of the run `moves` from `start` between the distances `from` and `to` along it
+/// (mm): its first point and its moves. `None` when the stretch is empty.
+fn stretch(start: Point, moves: &[Move], from: f64, to: f64) -> Option<(Point, Vec<Move>)> {
+    if from.is_nan() || to.is_nan() || from >= to {
+        return None;
+    }
+    let pieces = crate::fit::moves::split_at(start, moves, &[from, to]);
+    let mut at = start;
+    let mut walked = 0.0;
+    for piece in pieces {
+        let len = crate::fit::moves::total_length(at, &piece);
+        let mid = walked + 0.5 * len;
+        if len > 0.0 && mid > from && mid < to {
+            return Some((at, piece));
+        }
+        walked += len;
+        at = piece.last().map_or(at, Move::end);
+    }
+    None
+}
+
+/// The point at distance `dist` (mm) along the run `moves` from `start`, and the direction of
+/// travel there.
+fn point_along(start: Point, moves: &[Move], dist: f64) -> Option<(Point, Vec2)> {
+    let mut from = start;
+    let mut walked = 0.0;
+    for m in moves {
+        let len = m.length(from);
+        if len > 0.0 && dist <= walked + len {
+            let t = ((dist - walked) / len).clamp(0.0, 1.0);
+            let p = m.point_at(from, t);
+            let ahead = m.point_at(from, (t + 1e-3).min(1.0));
+            let behind = m.point_at(from, (t - 1e-3).max(0.0));
+            let dir = (ahead - behind).normalized()?;
+            return p.is_finite().then_some((p, dir));
+        }
+        walked += len;
+        from = m.end();
+    }
+    None
+}
+
 /// Colours of our own choosing.
 mod palette {
     pub const BACKGROUND: &str = "#ffffff";
@@ -53,6 +113,9 @@ mod palette {
     pub const TOOL: &str = "#1a62b8";
     pub const RAPID: &str = "#6f7a85";
     pub const PLUNGE: &str = "#b0157a";
+    pub const LEAD: &str = "#1a9a6c";
+    pub const CLEARING: &str = "#8d74c4";
+    pub const TAB: &str = "#e8a300";
     pub const TEXT: &str = "#1d2733";
 }
 
@@ -131,8 +194,11 @@ fn content_bounds(input: &PreviewInput) -> Option<Bounds> {
         0.0
     };
     for cut in input.cuts {
-        let path = drawn_path(cut);
-        for p in path.iter().chain(std::iter::once(&cut.plunge)) {
+        let mut path = vec![cut.plunge];
+        for (_, from, moves) in runs(cut) {
+            path.extend(crate::fit::moves::sample(from, moves, 24));
+        }
+        for p in &path {
             pts.push(Point::new(p.x - r, p.y - r));
             pts.push(Point::new(p.x + r, p.y + r));
         }
@@ -280,17 +346,28 @@ fn cut_group(input: &PreviewInput, frame: &Frame) -> Group {
                     ),
             );
         }
-        // The lead from the plunge point to the path's start, then the path.
-        paths = paths.add(
-            Path::new()
-                .set("class", "tool-path")
-                .set("data-name", cut.name.as_str())
-                .set("d", moves_d(Some(cut.plunge), cut.start, &cut.moves))
-                .set("fill", "none")
-                .set("stroke", palette::TOOL)
-                .set("stroke-width", num(1.5 * u))
-                .set("stroke-linejoin", "round"),
-        );
+        // The clearing and the lead-in, the contour, then the overcut and the lead-out.
+        for (class, from, moves) in runs(cut) {
+            if moves.is_empty() {
+                continue;
+            }
+            let (colour, width) = match class {
+                "tool-path" => (palette::TOOL, 1.5 * u),
+                "clearing" => (palette::CLEARING, 1.2 * u),
+                _ => (palette::LEAD, 1.5 * u),
+            };
+            paths = paths.add(
+                Path::new()
+                    .set("class", class)
+                    .set("data-name", cut.name.as_str())
+                    .set("d", moves_d(None, from, moves))
+                    .set("fill", "none")
+                    .set("stroke", colour)
+                    .set("stroke-width", num(width))
+                    .set("stroke-linejoin", "round"),
+            );
+        }
+        paths = tab_marks(paths, cut, u);
         for (at, dir) in arrow_spots(&path, &[0.2, 0.7]) {
             paths = paths.add(
                 Path::new()
@@ -323,9 +400,54 @@ fn cut_group(input: &PreviewInput, frame: &Frame) -> Group {
                     .set("fill", palette::PLUNGE),
             );
         }
-        previous_end = path.last().copied();
+        previous_end = Some(cut.end());
     }
     Group::new().set("class", "cuts").add(bands).add(paths)
+}
+
+/// Adds each tab of `cut` to `g`: the uncut stretch of the tool-centre path drawn over it, wide
+/// and in the tab colour, and a diamond at its middle.
+fn tab_marks(mut g: Group, cut: &FittedCut, u: f64) -> Group {
+    for &(from, to) in &cut.tabs {
+        if let Some((at, moves)) = stretch(cut.start, &cut.moves, from, to) {
+            g = g.add(
+                Path::new()
+                    .set("class", "tab")
+                    .set("data-name", cut.name.as_str())
+                    .set("data-from", num(from))
+                    .set("data-to", num(to))
+                    .set("d", moves_d(None, at, &moves))
+                    .set("fill", "none")
+                    .set("stroke", palette::TAB)
+                    .set("stroke-width", num(5.0 * u))
+                    .set("stroke-linecap", "butt"),
+            );
+        }
+        if let Some((mid, dir)) = point_along(cut.start, &cut.moves, 0.5 * (from + to)) {
+            g = g.add(
+                Path::new()
+                    .set("class", "tab-marker")
+                    .set("data-name", cut.name.as_str())
+                    .set("d", diamond_d(mid, dir, 5.0 * u))
+                    .set("fill", palette::TAB)
+                    .set("stroke", palette::PART)
+                    .set("stroke-width", num(0.8 * u))
+                    .add(Title::new(format!(
+                        "tab: {} mm of the tool-centre path left uncut",
+                        fixed(to - from, 2)
+                    ))),
+            );
+        }
+    }
+    g
+}
+
+/// `d` for a diamond centred on `at` with one diagonal along `dir`, `half` from the centre to
+/// each corner.
+fn diamond_d(at: Point, dir: Vec2, half: f64) -> String {
+    let along = dir * half;
+    let across = dir.perp() * half;
+    polyline_d(&[at + along, at + across, at - along, at - across], true)
 }
 
 fn title_group(input: &PreviewInput, frame: &Frame) -> Group {
@@ -400,13 +522,22 @@ fn legend(frame: &Frame) -> Group {
     let f = frame.font;
     let dash = format!("{} {}", num(6.0 * u), num(4.0 * u));
     // (label, colour, stroke width, dashed, opacity); the plunge marker is drawn last.
-    let items: [(&str, &str, f64, bool, f64); 6] = [
+    let items: [(&str, &str, f64, bool, f64); 9] = [
         ("part and holes", palette::PART, 2.5 * u, false, 1.0),
         ("bay (construction)", palette::BAY, 1.2 * u, true, 1.0),
         ("solved ellipse", palette::ELLIPSE, 2.0 * u, false, 1.0),
         ("tool centre path", palette::TOOL, 1.5 * u, false, 1.0),
         ("width the tool cuts", palette::TOOL, 0.8 * f, false, 0.15),
         ("rapid move", palette::RAPID, u, true, 1.0),
+        (
+            "lead-in, overcut, lead-out",
+            palette::LEAD,
+            1.5 * u,
+            false,
+            1.0,
+        ),
+        ("pocket clearing", palette::CLEARING, 1.2 * u, false, 1.0),
+        ("tab (left uncut)", palette::TAB, 5.0 * u, false, 1.0),
     ];
     let top = frame.legend_top + 2.5 * f;
     let column = 0.5 * frame.view_w;

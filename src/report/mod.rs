@@ -53,6 +53,22 @@ pub struct FeatureReport {
     /// The largest change of direction between consecutive moves (degrees).
     pub largest_kink_deg: f64,
     pub tolerance_mm: f64,
+    /// Stretches of the contour left uncut (tabs, micro-joints), in order along it; empty for
+    /// none.
+    pub tabs: Vec<TabReport>,
+}
+
+/// One tab: a stretch of the tool-centre path over which the tool does not cut.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct TabReport {
+    /// Where the stretch starts and ends, in mm along the contour from its start.
+    pub from_mm: f64,
+    pub to_mm: f64,
+    /// The stretch's middle on the tool-centre path (mm).
+    pub middle_mm: [f64; 2],
+    /// The bridge left between the part and the scrap: the stretch less the tool diameter
+    /// (kerf width), measured along the middle of the cut (mm).
+    pub bridge_mm: f64,
 }
 
 /// How well a least-squares fit matches its points (mm).
@@ -103,6 +119,9 @@ pub struct Report {
     pub program_bounds_mm: Option<ProgramBounds>,
     /// Largest difference between an arc's start and end radius in the program (mm).
     pub largest_arc_radius_mismatch_mm: f64,
+    /// Mills and routers: the height of tabs above the floor of the cut (mm); `None` when there
+    /// are no tabs or they are gaps (laser, plasma, waterjet).
+    pub tab_height_mm: Option<f64>,
 }
 
 /// The box the tool centre stays in (mm).
@@ -135,6 +154,8 @@ pub struct ReportInput<'a> {
     pub notes: Vec<String>,
     pub program_bounds: Option<([f64; 3], [f64; 3])>,
     pub largest_arc_radius_mismatch: f64,
+    /// Mills and routers with tabs: their height above the floor (mm).
+    pub tab_height: Option<f64>,
 }
 
 fn summary(e: &crate::geom::Ellipse) -> EllipseSummary {
@@ -145,6 +166,26 @@ fn summary(e: &crate::geom::Ellipse) -> EllipseSummary {
         angle_deg: e.angle().to_degrees(),
         area_mm2: e.area(),
     }
+}
+
+/// The tabs of `c` for the report: each span, its middle on the path, and the bridge it leaves
+/// with a tool of diameter `d`.
+fn tab_reports(c: &FittedCut, d: f64) -> Vec<TabReport> {
+    c.tabs
+        .iter()
+        .map(|&(from, to)| {
+            let mid = 0.5 * (from + to);
+            let middle = crate::fit::moves::leading_stretch(c.start, &c.moves, mid)
+                .last()
+                .map_or(c.start, crate::fit::Move::end);
+            TabReport {
+                from_mm: from,
+                to_mm: to,
+                middle_mm: [middle.x, middle.y],
+                bridge_mm: (to - from - d).max(0.0),
+            }
+        })
+        .collect()
 }
 
 /// Builds the report from the stages' results.
@@ -180,6 +221,7 @@ pub fn build_report(input: ReportInput) -> Report {
                 part_side_deviation_mm: c.part_side_deviation,
                 largest_kink_deg: c.largest_kink_deg,
                 tolerance_mm: c.tolerance,
+                tabs: tab_reports(c, input.tool_diameter),
             }
         })
         .collect();
@@ -200,6 +242,7 @@ pub fn build_report(input: ReportInput) -> Report {
             .program_bounds
             .map(|(min, max)| ProgramBounds { min, max }),
         largest_arc_radius_mismatch_mm: input.largest_arc_radius_mismatch,
+        tab_height_mm: input.tab_height,
     }
 }
 
@@ -215,6 +258,28 @@ pub fn write_list(s: &mut String, title: &str, items: &[String]) {
 }
 
 impl Report {
+    /// The tabs of every feature that has some, one line each.
+    fn write_tabs(&self, s: &mut String) {
+        for f in self.features.iter().filter(|f| !f.tabs.is_empty()) {
+            let high = self
+                .tab_height_mm
+                .map_or(String::new(), |h| format!(", {h} mm high"));
+            let _ = writeln!(
+                s,
+                "\ntabs on {}: {} (uncut stretches of the tool-centre path{high}):",
+                f.name,
+                f.tabs.len()
+            );
+            for t in &f.tabs {
+                let _ = writeln!(
+                    s,
+                    "  at ({:.3}, {:.3}): {:.2} to {:.2} mm along the contour, bridge {:.2} mm",
+                    t.middle_mm[0], t.middle_mm[1], t.from_mm, t.to_mm, t.bridge_mm
+                );
+            }
+        }
+    }
+
     /// The report as pretty-printed JSON.
     pub fn to_json(&self) -> String {
         // Serialising plain numbers, strings and vectors cannot fail.
@@ -286,6 +351,7 @@ impl Report {
                 f.name, kind, side, centre, a, b, ang, f.contour_moves, f.measured_deviation_mm
             );
         }
+        self.write_tabs(&mut s);
         write_list(&mut s, "warnings", &self.warnings);
         write_list(&mut s, "notes", &self.notes);
         if !self.files.is_empty() {

@@ -1,0 +1,371 @@
+//! The scrap check: every move of the written program that is not the contour itself (entries,
+//! clearing, leads, overcut, lead-out), read back by the checker, keeps the tool off the finished
+//! part, and every pierce point keeps its clearance.
+//!
+//! This is the independent check behind the planner's rules (`plan::leads`): it reads the
+//! program text as the machine would run it ([`crate::check::trace`], which shares no code with
+//! the writer) and measures against the finished edges, not against the leads the planner meant
+//! to write. A violation is a bug in conicut, never a user error; the job stops and nothing is
+//! written.
+//!
+//! # Rules
+//!
+//! For each cut, every feed move of the cut that is not a `(contour)` move
+//! ([`crate::check::moves_off_contour`]), sampled every [`SAMPLE_SPACING`] mm (arcs along the
+//! arc), skipping rapids and, on mills and routers, the points above the top of the stock
+//! (`Z > 0`, where the tool cuts nothing):
+//!
+//! * lies on its own cut's scrap side of its finished edge (inside a hole, outside the outline or
+//!   a boss), at least `r (1 − GOUGE_MARGIN) − tolerance` from it;
+//! * lies at least `r (1 − GOUGE_MARGIN) − tolerance` from every other cut's finished edge, and
+//!   outside every boss;
+//! * on lasers, plasma tables and waterjets, the pierce point (where the cut's first feed move
+//!   starts: the move down from the pierce height) lies at least `pierce_clearance − rounding`
+//!   from every finished edge.
+//!
+//! # Allowances
+//!
+//! `r` is the tool radius (half the cutter diameter or the kerf). Leads, overcuts and lead-outs
+//! join the contour, and the contour as written may lie up to the job's tolerance from the exact
+//! tool-centre path (the fit's share plus the output rounding: the job's tolerance budget), so
+//! points near the path are allowed that tolerance; lead arcs written as lines (lines-only
+//! output) take the same band. The pierce point is written once, rounded: it is allowed the
+//! rounding alone. Between two samples the distance to an edge can dip by at most half the
+//! spacing, and only where a move runs along an edge.
+
+use crate::check::{self, Trace, TraceMove};
+use crate::fit::Move;
+use crate::geom::Point;
+use crate::plan::{CutSide, Edge, FeatureKind, GOUGE_MARGIN, PlannedCut};
+
+/// Spacing (mm) of the points checked along each move; at most [`MAX_SAMPLES`] per move.
+pub const SAMPLE_SPACING: f64 = 0.02;
+
+/// The most points checked on one move.
+pub const MAX_SAMPLES: usize = 50_000;
+
+/// What the check holds the program to.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct ScrapRules {
+    /// The tool radius (mm): half the cutter diameter, or half the kerf.
+    pub tool_radius: f64,
+    /// How far a written point near the path may stray towards an edge (mm): the job's
+    /// tolerance.
+    pub tolerance: f64,
+    /// How far a written point may lie from the point meant, by rounding alone (mm).
+    pub rounding: f64,
+    /// Laser, plasma, waterjet: the pierce point's least distance from every finished edge (mm);
+    /// `None` for mills and routers.
+    pub pierce_clearance: Option<f64>,
+    /// Mills and routers: leave out points above the top of the stock (`Z > 0`).
+    pub skip_above_stock: bool,
+}
+
+/// A point of the program where the tool would touch the finished part.
+#[derive(Debug, Clone, PartialEq)]
+pub struct ScrapViolation {
+    /// The feature whose cut holds the move.
+    pub feature: String,
+    /// The comment the move follows (`lead-in`, `overcut`, `lead-out`, `clearing`, or the cut's
+    /// own comment for the entry).
+    pub part: String,
+    /// The program line of the move (1-based).
+    pub line: usize,
+    /// The point (mm).
+    pub at: Point,
+    /// What is wrong there.
+    pub problem: String,
+}
+
+/// The name of a feature as the program's comments carry it (parentheses made square).
+fn written_name(name: &str) -> String {
+    name.replace('(', "[").replace(')', "]")
+}
+
+/// Checks every cut of `cuts` in the program read back as `trace` (see the module docs).
+/// Returns the first violation found.
+pub fn check_scrap(
+    trace: &Trace,
+    cuts: &[PlannedCut],
+    rules: &ScrapRules,
+) -> Result<(), ScrapViolation> {
+    let limit = rules.tool_radius * (1.0 - GOUGE_MARGIN) - rules.tolerance;
+    let reach: Vec<Reach> = cuts.iter().map(|c| Reach::of(&c.edge)).collect();
+    for (own, cut) in cuts.iter().enumerate() {
+        let name = written_name(&cut.name);
+        if !trace.features.iter().any(|(n, _)| *n == name) {
+            return Err(ScrapViolation {
+                feature: cut.name.clone(),
+                part: String::new(),
+                line: 0,
+                at: cut.plunge,
+                problem: "the cut is not in the program".into(),
+            });
+        }
+        let mut pierce_seen = false;
+        for i in check::moves_off_contour(trace, &name) {
+            let m = &trace.moves[i];
+            if m.rapid {
+                continue;
+            }
+            let fail = |at: Point, problem: String| ScrapViolation {
+                feature: cut.name.clone(),
+                part: part_of(trace, i),
+                line: m.line,
+                at,
+                problem,
+            };
+            if !pierce_seen {
+                pierce_seen = true;
+                if let Some(c) = rules.pierce_clearance {
+                    let p = Point::new(m.from[0], m.from[1]);
+                    for other in cuts {
+                        let d = other.edge.distance_to(p);
+                        if d < c - rules.rounding {
+                            return Err(fail(
+                                p,
+                                format!(
+                                    "the pierce point is {d:.4} mm from the edge of \"{}\", less \
+                                     than the pierce clearance {c} mm",
+                                    other.name
+                                ),
+                            ));
+                        }
+                    }
+                }
+            }
+            for (p, z) in sample_move(m) {
+                if rules.skip_above_stock && z > 0.0 {
+                    continue;
+                }
+                if let Some(problem) = point_problem(p, own, cuts, &reach, limit, rules) {
+                    return Err(fail(p, problem));
+                }
+            }
+        }
+    }
+    Ok(())
+}
+
+/// What is wrong with the tool centre at `p` in the cut `own`, if anything.
+fn point_problem(
+    p: Point,
+    own: usize,
+    cuts: &[PlannedCut],
+    reach: &[Reach],
+    limit: f64,
+    rules: &ScrapRules,
+) -> Option<String> {
+    let r = rules.tool_radius;
+    let tol = rules.tolerance;
+    for (k, c) in cuts.iter().enumerate() {
+        if k == own {
+            let scrap_side = match c.side {
+                CutSide::Inside => Edge::contains(&c.edge, p),
+                CutSide::Outside => !Edge::contains(&c.edge, p),
+            };
+            if !scrap_side {
+                return Some("the tool centre is on the part side of the cut's own edge".into());
+            }
+        } else if c.kind == FeatureKind::Boss && Edge::contains(&c.edge, p) {
+            return Some(format!("the tool centre is inside the boss \"{}\"", c.name));
+        } else if reach.get(k).is_some_and(|r| r.lower_bound(p) >= limit) {
+            continue;
+        }
+        let d = c.edge.distance_to(p);
+        if d < limit {
+            return Some(format!(
+                "the tool centre is {d:.4} mm from the finished edge of \"{}\": the {r} mm tool \
+                 radius less the {tol} mm tolerance would be the least",
+                c.name
+            ));
+        }
+    }
+    None
+}
+
+/// A cheap region holding an edge, to skip far edges: an ellipse lies within its semi-major axis
+/// of its centre, a contour within its bounds.
+enum Reach {
+    Disc(Point, f64),
+    Box(Point, Point),
+    Unknown,
+}
+
+impl Reach {
+    fn of(edge: &Edge) -> Reach {
+        match edge {
+            Edge::Ellipse(e) => Reach::Disc(e.center(), e.a()),
+            Edge::Contour(c) => c
+                .bounds()
+                .map_or(Reach::Unknown, |(lo, hi)| Reach::Box(lo, hi)),
+        }
+    }
+
+    /// A lower bound of the distance from `p` to the edge.
+    fn lower_bound(&self, p: Point) -> f64 {
+        match *self {
+            Reach::Disc(c, a) => (p.distance(c) - a).max(0.0),
+            Reach::Box(lo, hi) => {
+                let dx = (lo.x - p.x).max(p.x - hi.x).max(0.0);
+                let dy = (lo.y - p.y).max(p.y - hi.y).max(0.0);
+                dx.hypot(dy)
+            }
+            Reach::Unknown => 0.0,
+        }
+    }
+}
+
+/// The comment move `i` follows: the last mark at or before it.
+fn part_of(trace: &Trace, i: usize) -> String {
+    trace
+        .marks
+        .iter()
+        .rfind(|(_, at)| *at <= i)
+        .map(|(text, _)| text.clone())
+        .unwrap_or_default()
+}
+
+/// Points along a move (XY in mm, with the height), every [`SAMPLE_SPACING`] mm or closer, both
+/// ends included; arcs along the arc.
+fn sample_move(m: &TraceMove) -> Vec<(Point, f64)> {
+    let from = Point::new(m.from[0], m.from[1]);
+    let to = Point::new(m.to[0], m.to[1]);
+    let mv = match m.arc {
+        Some((c, ccw)) => Move::Arc {
+            to,
+            center: Point::new(c[0], c[1]),
+            ccw,
+        },
+        None => Move::Line { to },
+    };
+    let length = mv.length(from);
+    let n = if length.is_finite() {
+        ((length / SAMPLE_SPACING).ceil() as usize).clamp(1, MAX_SAMPLES)
+    } else {
+        1
+    };
+    (0..=n)
+        .map(|k| {
+            let t = k as f64 / n as f64;
+            (mv.point_at(from, t), m.from[2] + t * (m.to[2] - m.from[2]))
+        })
+        .collect()
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::chain::{Contour, Element};
+    use crate::check::trace;
+    use crate::geom::{ArcSegment, Vec2};
+    use crate::plan::ExactPath;
+
+    /// A Ø20 mm hole about (50, 50), cut with a 6 mm tool: the path is the circle of radius 7.
+    fn hole() -> PlannedCut {
+        let c = Point::new(50.0, 50.0);
+        let drawn = Contour {
+            elements: vec![Element::Arc(ArcSegment::circle(c, 10.0))],
+            layer: "0".into(),
+            handles: vec![],
+        };
+        let path = Contour {
+            elements: vec![Element::Arc(ArcSegment::circle(c, 7.0))],
+            layer: "0".into(),
+            handles: vec![],
+        };
+        PlannedCut::new(
+            "hole 1",
+            FeatureKind::Hole,
+            CutSide::Inside,
+            ExactPath::Contour(path),
+            c,
+            Edge::Contour(drawn),
+        )
+    }
+
+    fn rules() -> ScrapRules {
+        ScrapRules {
+            tool_radius: 3.0,
+            tolerance: 0.01,
+            rounding: 0.0001,
+            pierce_clearance: None,
+            skip_above_stock: true,
+        }
+    }
+
+    /// A program for the hole: plunge at `plunge`, a lead-in straight to `lead_to`, then the
+    /// contour from (57, 50) round the 7 mm circle.
+    fn program(plunge: (f64, f64), lead_to: (f64, f64)) -> String {
+        format!(
+            "%\nG21 G90 G17\n(cut 1 of 1: hole 1)\nG0 Z5\nG0 X{} Y{}\nG1 Z-1 F100\n(lead-in)\n\
+             G1 X{} Y{} F400\nG1 X57 Y50\n(contour)\nG3 X43 Y50 I-7 J0\nG3 X57 Y50 I7 J0\n\
+             (lead-out)\nG1 X50 Y50\nG0 Z5\nM30\n%\n",
+            plunge.0, plunge.1, lead_to.0, lead_to.1
+        )
+    }
+
+    #[test]
+    fn a_lead_in_the_scrap_passes() {
+        let t = trace(&program((50.0, 50.0), (53.0, 50.0))).unwrap();
+        assert_eq!(check_scrap(&t, &[hole()], &rules()), Ok(()));
+    }
+
+    #[test]
+    fn a_lead_into_the_part_is_refused_with_its_line() {
+        // The lead-in reaches (50, 58): 2 mm from the edge of the hole, closer than the 3 mm tool
+        // radius (the hole's edge is the circle of radius 10 about (50, 50)).
+        let text = program((50.0, 50.0), (50.0, 58.0));
+        let t = trace(&text).unwrap();
+        let v = check_scrap(&t, &[hole()], &rules()).unwrap_err();
+        assert_eq!(v.feature, "hole 1");
+        assert_eq!(v.part, "lead-in");
+        assert_eq!(text.lines().nth(v.line - 1), Some("G1 X50 Y58 F400"));
+        assert!(v.problem.contains("finished edge"), "{}", v.problem);
+    }
+
+    #[test]
+    fn a_plunge_outside_the_hole_is_on_the_part_side() {
+        let t = trace(&program((50.0, 70.0), (53.0, 50.0))).unwrap();
+        let v = check_scrap(&t, &[hole()], &rules()).unwrap_err();
+        assert!(v.problem.contains("part side"), "{}", v.problem);
+    }
+
+    #[test]
+    fn points_just_inside_a_small_circle_are_inside() {
+        // 0.1 mm inside a Ø9 mm circle: within the sagitta of a 0.5 rad chord (0.14 mm), where a
+        // polygon of the circle would put it outside. Independent: |p − c| < 4.5.
+        let c = Point::new(15.0, 15.0);
+        let circle = Edge::Contour(Contour {
+            elements: vec![Element::Arc(ArcSegment::circle(c, 4.5))],
+            layer: "0".into(),
+            handles: vec![],
+        });
+        for k in 0..360 {
+            let dir = Vec2::from_angle((k as f64).to_radians());
+            assert!(Edge::contains(&circle, c + dir * 4.4), "{k}°");
+            assert!(!Edge::contains(&circle, c + dir * 4.6), "{k}°");
+        }
+        // Clockwise too.
+        let cw = Edge::Contour(Contour {
+            elements: vec![Element::Arc(ArcSegment::circle(c, 4.5).reversed())],
+            layer: "0".into(),
+            handles: vec![],
+        });
+        assert!(Edge::contains(&cw, c + Vec2::new(4.4, 0.1)));
+        assert!(!Edge::contains(&cw, c + Vec2::new(4.6, 0.1)));
+    }
+
+    #[test]
+    fn a_pierce_too_near_the_edge_is_refused() {
+        // Pierce at (55.5, 50): 4.5 mm from the edge, less than a 5 mm clearance.
+        let mut r = rules();
+        r.pierce_clearance = Some(5.0);
+        r.skip_above_stock = false;
+        let t = trace(&program((55.5, 50.0), (57.0, 50.0))).unwrap();
+        let v = check_scrap(&t, &[hole()], &r).unwrap_err();
+        assert!(v.problem.contains("pierce"), "{}", v.problem);
+        r.pierce_clearance = Some(4.0);
+        assert_eq!(check_scrap(&t, &[hole()], &r), Ok(()));
+    }
+}
