@@ -626,8 +626,8 @@ pub fn run_job(
         problem: error.to_string(),
     })?;
     for (cut, planned) in cuts.iter_mut().zip(&plan.cuts) {
-        // The program's comments carry the name with parentheses made square.
-        let written_name = cut.name.replace('(', "[").replace(')', "]");
+        // The program's comments carry the name as the writer makes comment text safe.
+        let written_name = post::sanitize(&cut.name);
         // The fitted start may sit up to the tolerance off the exact start (a band vertex), and
         // rounding moves it a little more: look for it within twice the tolerance.
         // The part side is measured against the cut's own scrap side (the right of travel for a

@@ -77,9 +77,10 @@ pub struct ScrapViolation {
     pub problem: String,
 }
 
-/// The name of a feature as the program's comments carry it (parentheses made square).
+/// The name of a feature as the program's comments carry it: the writer's own rule for comment
+/// text (parentheses made square, and so on), so that the two cannot drift apart.
 fn written_name(name: &str) -> String {
-    name.replace('(', "[").replace(')', "]")
+    crate::post::sanitize(name)
 }
 
 /// Checks every cut of `cuts` in the program read back as `trace` (see the module docs).
