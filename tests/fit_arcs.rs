@@ -12,7 +12,7 @@ use conicut::chain::{Contour, Element};
 use conicut::fit::{FitError, FitOptions, FittedCut, Move, MoveKind, PART_SIDE_SLACK, fit_cut};
 use conicut::geom::{ArcSegment, Ellipse, Point, Segment};
 use conicut::plan::{CutSide, Edge, ExactPath, FeatureKind, PlannedCut};
-use std::f64::consts::{PI, TAU};
+use std::f64::consts::{FRAC_PI_2, PI, TAU};
 
 fn ellipse_cut(e: Ellipse, inset: f64) -> PlannedCut {
     // As planned: holes (inset > 0) and plain ellipses counter-clockwise, bosses (outside,
@@ -93,16 +93,32 @@ fn pieces(cut: &FittedCut) -> Vec<Element> {
         .collect()
 }
 
-/// Largest distance from the exact curve's samples to the path (full scan of the pieces).
+/// Largest distance from the exact curve's samples to the path. Both run the same way, so each
+/// sample's nearest piece is first looked for among the seven around the previous sample's; a
+/// sample whose nearest piece there is farther than the largest distance so far gets a full scan
+/// of the pieces. The result is the exact maximum: a sample that is not scanned in full lies at
+/// most that far from the path, so it cannot raise the maximum.
 fn curve_to_path(curve: &[Point], path: &[Element]) -> f64 {
-    curve
-        .iter()
-        .map(|q| {
-            path.iter()
-                .map(|p| p.distance_to(*q))
-                .fold(f64::INFINITY, f64::min)
-        })
-        .fold(0.0, f64::max)
+    let n = path.len();
+    let mut worst: f64 = 0.0;
+    let mut near = 0usize;
+    for q in curve {
+        let window = (0..7).map(|k| (near + n + k - 3) % n);
+        let (mut best, mut best_i) = window
+            .map(|i| (path[i].distance_to(*q), i))
+            .fold((f64::INFINITY, near), |a, b| if b.0 < a.0 { b } else { a });
+        if best > worst {
+            for (i, p) in path.iter().enumerate() {
+                let d = p.distance_to(*q);
+                if d < best {
+                    (best, best_i) = (d, i);
+                }
+            }
+        }
+        near = best_i;
+        worst = worst.max(best);
+    }
+    worst
 }
 
 /// `(scrap side, part side, both ways)` deviation of a fitted ellipse cut, measured here: a path
@@ -154,52 +170,62 @@ fn estimates_reproduce_the_published_integrals() {
     assert!((p3 - (perimeter - TAU * 3.0)).abs() < 1e-6, "{p3}");
 }
 
-#[test]
-fn ellipse_fits_stay_within_the_band_both_ways() {
+/// Every shape, offset, tolerance 0.1 to 0.001 mm and band, fitted with `kind`: within the band
+/// both ways (and on the scrap side when one-sided), measured here; the crate's own measurement
+/// agrees; closed; only moves of the kind asked for.
+fn ellipse_fits_stay_within_the_band_both_ways(kind: MoveKind) {
     for e in shapes() {
         for inset in insets(&e) {
             let clockwise = inset < 0.0;
             let cut = ellipse_cut(e, inset);
             for tol in [0.1, 0.01, 0.001] {
-                for kind in [MoveKind::Arcs, MoveKind::Lines] {
-                    for one_sided in [false, true] {
-                        let fitted = fit_cut(&cut, &options(tol, kind, one_sided)).unwrap();
-                        let (scrap, part, both) = ellipse_sides(&e, inset, clockwise, &fitted);
-                        let case = format!(
-                            "a {} b {} inset {inset} tol {tol} {kind:?} one-sided {one_sided}",
-                            e.a(),
-                            e.b()
-                        );
-                        assert!(both <= tol, "{case}: deviation {both}");
-                        if one_sided {
-                            assert!(scrap <= tol, "{case}: scrap side {scrap}");
-                            assert!(part <= PART_SIDE_SLACK, "{case}: part side {part}");
-                            assert!(fitted.part_side_deviation <= PART_SIDE_SLACK, "{case}");
-                        }
-                        // The crate's own figure is a measurement of the same thing.
-                        assert!(fitted.measured_deviation <= tol, "{case}");
-                        assert!(
-                            (fitted.measured_deviation - both).abs() <= 0.05 * tol,
-                            "{case}: own {} vs here {both}",
-                            fitted.measured_deviation
-                        );
-                        // Closed: the path ends where it starts.
-                        assert_eq!(fitted.moves.last().map(Move::end), Some(fitted.start));
-                        match kind {
-                            MoveKind::Lines => assert!(
-                                fitted.moves.iter().all(|m| matches!(m, Move::Line { .. })),
-                                "{case}"
-                            ),
-                            MoveKind::Arcs => assert!(
-                                fitted.moves.iter().all(|m| matches!(m, Move::Arc { .. })),
-                                "{case}"
-                            ),
-                        }
+                for one_sided in [false, true] {
+                    let fitted = fit_cut(&cut, &options(tol, kind, one_sided)).unwrap();
+                    let (scrap, part, both) = ellipse_sides(&e, inset, clockwise, &fitted);
+                    let case = format!(
+                        "a {} b {} inset {inset} tol {tol} {kind:?} one-sided {one_sided}",
+                        e.a(),
+                        e.b()
+                    );
+                    assert!(both <= tol, "{case}: deviation {both}");
+                    if one_sided {
+                        assert!(scrap <= tol, "{case}: scrap side {scrap}");
+                        assert!(part <= PART_SIDE_SLACK, "{case}: part side {part}");
+                        assert!(fitted.part_side_deviation <= PART_SIDE_SLACK, "{case}");
+                    }
+                    // The crate's own figure is a measurement of the same thing.
+                    assert!(fitted.measured_deviation <= tol, "{case}");
+                    assert!(
+                        (fitted.measured_deviation - both).abs() <= 0.05 * tol,
+                        "{case}: own {} vs here {both}",
+                        fitted.measured_deviation
+                    );
+                    // Closed: the path ends where it starts.
+                    assert_eq!(fitted.moves.last().map(Move::end), Some(fitted.start));
+                    match kind {
+                        MoveKind::Lines => assert!(
+                            fitted.moves.iter().all(|m| matches!(m, Move::Line { .. })),
+                            "{case}"
+                        ),
+                        MoveKind::Arcs => assert!(
+                            fitted.moves.iter().all(|m| matches!(m, Move::Arc { .. })),
+                            "{case}"
+                        ),
                     }
                 }
             }
         }
     }
+}
+
+#[test]
+fn ellipse_arc_fits_stay_within_the_band_both_ways() {
+    ellipse_fits_stay_within_the_band_both_ways(MoveKind::Arcs);
+}
+
+#[test]
+fn ellipse_line_fits_stay_within_the_band_both_ways() {
+    ellipse_fits_stay_within_the_band_both_ways(MoveKind::Lines);
 }
 
 #[test]
@@ -251,23 +277,15 @@ fn arcs_have_consistent_geometry() {
     }
 }
 
-/// The change of direction (degrees) where the last move meets the first: the closing joint.
-fn closing_kink_deg(cut: &FittedCut) -> f64 {
+/// The changes of direction (degrees) at the joints of a closed run of arcs, computed here from
+/// the arcs' radii (the tangent at an arc's end is perpendicular to the radius there): entry `i`
+/// where move `i` meets move `i + 1`, the last entry the closing joint, where the last move
+/// meets the first at the start.
+fn joint_kinks(cut: &FittedCut) -> Vec<f64> {
+    let points = cut.end_points();
     let n = cut.moves.len();
-    let points = cut.end_points();
-    let last_from = points[n - 1];
-    let t0 = cut.moves[n - 1].end_tangent(last_from).unwrap();
-    let t1 = cut.moves[0].start_tangent(cut.start).unwrap();
-    t0.cross(t1).atan2(t0.dot(t1)).abs().to_degrees()
-}
-
-/// The largest change of direction between consecutive moves, computed here from the arcs'
-/// radii: the tangent at an arc's end is perpendicular to the radius there.
-fn kink_here(cut: &FittedCut) -> f64 {
-    let points = cut.end_points();
     let tangent = |i: usize, at_end: bool| {
-        let m = cut.moves[i];
-        let Move::Arc { center, ccw, .. } = m else {
+        let Move::Arc { center, ccw, .. } = cut.moves[i] else {
             panic!("not an arc")
         };
         let p = if at_end { points[i + 1] } else { points[i] };
@@ -275,58 +293,70 @@ fn kink_here(cut: &FittedCut) -> f64 {
         let t = conicut::geom::Vec2::new(-r.y, r.x) / r.length();
         if ccw { t } else { -t }
     };
-    (1..cut.moves.len())
+    (0..n)
         .map(|i| {
-            let (a, b) = (tangent(i - 1, true), tangent(i, false));
+            let (a, b) = (tangent(i, true), tangent((i + 1) % n, false));
             a.cross(b).atan2(a.dot(b)).abs().to_degrees()
         })
-        .fold(0.0, f64::max)
+        .collect()
+}
+
+/// `(largest kink, largest inner kink, closing kink)` of a closed run of arcs (see
+/// [`joint_kinks`]).
+fn kinks_here(cut: &FittedCut) -> (f64, f64, f64) {
+    let k = joint_kinks(cut);
+    let (closing, inner) = k.split_last().expect("moves");
+    let inner = inner.iter().copied().fold(0.0, f64::max);
+    (inner.max(*closing), inner, *closing)
 }
 
 #[test]
 fn kinks_are_reported_and_small() {
     // STANDARDS-AND-PRACTICE §3.4: the greedy arc spline of the 50 × 20 ellipse has kinks of up
     // to 1.36° at 0.01 mm and 0.28° at 0.001 mm, all from its short closing span; evening the
-    // spans out removes them. The brief asks for well under 1° at 0.01 mm (common practice: up
-    // to about 0.5° passes unnoticed).
+    // spans out removes most of it, and a joint at a vertex of the major axis (the start, at
+    // anomaly 0) kinks by itself, 1.39° at 0.01 mm before this construction. The brief asks for
+    // well under 1° at 0.01 mm, the closing joint included (common practice: up to about 0.5°
+    // passes unnoticed). The reported figure counts the closing joint.
     let e = shapes()[0];
     for (tol, limit) in [(0.01, 0.5), (0.001, 0.15), (0.0001, 0.05)] {
         let fitted = fit_cut(&ellipse_cut(e, 0.0), &options(tol, MoveKind::Arcs, false)).unwrap();
-        let here = kink_here(&fitted);
+        let (here, inner, closing) = kinks_here(&fitted);
         assert!(
             (fitted.largest_kink_deg - here).abs() < 1e-9,
             "reported {} vs here {here}",
             fitted.largest_kink_deg
         );
         assert!(here < limit, "tol {tol}: largest kink {here}°");
+        assert!(
+            closing <= inner + 1e-9,
+            "tol {tol}: closing {closing}° inner {inner}°"
+        );
         println!(
-            "tol {tol}: {} arcs, largest kink {here:.3}°, closing joint {:.3}°",
+            "tol {tol}: {} arcs, largest kink {here:.3}°, closing joint {closing:.3}°",
             fitted.moves.len(),
-            closing_kink_deg(&fitted)
         );
     }
-    // Every shape and offset, two-sided, at 0.01 and 0.001 mm: under 1°. One-sided kinks are
-    // printed for the report.
+    // Every shape and offset at 0.01 and 0.001 mm: two-sided under 1°; both bands with a closing
+    // joint no worse than the largest inner one. One-sided kinks are printed for the report.
     for e in shapes() {
         for inset in insets(&e) {
             for tol in [0.01, 0.001] {
                 let cut = ellipse_cut(e, inset);
+                let case = format!("a {} b {} inset {inset} tol {tol}", e.a(), e.b());
                 let two = fit_cut(&cut, &options(tol, MoveKind::Arcs, false)).unwrap();
-                assert!(
-                    kink_here(&two) < 1.0,
-                    "a {} b {} inset {inset} tol {tol}: {}°",
-                    e.a(),
-                    e.b(),
-                    kink_here(&two)
-                );
                 let one = fit_cut(&cut, &options(tol, MoveKind::Arcs, true)).unwrap();
-                println!(
-                    "a {} b {} inset {inset:.2} tol {tol}: kinks two-sided {:.3}°, one-sided {:.3}°",
-                    e.a(),
-                    e.b(),
-                    kink_here(&two),
-                    kink_here(&one)
+                let (k2, inner2, closing2) = kinks_here(&two);
+                let (k1, inner1, closing1) = kinks_here(&one);
+                assert!(k2 < 1.0, "{case}: {k2}°");
+                assert!(closing2 <= inner2 + 1e-9, "{case}: {closing2}° {inner2}°");
+                assert!(
+                    closing1 <= inner1 + 1e-9,
+                    "{case}, one-sided: {closing1}° {inner1}°"
                 );
+                assert!((two.largest_kink_deg - k2).abs() < 1e-9, "{case}");
+                assert!((one.largest_kink_deg - k1).abs() < 1e-9, "{case}");
+                println!("{case}: kinks two-sided {k2:.3}°, one-sided {k1:.3}°");
             }
         }
     }
@@ -341,32 +371,77 @@ fn within(count: usize, target: f64, share: f64, case: &str) {
     );
 }
 
-#[test]
-fn move_counts_meet_the_targets() {
-    // Targets (issue 4): lines within 3 % (or one move) of ∫√(κ/8W) ds, W the band's width
-    // (2ε two-sided, ε one-sided); arcs within 25 % (or one move) of ∫(|κ′|/(72√3 w))^{1/3} ds,
-    // w half the band's width (ε two-sided, ε/2 one-sided). Estimates: support/fit_estimates.rs.
-    for e in shapes() {
-        for inset in insets(&e) {
-            let cut = ellipse_cut(e, inset);
-            for tol in [0.1, 0.01, 0.001, 0.0001] {
-                for one_sided in [false, true] {
-                    let width = if one_sided { tol } else { 2.0 * tol };
-                    let case = format!(
-                        "a {} b {} inset {inset} tol {tol} one-sided {one_sided}",
-                        e.a(),
-                        e.b()
-                    );
-                    let lines = fit_cut(&cut, &options(tol, MoveKind::Lines, one_sided)).unwrap();
-                    let target = fit_estimates::band_lines(e.a(), e.b(), inset, width);
-                    within(lines.moves.len(), target, 0.03, &format!("lines, {case}"));
-                    let arcs = fit_cut(&cut, &options(tol, MoveKind::Arcs, one_sided)).unwrap();
-                    let target = fit_estimates::spline_arcs(e.a(), e.b(), inset, width / 2.0);
-                    within(arcs.moves.len(), target, 0.25, &format!("arcs, {case}"));
-                }
+/// Every offset, tolerance (0.1 to 0.0001 mm) and band of the count targets for one shape, with
+/// the target's band width `W` (2ε two-sided, ε one-sided) and a name for messages.
+fn count_cases(e: Ellipse) -> Vec<(f64, f64, bool, f64, String)> {
+    let mut cases = Vec::new();
+    for inset in insets(&e) {
+        for tol in [0.1, 0.01, 0.001, 0.0001] {
+            for one_sided in [false, true] {
+                let width = if one_sided { tol } else { 2.0 * tol };
+                let case = format!(
+                    "a {} b {} inset {inset} tol {tol} one-sided {one_sided}",
+                    e.a(),
+                    e.b()
+                );
+                cases.push((inset, tol, one_sided, width, case));
             }
         }
     }
+    cases
+}
+
+/// Target (issue 4): lines within 3 % (or one move) of ∫√(κ/8W) ds, W the band's width.
+/// Estimates: support/fit_estimates.rs.
+fn line_counts_meet_the_targets(e: Ellipse) {
+    for (inset, tol, one_sided, width, case) in count_cases(e) {
+        let cut = ellipse_cut(e, inset);
+        let lines = fit_cut(&cut, &options(tol, MoveKind::Lines, one_sided)).unwrap();
+        let target = fit_estimates::band_lines(e.a(), e.b(), inset, width);
+        within(lines.moves.len(), target, 0.03, &format!("lines, {case}"));
+    }
+}
+
+/// Target (issue 4): arcs within 25 % (or one move) of ∫(|κ′|/(72√3 w))^{1/3} ds, w half the
+/// band's width (ε two-sided, ε/2 one-sided). Estimates: support/fit_estimates.rs.
+fn arc_counts_meet_the_targets(e: Ellipse) {
+    for (inset, tol, one_sided, width, case) in count_cases(e) {
+        let cut = ellipse_cut(e, inset);
+        let arcs = fit_cut(&cut, &options(tol, MoveKind::Arcs, one_sided)).unwrap();
+        let target = fit_estimates::spline_arcs(e.a(), e.b(), inset, width / 2.0);
+        within(arcs.moves.len(), target, 0.25, &format!("arcs, {case}"));
+    }
+}
+
+// One test per shape, so that each stays short.
+#[test]
+fn line_counts_meet_the_targets_50x20() {
+    line_counts_meet_the_targets(shapes()[0]);
+}
+
+#[test]
+fn line_counts_meet_the_targets_30x18() {
+    line_counts_meet_the_targets(shapes()[1]);
+}
+
+#[test]
+fn line_counts_meet_the_targets_80x25() {
+    line_counts_meet_the_targets(shapes()[2]);
+}
+
+#[test]
+fn arc_counts_meet_the_targets_50x20() {
+    arc_counts_meet_the_targets(shapes()[0]);
+}
+
+#[test]
+fn arc_counts_meet_the_targets_30x18() {
+    arc_counts_meet_the_targets(shapes()[1]);
+}
+
+#[test]
+fn arc_counts_meet_the_targets_80x25() {
+    arc_counts_meet_the_targets(shapes()[2]);
 }
 
 #[test]
@@ -375,6 +450,8 @@ fn counts_equal_the_published_greedy_constructions() {
     // band chords (chords of the +ε offset curve with sagitta 2ε) 86 and 269, inscribed chords
     // (the one-sided band of a counter-clockwise hole: vertices on the curve, sagitta ε) 121 and
     // 381, greedy arcs through curve points with minimax radius 21 and 45, at 0.01 and 0.001 mm.
+    // The crate's arc spline is built differently (evened out, quadrant-symmetric, the start
+    // vertex covered by a tangent arc split into two moves) and needs as many moves.
     let cut = ellipse_cut(shapes()[0], 0.0);
     for (tol, band, inscribed, arcs) in [(0.01, 86, 121, 21), (0.001, 269, 381, 45)] {
         let count = |kind, one_sided| {
@@ -390,6 +467,132 @@ fn counts_equal_the_published_greedy_constructions() {
             "inscribed at {tol}"
         );
         assert_eq!(count(MoveKind::Arcs, false), arcs, "arcs at {tol}");
+    }
+}
+
+/// An ellipse cut as `ellipse_cut`, started at anomaly `start`.
+fn ellipse_cut_from(e: Ellipse, inset: f64, start: f64) -> PlannedCut {
+    let clockwise = inset < 0.0;
+    let (kind, side) = if clockwise {
+        (FeatureKind::Boss, CutSide::Outside)
+    } else {
+        (FeatureKind::Opening, CutSide::Inside)
+    };
+    PlannedCut::new(
+        "test",
+        kind,
+        side,
+        ExactPath::EllipseParallel {
+            ellipse: e,
+            inset,
+            start,
+            clockwise,
+        },
+        e.center(),
+        Edge::Ellipse(e),
+    )
+}
+
+#[test]
+fn any_start_anomaly_works() {
+    // Starts on the axes (the ends of the major and minor axes) use the quadrant-symmetric
+    // construction, others the general one. Every fit stays within the tolerance both ways
+    // (measured here), starts and ends on the exact curve at the start anomaly (two-sided band:
+    // its middle is the curve), meets the move-count target of `arc_counts_meet_the_targets`,
+    // and closes with a joint no worse than its largest inner one.
+    let starts = [
+        FRAC_PI_2,
+        PI,
+        3.0 * FRAC_PI_2,
+        -FRAC_PI_2,
+        0.05,
+        -0.05,
+        0.7,
+        2.0,
+    ];
+    for e in &shapes()[..2] {
+        for inset in [0.0, 0.6 * e.min_radius_of_curvature(), -3.0] {
+            let tolerances: &[f64] = if inset == 0.0 {
+                &[0.01, 0.001]
+            } else {
+                &[0.01]
+            };
+            for &tol in tolerances {
+                for start in starts {
+                    let case = format!(
+                        "a {} b {} inset {inset} tol {tol} start {start}",
+                        e.a(),
+                        e.b()
+                    );
+                    let cut = ellipse_cut_from(*e, inset, start);
+                    let fitted = fit_cut(&cut, &options(tol, MoveKind::Arcs, false))
+                        .unwrap_or_else(|err| panic!("{case}: {err}"));
+                    let (_, _, both) = ellipse_sides(e, inset, inset < 0.0, &fitted);
+                    assert!(both <= tol, "{case}: deviation {both}");
+                    let first = e.inward_offset_point(start, inset);
+                    assert!(
+                        fitted.start.distance(first) < 1e-9,
+                        "{case}: starts elsewhere"
+                    );
+                    assert_eq!(fitted.moves.last().map(Move::end), Some(fitted.start));
+                    let target = fit_estimates::spline_arcs(e.a(), e.b(), inset, tol);
+                    within(fitted.moves.len(), target, 0.25, &case);
+                    let (_, inner, closing) = kinks_here(&fitted);
+                    assert!(
+                        closing <= inner + 1e-9,
+                        "{case}: closing {closing}° inner {inner}°"
+                    );
+                }
+            }
+        }
+    }
+}
+
+#[test]
+fn axis_starts_give_quadrant_symmetric_splines() {
+    // The parallel curves of an ellipse are symmetric about both axes; started on an axis, the
+    // spline is too (computed here in the ellipse's own frame, to 1e-9 mm): the centres of its
+    // arcs mirrored about either axis are centres of its arcs, and so are its end points, the
+    // start apart (the arc through it may be split there into two moves).
+    for e in shapes() {
+        let axis = conicut::geom::Vec2::new(e.angle().cos(), e.angle().sin());
+        let local = |p: Point| {
+            let d = p - e.center();
+            (d.dot(axis), axis.cross(d))
+        };
+        let mirrored_in = |set: &[(f64, f64)], (x, y): (f64, f64)| {
+            [(x, -y), (-x, y)]
+                .iter()
+                .all(|&(mx, my)| set.iter().any(|&(u, v)| (u - mx).hypot(v - my) < 1e-9))
+        };
+        for inset in insets(&e) {
+            for start in [0.0, FRAC_PI_2] {
+                for (tol, one_sided) in [(0.01, false), (0.001, false), (0.01, true)] {
+                    let case = format!("a {} inset {inset} start {start} tol {tol}", e.a());
+                    let cut = ellipse_cut_from(e, inset, start);
+                    let fitted = fit_cut(&cut, &options(tol, MoveKind::Arcs, one_sided)).unwrap();
+                    let centres: Vec<(f64, f64)> = fitted
+                        .moves
+                        .iter()
+                        .map(|m| match *m {
+                            Move::Arc { center, .. } => local(center),
+                            Move::Line { .. } => panic!("{case}: not an arc"),
+                        })
+                        .collect();
+                    for &c in &centres {
+                        assert!(mirrored_in(&centres, c), "{case}: centre {c:?}");
+                    }
+                    let ends: Vec<(f64, f64)> =
+                        fitted.moves.iter().map(|m| local(m.end())).collect();
+                    let start_point = local(fitted.start);
+                    let mut with_start = ends.clone();
+                    with_start.push(start_point);
+                    for &p in ends.iter().filter(|&&p| p != start_point) {
+                        assert!(mirrored_in(&with_start, p), "{case}: end point {p:?}");
+                    }
+                }
+            }
+        }
     }
 }
 

@@ -14,6 +14,13 @@ use crate::geom::{Ellipse, Point, Vec2};
 pub(crate) trait ConvexCurve {
     /// The point at parameter `t` of the parallel curve at outward offset `s` (mm).
     fn point(&self, t: f64, s: f64) -> Point;
+
+    /// Whether the closed curve (period 2π in `t`) is symmetric about two perpendicular axes, the
+    /// reflections being `t ↦ −t` and `t ↦ π − t` (so the points at `t = 0` and `t = π/2` lie on
+    /// the axes), for every offset `s`. The arc spline then fits one quarter and mirrors it.
+    fn symmetric(&self) -> bool {
+        false
+    }
 }
 
 /// The parallel curve `O_d(t) = P(t) − d N(t)` of an ellipse (`d` = `inset`, positive inside),
@@ -27,6 +34,12 @@ pub(crate) struct EllipseCurve {
 impl ConvexCurve for EllipseCurve {
     fn point(&self, t: f64, s: f64) -> Point {
         self.ellipse.inward_offset_point(t, self.inset - s)
+    }
+
+    /// The ellipse's axes: `P(−t)` and `P(π − t)` mirror `P(t)` about the major and minor axis,
+    /// and so do the normals, hence every parallel curve.
+    fn symmetric(&self) -> bool {
+        true
     }
 }
 

@@ -198,18 +198,31 @@ pub fn leading_stretch(start: Point, moves: &[Move], length: f64) -> Vec<Move> {
         .unwrap_or_default()
 }
 
+/// How close (mm) the end of a run must come to its start for the run to count as closed in
+/// [`largest_kink_deg`]: closed runs end exactly where they start, so this only absorbs rounding.
+pub const CLOSED_RUN_GAP: f64 = 1e-9;
+
 /// The largest change of direction between consecutive moves, in degrees (0 for a run that is
-/// tangent-continuous).
+/// tangent-continuous). A closed run (one of two moves or more ending within [`CLOSED_RUN_GAP`]
+/// of its start) also counts its closing joint: the last move's end tangent against the first
+/// move's start tangent.
 pub fn largest_kink_deg(start: Point, moves: &[Move]) -> f64 {
+    let turn = |t0: Vec2, t1: Vec2| t0.cross(t1).atan2(t0.dot(t1)).abs();
     let mut from = start;
     let mut worst: f64 = 0.0;
     let mut previous: Option<Vec2> = None;
     for m in moves {
         if let (Some(t0), Some(t1)) = (previous, m.start_tangent(from)) {
-            worst = worst.max(t0.cross(t1).atan2(t0.dot(t1)).abs());
+            worst = worst.max(turn(t0, t1));
         }
         previous = m.end_tangent(from);
         from = m.end();
+    }
+    let closed = moves.len() >= 2 && from.distance(start) <= CLOSED_RUN_GAP;
+    if closed
+        && let (Some(t0), Some(t1)) = (previous, moves.first().and_then(|m| m.start_tangent(start)))
+    {
+        worst = worst.max(turn(t0, t1));
     }
     worst.to_degrees()
 }
@@ -251,6 +264,37 @@ mod tests {
             },
         ];
         assert!((largest_kink_deg(start, &moves) - 90.0).abs() < 1e-12);
+        // A closed run counts its closing joint. A line along +x, a three-quarter turn about
+        // (1, 1) and a line down to the start are tangent-continuous inside, but arrive heading
+        // −y where the run left heading +x: 90° at the start. Open (without the last line), no
+        // kink.
+        let teardrop = [
+            Move::Line {
+                to: Point::new(1.0, 0.0),
+            },
+            Move::Arc {
+                to: Point::new(0.0, 1.0),
+                center: Point::new(1.0, 1.0),
+                ccw: true,
+            },
+            Move::Line { to: start },
+        ];
+        assert!(largest_kink_deg(start, &teardrop[..2]) < 1e-12);
+        assert!((largest_kink_deg(start, &teardrop) - 90.0).abs() < 1e-12);
+        // A circle in two half turns closes without a kink.
+        let circle = [
+            Move::Arc {
+                to: Point::new(2.0, 0.0),
+                center: Point::new(1.0, 0.0),
+                ccw: true,
+            },
+            Move::Arc {
+                to: start,
+                center: Point::new(1.0, 0.0),
+                ccw: true,
+            },
+        ];
+        assert!(largest_kink_deg(start, &circle) < 1e-12);
         // A line into a tangent arc has no kink.
         let moves = [
             Move::Line {
