@@ -311,7 +311,6 @@ impl Obstacle {
     }
 }
 
-
 /// The rules for the leads of one cut (module docs).
 struct Room<'a> {
     r: f64,
