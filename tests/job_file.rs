@@ -8,7 +8,7 @@
 use conicut::geom::Point;
 use conicut::jobfile::{
     BaySelect, CutKind, FeatureSource, FeatureSpec, FitPoints, JobFile, JobFileError,
-    JobFileErrorKind as Kind, LineSource, PointSource, Rule, parse_job_file,
+    JobFileErrorKind as Kind, LeadShape, LeadSpec, LineSource, PointSource, Rule, parse_job_file,
 };
 use conicut::read::Units;
 
@@ -73,6 +73,7 @@ fn example_file_parses_to_the_expected_specs() {
         units: Units::Millimetres,
         margin: Some(4.0),
         bay_layer: Some("OPENING-BAYS".into()),
+        leads: LeadSpec::default(),
         features: vec![
             feature(
                 0,
@@ -225,6 +226,49 @@ fn inch_values_are_converted_to_mm() {
     assert!(close(pts[2].x, 12.7) && close(pts[2].y, 12.7));
     assert_eq!(lines.len(), 2);
     assert!(close(lines[0].0.y, -6.35) && close(lines[1].1.x, -25.4));
+}
+
+#[test]
+fn lead_keys_parse_in_the_file_units_and_bad_ones_are_refused() {
+    // 1 in = 25.4 mm exactly.
+    let job = parse(&[
+        "units = \"in\"",
+        "lead = \"line-arc\"",
+        "lead_length = 0.1",
+        "lead_radius = 0.05",
+        "overcut = 0",
+        "lead_out = false",
+        "[[feature]]",
+        "name = \"a\"",
+        "bay = \"bay 1\"",
+    ])
+    .unwrap();
+    assert_eq!(job.leads.shape, Some(LeadShape::LineArc));
+    assert!(close(job.leads.length.unwrap(), 2.54));
+    assert!(close(job.leads.radius.unwrap(), 1.27));
+    assert_eq!(job.leads.overcut, Some(0.0));
+    assert_eq!(job.leads.lead_out, Some(false));
+    // Not given: left to the command line and the profile.
+    let plain = parse(&[
+        "units = \"mm\"",
+        "[[feature]]",
+        "name = \"a\"",
+        "bay = \"bay 1\"",
+    ]);
+    assert_eq!(plain.unwrap().leads, LeadSpec::default());
+
+    let feature = ["[[feature]]", "name = \"a\"", "bay = \"bay 1\""];
+    for (line, key, kind) in [
+        ("lead = \"spiral\"", "lead", Kind::BadValue),
+        ("lead_length = -1", "lead_length", Kind::BadValue),
+        ("lead_radius = 0", "lead_radius", Kind::BadValue),
+        ("overcut = -0.5", "overcut", Kind::BadValue),
+        ("lead_out = \"yes\"", "lead_out", Kind::WrongType),
+    ] {
+        let mut lines = vec!["units = \"mm\"", line];
+        lines.extend(feature);
+        assert_at(&refusal(&lines), kind, Some(2), Some(key));
+    }
 }
 
 #[test]

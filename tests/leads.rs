@@ -844,6 +844,46 @@ fn overcut_and_lead_sizes_from_the_request_override_the_profile() {
 }
 
 #[test]
+fn job_file_lead_keys_apply_and_the_command_line_overrides_them() {
+    // The demo's job file with lead keys added at its top: a 3 mm straight lead along the
+    // normal, no overcut, no lead-out, on the laser (whose profile asks for line-arc leads).
+    let text = include_str!("../demo-parts/truss-bracket-job.toml").replacen(
+        "units = \"mm\"",
+        "units = \"mm\"\nlead = \"line\"\nlead_length = 3.0\novercut = 0\nlead_out = false",
+        1,
+    );
+    let job = conicut::jobfile::parse_job_file(&text, "job.toml").expect("the job file parses");
+    let p = profile("laser");
+    let with_job = |leads: LeadRequest| JobSettings {
+        job: Some(job.clone()),
+        ..settings(&p, leads)
+    };
+    let out = run_job(
+        &conicut::demo::demo_dxf_bytes(),
+        &p,
+        &with_job(LeadRequest::default()),
+    )
+    .expect("the job runs");
+    let cuts = read_cuts(&out.program);
+    let outline = cuts.iter().find(|c| c.name == "outline").unwrap();
+    let lead = outline.first_run("lead-in");
+    assert_eq!(lead.len(), 1, "{lead:?}");
+    assert!(lead[0].arc.is_none() && (lead[0].length() - 3.0).abs() < 1e-3);
+    assert!(cuts.iter().all(|c| c.first_run("lead-out").is_empty()));
+    assert!(cuts.iter().all(|c| c.first_run("overcut").is_empty()));
+    // An arc lead asked for on the command line wins over the file's line.
+    let out = run_job(
+        &conicut::demo::demo_dxf_bytes(),
+        &p,
+        &with_job(kind_only(LeadKind::Arc)),
+    )
+    .expect("the job runs");
+    let cuts = read_cuts(&out.program);
+    let outline = cuts.iter().find(|c| c.name == "outline").unwrap();
+    assert!(outline.first_run("lead-in").iter().any(|m| m.arc.is_some()));
+}
+
+#[test]
 fn bad_lead_settings_are_refused() {
     let p = profile("metric-mill");
     for request in [

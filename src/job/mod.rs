@@ -10,7 +10,7 @@ use crate::chain::{self, ChainError, ChainOptions, HoleShape};
 use crate::check;
 use crate::fit::{self, FitError};
 use crate::geom::{Ellipse, Point};
-use crate::jobfile::{CutKind, JobFile};
+use crate::jobfile::{CutKind, JobFile, LeadShape};
 use crate::plan::{self, Direction, LeadKind, LeadOptions, PlanError, PlanOptions, TabOptions};
 use crate::post::{self, MachineProfile, PostError, ProgramSettings};
 use crate::preview::{self, PreviewInput};
@@ -316,15 +316,23 @@ fn unused_warnings(bays: &[String]) -> Vec<String> {
         .collect()
 }
 
-/// The leads to use: what the user gave, the rest from the profile.
-fn resolve_leads(r: &LeadRequest, profile: &MachineProfile) -> LeadOptions {
+/// The leads to use: the command line first, then the job file's lead keys, the rest from the
+/// profile.
+fn resolve_leads(r: &LeadRequest, job: Option<&JobFile>, profile: &MachineProfile) -> LeadOptions {
     let base = profile.lead_options();
+    let file = job.map(|j| j.leads).unwrap_or_default();
+    let file_kind = file.shape.map(|s| match s {
+        LeadShape::Straight => LeadKind::Straight,
+        LeadShape::Line => LeadKind::Line,
+        LeadShape::Arc => LeadKind::Arc,
+        LeadShape::LineArc => LeadKind::LineArc,
+    });
     LeadOptions {
-        kind: r.kind.unwrap_or(base.kind),
-        length: r.length.unwrap_or(base.length),
-        radius: r.radius.unwrap_or(base.radius),
-        overcut: r.overcut.unwrap_or(base.overcut),
-        lead_out: r.lead_out.unwrap_or(base.lead_out),
+        kind: r.kind.or(file_kind).unwrap_or(base.kind),
+        length: r.length.or(file.length).unwrap_or(base.length),
+        radius: r.radius.or(file.radius).unwrap_or(base.radius),
+        overcut: r.overcut.or(file.overcut).unwrap_or(base.overcut),
+        lead_out: r.lead_out.or(file.lead_out).unwrap_or(base.lead_out),
     }
 }
 
@@ -517,7 +525,7 @@ pub fn run_job(
         &to_cut,
         &PlanOptions {
             tool_diameter: s.tool_diameter,
-            leads: resolve_leads(&s.leads, profile),
+            leads: resolve_leads(&s.leads, s.job.as_ref(), profile),
             direction,
             tabs,
             finish_allowance: s.finish_allowance,

@@ -12,6 +12,11 @@
 //!                               # and size in this file is in this unit; nothing is guessed.
 //! margin = 4.0                  # optional: default edge margin for bay features (≥ 0)
 //! bay_layer = "OPENING-BAYS"    # optional: the DXF layer holding the bays
+//! lead = "line-arc"             # optional, every cut: straight | line | arc | line-arc
+//! lead_length = 2.0             # optional: the lead's straight part (≥ 0)
+//! lead_radius = 1.5             # optional: the lead's arc radius (> 0)
+//! overcut = 0.5                 # optional: cut this far past the start again (≥ 0)
+//! lead_out = true               # optional: leave by a lead-out (the lead-in mirrored)
 //!
 //! [[feature]]                   # one table per feature, in the order they are listed
 //! name = "lightening hole A"    # required, unique (compared without regard to case)
@@ -88,8 +93,35 @@ pub struct JobFile {
     pub margin: Option<f64>,
     /// The DXF layer holding the bays, if the file names one.
     pub bay_layer: Option<String>,
+    /// Leads for every cut of the job, where the file gives them (mm); the command line
+    /// overrides them and the machine profile fills in the rest.
+    pub leads: LeadSpec,
     /// The features, in the order of the file.
     pub features: Vec<FeatureSpec>,
+}
+
+/// The shape of the lead-in: `straight`, `line`, `arc` or `line-arc`.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum LeadShape {
+    Straight,
+    Line,
+    Arc,
+    LineArc,
+}
+
+/// The lead keys of a job file, each `None` when the file does not give it (lengths in mm).
+#[derive(Debug, Clone, Copy, PartialEq, Default)]
+pub struct LeadSpec {
+    /// `lead`: the lead-in's shape.
+    pub shape: Option<LeadShape>,
+    /// `lead_length`: the straight part (mm, ≥ 0).
+    pub length: Option<f64>,
+    /// `lead_radius`: the arc's radius (mm, > 0).
+    pub radius: Option<f64>,
+    /// `overcut`: how far past the start the path is cut again (mm, ≥ 0).
+    pub overcut: Option<f64>,
+    /// `lead_out`: whether to leave by a lead-out.
+    pub lead_out: Option<bool>,
 }
 
 impl JobFile {

@@ -2,7 +2,7 @@
 
 use super::{
     BaySelect, CutKind, FeatureSource, FeatureSpec, FitPoints, JobFile, JobFileError,
-    JobFileErrorKind as Kind, LineSource, PointSource, Rule,
+    JobFileErrorKind as Kind, LeadShape, LeadSpec, LineSource, PointSource, Rule,
 };
 use crate::geom::Point;
 use crate::read::Units;
@@ -10,7 +10,17 @@ use toml::Spanned;
 use toml::de::{DeTable, DeValue};
 
 /// Keys allowed at the top of a job file.
-const TOP_KEYS: [&str; 4] = ["units", "margin", "bay_layer", "feature"];
+const TOP_KEYS: [&str; 9] = [
+    "units",
+    "margin",
+    "bay_layer",
+    "lead",
+    "lead_length",
+    "lead_radius",
+    "overcut",
+    "lead_out",
+    "feature",
+];
 
 /// Keys allowed in a `[[feature]]` table.
 const FEATURE_KEYS: [&str; 18] = [
@@ -115,6 +125,22 @@ pub fn parse_job_file(text: &str, file_name: &str) -> Result<JobFile, JobFileErr
     let scale = units.mm_per_unit();
     let margin = top.get("margin").map(|e| cx.margin(e, scale)).transpose()?;
     let bay_layer = top.get("bay_layer").map(|e| cx.string(e)).transpose()?;
+    let leads = LeadSpec {
+        shape: top.get("lead").map(|e| cx.lead_shape(e)).transpose()?,
+        length: top
+            .get("lead_length")
+            .map(|e| cx.not_negative(e, scale, "the lead length"))
+            .transpose()?,
+        radius: top
+            .get("lead_radius")
+            .map(|e| cx.size(e, scale, "the lead radius"))
+            .transpose()?,
+        overcut: top
+            .get("overcut")
+            .map(|e| cx.not_negative(e, scale, "the overcut"))
+            .transpose()?,
+        lead_out: top.get("lead_out").map(|e| cx.boolean(e)).transpose()?,
+    };
 
     let Some(feature_entry) = top.get("feature") else {
         return Err(cx.error(
@@ -195,6 +221,7 @@ pub fn parse_job_file(text: &str, file_name: &str) -> Result<JobFile, JobFileErr
         units,
         margin,
         bay_layer,
+        leads,
         features,
     })
 }
@@ -385,6 +412,46 @@ impl<'t> Context<'t> {
                 value,
                 Kind::BadValue,
                 "the number is not finite; give an ordinary number such as 12.5".into(),
+            )),
+        }
+    }
+
+    /// A length that may be zero, multiplied by the unit's scale.
+    fn not_negative(&self, e: &Entry<'_, '_>, scale: f64, what: &str) -> Result<f64, JobFileError> {
+        let v = self.number_of(e, e.value)?;
+        if v < 0.0 {
+            return Err(self.at(
+                e,
+                Kind::BadValue,
+                format!("{what} is {v}; it must be zero or positive"),
+            ));
+        }
+        Ok(v * scale)
+    }
+
+    /// `true` or `false`.
+    fn boolean(&self, e: &Entry<'_, '_>) -> Result<bool, JobFileError> {
+        match e.value.get_ref() {
+            DeValue::Boolean(b) => Ok(*b),
+            _ => Err(self.wrong_type(e, e.value, "true or false")),
+        }
+    }
+
+    /// A lead shape by name.
+    fn lead_shape(&self, e: &Entry<'_, '_>) -> Result<LeadShape, JobFileError> {
+        let word = self.string(e)?;
+        match word.as_str() {
+            "straight" => Ok(LeadShape::Straight),
+            "line" => Ok(LeadShape::Line),
+            "arc" => Ok(LeadShape::Arc),
+            "line-arc" => Ok(LeadShape::LineArc),
+            _ => Err(self.at(
+                e,
+                Kind::BadValue,
+                format!(
+                    "unknown lead shape \"{word}\"; use \"straight\", \"line\", \"arc\" or \
+                     \"line-arc\""
+                ),
             )),
         }
     }
