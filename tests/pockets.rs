@@ -40,7 +40,7 @@ use conicut::job::{JobError, JobSettings, LeadRequest, run_job};
 use conicut::jobfile::parse_job_file;
 use conicut::plan::pocket::{self, RING_CHORD_TOLERANCE};
 use conicut::plan::{
-    CutSide, ExactPath, FeatureKind, LeadKind, Opening, PlanError, PlanOptions, PlannedCut,
+    CutSide, ExactPath, FeatureKind, LeadKind, Opening, Plan, PlanError, PlanOptions, PlannedCut,
     plan_cuts,
 };
 use demo_job::profile;
@@ -266,9 +266,10 @@ fn nearest_to_edge(e: &Ellipse, samples: &[Point]) -> f64 {
 // ---------------------------------------------------------------------------------------------
 // Plans of hand-made ellipses.
 
-fn plan_pocket(e: Ellipse, d: f64, stepover: f64) -> Result<PlannedCut, PlanError> {
+/// The plan of one pocket `e` named `name`, tool `d`, rings at most `stepover` apart.
+fn plan_of(name: &str, e: Ellipse, d: f64, stepover: f64) -> Result<Plan, PlanError> {
     let o = Opening {
-        name: "test pocket".into(),
+        name: name.into(),
         ellipse: e,
         side: CutSide::Inside,
         pocket: true,
@@ -277,7 +278,11 @@ fn plan_pocket(e: Ellipse, d: f64, stepover: f64) -> Result<PlannedCut, PlanErro
         pocket_stepover: stepover,
         ..PlanOptions::plain(d)
     };
-    let plan = plan_cuts(&Part::default(), &[o], &opts)?;
+    plan_cuts(&Part::default(), &[o], &opts)
+}
+
+fn plan_pocket(e: Ellipse, d: f64, stepover: f64) -> Result<PlannedCut, PlanError> {
+    let plan = plan_of("test pocket", e, d, stepover)?;
     Ok(plan.cuts.into_iter().next().expect("one cut planned"))
 }
 
@@ -426,17 +431,7 @@ fn slender_pocket_is_covered_with_trimmed_rings() {
     assert!(got[got.len() - 2] - got[got.len() - 1] <= r - h + 1e-12);
     // … and the plan says so, while the asked-for stepover that needs no narrowing does not.
     let warned = |stepover: f64| {
-        let o = Opening {
-            name: "slender".into(),
-            ellipse: e,
-            side: CutSide::Inside,
-            pocket: true,
-        };
-        let opts = PlanOptions {
-            pocket_stepover: stepover,
-            ..PlanOptions::plain(d)
-        };
-        let plan = plan_cuts(&Part::default(), &[o], &opts).expect("planned");
+        let plan = plan_of("slender", e, d, stepover).expect("planned");
         plan.warnings
             .iter()
             .any(|w| w.starts_with("slender: clearing rings") && w.contains("closer than"))

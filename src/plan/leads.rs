@@ -889,23 +889,23 @@ mod tests {
         }
     }
 
-    #[test]
-    fn arc_lead_is_tangent_and_inside_an_opening() {
-        // A 40 × 20 ellipse, 6 mm tool: the arc lead of radius 4 goes to an end of the minor
-        // axis, where the path's tangent is along the major axis.
-        let e = Ellipse::new(Point::new(0.0, 0.0), 40.0, 20.0, 0.0).unwrap();
+    /// The plan of one elliptical opening `e` named `bay`, cut inside.
+    fn plan_opening(e: Ellipse, opts: &PlanOptions) -> crate::plan::Plan {
         let open = Opening {
             name: "bay".into(),
             ellipse: e,
             side: CutSide::Inside,
             pocket: false,
         };
-        let plan = plan_cuts(
-            &Part::default(),
-            &[open],
-            &options(6.0, LeadKind::Arc, 0.0, 4.0),
-        )
-        .unwrap();
+        plan_cuts(&Part::default(), &[open], opts).unwrap()
+    }
+
+    #[test]
+    fn arc_lead_is_tangent_and_inside_an_opening() {
+        // A 40 × 20 ellipse, 6 mm tool: the arc lead of radius 4 goes to an end of the minor
+        // axis, where the path's tangent is along the major axis.
+        let e = Ellipse::new(Point::new(0.0, 0.0), 40.0, 20.0, 0.0).unwrap();
+        let plan = plan_opening(e, &options(6.0, LeadKind::Arc, 0.0, 4.0));
         assert!(plan.warnings.is_empty(), "{:?}", plan.warnings);
         let cut = &plan.cuts[0];
         let ExactPath::EllipseParallel { start, .. } = cut.path else {
@@ -953,18 +953,7 @@ mod tests {
     #[test]
     fn too_narrow_a_mill_arc_is_widened_with_a_warning() {
         let e = Ellipse::new(Point::new(0.0, 0.0), 40.0, 20.0, 0.0).unwrap();
-        let open = Opening {
-            name: "bay".into(),
-            ellipse: e,
-            side: CutSide::Inside,
-            pocket: false,
-        };
-        let plan = plan_cuts(
-            &Part::default(),
-            &[open],
-            &options(6.0, LeadKind::Arc, 0.0, 2.0),
-        )
-        .unwrap();
+        let plan = plan_opening(e, &options(6.0, LeadKind::Arc, 0.0, 2.0));
         let Element::Arc(a) = plan.cuts[0].lead_in[0] else {
             panic!("an arc");
         };
