@@ -135,16 +135,17 @@ struct CutArgs {
     #[arg(long, allow_negative_numbers = true)]
     stepover: Option<f64>,
     /// The lead-in's shape: straight (a straight move from the plunge or pierce point), line,
-    /// arc, or line-arc. Default: the machine profile's.
+    /// arc, or line-arc. Default: the job file's, else the profile's.
     #[arg(long, value_enum)]
     lead: Option<LeadArg>,
-    /// Length of the lead's straight part (mm). Default: the machine profile's.
+    /// Length of the lead's straight part (mm). Default: the job file's, else the profile's.
     #[arg(long, allow_negative_numbers = true)]
     lead_length: Option<f64>,
-    /// Radius of the lead's arc (mm). Default: the machine profile's.
+    /// Radius of the lead's arc (mm). Default: the job file's, else the profile's.
     #[arg(long, allow_negative_numbers = true)]
     lead_radius: Option<f64>,
-    /// Cut this far past the start again before leaving (mm). Default: the machine profile's.
+    /// Cut this far past the start again before leaving (mm). Default: the job file's, else
+    /// the profile's.
     #[arg(long, allow_negative_numbers = true)]
     overcut: Option<f64>,
     /// Stop on the contour instead of leaving by a lead-out.
