@@ -41,7 +41,8 @@
 mod demo_job;
 use conicut::chain::{Contour, Element, Part};
 use conicut::check::{self, Trace, TraceMove};
-use conicut::fit::{FittedCut, Move};
+use conicut::fit::FittedCut;
+use conicut::geom::Move;
 use conicut::geom::{Ellipse, Point, Segment};
 use conicut::job::{JobError, JobOutput, JobSettings, LeadRequest, run_job};
 use conicut::plan::{

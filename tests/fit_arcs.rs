@@ -9,7 +9,8 @@
 mod fit_estimates;
 
 use conicut::chain::{Contour, Element};
-use conicut::fit::{FitError, FitOptions, FittedCut, Move, MoveKind, PART_SIDE_SLACK, fit_cut};
+use conicut::fit::{FitError, FitOptions, FittedCut, MoveKind, PART_SIDE_SLACK, fit_cut};
+use conicut::geom::Move;
 use conicut::geom::{ArcSegment, Ellipse, Point, Segment};
 use conicut::plan::{CutSide, Edge, ExactPath, FeatureKind, PlannedCut};
 use std::f64::consts::{FRAC_PI_2, PI, TAU};

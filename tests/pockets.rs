@@ -34,7 +34,8 @@
 mod demo_job;
 use conicut::chain::{Element, Part};
 use conicut::check::{self, Trace, TraceMove};
-use conicut::fit::{FitOptions, Move, MoveKind, fit_cut};
+use conicut::fit::{FitOptions, MoveKind, fit_cut};
+use conicut::geom::Move;
 use conicut::geom::{Ellipse, Point, Vec2};
 use conicut::job::{JobError, JobSettings, LeadRequest, run_job};
 use conicut::jobfile::parse_job_file;

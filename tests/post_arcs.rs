@@ -6,7 +6,8 @@
 //! that the 0.002 mm / 0.0002 in radius rule is checked on the very numbers a controller reads;
 //! the outside `gcode` crate reads the NIST example too.
 
-use conicut::fit::{FittedCut, Move};
+use conicut::fit::FittedCut;
+use conicut::geom::Move;
 use conicut::geom::{Point, Vec2};
 use conicut::plan::{CutSide, FeatureKind};
 use conicut::post::{

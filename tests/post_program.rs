@@ -339,12 +339,12 @@ fn points_outside_the_travel_envelope_are_refused() {
     // about (5, 12) from (5, -4) to (5, 28), radius 16, it passes X = -11, below the -10 mm
     // limit. Every run of a cut is checked, arcs by their extremes.
     let mut cut = square_cut("hole 5", 10.0, 10.0, 5.0);
-    cut.lead_out = vec![conicut::fit::Move::Arc {
+    cut.lead_out = vec![conicut::geom::Move::Arc {
         to: Point::new(5.0, 28.0),
         center: Point::new(5.0, 12.0),
         ccw: false,
     }];
-    cut.overcut = vec![conicut::fit::Move::Line {
+    cut.overcut = vec![conicut::geom::Move::Line {
         to: Point::new(5.0, -4.0),
     }];
     let err = write_program(&[cut], &mill(), &settings()).unwrap_err();
@@ -432,7 +432,7 @@ fn bad_settings_and_bad_cuts_are_refused_without_panic() {
         Err(PostError::NoCuts)
     );
     let mut cut = square_cut("hole 9", 10.0, 10.0, 5.0);
-    cut.moves[1] = conicut::fit::Move::Line {
+    cut.moves[1] = conicut::geom::Move::Line {
         to: Point::new(f64::NAN, 10.0),
     };
     let err = write_program(&[cut], &mill(), &settings()).unwrap_err();
@@ -674,7 +674,7 @@ fn moves_that_round_to_nothing_are_left_out() {
     // A vertex 20 nm from its neighbour rounds to the same 4-decimal position.
     cut.moves.insert(
         1,
-        conicut::fit::Move::Line {
+        conicut::geom::Move::Line {
             to: Point::new(15.00002, 10.0),
         },
     );

@@ -362,7 +362,7 @@ fn empty_and_bad_input_still_give_a_valid_page() {
     assert!(!svg.contains("NaN"));
 
     let mut cut = hole_cut();
-    cut.moves[2] = conicut::fit::Move::Line {
+    cut.moves[2] = conicut::geom::Move::Line {
         to: Point::new(f64::NAN, 1.0),
     };
     cut.plunge = Point::new(f64::INFINITY, 0.0);
@@ -467,7 +467,7 @@ fn commands(d: &str) -> Vec<(char, Vec<f64>)> {
 
 #[test]
 fn arc_moves_are_drawn_as_exact_svg_arcs() {
-    use conicut::fit::Move;
+    use conicut::geom::Move;
     // A stadium run counter-clockwise (two half turns about (60, 30) and (40, 30), radius 10),
     // and a three-quarter turn clockwise about (120, 30), radius 10.
     let mut stadium = FittedCut::from_points(

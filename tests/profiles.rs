@@ -11,7 +11,8 @@
 //!
 //! and read the difference before committing it.
 
-use conicut::fit::{FittedCut, Move};
+use conicut::fit::FittedCut;
+use conicut::geom::Move;
 use conicut::geom::Point;
 use conicut::plan::{CutSide, FeatureKind};
 use conicut::post::{

@@ -14,7 +14,8 @@
 //! with that curve by dense sampling both ways ([`crate::fit::measure_deviation`], the
 //! measurement, not the writer).
 
-use crate::fit::{Move, measure_deviation, measure_sides};
+use crate::fit::{measure_deviation, measure_sides};
+use crate::geom::Move;
 use crate::geom::Point;
 use crate::plan::ExactPath;
 use serde::Serialize;

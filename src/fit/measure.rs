@@ -1,8 +1,8 @@
 //! Measuring how far emitted moves stray from the exact curve they stand for.
 
 use super::band::golden_min;
-use super::moves::Move;
 use crate::chain::Element;
+use crate::geom::Move;
 use crate::geom::{ArcSegment, Point, Segment};
 use crate::plan::ExactPath;
 use serde::Serialize;

@@ -18,8 +18,8 @@
 //! §3.2); the one-sided band is half as wide.
 
 use crate::geom::Point;
+use crate::geom::moves::{self, Move};
 use crate::plan::{CutSide, FeatureKind};
-pub use moves::Move;
 use serde::Serialize;
 
 /// One feature's cut, ready for a post-processor: the tool enters at `plunge`, runs `clearing`
@@ -139,7 +139,6 @@ mod arcs;
 mod band;
 mod lines;
 mod measure;
-pub mod moves;
 
 pub use measure::{SideDeviation, measure_deviation, measure_sides, measure_with_sides};
 

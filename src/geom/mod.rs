@@ -1,5 +1,5 @@
 //! Plane geometry shared by every stage: points, vectors, lines, segments, circular arcs and
-//! ellipses.
+//! ellipses, feed moves (lines and arcs) and runs of them, and the numeric helpers they need (real polynomial roots on an interval).
 //!
 //! # Units and conventions
 //!
@@ -12,11 +12,14 @@
 mod arc;
 mod ellipse;
 mod line;
+pub mod moves;
+pub mod roots;
 mod vector;
 
 pub use arc::ArcSegment;
 pub use ellipse::{Ellipse, EllipseError};
 pub use line::{Line, Segment};
+pub use moves::Move;
 pub use vector::{Point, Vec2};
 
 /// Relative tolerance below which two lines count as parallel (sine of the angle between them).

@@ -575,12 +575,12 @@ pub fn run_job(
     for (cut, planned) in cuts.iter_mut().zip(&plan.cuts) {
         let snap_point = |p: Point| Point::new(snap(p.x), snap(p.y));
         let start = snap_point(cut.start);
-        let moves: Vec<fit::Move> = cut
+        let moves: Vec<crate::geom::Move> = cut
             .moves
             .iter()
             .map(|m| match *m {
-                fit::Move::Line { to } => fit::Move::Line { to: snap_point(to) },
-                fit::Move::Arc { to, center, ccw } => fit::Move::Arc {
+                crate::geom::Move::Line { to } => crate::geom::Move::Line { to: snap_point(to) },
+                crate::geom::Move::Arc { to, center, ccw } => crate::geom::Move::Arc {
                     to: snap_point(to),
                     center,
                     ccw,

@@ -34,7 +34,7 @@
 //! spacing, and only where a move runs along an edge.
 
 use crate::check::{self, Trace, TraceMove};
-use crate::fit::Move;
+use crate::geom::Move;
 use crate::geom::Point;
 use crate::plan::{CutSide, Edge, FeatureKind, GOUGE_MARGIN, PlannedCut};
 

@@ -36,7 +36,7 @@
 //! distance of the written arc from the exact one over thousands of random arcs.
 
 use super::number::format_number;
-use crate::fit::Move;
+use crate::geom::Move;
 use crate::geom::{Point, Vec2};
 use std::f64::consts::{FRAC_PI_2, PI, TAU};
 

@@ -7,7 +7,8 @@ use super::profile::{
     radius_rule,
 };
 use super::safety::{PRECEDENCE, SAFETY_HEADING, cautions};
-use crate::fit::{FittedCut, Move};
+use crate::fit::FittedCut;
+use crate::geom::Move;
 use crate::geom::Point;
 use crate::plan::{CutSide, FeatureKind};
 
@@ -811,7 +812,7 @@ impl<'p> Writer<'p> {
         let half_step = 0.5 * units.to_mm(step);
         let at_start = cut.clearing.is_empty()
             && cut.plunge.distance(cut.start) <= half_step
-            && crate::fit::moves::total_length(cut.plunge, &cut.lead_in) <= half_step;
+            && crate::geom::moves::total_length(cut.plunge, &cut.lead_in) <= half_step;
         match cut.moves.first().copied() {
             Some(first) if at_start && usable(cut.start, &first) => {
                 // An even number of legs ends back at the contour's start.
@@ -845,7 +846,7 @@ impl<'p> Writer<'p> {
         if legs.is_multiple_of(2) == end_at_far_end {
             legs += 1;
         }
-        let back = crate::fit::moves::reversed(from, &[m]).1;
+        let back = crate::geom::moves::reversed(from, &[m]).1;
         for k in 0..legs {
             let z0 = z_from - drop * k as f64 / legs as f64;
             let z1 = z_from - drop * (k + 1) as f64 / legs as f64;
@@ -1037,14 +1038,14 @@ pub fn helix_radius(d: f64) -> f64 {
 /// over a tab.
 fn tab_pieces(cut: &FittedCut) -> (Vec<Vec<Move>>, Vec<bool>) {
     let at: Vec<f64> = cut.tabs.iter().flat_map(|&(a, b)| [a, b]).collect();
-    let pieces = crate::fit::moves::split_at(cut.start, &cut.moves, &at);
+    let pieces = crate::geom::moves::split_at(cut.start, &cut.moves, &at);
     // Piece k starts at the k-th cut; odd cuts open a tab, even ones close it. A cut at the
     // very start or end of the run makes no piece, so walk the lengths instead of counting.
     let mut inside = Vec::with_capacity(pieces.len());
     let mut from = cut.start;
     let mut walked = 0.0;
     for piece in &pieces {
-        let len = crate::fit::moves::total_length(from, piece);
+        let len = crate::geom::moves::total_length(from, piece);
         let mid = walked + 0.5 * len;
         inside.push(cut.tabs.iter().any(|&(a, b)| mid > a && mid < b));
         walked += len;

@@ -24,7 +24,8 @@ mod frame;
 mod shapes;
 
 use crate::chain::{HoleShape, Part};
-use crate::fit::{FittedCut, Move};
+use crate::fit::FittedCut;
+use crate::geom::Move;
 use crate::geom::{Ellipse, Point, Vec2};
 use frame::{Bounds, Frame, num, scale_bar_length};
 use shapes::{arrow_d, arrow_spots, contour_d, ellipse_bounds, ellipse_d, moves_d, polyline_d};
@@ -46,7 +47,7 @@ pub struct PreviewInput<'a> {
 /// The tool-centre path as points, for the bounds and the direction arrows (the path itself is
 /// drawn exactly, arcs as arcs): every move's end, and 24 points inside each arc.
 fn drawn_path(cut: &FittedCut) -> Vec<Point> {
-    crate::fit::moves::sample(cut.start, &cut.moves, 24)
+    crate::geom::moves::sample(cut.start, &cut.moves, 24)
 }
 
 /// Every move the tool makes at feed for `cut`, each run with the point it starts from: the
@@ -68,11 +69,11 @@ fn stretch(start: Point, moves: &[Move], from: f64, to: f64) -> Option<(Point, V
     if from.is_nan() || to.is_nan() || from >= to {
         return None;
     }
-    let pieces = crate::fit::moves::split_at(start, moves, &[from, to]);
+    let pieces = crate::geom::moves::split_at(start, moves, &[from, to]);
     let mut at = start;
     let mut walked = 0.0;
     for piece in pieces {
-        let len = crate::fit::moves::total_length(at, &piece);
+        let len = crate::geom::moves::total_length(at, &piece);
         let mid = walked + 0.5 * len;
         if len > 0.0 && mid > from && mid < to {
             return Some((at, piece));
@@ -196,7 +197,7 @@ fn content_bounds(input: &PreviewInput) -> Option<Bounds> {
     for cut in input.cuts {
         let mut path = vec![cut.plunge];
         for (_, from, moves) in runs(cut) {
-            path.extend(crate::fit::moves::sample(from, moves, 24));
+            path.extend(crate::geom::moves::sample(from, moves, 24));
         }
         for p in &path {
             pts.push(Point::new(p.x - r, p.y - r));

@@ -6,7 +6,7 @@
 
 use super::frame::num;
 use crate::chain::{Contour, Element};
-use crate::fit::Move;
+use crate::geom::Move;
 use crate::geom::{ArcSegment, Ellipse, Point, Vec2};
 use std::f64::consts::PI;
 use std::fmt::Write;

@@ -175,9 +175,9 @@ fn tab_reports(c: &FittedCut, d: f64) -> Vec<TabReport> {
         .iter()
         .map(|&(from, to)| {
             let mid = 0.5 * (from + to);
-            let middle = crate::fit::moves::leading_stretch(c.start, &c.moves, mid)
+            let middle = crate::geom::moves::leading_stretch(c.start, &c.moves, mid)
                 .last()
-                .map_or(c.start, crate::fit::Move::end);
+                .map_or(c.start, crate::geom::Move::end);
             TabReport {
                 from_mm: from,
                 to_mm: to,
@@ -216,7 +216,7 @@ pub fn build_report(input: ReportInput) -> Report {
                 fit: info.and_then(|o| o.fit),
                 plunge_mm: [c.plunge.x, c.plunge.y],
                 contour_moves: c.moves.len(),
-                path_length_mm: crate::fit::moves::total_length(c.start, &c.moves),
+                path_length_mm: crate::geom::moves::total_length(c.start, &c.moves),
                 measured_deviation_mm: c.measured_deviation,
                 part_side_deviation_mm: c.part_side_deviation,
                 largest_kink_deg: c.largest_kink_deg,

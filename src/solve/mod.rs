@@ -11,7 +11,6 @@ pub mod contained;
 pub mod feature;
 pub mod fit;
 pub mod pentagon;
-pub mod poly;
 pub mod quad_family;
 pub mod quad_rules;
 pub mod triangle;

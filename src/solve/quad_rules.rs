@@ -18,9 +18,9 @@
 
 use super::candidate::{Candidate, Solution};
 use super::conic::ConicKind;
-use super::poly;
 use super::quad_family::TangentFamily;
 use crate::geom::Point;
+use crate::geom::roots as poly;
 use std::f64::consts::PI;
 
 /// Relative agreement required between a root's semi-axis and the requested one, to tell

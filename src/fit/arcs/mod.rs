@@ -43,7 +43,7 @@
 //! Every arc is finally re-measured with golden-section refinement against half the band's width.
 
 use super::band::{ConvexCurve, golden_min};
-use super::moves::Move;
+use crate::geom::Move;
 use crate::geom::{Point, Vec2};
 use std::f64::consts::{FRAC_PI_2, PI, TAU};
 

@@ -1,6 +1,6 @@
 //! Feed moves as a controller runs them: straight lines and circular arcs.
 
-use crate::geom::{Point, Vec2};
+use super::{Point, Vec2};
 use serde::Serialize;
 use std::f64::consts::TAU;
 
