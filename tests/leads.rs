@@ -21,12 +21,12 @@
 #[path = "support/demo_job.rs"]
 mod demo_job;
 use conicut::chain::{ChainOptions, build_part};
+use conicut::check::scrap::{ScrapRules, check_scrap};
 use conicut::check::trace;
 use conicut::demo::{
     BOLT_HOLE_CENTRES, BOLT_HOLE_RADIUS, CORNER_RADIUS, PLATE_HEIGHT, PLATE_WIDTH, demo_dxf_bytes,
 };
 use conicut::geom::{Ellipse, Point, Vec2};
-use conicut::job::scrap::{ScrapRules, check_scrap};
 use conicut::job::{JobError, JobOutput, JobSettings, LeadRequest, run_job};
 use conicut::plan::{CutSide, Direction, LeadKind, Opening, PlanError, PlanOptions, plan_cuts};
 use conicut::post::{BUNDLED_PROFILES, MachineProfile};

@@ -20,6 +20,8 @@ use crate::geom::Point;
 use crate::plan::ExactPath;
 use serde::Serialize;
 
+pub mod scrap;
+
 /// Why a program could not be read.
 #[derive(Debug, Clone, PartialEq, thiserror::Error)]
 #[error("program line {line}: {problem}")]
@@ -48,6 +50,10 @@ pub struct Trace {
     pub moves: Vec<TraceMove>,
     /// Features by name with the index of their first move.
     pub features: Vec<(String, usize)>,
+    /// The number K of each cut comment `(cut K of N: NAME)`, in the order of `features`: the
+    /// checker finds a cut by this number, never by the name text (whose safe form is the
+    /// writer's business).
+    pub cut_numbers: Vec<usize>,
     /// Every comment after the header, with the index of the move that follows it: the writer
     /// marks the parts of a cut (`clearing`, `lead-in`, `contour`, `overcut`, `lead-out`).
     pub marks: Vec<(String, usize)>,
@@ -144,6 +150,7 @@ pub fn trace(program: &str) -> Result<Trace, CheckError> {
     let mut st = State::default();
     let mut moves = Vec::new();
     let mut features = Vec::new();
+    let mut cut_numbers = Vec::new();
     let mut marks = Vec::new();
     let mut mismatch: f64 = 0.0;
     for (i, raw) in program.lines().enumerate() {
@@ -155,12 +162,13 @@ pub fn trace(program: &str) -> Result<Trace, CheckError> {
         let (ws, comments) = words(t, line)?;
         for c in &comments {
             marks.push((c.trim().to_string(), moves.len()));
-            if let Some((_, name)) = c
+            if let Some((head, name)) = c
                 .trim()
                 .strip_prefix("cut ")
                 .and_then(|r| r.split_once(": "))
             {
                 features.push((name.to_string(), moves.len()));
+                cut_numbers.push(cut_number(head).unwrap_or(0));
             }
         }
         let mut target: [Option<f64>; 3] = [None; 3];
@@ -262,6 +270,7 @@ pub fn trace(program: &str) -> Result<Trace, CheckError> {
     Ok(Trace {
         moves,
         features,
+        cut_numbers,
         marks,
         largest_arc_radius_mismatch: mismatch,
         bounds,
@@ -295,24 +304,39 @@ fn bounds_of(moves: &[TraceMove]) -> Option<([f64; 3], [f64; 3])> {
     lo[0].is_finite().then_some((lo, hi))
 }
 
-/// The moves of feature `name`, by index: from its cut comment to the next feature's.
-fn feature_range(trace: &Trace, name: &str) -> Option<std::ops::Range<usize>> {
-    let idx = trace.features.iter().position(|(n, _)| n == name)?;
+/// The number K of a cut comment's head `K of N` (1-based), if it is one.
+fn cut_number(head: &str) -> Option<usize> {
+    let (k, n) = head.split_once(" of ")?;
+    n.trim().parse::<usize>().ok()?;
+    k.trim().parse().ok()
+}
+
+/// The moves of the feature at `idx` in `trace.features`: from its cut comment to the next one.
+fn range_at(trace: &Trace, idx: usize) -> std::ops::Range<usize> {
     let first = trace.features[idx].1;
     let last = trace
         .features
         .get(idx + 1)
         .map(|f| f.1)
         .unwrap_or(trace.moves.len());
-    Some(first..last)
+    first..last
 }
 
-/// The indices of feature `name`'s moves that follow a comment `mark` (up to the next comment),
-/// in order.
-pub fn marked_moves(trace: &Trace, name: &str, mark: &str) -> Vec<usize> {
-    let Some(range) = feature_range(trace, name) else {
-        return Vec::new();
-    };
+/// The moves of feature `name`, by index: from its cut comment to the next feature's.
+fn feature_range(trace: &Trace, name: &str) -> Option<std::ops::Range<usize>> {
+    let idx = trace.features.iter().position(|(n, _)| n == name)?;
+    Some(range_at(trace, idx))
+}
+
+/// The moves of cut number `number` (the K of `(cut K of N: NAME)`, 1-based), by index.
+/// `None` when the program holds no such cut.
+pub fn cut_range(trace: &Trace, number: usize) -> Option<std::ops::Range<usize>> {
+    let idx = trace.cut_numbers.iter().position(|&k| k == number)?;
+    Some(range_at(trace, idx))
+}
+
+/// The indices of the moves in `range` that follow a comment `mark` (up to the next comment).
+fn marked_in(trace: &Trace, range: std::ops::Range<usize>, mark: &str) -> Vec<usize> {
     let mut out = Vec::new();
     for (k, (text, at)) in trace.marks.iter().enumerate() {
         if text != mark || !range.contains(at) {
@@ -328,14 +352,27 @@ pub fn marked_moves(trace: &Trace, name: &str, mark: &str) -> Vec<usize> {
     out
 }
 
+/// The indices of feature `name`'s moves that follow a comment `mark` (up to the next comment),
+/// in order.
+pub fn marked_moves(trace: &Trace, name: &str, mark: &str) -> Vec<usize> {
+    feature_range(trace, name).map_or_else(Vec::new, |r| marked_in(trace, r, mark))
+}
+
+/// The moves in `range` that are not its contour.
+fn off_contour_in(trace: &Trace, range: std::ops::Range<usize>) -> Vec<usize> {
+    let contour = marked_in(trace, range.clone(), "contour");
+    range.filter(|i| !contour.contains(i)).collect()
+}
+
 /// The moves of `name` that are not its contour: clearing, leads, overcut, entries (ramps and
 /// helices) and rapids, by index.
 pub fn moves_off_contour(trace: &Trace, name: &str) -> Vec<usize> {
-    let Some(range) = feature_range(trace, name) else {
-        return Vec::new();
-    };
-    let contour = marked_moves(trace, name, "contour");
-    range.filter(|i| !contour.contains(i)).collect()
+    feature_range(trace, name).map_or_else(Vec::new, |r| off_contour_in(trace, r))
+}
+
+/// [`moves_off_contour`] of cut number `number` (1-based K of its cut comment).
+pub fn cut_moves_off_contour(trace: &Trace, number: usize) -> Vec<usize> {
+    cut_range(trace, number).map_or_else(Vec::new, |r| off_contour_in(trace, r))
 }
 
 /// The contour of feature `name` in the XY plane, as a start point and moves: the feed moves
@@ -348,8 +385,27 @@ pub fn feature_moves(
     exact: &ExactPath,
     reach: f64,
 ) -> Option<(Point, Vec<Move>)> {
+    contour_in(trace, feature_range(trace, name)?, exact, reach)
+}
+
+/// [`feature_moves`] of cut number `number` (1-based K of its cut comment `(cut K of N: NAME)`).
+pub fn cut_contour(
+    trace: &Trace,
+    number: usize,
+    exact: &ExactPath,
+    reach: f64,
+) -> Option<(Point, Vec<Move>)> {
+    contour_in(trace, cut_range(trace, number)?, exact, reach)
+}
+
+fn contour_in(
+    trace: &Trace,
+    range: std::ops::Range<usize>,
+    exact: &ExactPath,
+    reach: f64,
+) -> Option<(Point, Vec<Move>)> {
     let start_exact = exact.start_point();
-    let feeds: Vec<&TraceMove> = marked_moves(trace, name, "contour")
+    let feeds: Vec<&TraceMove> = marked_in(trace, range, "contour")
         .into_iter()
         .map(|i| &trace.moves[i])
         .filter(|m| m.from[0] != m.to[0] || m.from[1] != m.to[1])

@@ -4,7 +4,6 @@
 
 pub mod features;
 pub mod listing;
-pub mod scrap;
 
 use crate::chain::{self, ChainError, ChainOptions, HoleShape};
 use crate::check;
@@ -633,15 +632,14 @@ pub fn run_job(
         file: file(),
         problem: error.to_string(),
     })?;
-    for (cut, planned) in cuts.iter_mut().zip(&plan.cuts) {
-        // The program's comments carry the name as the writer makes comment text safe.
-        let written_name = post::sanitize(&cut.name);
+    for (k, (cut, planned)) in cuts.iter_mut().zip(&plan.cuts).enumerate() {
+        // The cut is found by its number in the writer's index comment `(cut K of N: NAME)`.
         // The fitted start may sit up to the tolerance off the exact start (a band vertex), and
         // rounding moves it a little more: look for it within twice the tolerance.
         // The part side is measured against the cut's own scrap side (the right of travel for a
         // conventional cut).
         let (read_back, part_side) =
-            check::feature_moves(&trace, &written_name, &planned.path, 2.0 * s.tolerance)
+            check::cut_contour(&trace, k + 1, &planned.path, 2.0 * s.tolerance)
                 .filter(|(_, moves)| !moves.is_empty())
                 .map(|(start, moves)| {
                     let (both, sides) =
@@ -678,11 +676,11 @@ pub fn run_job(
         cut.part_side_deviation = part_side;
     }
     // Every move off the contour (entries, clearing, leads, overcut, lead-out) keeps the tool
-    // off the finished part, read back from the program (see `scrap`).
-    scrap::check_scrap(
+    // off the finished part, read back from the program (see `check::scrap`).
+    check::scrap::check_scrap(
         &trace,
         &plan.cuts,
-        &scrap::ScrapRules {
+        &check::scrap::ScrapRules {
             tool_radius: s.tool_diameter / 2.0,
             tolerance: s.tolerance,
             rounding,

@@ -11,7 +11,7 @@
 //! # Rules
 //!
 //! For each cut, every feed move of the cut that is not a `(contour)` move
-//! ([`crate::check::moves_off_contour`]), sampled every [`SAMPLE_SPACING`] mm (arcs along the
+//! ([`crate::check::cut_moves_off_contour`], found by the cut's number), sampled every [`SAMPLE_SPACING`] mm (arcs along the
 //! arc), skipping rapids and, on mills and routers, the points above the top of the stock
 //! (`Z > 0`, where the tool cuts nothing):
 //!
@@ -77,12 +77,6 @@ pub struct ScrapViolation {
     pub problem: String,
 }
 
-/// The name of a feature as the program's comments carry it: the writer's own rule for comment
-/// text (parentheses made square, and so on), so that the two cannot drift apart.
-fn written_name(name: &str) -> String {
-    crate::post::sanitize(name)
-}
-
 /// Checks every cut of `cuts` in the program read back as `trace` (see the module docs).
 /// Returns the first violation found.
 pub fn check_scrap(
@@ -93,8 +87,9 @@ pub fn check_scrap(
     let limit = rules.tool_radius * (1.0 - GOUGE_MARGIN) - rules.tolerance;
     let reach: Vec<Reach> = cuts.iter().map(|c| Reach::of(&c.edge)).collect();
     for (own, cut) in cuts.iter().enumerate() {
-        let name = written_name(&cut.name);
-        if !trace.features.iter().any(|(n, _)| *n == name) {
+        // Found by its number K in the writer's index comment `(cut K of N: NAME)`.
+        let number = own + 1;
+        if check::cut_range(trace, number).is_none() {
             return Err(ScrapViolation {
                 feature: cut.name.clone(),
                 part: String::new(),
@@ -104,7 +99,7 @@ pub fn check_scrap(
             });
         }
         let mut pierce_seen = false;
-        for i in check::moves_off_contour(trace, &name) {
+        for i in check::cut_moves_off_contour(trace, number) {
             let m = &trace.moves[i];
             if m.rapid {
                 continue;
