@@ -12,6 +12,7 @@
 mod arc;
 mod ellipse;
 mod line;
+pub mod units;
 mod vector;
 
 pub use arc::ArcSegment;
