@@ -27,4 +27,5 @@ pub mod post;
 pub mod preview;
 pub mod read;
 pub mod report;
+pub mod settings;
 pub mod solve;

@@ -11,6 +11,7 @@ use conicut::post::{BUNDLED_PROFILES, MachineProfile};
 use conicut::read::Units;
 use conicut::read::parse_points_csv;
 use conicut::report::OutputFile;
+use conicut::settings::defaults;
 use std::collections::BTreeMap;
 use std::fs;
 use std::path::{Path, PathBuf};
@@ -106,7 +107,7 @@ struct DrawingArgs {
 #[derive(Args, Debug)]
 struct CutArgs {
     /// Largest distance between the emitted path and the exact curve (mm).
-    #[arg(long, default_value_t = 0.01, allow_negative_numbers = true)]
+    #[arg(long, default_value_t = defaults::TOLERANCE_MM, allow_negative_numbers = true)]
     tolerance: f64,
     /// Cut depth below the work zero (mm, positive). Default: the machine profile's (the demo:
     /// through its 3 mm plate and 0.5 mm into the board below).
@@ -123,7 +124,7 @@ struct CutArgs {
     entry: EntryArg,
     /// The steepest descent of a helix or zig-zag entry (degrees; common practice: 1–3° in
     /// steel, up to 5–10° in aluminium).
-    #[arg(long, default_value_t = 3.0, allow_negative_numbers = true)]
+    #[arg(long, default_value_t = defaults::RAMP_ANGLE_DEG, allow_negative_numbers = true)]
     ramp_angle: f64,
     /// Climb (default) or conventional milling; thermal cuts keep the usual direction.
     #[arg(long, value_enum, default_value_t = DirectionArg::Climb)]
@@ -277,7 +278,7 @@ fn settings(file_name: String, input: &DrawingArgs, cut: Option<&CutArgs>) -> Re
         gap_tolerance: input.gap_tolerance,
         margin: input.margin,
         tool_diameter: 0.0,
-        tolerance: cut.map(|c| c.tolerance).unwrap_or(0.01),
+        tolerance: cut.map(|c| c.tolerance).unwrap_or(defaults::TOLERANCE_MM),
         depth: cut.and_then(|c| c.depth),
         stepdown: cut.and_then(|c| c.stepdown),
         ramp_angle_deg: cut

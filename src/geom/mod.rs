@@ -1,5 +1,6 @@
 //! Plane geometry shared by every stage: points, vectors, lines, segments, circular arcs and
-//! ellipses, feed moves (lines and arcs) and runs of them, and the numeric helpers they need (real polynomial roots on an interval).
+//! ellipses, feed moves (lines and arcs) and runs of them, and the numeric helpers they need (real polynomial roots on
+//! an interval), and the one inch-to-millimetre factor.
 //!
 //! # Units and conventions
 //!
@@ -14,6 +15,7 @@ mod ellipse;
 mod line;
 pub mod moves;
 pub mod roots;
+pub mod units;
 mod vector;
 
 pub use arc::ArcSegment;

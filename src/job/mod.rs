@@ -15,6 +15,7 @@ use crate::post::{self, MachineProfile, PostError, ProgramSettings};
 use crate::preview::{self, PreviewInput};
 use crate::read::{self, ReadError, ReadOptions, Units};
 use crate::report::{self, FitSummary, Report, ReportInput, SolvedInfo};
+use crate::settings::defaults;
 use features::{FeatureInputs, SolvedFeature};
 use listing::SolveListing;
 use std::collections::BTreeMap;
@@ -83,12 +84,12 @@ impl JobSettings {
             units: None,
             bay_layer: chain::DEFAULT_BAY_LAYER.to_string(),
             gap_tolerance: chain::DEFAULT_GAP_TOLERANCE,
-            margin: 0.0,
+            margin: defaults::MARGIN_MM,
             tool_diameter,
-            tolerance: 0.01,
+            tolerance: defaults::TOLERANCE_MM,
             depth: None,
             stepdown: None,
-            ramp_angle_deg: Some(3.0),
+            ramp_angle_deg: Some(defaults::RAMP_ANGLE_DEG),
             helical_entry: true,
             leads: LeadRequest::default(),
             direction: Direction::Climb,
@@ -528,7 +529,9 @@ pub fn run_job(
             direction,
             tabs,
             finish_allowance: s.finish_allowance,
-            pocket_stepover: s.pocket_stepover.unwrap_or(0.4 * s.tool_diameter),
+            pocket_stepover: s
+                .pocket_stepover
+                .unwrap_or_else(|| defaults::pocket_stepover(s.tool_diameter)),
             pierce_clearance: profile.pierce_clearance(),
         },
     )

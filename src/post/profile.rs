@@ -42,8 +42,7 @@ use crate::plan::{LeadKind, LeadOptions};
 use serde::Deserialize;
 use std::fmt;
 
-/// Millimetres per inch (exact by definition since 1959).
-pub const MM_PER_INCH: f64 = 25.4;
+pub use crate::geom::units::MM_PER_INCH;
 
 /// The kind of machine a profile describes. Each kind has its own safety cautions.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize)]

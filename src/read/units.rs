@@ -1,5 +1,6 @@
 //! Drawing units and their conversion to millimetres.
 
+use crate::geom::units::MM_PER_INCH;
 use serde::Serialize;
 use std::fmt;
 use std::str::FromStr;
@@ -32,7 +33,7 @@ impl Units {
             Units::Millimetres => 1.0,
             Units::Centimetres => 10.0,
             Units::Metres => 1000.0,
-            Units::Inches => 25.4,
+            Units::Inches => MM_PER_INCH,
             Units::Feet => 304.8,
         }
     }
