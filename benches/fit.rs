@@ -11,7 +11,7 @@
 //! 6 mm tool, inset 3), `30x18` (inset 0), `80x25-boss` (outside parallel curve at 3 mm,
 //! clockwise), all started at anomaly 0 (an end of the major axis). Targets: lines within 3 % (or
 //! one move) of `∫√(κ/8W) ds`, arcs within 25 % (or one move) of `∫(|κ′|/(72√3 w))^{1/3} ds`
-//! (STANDARDS-AND-PRACTICE §3.2–3.3), `W` the band's width (2ε two-sided, ε one-sided), `w` half
+//! (docs/sources.md P3.2–3.3), `W` the band's width (2ε two-sided, ε one-sided), `w` half
 //! of it; estimates from `tests/support/fit_estimates.rs`.
 //!
 //! Measured counts (moves) against the estimates (in brackets), as printed by this bench; every

@@ -3,7 +3,7 @@
 //! * `four_sided_largest`: the largest ellipse tangent to the four sides of the irregular
 //!   quadrilateral (0,0), (5,0), (4,3), (1,4), no margin (target: ≤ 500 ns per solve).
 //! * `three_points_two_lines`: every conic through (1,7), (8,1), (9,8) touching x = 0 and y = 0,
-//!   the worked example of MATH-CHECKS.md §5 (four real ellipses).
+//!   the worked example of docs/sources.md M5 (four real ellipses).
 
 use conicut::chain::Bay;
 use conicut::geom::{Line, Point};

@@ -1,5 +1,5 @@
 //! General conics, their duals, Apollonius' conjugate semi-diameters, and conics through `p` points
-//! tangent to `t` lines (`p + t = 5`), checked against `shared/reference/MATH-CHECKS.md` (§4, §5)
+//! tangent to `t` lines (`p + t = 5`), checked against docs/sources.md (§4, §5)
 //! and its raw outputs `math-scripts/out_dual.txt` and `math-scripts/out_conics.txt`, which were
 //! computed independently (numpy / sympy / mpmath; the scripts are named beside each check).
 
@@ -32,7 +32,7 @@ fn deg(x: f64) -> f64 {
     x.to_radians()
 }
 
-/// Residual of the support-function test (MATH-CHECKS.md §0), independent of the conic code: the
+/// Residual of the support-function test (docs/sources.md M0), independent of the conic code: the
 /// distance from the line to the nearer of the two tangents of `e` with the same normal.
 fn support_gap(e: &Ellipse, l: &Line) -> f64 {
     let n = l.normal();
@@ -54,7 +54,7 @@ fn assert_close(got: f64, want: f64, tol: f64, what: &str) {
 
 #[test]
 fn apollonius_skew_pair() {
-    // MATH-CHECKS.md §4 "skew pair" (steiner_apollonius.py): p = (3,1), q = (1,2) →
+    // docs/sources.md M4 "skew pair" (steiner_apollonius.py): p = (3,1), q = (1,2) →
     // a = (5+√5)/2, b = (5−√5)/2, angle ½·atan 2 = 31.7174744114610°.
     let (pv, qv) = (Vec2::new(3.0, 1.0), Vec2::new(1.0, 2.0));
     let e = ellipse_from_conjugate_semi_diameters(p(0.0, 0.0), pv, qv).unwrap();
@@ -70,7 +70,7 @@ fn apollonius_skew_pair() {
 
 #[test]
 fn apollonius_from_a_known_ellipse() {
-    // MATH-CHECKS.md §4 "from a known ellipse": C = (1,2), a = 5, b = 3, θ = 30°, the pair at
+    // docs/sources.md M4 "from a known ellipse": C = (1,2), a = 5, b = 3, θ = 30°, the pair at
     // eccentric angle 40°.
     let pv = Vec2::new(2.35288832631488, 3.58512230547670);
     let qv = Vec2::new(-3.93241866081056, 0.383272820290467);
@@ -113,7 +113,7 @@ fn apollonius_refuses_parallel_semi_diameters() {
 proptest! {
     #![proptest_config(ProptestConfig::with_cases(2000))]
 
-    /// Apollonius' theorems [EoM] (MATH-CHECKS.md §4) for random conjugate pairs: |p|²+|q|² =
+    /// Apollonius' theorems [EoM] (docs/sources.md M4) for random conjugate pairs: |p|²+|q|² =
     /// a²+b², |p×q| = ab, and the curve c + p cos t + q sin t lies on the ellipse.
     #[test]
     fn apollonius_invariants(px in -50.0..50.0f64, py in -50.0..50.0f64,
@@ -139,7 +139,7 @@ proptest! {
 
 #[test]
 fn dual_conic_check_values() {
-    // MATH-CHECKS.md §5 "Dual conic" table and out_dual.txt (dual_check.py): the ellipse
+    // docs/sources.md M5 "Dual conic" table and out_dual.txt (dual_check.py): the ellipse
     // C = (1,2), a = 5, b = 3, θ = 30°, whose reference matrix A has det A = −1/225.
     let e = Ellipse::new(p(1.0, 2.0), 5.0, 3.0, deg(30.0)).unwrap();
     let c = Conic::from_ellipse(&e);
@@ -210,7 +210,7 @@ fn dual_conic_check_values() {
 
 #[test]
 fn five_point_check() {
-    // MATH-CHECKS.md §5 "5-point check" (conic_constraints.py): the ellipse C = (2,1), a = 4,
+    // docs/sources.md M5 "5-point check" (conic_constraints.py): the ellipse C = (2,1), a = 4,
     // b = 2, θ = 20° at eccentric angles 0°, 70°, 150°, 220°, 300°.
     let e = Ellipse::new(p(2.0, 1.0), 4.0, 2.0, deg(20.0)).unwrap();
     let printed = [
@@ -249,7 +249,7 @@ fn five_point_check() {
 // §5 worked example, three points and two lines
 // ---------------------------------------------------------------------------------------------
 
-/// One row of the MATH-CHECKS.md §5 worked-example table.
+/// One row of the docs/sources.md M5 worked-example table.
 struct Row {
     local_centre: (f64, f64),
     world_centre: (f64, f64),
@@ -309,7 +309,7 @@ const WORKED: [Row; 4] = [
     },
 ];
 
-/// Where the ellipse touches the line, from the support function (MATH-CHECKS.md §0).
+/// Where the ellipse touches the line, from the support function (docs/sources.md M0).
 fn touch_point(e: &Ellipse, l: &Line) -> Point {
     let (sxx, sxy, syy) = e.shape_matrix();
     let n = l.normal();
@@ -324,7 +324,7 @@ fn touch_point(e: &Ellipse, l: &Line) -> Point {
 
 #[test]
 fn three_points_two_lines_worked_example_local_frame() {
-    // MATH-CHECKS.md §5 "Worked example", Method A (conic_constraints.py, out_conics.txt):
+    // docs/sources.md M5 "Worked example", Method A (conic_constraints.py, out_conics.txt):
     // lines x = 0 and y = 0, points (1,7), (8,1), (9,8); rows in the order of the signs (s₂, s₃).
     let x0 = line_abc(1.0, 0.0, 0.0);
     let y0 = line_abc(0.0, 1.0, 0.0);
@@ -364,7 +364,7 @@ fn three_points_two_lines_worked_example_local_frame() {
 
 #[test]
 fn three_points_two_lines_worked_example_world_frame() {
-    // MATH-CHECKS.md §5 "Method B": the same problem moved by x' = R x + (20, −5),
+    // docs/sources.md M5 "Method B": the same problem moved by x' = R x + (20, −5),
     // R = [[4/5, −3/5], [3/5, 4/5]]; lines −0.6x + 0.8y + 16 = 0 and 0.8x + 0.6y − 13 = 0.
     let pts = [
         p(83.0 / 5.0, 6.0 / 5.0),
@@ -391,7 +391,7 @@ fn three_points_two_lines_worked_example_world_frame() {
 
 #[test]
 fn three_points_two_lines_sign_cases() {
-    // MATH-CHECKS.md §5 (checked cases) and §10 surprise S4.
+    // docs/sources.md M5 (checked cases) and §10 surprise S4.
     let lines = [line_abc(1.0, 0.0, 0.0), line_abc(0.0, 1.0, 0.0)];
     // (1,7), (8,−1), (9,8): four complex solutions → refused with the reason.
     let err =
@@ -480,7 +480,7 @@ const GENERIC: [(usize, &[Row5]); 6] = [
 
 #[test]
 fn generic_configuration_counts_and_values() {
-    // MATH-CHECKS.md §5 "Counts": points (1,7), (8,1), (9,8), (3,3), (6,10); lines y = 0, x = 0,
+    // docs/sources.md M5 "Counts": points (1,7), (8,1), (9,8), (3,3), (6,10); lines y = 0, x = 0,
     // x + y = 20, x − 3y + 30 = 0, 2x − y − 26 = 0; the first p points and first t lines give
     // 1, 2, 4, 4, 2, 1 real ellipses (out_conics.txt).
     let pts = [
@@ -704,7 +704,7 @@ fn thin_solution_far_from_the_origin_stays_tangent() {
 // ---------------------------------------------------------------------------------------------
 
 /// Expected numbers of real solutions when one real solution is known to exist
-/// (MATH-CHECKS.md §5 counts and S4), indexed by the number of points.
+/// (docs/sources.md M5 counts and S4), indexed by the number of points.
 const COUNT_BY_POINTS: [usize; 6] = [1, 2, 4, 4, 2, 1];
 
 /// A case built from a known ellipse: points on it at some eccentric anomalies, tangent lines at
@@ -916,7 +916,7 @@ proptest! {
     }
 
     /// 3+2 with arbitrary points: 4 real solutions when the products XᵢYᵢ share a sign (all points
-    /// in one region of the two lines), otherwise a refusal that says so (MATH-CHECKS.md S4).
+    /// in one region of the two lines), otherwise a refusal that says so (docs/sources.md M10 S4).
     #[test]
     fn three_points_two_lines_regions(
         pts in prop::array::uniform3((-20.0..20.0f64, -20.0..20.0f64)),

@@ -213,7 +213,7 @@ fn r12_polyline_with_bulge_reads_and_chains() {
 
 #[test]
 fn mirrored_arc_lands_where_the_arbitrary_axis_algorithm_puts_it() {
-    // STANDARDS-AND-PRACTICE §2.3: extrusion (0,0,−1): centre (x, y) → (−x, y), WCS angles
+    // docs/sources.md P2.3: extrusion (0,0,−1): centre (x, y) → (−x, y), WCS angles
     // 180° − θ, and the arc runs clockwise seen from +Z.
     let mut d = drawing(dxf::enums::Units::Millimeters);
     let mut a = Arc::new(dxf::Point::new(10.0, 5.0, 0.0), 4.0, 0.0, 90.0);

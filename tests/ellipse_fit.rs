@@ -1,5 +1,5 @@
 //! The least-squares ellipse fit (`conicut::solve::fit`) against the independently computed values
-//! of `shared/reference/MATH-CHECKS.md` §9 (scripts `ellipse_fit.py`, numpy, and
+//! of docs/sources.md M9 (scripts `ellipse_fit.py`, numpy, and
 //! `ellipse_fit_mp.py`, the Halíř–Flusser reduction in 50-digit mpmath arithmetic).
 //!
 //! Data of §9: true ellipse centre (30, −12), a = 40, b = 15, angle 25°; point k at eccentric
@@ -76,7 +76,7 @@ fn assert_matches(e: &Ellipse, r: &Reference, rel: f64) {
     assert_rel(e.angle().to_degrees(), r.angle_deg, rel, "angle (degrees)");
 }
 
-/// MATH-CHECKS §9, "perturbed, full ellipse", HF at 50 digits.
+/// docs/sources.md M9, "perturbed, full ellipse", HF at 50 digits.
 const FULL_REFERENCE: Reference = Reference {
     cx: 30.016369280775,
     cy: -11.992731884159,
@@ -85,7 +85,7 @@ const FULL_REFERENCE: Reference = Reference {
     angle_deg: 25.00141389547,
 };
 
-/// MATH-CHECKS §9, "perturbed, 20 points on the arc t ∈ [0, 2.4]", HF at 50 digits.
+/// docs/sources.md M9, "perturbed, 20 points on the arc t ∈ [0, 2.4]", HF at 50 digits.
 const ARC_REFERENCE: Reference = Reference {
     cx: 31.370345601686,
     cy: -8.8861964005057,
@@ -96,7 +96,7 @@ const ARC_REFERENCE: Reference = Reference {
 
 #[test]
 fn generator_reproduces_the_published_table() {
-    // MATH-CHECKS §9: the table is the generator's output printed to 12 decimals, so the two
+    // docs/sources.md M9: the table is the generator's output printed to 12 decimals, so the two
     // agree within half a unit of the 12th decimal (5e-13) plus double rounding; 1e-11 allowed.
     // This validates `sample`, used for the arc case whose points are not tabled.
     for (k, (g, t)) in sample(&full_ts(), 0.5)
@@ -111,7 +111,7 @@ fn generator_reproduces_the_published_table() {
 
 #[test]
 fn exact_points_give_the_true_ellipse() {
-    // MATH-CHECKS §9, "exact points (δ = 0)": centre (30, −12), a = 40, b = 15, angle 25°, to
+    // docs/sources.md M9, "exact points (δ = 0)": centre (30, −12), a = 40, b = 15, angle 25°, to
     // 1e-10 in the reference; checked here to 1e-9 absolute.
     let fit = fit_ellipse(&sample(&full_ts(), 0.0)).unwrap();
     let e = fit.ellipse;
@@ -127,7 +127,7 @@ fn exact_points_give_the_true_ellipse() {
 
 #[test]
 fn five_exact_points_fix_the_ellipse() {
-    // Five points determine a conic (MATH-CHECKS §5 conventions); five points of the §9 ellipse
+    // Five points determine a conic (docs/sources.md M5 conventions); five points of the §9 ellipse
     // at uneven angles give it back exactly (1e-9 absolute).
     let ts = [0.3, 1.1, 2.9, 4.0, 5.5];
     let fit = fit_ellipse(&sample(&ts, 0.0)).unwrap();
@@ -141,7 +141,7 @@ fn five_exact_points_fix_the_ellipse() {
 
 #[test]
 fn perturbed_full_ellipse_matches_the_50_digit_reference() {
-    // MATH-CHECKS §9, "perturbed, full ellipse", HF 50 digits: relative error ≤ 1e-9 each.
+    // docs/sources.md M9, "perturbed, full ellipse", HF 50 digits: relative error ≤ 1e-9 each.
     let fit = fit_ellipse(&table_points()).unwrap();
     assert_matches(&fit.ellipse, &FULL_REFERENCE, 1e-9);
     // The geometric (orthogonal-distance) fit of §9 is a different ellipse (a = 40.0617…): the
@@ -151,7 +151,7 @@ fn perturbed_full_ellipse_matches_the_50_digit_reference() {
 
 #[test]
 fn perturbed_arc_matches_the_50_digit_reference() {
-    // MATH-CHECKS §9, "perturbed, 20 points on the arc t ∈ [0, 2.4]" (t_k = 2.4k/19, same δ_k),
+    // docs/sources.md M9, "perturbed, 20 points on the arc t ∈ [0, 2.4]" (t_k = 2.4k/19, same δ_k),
     // HF 50 digits: relative error ≤ 1e-9 each.
     let fit = fit_ellipse(&sample(&arc_ts(), 0.5)).unwrap();
     assert_matches(&fit.ellipse, &ARC_REFERENCE, 1e-9);
@@ -159,7 +159,7 @@ fn perturbed_arc_matches_the_50_digit_reference() {
 
 #[test]
 fn coefficients_are_normalised_to_the_reference_vector() {
-    // MATH-CHECKS §9: normalised coefficient vector (4ac − b² = 1, sign free) for the full
+    // docs/sources.md M9: normalised coefficient vector (4ac − b² = 1, sign free) for the full
     // perturbed case, given to 13 significant digits; compared to 1e-9 relative each.
     let want = [
         0.3920903176977,
@@ -190,7 +190,7 @@ fn coefficients_are_normalised_to_the_reference_vector() {
 
 #[test]
 fn small_far_rotated_copy_reproduces_the_mapped_reference() {
-    // MATH-CHECKS §9, "Conditioning test": the data rotated 40°, scaled by 0.01 and moved to
+    // docs/sources.md M9, "Conditioning test": the data rotated 40°, scaled by 0.01 and moved to
     // (1000, −500). The fit is similarity-covariant (§9), so the expected ellipse is the
     // reference mapped the same way: centre (1000, −500) + 0.01 R(40°) c, axes × 0.01, angle +40°.
     let rot = 40f64.to_radians();

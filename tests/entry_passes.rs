@@ -9,7 +9,7 @@
 //!
 //! What is checked, and against what:
 //!
-//! * **Helical entry** (common practice, STANDARDS-AND-PRACTICE §4.3: helix diameter at least
+//! * **Helical entry** (common practice, docs/sources.md P4.3: helix diameter at least
 //!   half the tool's, ramps of about 1–3° in steel): every helix move is an arc about the plunge
 //!   point of radius D/4 (a bore of 1.5 D), descends no steeper than the ramp angle measured along
 //!   the arc (radius × sweep, not the chord), keeps the tool centre at least r from the feature's
@@ -20,7 +20,7 @@
 //! * **Zig-zag entry** where a helix has no room (a Ø9 mm hole and a 7 mm tool: 4.5 − 3.5 = 1 mm
 //!   of room, less than 7/4 mm): straight legs back and forth along the lead-in, none steeper than
 //!   the angle; **straight entry** (`--entry straight`) plunges straight down at the plunge point.
-//! * **Direction** (NISTIR 6556 App. B.2.1; STANDARDS-AND-PRACTICE §4.1: with a clockwise spindle,
+//! * **Direction** (NISTIR 6556 App. B.2.1; docs/sources.md P4.1: with a clockwise spindle,
 //!   climb milling keeps the tool on the left of its travel with the material on the right, so
 //!   holes run counter-clockwise (G3) and outlines clockwise (G2); conventional milling the
 //!   reverse): the sense of every arc
@@ -28,7 +28,7 @@
 //!   the same both ways, every contour within the tolerance of the distance r from its edge. With
 //!   `--scrap-side-only` the written contour never comes nearer the edge than r (less the output
 //!   rounding), in both directions.
-//! * **Finishing pass** (STANDARDS-AND-PRACTICE §4.3: 0.1–0.5 mm radial): the roughing contour
+//! * **Finishing pass** (docs/sources.md P4.3: 0.1–0.5 mm radial): the roughing contour
 //!   lies at r + s from the edge (± the tolerance) in every depth pass, the finishing contour at r
 //!   once, at the full depth; the header says so; tabs stay on both cuts of the outline.
 //! * **Refusals**: an allowance that is not positive; one that would push the roughing path of an

@@ -3,7 +3,7 @@
 //! this file (the ellipse's own point-distance and inside test, circle and segment distances),
 //! independently of the crate's measurement; move counts are compared with the asymptotic
 //! estimates computed by `support/fit_estimates.rs` and with the greedy constructions published in
-//! STANDARDS-AND-PRACTICE §0 and §3.4.
+//! docs/sources.md P0 and P3.4.
 
 #[path = "support/fit_estimates.rs"]
 mod fit_estimates;
@@ -152,7 +152,7 @@ fn ellipse_sides(e: &Ellipse, inset: f64, clockwise: bool, cut: &FittedCut) -> (
 
 #[test]
 fn estimates_reproduce_the_published_integrals() {
-    // STANDARDS-AND-PRACTICE §3.4 (shop-scripts/ellipse_counts.py, cross-checked with mpmath at
+    // docs/sources.md P3.4 (shop-scripts/ellipse_counts.py, cross-checked with mpmath at
     // 30 digits): for a = 50, b = 20, ∫√κ ds = 34.00150, ∫|κ′|^{1/3} ds = 22.29415, perimeter
     // 230.1311 mm.
     let sqrt_k = fit_estimates::sqrt_curvature_integral(50.0, 20.0, 0.0);
@@ -313,7 +313,7 @@ fn kinks_here(cut: &FittedCut) -> (f64, f64, f64) {
 
 #[test]
 fn kinks_are_reported_and_small() {
-    // STANDARDS-AND-PRACTICE §3.4: the greedy arc spline of the 50 × 20 ellipse has kinks of up
+    // docs/sources.md P3.4: the greedy arc spline of the 50 × 20 ellipse has kinks of up
     // to 1.36° at 0.01 mm and 0.28° at 0.001 mm, all from its short closing span; evening the
     // spans out removes most of it, and a joint at a vertex of the major axis (the start, at
     // anomaly 0) kinks by itself, 1.39° at 0.01 mm before this construction. The brief asks for
@@ -447,7 +447,7 @@ fn arc_counts_meet_the_targets_80x25() {
 
 #[test]
 fn counts_equal_the_published_greedy_constructions() {
-    // STANDARDS-AND-PRACTICE §3.4, built by shop-scripts/ellipse_construct.py for a = 50, b = 20:
+    // docs/sources.md P3.4, built by shop-scripts/ellipse_construct.py for a = 50, b = 20:
     // band chords (chords of the +ε offset curve with sagitta 2ε) 86 and 269, inscribed chords
     // (the one-sided band of a counter-clockwise hole: vertices on the curve, sagitta ε) 121 and
     // 381, greedy arcs through curve points with minimax radius 21 and 45, at 0.01 and 0.001 mm.

@@ -2,7 +2,7 @@
 //! five-sided bay, probe points and guide lines on layers, and a CSV of measured points; solved
 //! with `conicut solve --json` and cut with `conicut plan --job`.
 //!
-//! Reference values: MATH-CHECKS.md §3 (Steiner inellipse of (0,0), (6,0), (2,4), here scaled
+//! Reference values: docs/sources.md M3 (Steiner inellipse of (0,0), (6,0), (2,4), here scaled
 //! ×10 and moved), §5 (the worked 3 points + 2 lines example, world frame, four ellipses), §9
 //! (least-squares fit of the 20 perturbed points, 50-digit reference, here moved by (200, 150)).
 
@@ -33,7 +33,7 @@ fn closed_polyline(points: &[(f64, f64)], layer: &str) -> Entity {
 
 #[path = "support/perturbed_points.rs"]
 mod perturbed_points;
-/// The 20 perturbed points of MATH-CHECKS.md §9.
+/// The 20 perturbed points of docs/sources.md M9.
 use perturbed_points::PERTURBED as SCAN;
 
 fn write_inputs(dir: &Path) {

@@ -9,7 +9,7 @@
 //!
 //! Sources of the rules checked:
 //! * lead and pierce in the scrap, pierce point at least one kerf plus the crater from the
-//!   finished contour, short lead-outs on holes: STANDARDS-AND-PRACTICE §4.3 (common practice);
+//!   finished contour, short lead-outs on holes: docs/sources.md P4.3 (common practice);
 //! * arc leads tangent to the contour, lead arcs wider than the tool on mills: NISTIR 6556
 //!   App. B.3.1;
 //! * the distance of a point from a rounded rectangle: the rounded rectangle is the set of
@@ -645,7 +645,7 @@ fn leads_on_the_metric_mill_in_lines_only() {
 fn leads_with_pockets_and_a_finishing_pass() {
     // Two bays as pockets (demo-parts/truss-bracket-pocket-job.toml): their lead-in starts at
     // the last clearing ring; and every cut split into a roughing cut 0.3 mm off the edge and a
-    // finishing cut (common practice: 0.1–0.5 mm radial, STANDARDS-AND-PRACTICE §4.3).
+    // finishing cut (common practice: 0.1–0.5 mm radial, docs/sources.md P4.3).
     let root = std::path::Path::new(env!("CARGO_MANIFEST_DIR"));
     let text = std::fs::read_to_string(root.join("demo-parts/truss-bracket-pocket-job.toml"))
         .expect("the pocket job file");
@@ -722,7 +722,7 @@ fn leads_on_the_waterjet() {
 
 #[test]
 fn profile_defaults_give_arc_leads_on_mills_and_line_arc_on_thermal_tables() {
-    // common practice, STANDARDS-AND-PRACTICE §4.3: arc leads on mills (radius above the 3 mm
+    // common practice, docs/sources.md P4.3: arc leads on mills (radius above the 3 mm
     // tool radius, NISTIR 6556 App. B.3.1), line + arc on laser, plasma and waterjet.
     for (stem, kind) in [
         ("metric-mill", LeadKind::Arc),
@@ -774,7 +774,7 @@ fn small_holes_fall_back_to_a_straight_entry_from_the_centre_with_a_warning() {
     // Plasma: the 5 mm line + 2.5 mm arc does not fit in a Ø9 hole either. The lead shrinks
     // until it fits, then its straight part grows back towards the centre until the pierce
     // point is 3.5 mm (the profile's clearance) from the edge: "a lead-in from near the centre,
-    // an arc radius under the hole radius" (STANDARDS-AND-PRACTICE §4.3, common practice).
+    // an arc radius under the hole radius" (docs/sources.md P4.3, common practice).
     let out = run_and_check("plasma", LeadRequest::default(), false);
     for k in 1..=4 {
         let name = format!("hole {k}");

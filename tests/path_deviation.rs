@@ -89,7 +89,7 @@ fn deviation_within_tolerance_for_shapes_tools_and_tolerances() {
 
 #[test]
 fn chord_counts_match_the_published_greedy_construction() {
-    // STANDARDS-AND-PRACTICE.md §0 table (shop-scripts/ellipse_construct.py): chords with
+    // docs/sources.md P0 table (shop-scripts/ellipse_construct.py): chords with
     // vertices on the curve for the ellipse a = 50, b = 20 need 121 at 0.01 mm and 381 at
     // 0.001 mm (asymptotic ∫√(κ/8ε) ds = 120.2 and 380.2). With zero offset the parallel curve is
     // the ellipse itself.

@@ -2,7 +2,7 @@
 //! the scrap, never in the finished part.
 //!
 //! The inward parallel curve of an ellipse at distance d is regular exactly when d < b²/a, the
-//! smallest radius of curvature (MATH-CHECKS.md §8; Farouki & Neff, CAGD 7 (1990)); NISTIR 6556
+//! smallest radius of curvature (docs/sources.md M8; Farouki & Neff, CAGD 7 (1990)); NISTIR 6556
 //! App. B.5.1 likewise stops when the tool radius is not less than the arc radius.
 
 use conicut::chain::{self, ChainOptions, HoleShape, Part};
@@ -25,7 +25,7 @@ fn plan_one(e: Ellipse, diameter: f64) -> Result<(), PlanError> {
 
 #[test]
 fn gouge_refusal_exactly_at_the_smallest_radius_of_curvature() {
-    // a = 50, b = 20: b²/a = 8 mm (MATH-CHECKS.md §8), so a 16 mm tool is refused and a tool a
+    // a = 50, b = 20: b²/a = 8 mm (docs/sources.md M8), so a 16 mm tool is refused and a tool a
     // hair smaller is accepted.
     let e = Ellipse::new(Point::new(0.0, 0.0), 50.0, 20.0, 0.3).unwrap();
     let err = plan_one(e, 16.0).unwrap_err();

@@ -302,7 +302,7 @@ fn check_hand_made(e: Ellipse, d: f64, stepover: f64) -> PlannedCut {
     let cut = plan_pocket(e, d, stepover).expect("pocket planned");
     let fitted = fit_cut(&cut, &fit_options()).expect("pocket fitted");
     // Every planned ring is counter-clockwise (climb milling with M3, NISTIR 6556 App. B.2.1,
-    // STANDARDS-AND-PRACTICE §4.1) and starts on the +major-axis side, innermost first, so that
+    // docs/sources.md P4.1) and starts on the +major-axis side, innermost first, so that
     // every link runs outwards along the major axis.
     let axis = Vec2::from_angle(e.angle());
     let mut last_out = 0.0;

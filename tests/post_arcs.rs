@@ -229,7 +229,7 @@ fn nist_centre_format_example_reads_back() {
 
 #[test]
 fn half_turns_and_more_are_split_and_directions_kept() {
-    // STANDARDS-AND-PRACTICE.md §1.2 (common practice): arcs of 180° or more are written as two.
+    // docs/sources.md P1.2 (common practice): arcs of 180° or more are written as two.
     let profile = bundled("metric-mill.toml");
     let c = Point::new(100.0, 100.0);
     let on = |deg: f64| c + Vec2::from_angle(deg.to_radians()) * 20.0;
@@ -465,7 +465,7 @@ proptest! {
     #[test]
     fn random_arcs_keep_the_radius_rule_metric_3_decimals(arc in arc_strategy()) {
         // The plasma profile writes 3 decimals: naive rounding of I, J could break the rule
-        // (STANDARDS-AND-PRACTICE.md §1.6: worst 2.36 µm), the bisector correction keeps it.
+        // (docs/sources.md P1.6: worst 2.36 µm), the bisector correction keeps it.
         check_random_arc(&bundled("plasma.toml"), arc);
     }
 

@@ -462,7 +462,7 @@ fn blocks(program: &str) -> Vec<String> {
 
 #[test]
 fn laser_plasma_and_waterjet_pierce_dwell_and_cut_at_height() {
-    // Sequence from the brief for cut-through kinds (STANDARDS-AND-PRACTICE.md §4.3, common
+    // Sequence from the brief for cut-through kinds (docs/sources.md P4.3, common
     // practice): rapid at safe height over the pierce point, down to the pierce height, process
     // on, pierce dwell G4 P in seconds (NISTIR 6556 §3.5.4), down to the cut height, feed along the
     // path, process off, up to the safe height.
@@ -624,7 +624,7 @@ fn header_holds_the_job_the_safety_block_and_the_precedence_statement() {
         "the precedence statement ends the header"
     );
     let cautions = &header[safety + 1..precedence];
-    // STANDARDS-AND-PRACTICE.md §5: mill cautions cover the dry run, clamping, guards, eye
+    // docs/sources.md P5: mill cautions cover the dry run, clamping, guards, eye
     // protection and keeping hands out while the spindle turns.
     let text = cautions.join(" ");
     for needle in [

@@ -537,7 +537,7 @@ fn arc_moves_are_drawn_as_exact_svg_arcs() {
                 // SVG 1.1 §8.3.8: A rx ry x-axis-rotation large-arc-flag sweep-flag x y. Every
                 // piece turns at most half a turn (large-arc 0); with the y flip a
                 // counter-clockwise (G3) move has sweep flag 0, a clockwise (G2) one 1
-                // (STANDARDS-AND-PRACTICE.md §7).
+                // (docs/sources.md P7).
                 assert_eq!(&v[..5], &[10.0, 10.0, 0.0, 0.0, flag], "{cmds:?}");
                 let (cx, cy) = svg_arc_centre(
                     current.0,

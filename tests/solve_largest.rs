@@ -1,7 +1,7 @@
 //! The largest ellipse tangent to the four sides of a bay, checked against values published or
 //! computed independently of this crate.
 //!
-//! Reference values: `shared/reference/MATH-CHECKS.md` §2, computed there three ways that agree
+//! Reference values: docs/sources.md M2, computed there three ways that agree
 //! to at least 8 significant digits: (A) the closed form along the Newton line, (B) a direct
 //! 5-parameter maximisation of log(ab) under the four tangency conditions (SLSQP, 40 random
 //! starts), (C) the maximum-volume inscribed ellipse (Boyd & Vandenberghe, Convex Optimization,
@@ -54,21 +54,21 @@ fn assert_ellipse(e: &Ellipse, center: (f64, f64), a: f64, b: f64, angle_deg: Op
 
 #[test]
 fn square_gives_the_incircle() {
-    // MATH-CHECKS.md §2 row "square": the inscribed circle, radius = half the side.
+    // docs/sources.md M2 row "square": the inscribed circle, radius = half the side.
     let o = solve(&[(0.0, 0.0), (2.0, 0.0), (2.0, 2.0), (0.0, 2.0)]);
     assert_ellipse(&o.ellipse, (1.0, 1.0), 1.0, 1.0, None);
 }
 
 #[test]
 fn rectangle_gives_half_sides() {
-    // MATH-CHECKS.md §2 row "rectangle": semi-axes are half the sides, area 2π.
+    // docs/sources.md M2 row "rectangle": semi-axes are half the sides, area 2π.
     let o = solve(&[(0.0, 0.0), (4.0, 0.0), (4.0, 2.0), (0.0, 2.0)]);
     assert_ellipse(&o.ellipse, (2.0, 1.0), 2.0, 1.0, Some(0.0));
 }
 
 #[test]
 fn parallelogram_is_the_affine_image_of_the_square_incircle() {
-    // MATH-CHECKS.md §2 row "parallelogram": a², b² = (21 ± √185)/8, ab = 2, area = π/4 of the
+    // docs/sources.md M2 row "parallelogram": a², b² = (21 ± √185)/8, ab = 2, area = π/4 of the
     // parallelogram's (Horwitz 2010), touching the side midpoints.
     let o = solve(&[(0.0, 0.0), (4.0, 0.0), (5.0, 2.0), (1.0, 2.0)]);
     let a = ((21.0 + 185f64.sqrt()) / 8.0).sqrt();
@@ -84,7 +84,7 @@ fn parallelogram_is_the_affine_image_of_the_square_incircle() {
 
 #[test]
 fn isosceles_trapezoid() {
-    // MATH-CHECKS.md §2 row "isosceles trapezoid": centre = vertex centroid, a = √3, b = 1, with the
+    // docs/sources.md M2 row "isosceles trapezoid": centre = vertex centroid, a = √3, b = 1, with the
     // tangency points tabled there.
     let o = solve(&[(0.0, 0.0), (6.0, 0.0), (4.0, 2.0), (2.0, 2.0)]);
     assert_ellipse(&o.ellipse, (3.0, 1.0), 3f64.sqrt(), 1.0, Some(0.0));
@@ -96,7 +96,7 @@ fn isosceles_trapezoid() {
 
 #[test]
 fn kite() {
-    // MATH-CHECKS.md §2 row "kite": t* = (5 − √13)/3.
+    // docs/sources.md M2 row "kite": t* = (5 − √13)/3.
     let o = solve(&[(-1.0, 0.0), (0.0, -1.0), (3.0, 0.0), (0.0, 1.0)]);
     assert_ellipse(
         &o.ellipse,
@@ -110,7 +110,7 @@ fn kite() {
 
 #[test]
 fn irregular_quadrilaterals() {
-    // MATH-CHECKS.md §2 rows "irregular_1" (t* = (46 − √1297)/21) and "irregular_2"
+    // docs/sources.md M2 rows "irregular_1" (t* = (46 − √1297)/21) and "irregular_2"
     // (t* = (√5779 − 73)/6), with the tangency points tabled there.
     let o = solve(&[(0.0, 0.0), (5.0, 0.0), (4.0, 3.0), (1.0, 4.0)]);
     assert_ellipse(
@@ -146,7 +146,7 @@ fn irregular_quadrilaterals() {
 
 #[test]
 fn corner_cut_trapezoid_is_tangent_to_all_four_sides() {
-    // MATH-CHECKS.md §2 warning case "corner_cut_triangle": the largest ellipse touching all four
+    // docs/sources.md M2 warning case "corner_cut_triangle": the largest ellipse touching all four
     // sides (not the larger one that touches only three): a = 9/(2√2), b = √5, angle 45°.
     let o = solve(&[(1.0, 0.0), (10.0, 0.0), (0.0, 10.0), (0.0, 1.0)]);
     assert_ellipse(
@@ -160,7 +160,7 @@ fn corner_cut_trapezoid_is_tangent_to_all_four_sides() {
 
 #[test]
 fn newton_line_for_the_tabled_quadrilaterals() {
-    // MATH-CHECKS.md §1: the centre lies on the Newton line x − 2y + 1 = 0 (irregular_1) and
+    // docs/sources.md M1: the centre lies on the Newton line x − 2y + 1 = 0 (irregular_1) and
     // x + y = 5 (irregular_2).
     let c = solve(&[(0.0, 0.0), (5.0, 0.0), (4.0, 3.0), (1.0, 4.0)])
         .ellipse

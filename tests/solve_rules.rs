@@ -1,6 +1,6 @@
 //! Rules picking one ellipse of a bay, checked against independently computed values.
 //!
-//! Reference: `shared/reference/MATH-CHECKS.md` §6 ("The inscribed family along the Newton line",
+//! Reference: docs/sources.md M6 ("The inscribed family along the Newton line",
 //! family_table.py, exact sympy), for the quadrilateral irregular_1 = (0,0), (5,0), (4,3), (1,4):
 //! the "given size" table (a = 2.2, b = 1.5, area = 9) and the family table rows; §2–§3 for the
 //! triangle and the corner-cut warning cases.

@@ -6,7 +6,7 @@
 //!   the tool radius r, the corners arcs of radius 10 + r about the same centres, so the path is
 //!   2 (220 + 120) + 2π (10 + r) mm long.
 //! - Tab sizes: router tabs a few mm long and about 1–3 mm high, laser bridges about 0.2–1 mm
-//!   wide, placed on straight or gently curved stretches (common practice, STANDARDS-AND-PRACTICE
+//!   wide, placed on straight or gently curved stretches (common practice, docs/sources.md
 //!   §4.3). The tool-centre span of a tab is its width plus the tool diameter (the tool's disc
 //!   reaches d/2 past each end of the span: plain geometry, see src/plan/tabs.rs).
 //! - Coordinates are written with 4 decimals (mm profiles) or 5 (inch): a length read back from

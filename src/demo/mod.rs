@@ -9,7 +9,7 @@
 //! lightening hole, the largest ellipse tangent to the bay's sides after a 4 mm edge margin, cut
 //! with a 6 mm end mill in one pass [`CUT_DEPTH`] deep: through the plate and 0.5 mm into a
 //! sacrificial board (0.58 of the cutter's diameter; full-width slotting in aluminium is commonly
-//! run at 0.5 to 1 diameter, common practice, STANDARDS-AND-PRACTICE §4.3). The struts are 9.9 mm wide between neighbouring bays, the top and
+//! run at 0.5 to 1 diameter, common practice, docs/sources.md P4.3). The struts are 9.9 mm wide between neighbouring bays, the top and
 //! bottom flanges at least 24 mm.
 //!
 //! | layer | holds |

@@ -6,7 +6,7 @@
 //! inner edge), so its deviation from the exact curve is at most the band's half-widths on either
 //! side; a chord of a curve of curvature κ whose sagitta is the band's width `W` spans
 //! `h ≈ √(8W/κ)`, which for the two-sided band `W = 2ε` gives the classic count
-//! `N ≈ ∫ √(κ/16ε) ds` (STANDARDS-AND-PRACTICE §3.2; McClure & Vitale for the asymptotics), a
+//! `N ≈ ∫ √(κ/16ε) ds` (docs/sources.md P3.2; McClure & Vitale for the asymptotics), a
 //! factor √2 fewer than chords with their vertices on the curve.
 
 use super::band::{Band, ConvexCurve, golden_min};

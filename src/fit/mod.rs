@@ -14,7 +14,7 @@
 //! | contour line | the line | the line |
 //! | contour arc | the arc, split below 180° | band polygon on the circle |
 //!
-//! For the two-sided band `w = ε`, `W = 2ε` (the `√(κ/16ε)` count of STANDARDS-AND-PRACTICE
+//! For the two-sided band `w = ε`, `W = 2ε` (the `√(κ/16ε)` count of docs/sources.md
 //! §3.2); the one-sided band is half as wide.
 
 use crate::geom::Point;

@@ -275,7 +275,7 @@ mod tests {
     #[test]
     fn curvature_at_vertices() {
         // b²/a at the ends of the major axis, a²/b at the ends of the minor axis
-        // (standard result; MATH-CHECKS.md §8 checks κ(0.7) = 0.022055036341354 for a=50, b=20).
+        // (standard result; docs/sources.md M8 checks κ(0.7) = 0.022055036341354 for a=50, b=20).
         let e = Ellipse::new(Point::ORIGIN, 50.0, 20.0, 0.0).unwrap();
         assert!((1.0 / e.curvature(0.0) - 8.0).abs() < 1e-12);
         assert!((1.0 / e.curvature(FRAC_PI_2) - 125.0).abs() < 1e-10);
@@ -284,7 +284,7 @@ mod tests {
 
     #[test]
     fn inward_offset_matches_reference_values() {
-        // MATH-CHECKS.md §8 (offset.py): a = 50, b = 20, O_5(0.7) and O_8(0.7).
+        // docs/sources.md M8 (offset.py): a = 50, b = 20, O_5(0.7) and O_8(0.7).
         let e = Ellipse::new(Point::ORIGIN, 50.0, 20.0, 0.0).unwrap();
         let p = e.inward_offset_point(0.7, 5.0);
         assert!((p.x - 36.0972058502517).abs() < 1e-11 && (p.y - 8.36778547716973).abs() < 1e-11);

@@ -337,7 +337,7 @@ fn resolve_leads(r: &LeadRequest, job: Option<&JobFile>, profile: &MachineProfil
 }
 
 /// Tab width on a mill or router when none is given (mm): router tabs are a few mm long (common
-/// practice, STANDARDS-AND-PRACTICE §4.3).
+/// practice, docs/sources.md P4.3).
 pub const MILL_TAB_WIDTH: f64 = 4.0;
 /// Tab height above the floor of the cut on a mill or router when none is given (mm): about
 /// 1–3 mm (common practice, §4.3).
@@ -424,7 +424,7 @@ fn resolve_tabs(
 /// pass: a finishing allowance is refused ([`JobError::FinishCutsThrough`]). They always cut in
 /// the usual direction for thermal cutting (outline clockwise, holes counter-clockwise: the
 /// squarer side of a plasma kerf, on the right of travel with the usual swirl, falls on the part;
-/// STANDARDS-AND-PRACTICE §4.1): conventional milling is a milling matter, so a request for it is
+/// docs/sources.md P4.1): conventional milling is a milling matter, so a request for it is
 /// ignored with the warning returned here rather than refused (the program is still right).
 fn mill_only_settings(
     s: &JobSettings,

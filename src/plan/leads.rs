@@ -36,7 +36,7 @@
 //!   boss;
 //! * on a laser, plasma table or waterjet (`opts.pierce_clearance` is `Some(c)`), the pierce
 //!   point (the lead's first point) at least `c` from every finished edge: one kerf plus the
-//!   pierce crater (common practice, STANDARDS-AND-PRACTICE §4.3);
+//!   pierce crater (common practice, docs/sources.md P4.3);
 //! * on a mill or router (`opts.pierce_clearance` is `None`), every lead arc wider than the tool:
 //!   radius above `r` (NISTIR 6556 App. B.3.1). An arc radius asked for that is not above `r` is
 //!   replaced by [`ARC_OVER_TOOL`]` · r`, with a warning.

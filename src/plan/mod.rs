@@ -72,7 +72,7 @@ pub struct PlanOptions {
     /// Pockets: the distance between clearing rings (mm), at most the tool diameter.
     pub pocket_stepover: f64,
     /// Laser, plasma and waterjet (`Some`): the pierce point's least distance from every
-    /// finished edge (mm; one kerf plus the pierce crater, STANDARDS-AND-PRACTICE §4.3).
+    /// finished edge (mm; one kerf plus the pierce crater, docs/sources.md P4.3).
     /// Mills and routers (`None`): no pierce, but every lead arc must be wider than the tool
     /// (NISTIR 6556 App. B.3.1). See [`leads`].
     pub pierce_clearance: Option<f64>,
@@ -716,7 +716,7 @@ fn directed(cut: PlannedCut, direction: Direction) -> PlannedCut {
 }
 
 /// Splits every cut into a roughing cut and a finishing cut, in that order, for a finishing
-/// allowance `s` (mm, radial; common practice 0.1–0.5 mm, STANDARDS-AND-PRACTICE §4.3) with a
+/// allowance `s` (mm, radial; common practice 0.1–0.5 mm, docs/sources.md P4.3) with a
 /// tool of radius `r` and diameter `d`:
 ///
 /// * the roughing cut, named "NAME roughing", runs on the parallel path at `r + s` from the

@@ -249,7 +249,7 @@ pub fn clearing_rings(
 /// as long as this bound allows (bisection in the anomaly `t`); the tangent of `O_δ` at `t` is
 /// that of the ellipse, `P′(t)`, on the kept arcs. The bound overestimates a circle's true
 /// sagitta `L φ/8` about twofold, so the polygon has about √2 times the fewest chords
-/// (STANDARDS-AND-PRACTICE §3.2).
+/// (docs/sources.md P3.2).
 ///
 /// A `chord_tolerance` that is not positive gives the corners and the ends of each arc only.
 pub fn level_set_polygon(e: &Ellipse, inset: f64, chord_tolerance: f64) -> Vec<Point> {

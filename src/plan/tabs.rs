@@ -63,7 +63,7 @@ use crate::chain::Element;
 
 /// An arc is gentle enough for a tab when its tool-centre radius is at least this many tool
 /// diameters (our choice; common practice only says "straight or gently curved stretches",
-/// STANDARDS-AND-PRACTICE §4.3).
+/// docs/sources.md P4.3).
 pub const GENTLE_RADIUS_DIAMETERS: f64 = 5.0;
 
 /// The largest turn of the path across one tab (radians): an arc is gentle only when its

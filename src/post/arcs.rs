@@ -12,11 +12,11 @@
 //! All values are in the program's units. For each arc:
 //!
 //! 1. Arcs of half a turn or more are split at their middle into two (practice,
-//!    STANDARDS-AND-PRACTICE.md §1.2), so every written arc turns less than 180°.
+//!    docs/sources.md P1.2), so every written arc turns less than 180°.
 //! 2. The end point is rounded to the profile's decimals; the start is where the previous move
 //!    ended *as written*.
 //! 3. The exact centre is projected onto the perpendicular bisector of the two *rounded* end
-//!    points (STANDARDS-AND-PRACTICE.md §1.6), which makes both radii equal before `I`, `J` are
+//!    points (docs/sources.md P1.6), which makes both radii equal before `I`, `J` are
 //!    rounded; rounding `I`, `J` then moves the centre by at most √2/2 of the last decimal, which
 //!    changes the difference of the radii by at most √2 of the last decimal to first order (more on
 //!    arcs of a few hundred steps radius or less, hence the check that follows).

@@ -36,7 +36,7 @@
 //!
 //! Lead keys left out give the behaviour of earlier versions: a straight move from the plunge or
 //! pierce point, no overcut, no lead-out. The bundled profiles set them (common practice,
-//! STANDARDS-AND-PRACTICE §4.3).
+//! docs/sources.md P4.3).
 
 use crate::plan::{LeadKind, LeadOptions};
 use serde::Deserialize;
@@ -184,7 +184,7 @@ pub enum DwellUnit {
     /// Seconds, as NISTIR 6556 §3.5.4 defines it.
     #[default]
     Seconds,
-    /// Milliseconds, as some other dialects read it (STANDARDS-AND-PRACTICE.md §1.5, from memory).
+    /// Milliseconds, as some other dialects read it (docs/sources.md P1.5, from memory).
     Milliseconds,
 }
 
@@ -560,7 +560,7 @@ impl MachineProfile {
                 ));
             }
         }
-        // STANDARDS-AND-PRACTICE.md §1.6: with fewer decimals the two radii of an arc cannot be
+        // docs/sources.md P1.6: with fewer decimals the two radii of an arc cannot be
         // kept within 0.002 mm (0.0002 in) of each other.
         let min_arc_decimals = match raw.units {
             Units::Millimetres => 3,
@@ -1233,7 +1233,7 @@ mod tests {
         let p = MachineProfile::metric_mill().unwrap();
         assert_eq!(p.kind(), MachineKind::Mill);
         assert_eq!(p.units(), Units::Millimetres);
-        // STANDARDS-AND-PRACTICE.md §1.6: 4 decimals for X Y and 3 for Z in mm.
+        // docs/sources.md P1.6: 4 decimals for X Y and 3 for Z in mm.
         assert_eq!((p.xy_decimals(), p.z_decimals()), (4, 3));
         let s = p.spindle().expect("a mill has a spindle");
         assert!(s.retract_height < p.safe_height());
@@ -1242,7 +1242,7 @@ mod tests {
 
     #[test]
     fn inch_defaults_follow_the_precision_table() {
-        // STANDARDS-AND-PRACTICE.md §1.6: 5 decimals for X Y and 4 for Z in inch.
+        // docs/sources.md P1.6: 5 decimals for X Y and 4 for Z in inch.
         let text = METRIC_MILL_TOML
             .replace("units = \"mm\"", "units = \"in\"")
             .lines()

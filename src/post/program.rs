@@ -39,7 +39,7 @@ pub struct ProgramSettings {
     pub spindle_speed: Option<f64>,
     /// Entry into the material on a mill or router: `Some(angle)` ramps down in a zig-zag along the
     /// line from the plunge point to the contour's start, never steeper than `angle` degrees
-    /// (common practice: about 1–3° in steel, up to 5–10° in aluminium, STANDARDS-AND-PRACTICE
+    /// (common practice: about 1–3° in steel, up to 5–10° in aluminium, docs/sources.md
     /// §4.3); `None` plunges straight down (only for centre-cutting tools). Unused by the other
     /// kinds.
     pub ramp_angle_deg: Option<f64>,
@@ -1029,7 +1029,7 @@ fn helical(settings: &ProgramSettings, profile: &MachineProfile) -> bool {
 /// The radius of a helical entry's path (mm) for a tool of diameter `d`: a quarter of the
 /// diameter, so that the helix cuts a bore of 1.5 d and leaves no core under a tool that does not
 /// cut at its centre (common practice: helix diameter at least half the tool's,
-/// STANDARDS-AND-PRACTICE §4.3).
+/// docs/sources.md P4.3).
 pub fn helix_radius(d: f64) -> f64 {
     0.25 * d
 }

@@ -1,6 +1,6 @@
 //! The safety cautions written at the head of every program, one set per kind of machine.
 //!
-//! The points follow STANDARDS-AND-PRACTICE.md §5 (guarding as in OSHA 29 CFR 1910.212 and
+//! The points follow docs/sources.md P5 (guarding as in OSHA 29 CFR 1910.212 and
 //! ISO 16090-1 for mills, ISO 19085 for wood routers; fire watch after hot work as in OSHA
 //! 29 CFR 1910.252 and NFPA 51B; laser enclosures as in IEC 60825-1 and ISO 11553-1), written in
 //! our own words. They are reminders, not a risk assessment.
@@ -90,7 +90,7 @@ mod tests {
             }
         }
         let text = |k| cautions(k, "G21", "mm").join(" ");
-        // STANDARDS-AND-PRACTICE.md §5: thermal processes carry a fire warning, never unattended,
+        // docs/sources.md P5: thermal processes carry a fire warning, never unattended,
         // and fumes; lasers an enclosure and eyewear; waterjets the jet injury; mills and
         // routers guards, clamping or hold-downs, and chips.
         for k in [MachineKind::Laser, MachineKind::Plasma] {

@@ -19,7 +19,7 @@ fn xy(p: Point) -> String {
 /// major axis to the other and back (SVG 1.1 §8.3.8; a single arc cannot close on itself).
 ///
 /// `rx = a`, `ry = b`, and the x-axis rotation is `−angle` in degrees because flipping y turns a
-/// counter-clockwise angle into a clockwise one (STANDARDS-AND-PRACTICE.md §7).
+/// counter-clockwise angle into a clockwise one (docs/sources.md P7).
 pub fn ellipse_d(e: &Ellipse) -> String {
     let p0 = e.point(0.0);
     let p1 = e.point(PI);
@@ -69,7 +69,7 @@ pub fn contour_d(contour: &Contour) -> String {
 /// `d` for a run of feed moves from `start`, after a straight lead from `lead_from` when given:
 /// `L` for each line, and each arc drawn exactly with circular `A` commands (SVG 1.1 §8.3.8),
 /// split into pieces of less than half a turn so that the large-arc flag is always 0 and never
-/// ambiguous (STANDARDS-AND-PRACTICE.md §7). Closed with `Z` when the run ends where it starts.
+/// ambiguous (docs/sources.md P7). Closed with `Z` when the run ends where it starts.
 ///
 /// The sweep flag accounts for the y flip: a counter-clockwise (G3) arc in the drawing is drawn
 /// with flag 0, a clockwise (G2) one with flag 1. An arc's radius is its start radius

@@ -27,7 +27,7 @@
 //! Arbitrary Axis Algorithm (DXF reference) gives the OCS axes Ax = (−1, 0, 0), Ay = (0, 1, 0),
 //! so an OCS point (x, y) is the WCS point (−x, y); an arc that runs counter-clockwise about N
 //! runs clockwise seen from +Z, so its WCS start angle is π − start and its sweep changes sign;
-//! bulges change sign (STANDARDS-AND-PRACTICE §2.3). LINE, ELLIPSE and POINT store WCS points;
+//! bulges change sign (docs/sources.md P2.3). LINE, ELLIPSE and POINT store WCS points;
 //! an ELLIPSE with N = −Z has its minor axis along N × M = −(Z × M), so its parameter runs
 //! clockwise seen from +Z. Any other N is refused, naming the entity. Elevations (z) are
 //! dropped; a LINE or 3-D POLYLINE whose z varies by more than [`Z_TOLERANCE`] drawing units

@@ -54,7 +54,7 @@ fn arc_degrees_become_radians() {
 
 #[test]
 fn mirrored_circle_and_lwpolyline_follow_the_arbitrary_axis_algorithm() {
-    // STANDARDS-AND-PRACTICE §2.3: N = (0,0,−1) maps OCS (x, y) to WCS (−x, y); bulges flip sign.
+    // docs/sources.md P2.3: N = (0,0,−1) maps OCS (x, y) to WCS (−x, y); bulges flip sign.
     let mut c = de::Circle::new(dxf::Point::new(5.0, 7.0, 0.0), 2.0);
     c.normal = dxf::Vector::new(0.0, 0.0, -1.0);
     let d = read_one(EntityType::Circle(c)).unwrap();
@@ -93,7 +93,7 @@ fn mirrored_circle_and_lwpolyline_follow_the_arbitrary_axis_algorithm() {
 
 #[test]
 fn mirrored_ellipse_minor_axis_flips() {
-    // STANDARDS-AND-PRACTICE §2.3: M = (50,0,0), ratio 0.4, N = (0,0,−1): P(π/2) = (0, −20),
+    // docs/sources.md P2.3: M = (50,0,0), ratio 0.4, N = (0,0,−1): P(π/2) = (0, −20),
     // the parameter runs clockwise seen from +Z.
     let el = de::Ellipse {
         center: dxf::Point::new(0.0, 0.0, 0.0),

@@ -10,21 +10,21 @@
 //!     └ d/2  e/2  f   ┘
 //! ```
 //!
-//! (MATH-CHECKS.md §0). Its upper-left 2×2 block `A` is the quadratic part, `g = (d/2, e/2)` the
+//! (docs/sources.md M0). Its upper-left 2×2 block `A` is the quadratic part, `g = (d/2, e/2)` the
 //! linear part. A [`Conic`] is stored **normalised**: Frobenius norm 1 and the sign rule
 //! "`a + c > 0`" (when `|a + c| ≤` [`CLASSIFY_RELATIVE`], the first of `a, b, c, d, e, f`
 //! whose size exceeds [`CLASSIFY_RELATIVE`] is made positive). For a real ellipse this gives the
-//! convention of MATH-CHECKS.md §5: `A` positive definite, `xᵀ C x < 0` inside, `det C < 0`.
+//! convention of docs/sources.md M5: `A` positive definite, `xᵀ C x < 0` inside, `det C < 0`.
 //!
 //! # Duality
 //!
 //! The tangent line at a point `x` of `C` is `l = C x`; the tangent lines of a non-degenerate
 //! conic are the lines with `lᵀ adj(C) l = 0` (adj = adjugate ∝ `C⁻¹`; Hartley and Zisserman,
-//! *Multiple View Geometry*, §2.2.3, section number from memory, quoted in MATH-CHECKS.md §5).
+//! *Multiple View Geometry*, §2.2.3, section number from memory, quoted in docs/sources.md M5).
 //! [`DualConic`] holds such a line conic (lines `l = (n_x, n_y, −c)` for `n·x = c`); going back
 //! takes the adjugate again, `adj(adj(C)) = det(C) C`. A `DualConic` is stored with Frobenius
 //! norm 1 and the sign rule "`det > 0`" (which `adj(C)` always meets, `det adj(C) = det(C)²`), so
-//! the dual of a normalised ellipse keeps the sign test of MATH-CHECKS.md §5: `lᵀ adj(C) l` is
+//! the dual of a normalised ellipse keeps the sign test of docs/sources.md M5: `lᵀ adj(C) l` is
 //! negative for a secant, zero for a tangent, positive for a line that misses.
 //!
 //! # Classification and its tolerances
@@ -271,7 +271,7 @@ impl DualConic {
     }
 
     /// The tangent lines of an ellipse, written directly (no adjugate): the line `n·x = β`
-    /// touches it iff `nᵀΣn = (β − n·c)²` (MATH-CHECKS.md §0), i.e.
+    /// touches it iff `nᵀΣn = (β − n·c)²` (docs/sources.md M0), i.e.
     /// `C* ∝ [[Σ − c cᵀ, −c], [−cᵀ, −1]]` for `l = (n, −β)`.
     pub fn from_ellipse(e: &Ellipse) -> DualConic {
         let (sxx, sxy, syy) = e.shape_matrix();
@@ -297,7 +297,7 @@ impl DualConic {
 
     /// `lᵀ C* l` for the line `n·x = c` with `l = (n_x, n_y, −c)` and `|n| = 1`. For the dual of a
     /// normalised ellipse: negative for a secant, zero for a tangent, positive for a line that
-    /// misses it (MATH-CHECKS.md §5).
+    /// misses it (docs/sources.md M5).
     pub fn line_value(&self, line: &Line) -> f64 {
         let l = Vector3::from(line.homogeneous());
         l.dot(&(self.m * l))
@@ -315,7 +315,7 @@ impl DualConic {
 
     /// What its point conic is. A line conic not tangent to the line at infinity
     /// (`|C*₃₃| > CLASSIFY_RELATIVE`) is read directly: the tangents `n·x = β` of a central conic
-    /// with centre `c` and shape matrix `Σ` satisfy `nᵀΣn = (β − n·c)²` (MATH-CHECKS.md §0), so
+    /// with centre `c` and shape matrix `Σ` satisfy `nᵀΣn = (β − n·c)²` (docs/sources.md M0), so
     /// `C* ∝ [[Σ − c cᵀ, −c], [−cᵀ, −1]]`, `c = (C*₁₃, C*₂₃)/C*₃₃`, `Σ = −C*₂ₓ₂/C*₃₃ + c cᵀ`, and
     /// the signs of the eigenvalues of `Σ` tell an ellipse (both positive), a hyperbola (one of
     /// each) and an imaginary ellipse (both negative). An eigenvalue is taken as zero below
@@ -394,7 +394,7 @@ impl Serialize for Conic {
 }
 
 /// The ellipse with centre `center` and conjugate semi-diameters `p`, `q`, i.e. the curve
-/// `center + p cos t + q sin t` (Apollonius; MATH-CHECKS.md §4).
+/// `center + p cos t + q sin t` (Apollonius; docs/sources.md M4).
 ///
 /// Its shape matrix is `Σ = p pᵀ + q qᵀ = [p q][p q]ᵀ`, so the semi-axes are the singular values of
 /// the 2×2 matrix `[p q]` and the major axis is its leading left singular vector (SVD with
@@ -716,7 +716,7 @@ mod tests {
                 (f.a() - a).abs() < 1e-13 * a && (f.b() - b).abs() < 1e-11 * a,
                 "{f:?}"
             );
-            // Its support lines are tangent: lᵀ C* l = 0 (MATH-CHECKS.md §0).
+            // Its support lines are tangent: lᵀ C* l = 0 (docs/sources.md M0).
             for i in 0..12 {
                 let n = Vec2::from_angle(i as f64 * PI / 6.0);
                 let q = e.center() + n * e.support(n);
@@ -747,7 +747,7 @@ mod tests {
 
     #[test]
     fn tangency_residual_of_support_lines() {
-        // The support function (MATH-CHECKS.md §0) gives tangent lines independently of the
+        // The support function (docs/sources.md M0) gives tangent lines independently of the
         // conic code.
         let e = Ellipse::new(Point::new(1.0, 2.0), 5.0, 3.0, f64::to_radians(30.0)).unwrap();
         let c = Conic::from_ellipse(&e);

@@ -5,9 +5,9 @@
 //! For points and lines in general position the numbers of complex solutions are 1, 2, 4, 4, 2, 1
 //! for `p = 5, 4, 3, 2, 1, 0` (`2^min(t, 5−t)`: F. Sottile, "3264 real conics", 2008; the table of
 //! A. Bashelor, A. Ksir, W. Traves, Amer. Math. Monthly 2008, as quoted from memory in
-//! MATH-CHECKS.md §5, where a generic solver confirms the counts). Real solutions come in even
+//! docs/sources.md M5, where a generic solver confirms the counts). Real solutions come in even
 //! numbers apart from the single one of 5+0 and 0+5: 4+1 and 1+4 give 2 or 0, 3+2 and 2+3 give 4
-//! or 0 (MATH-CHECKS.md §5 and surprise S4).
+//! or 0 (docs/sources.md M5 and surprise S4).
 //!
 //! # Methods (all closed form, in homogeneous coordinates)
 //!
@@ -25,7 +25,7 @@
 //!   homogeneous quadratic in `(μ, λ)`; it is solved without dividing by either coefficient
 //!   (roots `(q_c, q)` and `(q, q_a)` with `q = −(q_b + sgn(q_b)√disc)/2`), so a root at `μ = 0`
 //!   or `λ = 0` is not lost.
-//! * **3+2**: MATH-CHECKS.md §5 "Method A". In the frame `X = l₁·x`, `Y = l₂·x`, `W = l₀·x` every
+//! * **3+2**: docs/sources.md M5 "Method A". In the frame `X = l₁·x`, `Y = l₂·x`, `W = l₀·x` every
 //!   conic touching `X = 0` and `Y = 0` is `(aX + bY + cW)² = m XY`. With `k = a l₁ + b l₂ + c l₀`
 //!   (the chord of contact) this reads `(k·x)² = m (l₁·x)(l₂·x)`, so the third frame line `l₀`
 //!   cancels and no choice of it is needed: `C = k kᵀ − m (l₁l₂ᵀ + l₂l₁ᵀ)/2`. Through the points,
@@ -153,7 +153,7 @@ pub enum ConstraintError {
 /// check it.
 ///
 /// Order of the solutions: 4+1 and 1+4 in the order of the roots `(q_c, q)`, `(q, q_a)`; 3+2 and
-/// 2+3 by the signs `(s₂, s₃)` = `(+,+)`, `(+,−)`, `(−,+)`, `(−,−)` (MATH-CHECKS.md §5 numbering).
+/// 2+3 by the signs `(s₂, s₃)` = `(+,+)`, `(+,−)`, `(−,+)`, `(−,−)` (docs/sources.md M5 numbering).
 pub fn conics_through_and_tangent(
     points: &[Point],
     lines: &[Line],
@@ -209,7 +209,7 @@ pub fn conics_through_and_tangent(
              separate each other (Desargues' involution on the lines through the point has no \
              fixed line), so no real conic touching the four lines passes through the point. \
              (For the four sides of a convex bay, a point inside the bay and off its diagonals \
-             always has two; Horwitz 2015, MATH-CHECKS.md §5)"
+             always has two; Horwitz 2015, docs/sources.md M5)"
                 .to_string()
         } else {
             let line = &lines[0];
@@ -726,7 +726,7 @@ mod tests {
         let v = l1.cross(&l2);
         let err = adjugate(&pair(&l1, &l2)) + v * v.transpose() * 0.25;
         assert!(err.norm() < 1e-15);
-        // And for the solutions of the worked example of MATH-CHECKS.md §5.
+        // And for the solutions of the worked example of docs/sources.md M5.
         let h = [(1.0, 7.0), (8.0, 1.0), (9.0, 8.0)].map(|(x, y)| V3::new(x, y, 1.0));
         let found = through_three_touching_two(&h, &V3::x(), &V3::y()).unwrap();
         for f in found {

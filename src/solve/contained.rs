@@ -9,7 +9,7 @@
 //! quadrilateral, keeping the candidates that lie inside the whole bay, and taking the largest.
 //! Sources: John ellipse as maximum-volume inscribed ellipsoid, Boyd & Vandenberghe, Convex
 //! Optimization §8.4.2; Steiner inellipse as the John ellipse of a triangle, Wikipedia "Steiner
-//! inellipse"; the worked cases in MATH-CHECKS.md §2 (corner-cut warning cases).
+//! inellipse"; the worked cases in docs/sources.md M2 (corner-cut warning cases).
 
 use super::quad_family::TangentFamily;
 use super::triangle::steiner_inellipse;
@@ -144,7 +144,7 @@ mod tests {
 
     #[test]
     fn corner_cut_quadrilaterals_keep_the_triangle_steiner_ellipse() {
-        // MATH-CHECKS.md §2 warning cases: the largest contained ellipse of (1,0),(10,0),(0,10),
+        // docs/sources.md M2 warning cases: the largest contained ellipse of (1,0),(10,0),(0,10),
         // (0,1) and of (1,0),(10,0),(0,10),(0,2) is the Steiner inellipse of (0,0),(10,0),(0,10):
         // centre (10/3, 10/3), a = 10/√6, b = 10/(3√2), area 30.2299894040, touching 3 sides.
         for q in [
@@ -168,7 +168,7 @@ mod tests {
 
     #[test]
     fn irregular_quadrilateral_touching_four_sides_agrees_with_the_family() {
-        // MATH-CHECKS.md §2: for irregular_1 the largest contained ellipse (column C) equals the
+        // docs/sources.md M2: for irregular_1 the largest contained ellipse (column C) equals the
         // largest touching all four sides, area 10.4764362070.
         let c = largest_contained(&pts(&[(0.0, 0.0), (5.0, 0.0), (4.0, 3.0), (1.0, 4.0)])).unwrap();
         assert!((c.ellipse.area() - 10.4764362070).abs() < 1e-9);

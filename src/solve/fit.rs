@@ -24,7 +24,7 @@
 //! # Conditioning
 //!
 //! The fourth powers in `S₁` lose every digit when the points are small and far from the origin
-//! (a 0.4 mm ellipse 1000 mm away gives NaN or a wrong ellipse in raw coordinates, MATH-CHECKS
+//! (a 0.4 mm ellipse 1000 mm away gives NaN or a wrong ellipse in raw coordinates, docs/sources.md
 //! §9). The points are therefore first moved to their centroid `m` and divided by their RMS
 //! distance `s` from it, `u = (p − m)/s`. The fit is similarity-covariant, so the ellipse found for
 //! the `u` is mapped back exactly: centre `m + s c_u`, semi-axes `s a_u`, `s b_u`, same angle. The
@@ -34,7 +34,7 @@
 //! # Residuals
 //!
 //! The fit minimises an algebraic error, not the distance of the points to the curve (the two
-//! differ visibly on partial arcs, MATH-CHECKS §9 and surprise S6). The residuals reported are
+//! differ visibly on partial arcs, docs/sources.md M9 and surprise S6). The residuals reported are
 //! the true geometric distances of each point to the fitted ellipse in mm, from
 //! [`Ellipse::distance_to`].
 //!

@@ -24,7 +24,7 @@
 //! Sources: Newton's theorem on the centres of inscribed conics and the family on the open
 //! segment `M1 M2`: A. Horwitz, "Ellipses of minimal eccentricity inscribed in midpoint diagonal
 //! quadrilaterals", arXiv:1607.02086, §2 Theorems 1 and 2. The closed forms above are derived and
-//! checked in `shared/reference/MATH-CHECKS.md` §1, §2 and §6.
+//! checked in docs/sources.md M1, §2 and §6.
 
 use crate::geom::{Ellipse, EllipseError, Point, Vec2};
 
@@ -166,14 +166,14 @@ mod tests {
 
     #[test]
     fn coefficients_match_reference() {
-        // MATH-CHECKS.md §2 "Family data used": irregular_1 K0 = 195/4, K1 = −35/4.
+        // docs/sources.md M2 "Family data used": irregular_1 K0 = 195/4, K1 = −35/4.
         let (k0, k1) = irregular_1().area_coefficients();
         assert!((k0 - 195.0 / 4.0).abs() < 1e-12 && (k1 + 35.0 / 4.0).abs() < 1e-12);
     }
 
     #[test]
     fn polynomials_along_newton_line_match_reference() {
-        // MATH-CHECKS.md §6 (family_table.py, exact sympy): for irregular_1
+        // docs/sources.md M6 (family_table.py, exact sympy): for irregular_1
         // a²+b² = (5t²+2t+25)/4 and a²b² = (35t³ − 230t² + 195t)/4.
         let f = irregular_1();
         for i in 0..=20 {
@@ -191,7 +191,7 @@ mod tests {
 
     #[test]
     fn family_table_rows() {
-        // MATH-CHECKS.md §6 table, rows t = 0.3 and t = 0.7.
+        // docs/sources.md M6 table, rows t = 0.3 and t = 0.7.
         let f = irregular_1();
         let e = f.ellipse(0.3).unwrap();
         assert!((e.a() - 2.05275578121).abs() < 1e-10 && (e.b() - 1.51614435418).abs() < 1e-10);

@@ -14,7 +14,7 @@
 //! `(a² + b²)²/(a²b²) = (1 + r²)²/r²` with `r = b/a` falls as `r` grows, so its minimum is the
 //! member of least eccentricity. All real roots are listed (those outside `0 < t < 1` are conics
 //! touching the side *lines* outside the bay: hyperbolas, or ellipses beyond the third diagonal's
-//! midpoint), and the cuttable ones are those with `0 < t < 1` (MATH-CHECKS.md §6, surprise S5).
+//! midpoint), and the cuttable ones are those with `0 < t < 1` (docs/sources.md M6, surprise S5).
 
 use super::candidate::{Candidate, Solution};
 use super::conic::ConicKind;

@@ -10,7 +10,7 @@
 //! their midpoints, area `π/(3√3)` of the triangle's; conjugate semi-diameters
 //! `p = mid(BC) − G`, `q = (C − B)/(2√3)` (the affine image of the equilateral case). Sources:
 //! Wikipedia, "Steiner inellipse"; A. Horwitz, J. Math. Inequalities 4(3) (2010), eq. (1);
-//! values in MATH-CHECKS.md §3.
+//! values in docs/sources.md M3.
 
 use crate::geom::{Ellipse, EllipseError, Line, Point};
 use nalgebra::{Matrix3, Vector3};
@@ -87,13 +87,13 @@ mod tests {
 
     #[test]
     fn steiner_matches_reference_and_the_centre_rule() {
-        // MATH-CHECKS.md §3 (steiner_apollonius.py): T = (0,0), (6,0), (2,4).
+        // docs/sources.md M3 (steiner_apollonius.py): T = (0,0), (6,0), (2,4).
         let e = steiner_inellipse(tri()).unwrap();
         assert!((e.a() - 1.80157654880780).abs() < 1e-12);
         assert!((e.b() - 1.28187785208836).abs() < 1e-12);
         assert!((e.angle().to_degrees() + 16.8450337629899).abs() < 1e-10);
         // Marden's theorem: the foci are the roots of p′(z) for p(z) = (z − z1)(z − z2)(z − z3)
-        // (Kalman, Amer. Math. Monthly 115 (2008)); values from MATH-CHECKS.md §3.
+        // (Kalman, Amer. Math. Monthly 115 (2008)); values from docs/sources.md M3.
         let c = (e.a() * e.a() - e.b() * e.b()).sqrt();
         let d = crate::geom::Vec2::from_angle(e.angle()) * c;
         let (f1, f2) = (e.center() + d, e.center() - d);

@@ -3,11 +3,11 @@
 //!
 //! Curve: the ellipse `P(t) = (a cos t, b sin t)` and its inward parallel curve at distance `d`
 //! (`d < 0`: outward). With `q = a² sin² t + b² cos² t`:
-//! `κ = ab / q^{3/2}`, `dκ/dt = −3ab(a² − b²) sin t cos t / q^{5/2}` (MATH-CHECKS §8 for κ; the
+//! `κ = ab / q^{3/2}`, `dκ/dt = −3ab(a² − b²) sin t cos t / q^{5/2}` (docs/sources.md M8 for κ; the
 //! derivative by the chain rule), and for the parallel curve, which shares the normals,
 //! `ds_d/dt = √q (1 − dκ)`, `κ_d = κ / (1 − dκ)`, `dκ_d/dt = (dκ/dt) / (1 − dκ)²`.
 //!
-//! Counts (STANDARDS-AND-PRACTICE §3.2, §3.3):
+//! Counts (docs/sources.md P3.2, §3.3):
 //! - lines in a band of width `W` (vertices on its outer edge, chords touching its inner edge):
 //!   `∫ √(κ_d / 8W) ds_d`; two-sided `±ε` is `W = 2ε`, the `√(κ/16ε)` formula;
 //! - arcs within `w` of the curve either way: `∫ (|κ_d′| / (72√3 w))^{1/3} ds_d`, `κ_d′` the
@@ -17,7 +17,7 @@
 //! and periodic, so the rule converges faster than any power; the arcs integrand has
 //! `|sin t cos t|^{1/3}` zeros, where the midpoint rule's error is O(h^{4/3}) ≈ 1e-7 relative.
 //! Checked against the published integrals for a = 50, b = 20, d = 0 in the tests:
-//! `∫√κ ds = 34.00150`, `∫|κ′|^{1/3} ds = 22.29415` (STANDARDS-AND-PRACTICE §3.4, cross-checked
+//! `∫√κ ds = 34.00150`, `∫|κ′|^{1/3} ds = 22.29415` (docs/sources.md P3.4, cross-checked
 //! there with mpmath at 30 digits).
 
 #![allow(dead_code)]

@@ -1,6 +1,6 @@
-//! Shared test data: the perturbed points of `shared/reference/MATH-CHECKS.md` §9.
+//! Shared test data: the perturbed points of docs/sources.md M9.
 
-/// MATH-CHECKS §9, table "Data (deterministic)": the 20 perturbed points, full ellipse,
+/// docs/sources.md M9, table "Data (deterministic)": the 20 perturbed points, full ellipse,
 /// t_k = 2πk/20 + 0.1 (printed to 12 decimals).
 pub const PERTURBED: [(f64, f64); 20] = [
     (65.685154582989, 6.384432023640),

@@ -3,17 +3,17 @@
 //! Each arc runs between two points of the band's middle curve (the exact curve itself for a
 //! two-sided band). Most arcs bend by the radius that makes their largest deviation on either
 //! side equal (the minimax radius; for a curve whose curvature changes linearly that is the
-//! curvature at mid-span, with error `|κ′| h³ / (72√3)`, STANDARDS-AND-PRACTICE §3.3), and each
+//! curvature at mid-span, with error `|κ′| h³ / (72√3)`, docs/sources.md P3.3), and each
 //! covers the longest stretch whose minimax error fits in half the band's width. The stretches
 //! are then evened out so that all arcs share one error: the greedy method alone leaves a short
-//! last stretch, whose arc meets its neighbours at a visible angle (STANDARDS-AND-PRACTICE §3.4).
+//! last stretch, whose arc meets its neighbours at a visible angle (docs/sources.md P3.4).
 //! The count tracks `∫ (|κ′| / (72√3 ε))^{1/3} ds`.
 //!
 //! Neighbouring arcs share their end points but not their tangents: the spline is continuous,
 //! with small kinks, which the caller measures and reports. Where the curvature is extreme (the
 //! vertices of an ellipse) a joint makes a kink of its own: `κ′` changes sign there, so the two
 //! arcs miss the curve's tangent in opposite directions. A vertex is therefore better covered by
-//! one arc symmetric about it (STANDARDS-AND-PRACTICE §3.4, design consequence (b)).
+//! one arc symmetric about it (docs/sources.md P3.4, design consequence (b)).
 //!
 //! Two constructions:
 //!
