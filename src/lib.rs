@@ -21,7 +21,6 @@ pub mod demo;
 pub mod fit;
 pub mod geom;
 pub mod job;
-pub mod jobfile;
 pub mod plan;
 pub mod post;
 pub mod preview;

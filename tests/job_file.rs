@@ -1,16 +1,16 @@
-//! Job files (`conicut::jobfile`): the bundled example, unit conversion, and every refusal naming
+//! Job files (`conicut::settings::job_file`): the bundled example, unit conversion, and every refusal naming
 //! the right line and key.
 //!
-//! Sources: the schema is our own (documented in `src/jobfile/mod.rs`); the inch is exactly
+//! Sources: the schema is our own (documented in `src/settings/job_file/mod.rs`); the inch is exactly
 //! 25.4 mm (international yard and pound agreement, 1959), so an area in in² is 645.16 mm²; the
 //! demo drawing's bays and layer are those of `src/demo/mod.rs`.
 
 use conicut::geom::Point;
-use conicut::jobfile::{
+use conicut::read::Units;
+use conicut::settings::job_file::{
     BaySelect, CutKind, FeatureSource, FeatureSpec, FitPoints, JobFile, JobFileError,
     JobFileErrorKind as Kind, LeadShape, LeadSpec, LineSource, PointSource, Rule, parse_job_file,
 };
-use conicut::read::Units;
 
 const EXAMPLE: &str = include_str!("../demo-parts/truss-bracket-job.toml");
 

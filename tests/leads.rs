@@ -29,9 +29,10 @@ use conicut::demo::{
 use conicut::geom::{Ellipse, Point, Vec2};
 use conicut::job::{JobError, JobOutput, JobSettings, LeadRequest, run_job};
 use conicut::plan::{CutSide, Direction, LeadKind, Opening, PlanError, PlanOptions, plan_cuts};
-use conicut::post::{BUNDLED_PROFILES, MachineProfile};
+use conicut::post::MachineProfile;
 use conicut::read::{ReadOptions, read_dxf};
 use conicut::report::Report;
+use conicut::settings::BUNDLED_PROFILES;
 use demo_job::profile;
 use std::f64::consts::TAU;
 
@@ -649,7 +650,7 @@ fn leads_with_pockets_and_a_finishing_pass() {
     let root = std::path::Path::new(env!("CARGO_MANIFEST_DIR"));
     let text = std::fs::read_to_string(root.join("demo-parts/truss-bracket-pocket-job.toml"))
         .expect("the pocket job file");
-    let job = conicut::jobfile::parse_job_file(&text, "truss-bracket-pocket-job.toml")
+    let job = conicut::settings::job_file::parse_job_file(&text, "truss-bracket-pocket-job.toml")
         .expect("the job file parses");
     for kind in [LeadKind::Arc, LeadKind::LineArc] {
         let out = run_and_check_with("metric-mill", kind_only(kind), |s| {
@@ -852,7 +853,8 @@ fn job_file_lead_keys_apply_and_the_command_line_overrides_them() {
         "units = \"mm\"\nlead = \"line\"\nlead_length = 3.0\novercut = 0\nlead_out = false",
         1,
     );
-    let job = conicut::jobfile::parse_job_file(&text, "job.toml").expect("the job file parses");
+    let job = conicut::settings::job_file::parse_job_file(&text, "job.toml")
+        .expect("the job file parses");
     let p = profile("laser");
     let with_job = |leads: LeadRequest| JobSettings {
         job: Some(job.clone()),

@@ -7,9 +7,9 @@
 
 use conicut::chain::{self, ChainOptions, HoleShape, Part};
 use conicut::geom::{Ellipse, Point, Segment};
-use conicut::jobfile::Rule;
 use conicut::plan::{CutSide, ExactPath, Opening, PlanError, PlanOptions, plan_cuts};
 use conicut::read::{ReadOptions, read_dxf};
+use conicut::settings::job_file::Rule;
 use conicut::solve::feature::solve_bay;
 
 fn plan_one(e: Ellipse, diameter: f64) -> Result<(), PlanError> {

@@ -38,12 +38,12 @@ use conicut::fit::{FitOptions, MoveKind, fit_cut};
 use conicut::geom::Move;
 use conicut::geom::{Ellipse, Point, Vec2};
 use conicut::job::{JobError, JobSettings, LeadRequest, run_job};
-use conicut::jobfile::parse_job_file;
 use conicut::plan::pocket::{self, RING_CHORD_TOLERANCE};
 use conicut::plan::{
     CutSide, ExactPath, FeatureKind, LeadKind, Opening, Plan, PlanError, PlanOptions, PlannedCut,
     plan_cuts,
 };
+use conicut::settings::job_file::parse_job_file;
 use demo_job::profile;
 use std::collections::HashMap;
 use std::f64::consts::{PI, TAU};

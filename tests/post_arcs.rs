@@ -10,10 +10,8 @@ use conicut::fit::FittedCut;
 use conicut::geom::Move;
 use conicut::geom::{Point, Vec2};
 use conicut::plan::{CutSide, FeatureKind};
-use conicut::post::{
-    BUNDLED_PROFILES, METRIC_MILL_TOML, MachineProfile, PostError, ProgramSettings, RADIUS_MARGIN,
-    write_program,
-};
+use conicut::post::{MachineProfile, PostError, ProgramSettings, RADIUS_MARGIN, write_program};
+use conicut::settings::{BUNDLED_PROFILES, METRIC_MILL_TOML};
 use proptest::prelude::*;
 use std::f64::consts::{PI, TAU};
 

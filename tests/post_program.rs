@@ -6,9 +6,9 @@ use conicut::fit::FittedCut;
 use conicut::geom::Point;
 use conicut::plan::{CutSide, FeatureKind};
 use conicut::post::{
-    BUNDLED_PROFILES, METRIC_MILL_TOML, MachineProfile, PRECEDENCE, PostError, ProgramSettings,
-    SAFETY_HEADING, write_program,
+    MachineProfile, PRECEDENCE, PostError, ProgramSettings, SAFETY_HEADING, write_program,
 };
+use conicut::settings::{BUNDLED_PROFILES, METRIC_MILL_TOML};
 use gcode::{Code, Value};
 
 fn square_cut(name: &str, x0: f64, y0: f64, side: f64) -> FittedCut {

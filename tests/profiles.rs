@@ -16,9 +16,9 @@ use conicut::geom::Move;
 use conicut::geom::Point;
 use conicut::plan::{CutSide, FeatureKind};
 use conicut::post::{
-    BUNDLED_PROFILES, Cutter, MachineKind, MachineProfile, PRECEDENCE, ProgramSettings,
-    SAFETY_HEADING, write_program,
+    Cutter, MachineKind, MachineProfile, PRECEDENCE, ProgramSettings, SAFETY_HEADING, write_program,
 };
+use conicut::settings::BUNDLED_PROFILES;
 use std::path::Path;
 
 /// A small oval hole made of two straight flats and six arcs, counter-clockwise from its right

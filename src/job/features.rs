@@ -3,10 +3,10 @@
 
 use crate::chain::{Bay, Part};
 use crate::geom::{Line, Point};
-use crate::jobfile::{
+use crate::read::{Drawing, EntityKind};
+use crate::settings::job_file::{
     BaySelect, CutKind, FeatureSource, FeatureSpec, FitPoints, LineSource, PointSource, Rule,
 };
-use crate::read::{Drawing, EntityKind};
 use crate::solve::candidate::{Candidate, Solution};
 use crate::solve::constraints::conics_through_and_tangent;
 use crate::solve::feature::{Failure, solve_bay};

@@ -2,8 +2,8 @@
 //! which one is cut and why. As text for people and JSON for scripts (keys in README.md).
 
 use super::features::SolvedFeature;
-use crate::jobfile::CutKind;
 use crate::report::write_list;
+use crate::settings::job_file::CutKind;
 use crate::solve::candidate::Candidate;
 use crate::solve::conic::ConicKind;
 use serde::Serialize;

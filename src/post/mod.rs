@@ -27,10 +27,10 @@ mod safety;
 
 pub use arcs::{MAX_SPLITS, RADIUS_MARGIN};
 pub use number::format_number;
+pub(crate) use profile::format_limit;
 pub use profile::{
-    ArcForm, BUNDLED_PROFILES, CommentStyle, Cutter, DwellUnit, MAX_DECIMALS, METRIC_MILL_TOML,
-    MM_PER_INCH, MachineKind, MachineProfile, Process, ProfileError, Spindle, TravelEnvelope,
-    Units, radius_rule,
+    ArcForm, CommentStyle, Cutter, DwellUnit, MAX_DECIMALS, MM_PER_INCH, MachineKind,
+    MachineProfile, Process, Spindle, TravelEnvelope, Units, radius_rule,
 };
 pub use program::{PostError, ProgramSettings, pass_depths, sanitize, write_program};
 pub use safety::{PRECEDENCE, SAFETY_HEADING, cautions};

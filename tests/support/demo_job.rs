@@ -2,7 +2,8 @@
 //! profiles by file stem, and the settings `conicut demo` uses.
 
 use conicut::job::JobSettings;
-use conicut::post::{BUNDLED_PROFILES, MachineProfile};
+use conicut::post::MachineProfile;
+use conicut::settings::BUNDLED_PROFILES;
 
 /// The bundled profile `machine-profiles/{stem}.toml` (e.g. `metric-mill`, `laser`).
 pub fn profile(stem: &str) -> MachineProfile {

@@ -6,6 +6,7 @@ use super::{
 };
 use crate::geom::Point;
 use crate::read::Units;
+use crate::settings::toml_text::LineIndex;
 use toml::Spanned;
 use toml::de::{DeTable, DeValue};
 
@@ -77,7 +78,7 @@ const CONSTRAINT_COUNT: usize = 5;
 /// Parses a job file (schema in the [module docs](super)); `file_name` is used in messages only.
 ///
 /// ```
-/// use conicut::jobfile::{parse_job_file, FeatureSource, Rule};
+/// use conicut::settings::job_file::{parse_job_file, FeatureSource, Rule};
 ///
 /// let job = parse_job_file(
 ///     "units = \"in\"\n[[feature]]\nname = \"vent\"\nbay = \"bay 1\"\nrule = \"area\"\narea = 2.0\n",
@@ -229,8 +230,8 @@ pub fn parse_job_file(text: &str, file_name: &str) -> Result<JobFile, JobFileErr
 /// The text being parsed, for line numbers and messages.
 struct Context<'t> {
     file: &'t str,
-    /// Byte offset of the start of each line.
-    line_starts: Vec<usize>,
+    /// Where each line starts.
+    lines: LineIndex,
 }
 
 /// One key of a table with its value and the line the key is on.
@@ -271,14 +272,15 @@ impl<'a, 'i> Entries<'a, 'i> {
 
 impl<'t> Context<'t> {
     fn new(text: &'t str, file: &'t str) -> Self {
-        let mut line_starts = vec![0];
-        line_starts.extend(text.match_indices('\n').map(|(i, _)| i + 1));
-        Context { file, line_starts }
+        Context {
+            file,
+            lines: LineIndex::new(text),
+        }
     }
 
     /// The 1-based line holding byte `offset`.
     fn line(&self, offset: usize) -> usize {
-        self.line_starts.partition_point(|&s| s <= offset)
+        self.lines.line(offset)
     }
 
     fn error(
