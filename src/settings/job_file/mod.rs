@@ -76,6 +76,9 @@
 //! Lengths and coordinates are multiplied by [`Units::mm_per_unit`] (25.4 for inches, exact),
 //! areas and `semi_axes_squared` by its square (645.16 for inches).
 
+mod context;
+mod feature;
+mod keys;
 mod parse;
 
 use crate::geom::Point;
