@@ -377,8 +377,8 @@ fn check_random_arc(profile: &MachineProfile, (c, r, a0, sweep): (Point, f64, f6
     let units = profile.units();
     // NISTIR 6556 §3.5.3.2: 0.002 mm in G21, 0.0002 in in G20.
     let rule = match units {
-        conicut::post::Units::Millimetres => 0.002,
-        conicut::post::Units::Inches => 0.0002,
+        conicut::post::ProgramUnits::Millimetres => 0.002,
+        conicut::post::ProgramUnits::Inches => 0.0002,
     };
     let step = 10f64.powi(-(profile.xy_decimals() as i32));
     let reads = feed_moves(&program);

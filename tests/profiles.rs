@@ -271,8 +271,8 @@ fn every_profile_program_parses_and_keeps_the_format_rules() {
         assert!(!codes.iter().any(|c| c == "G2"), "{stem}");
         assert_eq!(codes.last().map(String::as_str), Some("M30"), "{stem}");
         let units = match profile.units() {
-            conicut::post::Units::Millimetres => "G21",
-            conicut::post::Units::Inches => "G20",
+            conicut::post::ProgramUnits::Millimetres => "G21",
+            conicut::post::ProgramUnits::Inches => "G20",
         };
         assert!(codes.iter().any(|c| c == units), "{stem}: no {units}");
 

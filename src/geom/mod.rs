@@ -22,6 +22,7 @@ pub use arc::ArcSegment;
 pub use ellipse::{Ellipse, EllipseError};
 pub use line::{Line, Segment};
 pub use moves::Move;
+pub use units::Units;
 pub use vector::{Point, Vec2};
 
 /// Relative tolerance below which two lines count as parallel (sine of the angle between them).

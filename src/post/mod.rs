@@ -30,7 +30,7 @@ pub use number::format_number;
 pub(crate) use profile::format_limit;
 pub use profile::{
     ArcForm, CommentStyle, Cutter, DwellUnit, MAX_DECIMALS, MM_PER_INCH, MachineKind,
-    MachineProfile, Process, Spindle, TravelEnvelope, Units, radius_rule,
+    MachineProfile, Process, ProgramUnits, Spindle, TravelEnvelope, radius_rule,
 };
 pub use program::{PostError, ProgramSettings, pass_depths, sanitize, write_program};
 pub use safety::{PRECEDENCE, SAFETY_HEADING, cautions};

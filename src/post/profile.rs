@@ -15,6 +15,7 @@ use crate::plan::LeadOptions;
 use serde::Deserialize;
 use std::fmt;
 
+use crate::geom::Units;
 pub use crate::geom::units::MM_PER_INCH;
 
 /// The kind of machine a profile describes. Each kind has its own safety cautions.
@@ -47,50 +48,50 @@ impl fmt::Display for MachineKind {
     }
 }
 
-/// The length unit of a program.
+/// The length unit a program is written in: millimetres (`G21`) or inches (`G20`), the two
+/// RS274/NGC knows (NISTIR 6556 §3.5.7). Conversions go through the one [`Units`] type.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize)]
-pub enum Units {
+pub enum ProgramUnits {
     #[serde(rename = "mm")]
     Millimetres,
     #[serde(rename = "in")]
     Inches,
 }
 
-impl Units {
+impl ProgramUnits {
+    /// The general length unit this is.
+    pub fn length_unit(self) -> Units {
+        match self {
+            ProgramUnits::Millimetres => Units::Millimetres,
+            ProgramUnits::Inches => Units::Inches,
+        }
+    }
+
     /// The unit as written in a profile and in program comments.
     pub fn as_str(self) -> &'static str {
-        match self {
-            Units::Millimetres => "mm",
-            Units::Inches => "in",
-        }
+        self.length_unit().symbol()
     }
 
     /// The RS274/NGC units word (NISTIR 6556 §3.5.7).
     pub fn g_word(self) -> &'static str {
         match self {
-            Units::Millimetres => "G21",
-            Units::Inches => "G20",
+            ProgramUnits::Millimetres => "G21",
+            ProgramUnits::Inches => "G20",
         }
     }
 
     /// Converts a length in millimetres to this unit.
     pub fn from_mm(self, mm: f64) -> f64 {
-        match self {
-            Units::Millimetres => mm,
-            Units::Inches => mm / MM_PER_INCH,
-        }
+        self.length_unit().from_mm(mm)
     }
 
     /// Converts a length in this unit to millimetres.
     pub fn to_mm(self, value: f64) -> f64 {
-        match self {
-            Units::Millimetres => value,
-            Units::Inches => value * MM_PER_INCH,
-        }
+        self.length_unit().to_mm(value)
     }
 }
 
-impl fmt::Display for Units {
+impl fmt::Display for ProgramUnits {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
         f.write_str(self.as_str())
     }
@@ -219,7 +220,7 @@ pub enum Cutter {
 pub struct MachineProfile {
     pub(crate) name: String,
     pub(crate) kind: MachineKind,
-    pub(crate) units: Units,
+    pub(crate) units: ProgramUnits,
     pub(crate) arc_form: ArcForm,
     pub(crate) xy_decimals: usize,
     pub(crate) z_decimals: usize,
@@ -253,7 +254,7 @@ impl MachineProfile {
     pub fn kind(&self) -> MachineKind {
         self.kind
     }
-    pub fn units(&self) -> Units {
+    pub fn units(&self) -> ProgramUnits {
         self.units
     }
     /// How arcs are written: centre offsets (`G2`/`G3` with `I`, `J`) or lines only.
@@ -366,16 +367,16 @@ impl MachineProfile {
 
 /// The largest difference between an arc's start and end radius, in `units`: 0.002 mm (G21) or
 /// 0.0002 in (G20) (NISTIR 6556 §3.5.3.2).
-pub fn radius_rule(units: Units) -> f64 {
+pub fn radius_rule(units: ProgramUnits) -> f64 {
     match units {
-        Units::Millimetres => 0.002,
-        Units::Inches => 0.0002,
+        ProgramUnits::Millimetres => 0.002,
+        ProgramUnits::Inches => 0.0002,
     }
 }
 
-pub(crate) fn format_limit(units: Units) -> &'static str {
+pub(crate) fn format_limit(units: ProgramUnits) -> &'static str {
     match units {
-        Units::Millimetres => "0.002",
-        Units::Inches => "0.0002",
+        ProgramUnits::Millimetres => "0.002",
+        ProgramUnits::Inches => "0.0002",
     }
 }

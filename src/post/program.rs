@@ -3,8 +3,8 @@
 use super::arcs::{Piece, arc_extremes, arc_pieces};
 use super::number::format_number;
 use super::profile::{
-    ArcForm, CommentStyle, Cutter, DwellUnit, MachineKind, MachineProfile, Process, Spindle, Units,
-    radius_rule,
+    ArcForm, CommentStyle, Cutter, DwellUnit, MachineKind, MachineProfile, Process, ProgramUnits,
+    Spindle, radius_rule,
 };
 use super::safety::{PRECEDENCE, SAFETY_HEADING, cautions};
 use crate::fit::FittedCut;
@@ -93,7 +93,7 @@ pub enum PostError {
         decimals: usize,
         /// The smallest radius difference found, in the program's units.
         mismatch: String,
-        units: Units,
+        units: ProgramUnits,
     },
     #[error("{setting} is {value}, which {problem}; {hint}")]
     BadSetting {
@@ -120,7 +120,7 @@ pub enum PostError {
         value: String,
         /// The allowed range, e.g. `-10.0000 .. 400.0000`.
         limits: String,
-        units: Units,
+        units: ProgramUnits,
     },
     #[error(
         "the {which} of {value} {units}/min is above the largest feed {max} {units}/min that profile \"{profile}\" allows. Give a lower feed, or correct max_feed in the profile if the machine can go faster"
@@ -129,7 +129,7 @@ pub enum PostError {
         which: &'static str,
         value: String,
         max: String,
-        units: Units,
+        units: ProgramUnits,
         profile: String,
     },
     #[error(
@@ -547,7 +547,7 @@ fn check_cut(cut: &FittedCut, profile: &MachineProfile, r: &Resolved) -> Result<
     Ok(())
 }
 
-fn units_point(units: Units, p: Point) -> Point {
+fn units_point(units: ProgramUnits, p: Point) -> Point {
     Point::new(units.from_mm(p.x), units.from_mm(p.y))
 }
 

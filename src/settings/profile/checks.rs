@@ -5,7 +5,7 @@ use super::ProfileError;
 use super::raw::{PROCESS_KEYS, RawProfile, SPINDLE_KEYS, on_off_keys};
 use crate::plan::{LeadKind, LeadOptions};
 use crate::post::{
-    ArcForm, Cutter, MAX_DECIMALS, MachineKind, Process, Spindle, Units, format_limit,
+    ArcForm, Cutter, MAX_DECIMALS, MachineKind, Process, ProgramUnits, Spindle, format_limit,
 };
 use crate::settings::toml_text::find_key_line;
 
@@ -390,8 +390,8 @@ pub(super) fn check_decimals(
     arc_form: ArcForm,
 ) -> Result<(usize, usize, usize), ProfileError> {
     let (xy_default, z_default, feed_default) = match raw.units {
-        Units::Millimetres => (4, 3, 1),
-        Units::Inches => (5, 4, 2),
+        ProgramUnits::Millimetres => (4, 3, 1),
+        ProgramUnits::Inches => (5, 4, 2),
     };
     let xy_decimals = raw.xy_decimals.unwrap_or(xy_default);
     let z_decimals = raw.z_decimals.unwrap_or(z_default);
@@ -412,8 +412,8 @@ pub(super) fn check_decimals(
     // docs/sources.md P1.6: with fewer decimals the two radii of an arc cannot be
     // kept within 0.002 mm (0.0002 in) of each other.
     let min_arc_decimals = match raw.units {
-        Units::Millimetres => 3,
-        Units::Inches => 4,
+        ProgramUnits::Millimetres => 3,
+        ProgramUnits::Inches => 4,
     };
     if arc_form == ArcForm::CentreOffsets && xy_decimals < min_arc_decimals {
         return Err(c.fail(

@@ -1,6 +1,6 @@
 //! Reading a machine profile from TOML (see `machine-profiles/` for an example of each kind).
 //!
-//! # Units
+//! # ProgramUnits
 //!
 //! Every length, height, feed and travel limit in a profile is in the profile's own `units`
 //! (`mm` or `in`; feeds per minute). conicut works in millimetres inside and converts to the
@@ -226,14 +226,14 @@ fn from_toml_error(e: &toml::de::Error, text: &str, file_name: &str) -> ProfileE
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::post::{MachineKind, Units};
+    use crate::post::{MachineKind, ProgramUnits};
     use checks::check_block_line;
 
     #[test]
     fn shipped_metric_mill_profile_loads() {
         let p = MachineProfile::metric_mill().unwrap();
         assert_eq!(p.kind(), MachineKind::Mill);
-        assert_eq!(p.units(), Units::Millimetres);
+        assert_eq!(p.units(), ProgramUnits::Millimetres);
         // docs/sources.md P1.6: 4 decimals for X Y and 3 for Z in mm.
         assert_eq!((p.xy_decimals(), p.z_decimals()), (4, 3));
         let s = p.spindle().expect("a mill has a spindle");

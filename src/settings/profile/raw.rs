@@ -1,7 +1,7 @@
 //! A machine profile as written in TOML, before its values are checked, and which keys belong to
 //! which kind of machine.
 
-use crate::post::{CommentStyle, DwellUnit, MachineKind, TravelEnvelope, Units};
+use crate::post::{CommentStyle, DwellUnit, MachineKind, ProgramUnits, TravelEnvelope};
 use serde::Deserialize;
 
 /// A machine profile as written in TOML, before its values are checked. Keys that belong to one
@@ -11,7 +11,7 @@ use serde::Deserialize;
 pub(super) struct RawProfile {
     pub(super) name: String,
     pub(super) kind: MachineKind,
-    pub(super) units: Units,
+    pub(super) units: ProgramUnits,
     pub(super) arc_form: String,
     pub(super) xy_decimals: Option<usize>,
     pub(super) z_decimals: Option<usize>,
