@@ -4,15 +4,15 @@ use anyhow::{Context, Result, bail};
 use clap::{Args, Parser, Subcommand};
 use conicut::chain::{DEFAULT_BAY_LAYER, DEFAULT_GAP_TOLERANCE};
 use conicut::geom::Point;
-use conicut::job::{JobOutput, JobSettings, LeadRequest, TabRequest, run_job, solve_job};
+use conicut::job::{JobOutput, run_job, solve_job};
 use conicut::plan::{Direction, LeadKind};
 use conicut::post::MachineProfile;
 use conicut::read::Units;
 use conicut::read::parse_points_csv;
 use conicut::report::OutputFile;
-use conicut::settings::BUNDLED_PROFILES;
 use conicut::settings::defaults;
 use conicut::settings::job_file::{FeatureSource, FitPoints, JobFile, parse_job_file};
+use conicut::settings::{BUNDLED_PROFILES, JobSettings, LeadRequest, TabRequest};
 use std::collections::BTreeMap;
 use std::fs;
 use std::path::{Path, PathBuf};
@@ -128,8 +128,8 @@ struct CutArgs {
     #[arg(long, default_value_t = defaults::RAMP_ANGLE_DEG, allow_negative_numbers = true)]
     ramp_angle: f64,
     /// Climb (default) or conventional milling; thermal cuts keep the usual direction.
-    #[arg(long, value_enum, default_value_t = DirectionArg::Climb)]
-    direction: DirectionArg,
+    #[arg(long, default_value = "climb")]
+    direction: Direction,
     /// Mills and routers: leave this much stock (mm, radial) for a finishing pass at full depth.
     #[arg(long, allow_negative_numbers = true)]
     finish_allowance: Option<f64>,
@@ -138,8 +138,8 @@ struct CutArgs {
     stepover: Option<f64>,
     /// The lead-in's shape: straight (a straight move from the plunge or pierce point), line,
     /// arc, or line-arc. Default: the job file's, else the profile's.
-    #[arg(long, value_enum)]
-    lead: Option<LeadArg>,
+    #[arg(long)]
+    lead: Option<LeadKind>,
     /// Length of the lead's straight part (mm). Default: the job file's, else the profile's.
     #[arg(long, allow_negative_numbers = true)]
     lead_length: Option<f64>,
@@ -181,22 +181,6 @@ enum EntryArg {
     Helix,
     Zigzag,
     Straight,
-}
-
-/// The lead-in's shape.
-#[derive(clap::ValueEnum, Clone, Copy, Debug, PartialEq, Eq)]
-enum LeadArg {
-    Straight,
-    Line,
-    Arc,
-    LineArc,
-}
-
-/// Climb or conventional milling.
-#[derive(clap::ValueEnum, Clone, Copy, Debug, PartialEq, Eq)]
-enum DirectionArg {
-    Climb,
-    Conventional,
 }
 
 /// The demo drawing's file name, as written to `demo-parts/` and named in the outputs.
@@ -263,22 +247,14 @@ fn settings(file_name: String, input: &DrawingArgs, cut: Option<&CutArgs>) -> Re
         }
         None => (None, BTreeMap::new()),
     };
-    if let Some(c) = cut {
-        let sized = c.tab_width.is_some() || c.tab_height.is_some();
-        if sized && c.tabs.is_none() && c.tab_spacing.is_none() {
-            bail!(
-                "--tab-width and --tab-height size tabs, but no tabs were asked for: add --tabs N or \
-                 --tab-spacing MM"
-            );
-        }
-    }
     Ok(JobSettings {
         file_name,
         units: input.units,
         bay_layer: input.bay_layer.clone(),
         gap_tolerance: input.gap_tolerance,
         margin: input.margin,
-        tool_diameter: 0.0,
+        tool_diameter: None,
+        fallback_tool_diameter: None,
         tolerance: cut.map(|c| c.tolerance).unwrap_or(defaults::TOLERANCE_MM),
         depth: cut.and_then(|c| c.depth),
         stepdown: cut.and_then(|c| c.stepdown),
@@ -287,23 +263,20 @@ fn settings(file_name: String, input: &DrawingArgs, cut: Option<&CutArgs>) -> Re
             .map(|c| c.ramp_angle),
         helical_entry: cut.is_none_or(|c| c.entry == EntryArg::Helix),
         leads: cut.map_or_else(LeadRequest::default, |c| LeadRequest {
-            kind: c.lead.map(|l| match l {
-                LeadArg::Straight => LeadKind::Straight,
-                LeadArg::Line => LeadKind::Line,
-                LeadArg::Arc => LeadKind::Arc,
-                LeadArg::LineArc => LeadKind::LineArc,
-            }),
+            kind: c.lead,
             length: c.lead_length,
             radius: c.lead_radius,
             overcut: c.overcut,
             lead_out: c.no_lead_out.then_some(false),
         }),
-        direction: match cut.map(|c| c.direction) {
-            Some(DirectionArg::Conventional) => Direction::Conventional,
-            _ => Direction::Climb,
-        },
+        direction: cut.map_or(Direction::Climb, |c| c.direction),
         tabs: cut
-            .filter(|c| c.tabs.is_some() || c.tab_spacing.is_some())
+            .filter(|c| {
+                c.tabs.is_some()
+                    || c.tab_spacing.is_some()
+                    || c.tab_width.is_some()
+                    || c.tab_height.is_some()
+            })
             .map(|c| TabRequest {
                 count: c.tabs,
                 spacing: c.tab_spacing,
@@ -343,8 +316,6 @@ fn run(cli: Cli) -> Result<()> {
             };
             let profile =
                 MachineProfile::from_toml(text, file).map_err(|e| anyhow::anyhow!("{e}"))?;
-            // The demo's end mill is 6 mm; cut-through kinds use their kerf.
-            let tool_diameter = tool_diameter.or(profile.kerf_width()).unwrap_or(6.0);
             let input = DrawingArgs {
                 job,
                 units: None,
@@ -353,7 +324,9 @@ fn run(cli: Cli) -> Result<()> {
                 gap_tolerance: DEFAULT_GAP_TOLERANCE,
             };
             let mut settings = settings(DEMO_NAME.to_string(), &input, Some(&cut))?;
+            // The demo's own stock and end mill; cut-through kinds use their kerf.
             settings.tool_diameter = tool_diameter;
+            settings.fallback_tool_diameter = Some(defaults::DEMO_TOOL_DIAMETER_MM);
             settings.depth = Some(cut.depth.unwrap_or(conicut::demo::CUT_DEPTH));
             let bytes = conicut::demo::demo_dxf_bytes();
             let output = run_job(&bytes, &profile, &settings)?;
@@ -394,15 +367,7 @@ fn run(cli: Cli) -> Result<()> {
                 .map_err(|e| anyhow::anyhow!("{e}"))?;
             let (bytes, file_name, stem) = read_drawing(&drawing)?;
             let mut settings = settings(file_name, &input, Some(&cut))?;
-            settings.tool_diameter = match tool_diameter.or(profile.kerf_width()) {
-                Some(d) => d,
-                None => bail!(
-                    "give the cutter diameter with --tool-diameter (mm): the {} profile \"{}\" has \
-                     no kerf width to fall back on",
-                    profile.kind(),
-                    profile.name()
-                ),
-            };
+            settings.tool_diameter = tool_diameter;
             let output = run_job(&bytes, &profile, &settings)?;
             let out = out.unwrap_or_else(|| PathBuf::from(format!("{stem}-conicut")));
             finish(output, &out, &stem)

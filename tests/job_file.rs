@@ -6,10 +6,11 @@
 //! demo drawing's bays and layer are those of `src/demo/mod.rs`.
 
 use conicut::geom::Point;
+use conicut::plan::LeadKind;
 use conicut::read::Units;
 use conicut::settings::job_file::{
     BaySelect, CutKind, FeatureSource, FeatureSpec, FitPoints, JobFile, JobFileError,
-    JobFileErrorKind as Kind, LeadShape, LeadSpec, LineSource, PointSource, Rule, parse_job_file,
+    JobFileErrorKind as Kind, LeadSpec, LineSource, PointSource, Rule, parse_job_file,
 };
 
 const EXAMPLE: &str = include_str!("../demo-parts/truss-bracket-job.toml");
@@ -243,7 +244,7 @@ fn lead_keys_parse_in_the_file_units_and_bad_ones_are_refused() {
         "bay = \"bay 1\"",
     ])
     .unwrap();
-    assert_eq!(job.leads.shape, Some(LeadShape::LineArc));
+    assert_eq!(job.leads.shape, Some(LeadKind::LineArc));
     assert!(close(job.leads.length.unwrap(), 2.54));
     assert!(close(job.leads.radius.unwrap(), 1.27));
     assert_eq!(job.leads.overcut, Some(0.0));

@@ -481,7 +481,7 @@ fn tight_corners_never_take_tabs() {
         },
         None,
     );
-    s.tool_diameter = 3.0;
+    s.tool_diameter = Some(3.0);
     let out = run_job(&demo_dxf_bytes(), &p, &s).expect("the job runs");
     let trace = check::trace(&out.program).unwrap();
     let run = &outline_contour_runs(&trace)[0];

@@ -21,6 +21,22 @@ pub fn pocket_stepover(tool_diameter: f64) -> f64 {
 /// Edge margin (mm) kept clear of the drawing's outline when none is asked for: none.
 pub const MARGIN_MM: f64 = 0.0;
 
+/// Tab width on a mill or router when none is given (mm): router tabs are a few mm long (common
+/// practice, docs/sources.md P4.3).
+pub const MILL_TAB_WIDTH_MM: f64 = 4.0;
+
+/// Tab height above the floor of the cut on a mill or router when none is given (mm): about
+/// 1–3 mm (common practice, docs/sources.md P4.3).
+pub const MILL_TAB_HEIGHT_MM: f64 = 1.0;
+
+/// Micro-joint (gap) width on a laser, plasma table or waterjet when none is given (mm): laser
+/// sheet bridges are about 0.2–1 mm wide (common practice, docs/sources.md P4.3).
+pub const THERMAL_TAB_WIDTH_MM: f64 = 0.5;
+
+/// The demo's cutter on a mill or router (mm): a 6 mm end mill, a common size for 3 mm plate
+/// (demo data, invented).
+pub const DEMO_TOOL_DIAMETER_MM: f64 = 6.0;
+
 #[cfg(test)]
 mod tests {
     use super::*;

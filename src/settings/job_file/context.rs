@@ -1,8 +1,9 @@
 //! The parsed TOML document with its spans: entries in file order, typed values converted to
 //! mm, and errors that name the line and key.
 
-use super::{JobFileError, JobFileErrorKind as Kind, LeadShape};
+use super::{JobFileError, JobFileErrorKind as Kind};
 use crate::geom::Point;
+use crate::plan::LeadKind;
 use crate::settings::toml_text::LineIndex;
 use toml::Spanned;
 use toml::de::{DeTable, DeValue};
@@ -230,22 +231,15 @@ impl<'t> Context<'t> {
     }
 
     /// A lead shape by name.
-    pub(super) fn lead_shape(&self, e: &Entry<'_, '_>) -> Result<LeadShape, JobFileError> {
+    pub(super) fn lead_shape(&self, e: &Entry<'_, '_>) -> Result<LeadKind, JobFileError> {
         let word = self.string(e)?;
-        match word.as_str() {
-            "straight" => Ok(LeadShape::Straight),
-            "line" => Ok(LeadShape::Line),
-            "arc" => Ok(LeadShape::Arc),
-            "line-arc" => Ok(LeadShape::LineArc),
-            _ => Err(self.at(
+        word.parse::<LeadKind>().map_err(|bad| {
+            self.at(
                 e,
                 Kind::BadValue,
-                format!(
-                    "unknown lead shape \"{word}\"; use \"straight\", \"line\", \"arc\" or \
-                     \"line-arc\""
-                ),
-            )),
-        }
+                format!("unknown lead shape \"{word}\"; use {}", bad.allowed),
+            )
+        })
     }
 
     /// A margin: zero or positive, converted to mm.

@@ -82,6 +82,7 @@ mod keys;
 mod parse;
 
 use crate::geom::Point;
+use crate::plan::LeadKind;
 use crate::read::Units;
 
 pub use crate::solve::quad_rules::Rule;
@@ -103,20 +104,11 @@ pub struct JobFile {
     pub features: Vec<FeatureSpec>,
 }
 
-/// The shape of the lead-in: `straight`, `line`, `arc` or `line-arc`.
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
-pub enum LeadShape {
-    Straight,
-    Line,
-    Arc,
-    LineArc,
-}
-
 /// The lead keys of a job file, each `None` when the file does not give it (lengths in mm).
 #[derive(Debug, Clone, Copy, PartialEq, Default)]
 pub struct LeadSpec {
     /// `lead`: the lead-in's shape.
-    pub shape: Option<LeadShape>,
+    pub shape: Option<LeadKind>,
     /// `lead_length`: the straight part (mm, ≥ 0).
     pub length: Option<f64>,
     /// `lead_radius`: the arc's radius (mm, > 0).

@@ -247,18 +247,15 @@ fn process(raw: &RawProfile, c: &Checker, on: String, off: String) -> Result<Cut
 /// arc lead a radius above 0), converted to mm. Left out: a straight lead, no overcut, no
 /// lead-out.
 pub(super) fn check_leads(raw: &RawProfile, c: &Checker) -> Result<LeadOptions, ProfileError> {
-    let kind = match raw.lead.as_deref().map(str::trim) {
-        None | Some("straight") => LeadKind::Straight,
-        Some("line") => LeadKind::Line,
-        Some("arc") => LeadKind::Arc,
-        Some("line-arc") => LeadKind::LineArc,
-        Some(other) => {
-            return Err(c.fail(
+    let kind = match raw.lead.as_deref() {
+        None => LeadKind::Straight,
+        Some(word) => word.parse::<LeadKind>().map_err(|bad| {
+            c.fail(
                 "lead",
-                format!("\"{other}\" is not a lead shape"),
-                "use \"straight\", \"line\", \"arc\" or \"line-arc\"",
-            ));
-        }
+                format!("\"{}\" is not a lead shape", bad.word),
+                &format!("use {}", bad.allowed),
+            )
+        })?,
     };
     let hint = "give zero or a positive length";
     let length = c.not_negative("lead_length", raw.lead_length.unwrap_or(0.0), hint)?;

@@ -1,0 +1,427 @@
+//! The resolver: a request ([`JobSettings`]) and a machine profile turned into one resolved job,
+//! each stage's own options in mm, every default taken from [`super::defaults`].
+//!
+//! Cost: constant per job (a handful of comparisons), whatever the number of features.
+
+use super::defaults;
+use super::job_file::JobFile;
+use super::request::{JobSettings, LeadRequest, TabRequest};
+use crate::fit::{FitOptions, MoveKind};
+use crate::plan::{Direction, LeadOptions, PlanOptions, TabOptions};
+use crate::post::{ArcForm, MachineProfile, ProgramSettings};
+
+/// What each stage runs with, resolved once.
+#[derive(Debug, Clone, PartialEq)]
+pub struct ResolvedJob {
+    /// The cutter (mills, routers) or kerf (laser, plasma, waterjet) diameter, mm.
+    pub tool_diameter: f64,
+    /// Laser, plasma and waterjet cut through: no depth, no pockets, no finishing pass.
+    pub cuts_through: bool,
+    /// Cut depth, mm (0 for the kinds that cut through).
+    pub depth: f64,
+    /// The tolerance budget: what the fit may spend and what rounding takes.
+    pub budget: ToleranceBudget,
+    /// Stage 4's options.
+    pub plan: PlanOptions,
+    /// Stage 5's options.
+    pub fit: FitOptions,
+    /// Stage 6's options (the profile gives it its words).
+    pub program: ProgramSettings,
+    /// Set when a request was ignored rather than refused (conventional milling on a kind that
+    /// cuts through), for the report.
+    pub direction_warning: Option<String>,
+}
+
+/// How the tolerance is shared. The program's coordinates are rounded to the profile's decimals,
+/// which moves a point by at most half a step on each axis (√2/2 steps in all). An arc's end
+/// points and centre are rounded and the centre moved onto the bisector of the rounded ends,
+/// which keeps the written arc within 2√2 steps of the exact one (the writer's property test,
+/// tests/post_arcs.rs). The fit gets the rest; the checker then measures the program as
+/// written against the whole tolerance.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct ToleranceBudget {
+    /// The user's tolerance, mm.
+    pub tolerance: f64,
+    /// What rounding the written numbers may take, mm.
+    pub rounding: f64,
+    /// Straight moves only (asked for, or the profile writes no arcs).
+    pub lines_only: bool,
+}
+
+impl ToleranceBudget {
+    /// What the fit may spend, mm.
+    pub fn fit(&self) -> f64 {
+        self.tolerance - self.rounding
+    }
+}
+
+/// Why a request cannot run on this machine. The pipeline adds the drawing's name.
+#[derive(Debug, Clone, PartialEq, thiserror::Error)]
+pub enum SettingsError {
+    #[error(
+        "give the cutter diameter with --tool-diameter (mm): the {kind} profile \"{name}\" has \
+         no kerf width to fall back on"
+    )]
+    NoToolDiameter { kind: String, name: String },
+    #[error(
+        "a tolerance of {tolerance} mm is too fine for the machine profile's {decimals} \
+         decimals: rounding alone moves a point by up to {rounding:.6} mm. Use a tolerance of at \
+         least twice that, or a profile with more decimals"
+    )]
+    ToleranceTooFine {
+        tolerance: f64,
+        rounding: f64,
+        decimals: usize,
+    },
+    #[error(
+        "a finishing allowance ({allowance} mm) applies to mills and routers only: a {machine} \
+         cuts through in one pass. Leave out --finish-allowance"
+    )]
+    FinishCutsThrough { allowance: f64, machine: String },
+    #[error("tabs on the outline: {problem}")]
+    BadTabs { problem: String },
+}
+
+/// Resolves `s` against `profile`.
+pub fn resolve(s: &JobSettings, profile: &MachineProfile) -> Result<ResolvedJob, SettingsError> {
+    let tool_diameter = tool_diameter(s, profile)?;
+    let cuts_through = profile.kerf_width().is_some();
+    let depth = if cuts_through {
+        0.0
+    } else {
+        requested_depth(s, profile)
+    };
+    let budget = tolerance_budget(s, profile)?;
+    let tabs = s
+        .tabs
+        .as_ref()
+        .map(|t| resolve_tabs(t, profile, s))
+        .transpose()?;
+    let (direction, direction_warning) = mill_only_settings(s, profile)?;
+    let plan = PlanOptions {
+        tool_diameter,
+        leads: resolve_leads(&s.leads, s.job.as_ref(), profile),
+        direction,
+        tabs,
+        finish_allowance: s.finish_allowance,
+        pocket_stepover: s
+            .pocket_stepover
+            .unwrap_or_else(|| defaults::pocket_stepover(tool_diameter)),
+        pierce_clearance: profile.pierce_clearance(),
+    };
+    let fit = FitOptions {
+        tolerance: budget.fit(),
+        moves: if budget.lines_only {
+            MoveKind::Lines
+        } else {
+            MoveKind::Arcs
+        },
+        scrap_side_only: s.scrap_side_only,
+    };
+    let program = ProgramSettings {
+        title: format!("elliptical openings for {}", s.file_name),
+        source: s.file_name.clone(),
+        tool_diameter,
+        depth,
+        tolerance: s.tolerance,
+        cut_feed: None,
+        plunge_feed: None,
+        spindle_speed: None,
+        stepdown: s.stepdown,
+        ramp_angle_deg: s.ramp_angle_deg,
+        // A helix is written as arcs: not for straight moves only.
+        helical_entry: s.helical_entry && !budget.lines_only,
+        tab_height: tabs.map_or(0.0, |t| t.height),
+    };
+    Ok(ResolvedJob {
+        tool_diameter,
+        cuts_through,
+        depth,
+        budget,
+        plan,
+        fit,
+        program,
+        direction_warning,
+    })
+}
+
+/// The tool: the one asked for, else the profile's kerf, else the request's fallback (the
+/// demo's end mill); a mill or router with none of them is refused.
+fn tool_diameter(s: &JobSettings, profile: &MachineProfile) -> Result<f64, SettingsError> {
+    s.tool_diameter
+        .or(profile.kerf_width())
+        .or(s.fallback_tool_diameter)
+        .ok_or_else(|| SettingsError::NoToolDiameter {
+            kind: profile.kind().to_string(),
+            name: profile.name().to_string(),
+        })
+}
+
+/// A mill's or router's depth: the one asked for, else the profile's default (in mm).
+fn requested_depth(s: &JobSettings, profile: &MachineProfile) -> f64 {
+    s.depth
+        .unwrap_or_else(|| profile.units().to_mm(profile.default_depth()))
+}
+
+/// The tolerance budget (see [`ToleranceBudget`]); a tolerance under twice the rounding is
+/// refused.
+fn tolerance_budget(
+    s: &JobSettings,
+    profile: &MachineProfile,
+) -> Result<ToleranceBudget, SettingsError> {
+    let lines_only = s.lines_only || profile.arc_form() == ArcForm::LinesOnly;
+    let step = profile
+        .units()
+        .to_mm(10f64.powi(-(profile.xy_decimals() as i32)));
+    let rounding = if lines_only { 0.5 } else { 2.0 } * step * std::f64::consts::SQRT_2;
+    if !(s.tolerance.is_finite() && s.tolerance >= 2.0 * rounding) {
+        return Err(SettingsError::ToleranceTooFine {
+            tolerance: s.tolerance,
+            rounding,
+            decimals: profile.xy_decimals(),
+        });
+    }
+    Ok(ToleranceBudget {
+        tolerance: s.tolerance,
+        rounding,
+        lines_only,
+    })
+}
+
+/// The leads to use: the command line first, then the job file's lead keys, the rest from the
+/// profile.
+fn resolve_leads(r: &LeadRequest, job: Option<&JobFile>, profile: &MachineProfile) -> LeadOptions {
+    let base = profile.lead_options();
+    let file = job.map(|j| j.leads).unwrap_or_default();
+    LeadOptions {
+        kind: r.kind.or(file.shape).unwrap_or(base.kind),
+        length: r.length.or(file.length).unwrap_or(base.length),
+        radius: r.radius.or(file.radius).unwrap_or(base.radius),
+        overcut: r.overcut.or(file.overcut).unwrap_or(base.overcut),
+        lead_out: r.lead_out.or(file.lead_out).unwrap_or(base.lead_out),
+    }
+}
+
+/// The tabs to use: what the user gave, width and height by kind of machine otherwise. Refuses a
+/// request with both or neither of count and spacing, a count below 1, a spacing or width that
+/// is not a positive number of mm, a mill or router tab height outside (0, cut depth), and a
+/// height on the kinds that cut through (their tabs are gaps).
+fn resolve_tabs(
+    t: &TabRequest,
+    profile: &MachineProfile,
+    s: &JobSettings,
+) -> Result<TabOptions, SettingsError> {
+    let bad = |problem: String| SettingsError::BadTabs { problem };
+    let spacing = match (t.count, t.spacing) {
+        (Some(_), Some(_)) => {
+            return Err(bad(
+                "give either a count (--tabs) or a spacing (--tab-spacing), not both".into(),
+            ));
+        }
+        (None, None) if t.width.is_some() || t.height.is_some() => {
+            return Err(bad(
+                "--tab-width and --tab-height size tabs, but no tabs were asked for: \
+                 add --tabs N or --tab-spacing MM"
+                    .into(),
+            ));
+        }
+        (None, None) => {
+            return Err(bad(
+                "give a count (--tabs N) or a spacing along the outline (--tab-spacing MM)".into(),
+            ));
+        }
+        (Some(0), None) => return Err(bad("the count must be at least 1 (got 0)".into())),
+        (Some(_), None) => 0.0,
+        (None, Some(sp)) if sp > 0.0 && sp.is_finite() => sp,
+        (None, Some(sp)) => {
+            return Err(bad(format!(
+                "the spacing must be a positive number of mm (got {sp})"
+            )));
+        }
+    };
+    let cuts_through = profile.kerf_width().is_some();
+    let width = t.width.unwrap_or(if cuts_through {
+        defaults::THERMAL_TAB_WIDTH_MM
+    } else {
+        defaults::MILL_TAB_WIDTH_MM
+    });
+    if !(width > 0.0 && width.is_finite()) {
+        return Err(bad(format!(
+            "the width must be a positive number of mm (got {width})"
+        )));
+    }
+    let height = if cuts_through {
+        if let Some(h) = t.height {
+            return Err(bad(format!(
+                "a tab height ({h} mm) applies to mills and routers only: on a {} a tab is a gap \
+                 in the cut. Leave the height out",
+                profile.kind()
+            )));
+        }
+        0.0
+    } else {
+        let depth = requested_depth(s, profile);
+        let h = t.height.unwrap_or(defaults::MILL_TAB_HEIGHT_MM);
+        if !(h > 0.0 && h < depth) {
+            return Err(bad(format!(
+                "the height must be above 0 mm and below the cut depth {depth} mm (got {h} mm); \
+                 tabs are usually 1–3 mm high"
+            )));
+        }
+        h
+    };
+    Ok(TabOptions {
+        count: t.count,
+        spacing,
+        width,
+        height,
+    })
+}
+
+/// The settings only mills and routers act on. Laser, plasma and waterjet cut through in one
+/// pass: a finishing allowance is refused ([`SettingsError::FinishCutsThrough`]). They always cut in
+/// the usual direction for thermal cutting (outline clockwise, holes counter-clockwise: the
+/// squarer side of a plasma kerf, on the right of travel with the usual swirl, falls on the part;
+/// docs/sources.md P4.1): conventional milling is a milling matter, so a request for it is
+/// ignored with the warning returned here rather than refused (the program is still right).
+fn mill_only_settings(
+    s: &JobSettings,
+    profile: &MachineProfile,
+) -> Result<(Direction, Option<String>), SettingsError> {
+    if profile.spindle().is_some() {
+        return Ok((s.direction, None));
+    }
+    if let Some(allowance) = s.finish_allowance {
+        return Err(SettingsError::FinishCutsThrough {
+            allowance,
+            machine: profile.kind().to_string(),
+        });
+    }
+    let warning = (s.direction == Direction::Conventional).then(|| {
+        format!(
+            "the conventional direction applies to mills and routers only and was ignored: the \
+             {} cuts in the usual direction (outline clockwise, holes counter-clockwise)",
+            profile.kind()
+        )
+    });
+    Ok((Direction::Climb, warning))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::plan::LeadKind;
+    use crate::settings::BUNDLED_PROFILES;
+
+    fn profile(stem: &str) -> MachineProfile {
+        let (file, text) = BUNDLED_PROFILES
+            .iter()
+            .find(|(f, _)| f.contains(stem))
+            .expect("a bundled profile");
+        MachineProfile::from_toml(text, file).expect("the bundled profile loads")
+    }
+
+    #[test]
+    fn the_tool_is_the_one_asked_for_then_the_kerf_then_the_fallback() {
+        let (mill, laser) = (profile("metric-mill"), profile("laser"));
+        let mut s = JobSettings::new("part.dxf", 8.0);
+        assert_eq!(resolve(&s, &mill).unwrap().tool_diameter, 8.0);
+        s.tool_diameter = None;
+        assert!(matches!(
+            resolve(&s, &mill),
+            Err(SettingsError::NoToolDiameter { .. })
+        ));
+        s.fallback_tool_diameter = Some(defaults::DEMO_TOOL_DIAMETER_MM);
+        assert_eq!(resolve(&s, &mill).unwrap().tool_diameter, 6.0);
+        // machine-profiles/laser.toml gives a kerf of 0.2 mm (invented example values).
+        assert_eq!(resolve(&s, &laser).unwrap().tool_diameter, 0.2);
+    }
+
+    #[test]
+    fn the_budget_leaves_rounding_its_share() {
+        // 4 decimals in mm: a step of 1e-4 mm; arcs keep within 2√2 steps, lines √2/2 steps.
+        let mill = profile("metric-mill");
+        let mut s = JobSettings::new("part.dxf", 6.0);
+        let arcs = resolve(&s, &mill).unwrap();
+        let step = 1e-4;
+        assert!((arcs.budget.rounding - 2.0 * std::f64::consts::SQRT_2 * step).abs() < 1e-15);
+        assert!((arcs.fit.tolerance - (0.01 - arcs.budget.rounding)).abs() < 1e-15);
+        s.lines_only = true;
+        let lines = resolve(&s, &mill).unwrap();
+        assert!((lines.budget.rounding - 0.5 * std::f64::consts::SQRT_2 * step).abs() < 1e-15);
+        assert_eq!(lines.fit.moves, MoveKind::Lines);
+        assert!(!lines.program.helical_entry, "a helix is written as arcs");
+        s.tolerance = 1e-4;
+        assert!(matches!(
+            resolve(&s, &mill),
+            Err(SettingsError::ToleranceTooFine { decimals: 4, .. })
+        ));
+    }
+
+    #[test]
+    fn leads_come_from_the_command_line_then_the_job_file_then_the_profile() {
+        let mill = profile("metric-mill");
+        let mut s = JobSettings::new("part.dxf", 6.0);
+        let base = resolve(&s, &mill).unwrap().plan.leads;
+        assert_eq!(base, mill.lead_options());
+        let mut job = crate::settings::job_file::parse_job_file(
+            "units = \"mm\"\nlead = \"line\"\nlead_length = 7\n[[feature]]\nname = \"a\"\nbay = \"b\"\n",
+            "job.toml",
+        )
+        .unwrap();
+        job.leads.overcut = Some(1.5);
+        s.job = Some(job);
+        s.leads.length = Some(9.0);
+        let leads = resolve(&s, &mill).unwrap().plan.leads;
+        assert_eq!(leads.kind, LeadKind::Line);
+        assert_eq!(leads.length, 9.0);
+        assert_eq!(leads.overcut, 1.5);
+        assert_eq!(leads.radius, base.radius);
+    }
+
+    #[test]
+    fn tabs_default_by_kind_and_bad_requests_are_refused() {
+        let (mill, laser) = (profile("metric-mill"), profile("laser"));
+        let mut s = JobSettings::new("part.dxf", 6.0);
+        s.tabs = Some(TabRequest {
+            count: Some(4),
+            ..TabRequest::default()
+        });
+        let t = resolve(&s, &mill).unwrap().plan.tabs.unwrap();
+        assert_eq!(
+            (t.width, t.height),
+            (defaults::MILL_TAB_WIDTH_MM, defaults::MILL_TAB_HEIGHT_MM)
+        );
+        let t = resolve(&s, &laser).unwrap().plan.tabs.unwrap();
+        assert_eq!((t.width, t.height), (defaults::THERMAL_TAB_WIDTH_MM, 0.0));
+        s.tabs = Some(TabRequest {
+            width: Some(3.0),
+            ..TabRequest::default()
+        });
+        let e = resolve(&s, &mill).unwrap_err();
+        assert!(e.to_string().contains("no tabs were asked for"), "{e}");
+    }
+
+    #[test]
+    fn milling_only_requests_on_a_laser() {
+        let laser = profile("laser");
+        let mut s = JobSettings::new("part.dxf", 0.2);
+        s.direction = Direction::Conventional;
+        let r = resolve(&s, &laser).unwrap();
+        assert_eq!(r.plan.direction, Direction::Climb);
+        assert!(r.direction_warning.is_some());
+        assert!(r.cuts_through && r.depth == 0.0);
+        s.finish_allowance = Some(0.3);
+        assert!(matches!(
+            resolve(&s, &laser),
+            Err(SettingsError::FinishCutsThrough { .. })
+        ));
+    }
+
+    #[test]
+    fn pocket_stepover_defaults_to_a_fraction_of_the_tool() {
+        let mill = profile("metric-mill");
+        let r = resolve(&JobSettings::new("part.dxf", 5.0), &mill).unwrap();
+        assert_eq!(r.plan.pocket_stepover, defaults::pocket_stepover(5.0));
+    }
+}
