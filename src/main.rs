@@ -4,7 +4,7 @@ use anyhow::{Context, Result, bail};
 use clap::{Args, Parser, Subcommand};
 use conicut::chain::{DEFAULT_BAY_LAYER, DEFAULT_GAP_TOLERANCE};
 use conicut::geom::Point;
-use conicut::job::{JobOutput, run_job, solve_job};
+use conicut::job::{JobOutput, resolve, run_resolved, solve_job};
 use conicut::plan::{Direction, LeadKind};
 use conicut::post::MachineProfile;
 use conicut::read::Units;
@@ -239,7 +239,8 @@ fn read_drawing(drawing: &Path) -> Result<(Vec<u8>, String, String)> {
     Ok((bytes, file_name, stem))
 }
 
-fn settings(file_name: String, input: &DrawingArgs, cut: Option<&CutArgs>) -> Result<JobSettings> {
+/// The request: the command line's settings and the job file (with its CSVs) read.
+fn request(file_name: String, input: &DrawingArgs, cut: Option<&CutArgs>) -> Result<JobSettings> {
     let (job, csv_points) = match &input.job {
         Some(p) => {
             let (j, c) = read_job(p)?;
@@ -292,6 +293,8 @@ fn settings(file_name: String, input: &DrawingArgs, cut: Option<&CutArgs>) -> Re
     })
 }
 
+/// Each command: parse (clap, above) → read the inputs → resolve the settings → run the
+/// pipeline → write the outputs.
 fn run(cli: Cli) -> Result<()> {
     match cli.command {
         Command::Demo {
@@ -302,20 +305,7 @@ fn run(cli: Cli) -> Result<()> {
             tool_diameter,
             job,
         } => {
-            let wanted = format!("machine-profiles/{machine}.toml");
-            let Some((file, text)) = BUNDLED_PROFILES.iter().find(|(f, _)| *f == wanted) else {
-                let names: Vec<&str> = BUNDLED_PROFILES
-                    .iter()
-                    .filter_map(|(f, _)| f.strip_prefix("machine-profiles/"))
-                    .filter_map(|f| f.strip_suffix(".toml"))
-                    .collect();
-                bail!(
-                    "there is no bundled profile \"{machine}\"; choose one of {}",
-                    names.join(", ")
-                );
-            };
-            let profile =
-                MachineProfile::from_toml(text, file).map_err(|e| anyhow::anyhow!("{e}"))?;
+            let profile = bundled_profile(&machine)?;
             let input = DrawingArgs {
                 job,
                 units: None,
@@ -323,19 +313,15 @@ fn run(cli: Cli) -> Result<()> {
                 margin,
                 gap_tolerance: DEFAULT_GAP_TOLERANCE,
             };
-            let mut settings = settings(DEMO_NAME.to_string(), &input, Some(&cut))?;
+            let mut request = request(DEMO_NAME.to_string(), &input, Some(&cut))?;
             // The demo's own stock and end mill; cut-through kinds use their kerf.
-            settings.tool_diameter = tool_diameter;
-            settings.fallback_tool_diameter = Some(defaults::DEMO_TOOL_DIAMETER_MM);
-            settings.depth = Some(cut.depth.unwrap_or(conicut::demo::CUT_DEPTH));
+            request.tool_diameter = tool_diameter;
+            request.fallback_tool_diameter = Some(defaults::DEMO_TOOL_DIAMETER_MM);
+            request.depth = Some(cut.depth.unwrap_or(conicut::demo::CUT_DEPTH));
+            let resolved = resolve(&request, &profile)?;
             let bytes = conicut::demo::demo_dxf_bytes();
-            let output = run_job(&bytes, &profile, &settings)?;
-            let stem = if machine == "metric-mill" {
-                "truss-bracket".to_string()
-            } else {
-                format!("truss-bracket-{machine}")
-            };
-            finish(output, &out, &stem)
+            let output = run_resolved(&bytes, &profile, &request, &resolved)?;
+            finish(output, &out, &demo_stem(&machine))
         }
         Command::Solve {
             drawing,
@@ -343,8 +329,8 @@ fn run(cli: Cli) -> Result<()> {
             json,
         } => {
             let (bytes, file_name, _) = read_drawing(&drawing)?;
-            let settings = settings(file_name, &input, None)?;
-            let listing = solve_job(&bytes, &settings)?;
+            let request = request(file_name, &input, None)?;
+            let listing = solve_job(&bytes, &request)?;
             if json {
                 println!("{}", listing.to_json());
             } else {
@@ -360,18 +346,49 @@ fn run(cli: Cli) -> Result<()> {
             input,
             cut,
         } => {
-            let profile_text = fs::read_to_string(&machine).with_context(|| {
-                format!("cannot read the machine profile {}", machine.display())
-            })?;
-            let profile = MachineProfile::from_toml(&profile_text, &machine.display().to_string())
-                .map_err(|e| anyhow::anyhow!("{e}"))?;
+            let profile = read_profile(&machine)?;
             let (bytes, file_name, stem) = read_drawing(&drawing)?;
-            let mut settings = settings(file_name, &input, Some(&cut))?;
-            settings.tool_diameter = tool_diameter;
-            let output = run_job(&bytes, &profile, &settings)?;
+            let mut request = request(file_name, &input, Some(&cut))?;
+            request.tool_diameter = tool_diameter;
+            let resolved = resolve(&request, &profile)?;
+            let output = run_resolved(&bytes, &profile, &request, &resolved)?;
             let out = out.unwrap_or_else(|| PathBuf::from(format!("{stem}-conicut")));
             finish(output, &out, &stem)
         }
+    }
+}
+
+/// A bundled profile by its stem (`metric-mill`, `laser`, …).
+fn bundled_profile(machine: &str) -> Result<MachineProfile> {
+    let wanted = format!("machine-profiles/{machine}.toml");
+    let Some((file, text)) = BUNDLED_PROFILES.iter().find(|(f, _)| *f == wanted) else {
+        let names: Vec<&str> = BUNDLED_PROFILES
+            .iter()
+            .filter_map(|(f, _)| f.strip_prefix("machine-profiles/"))
+            .filter_map(|f| f.strip_suffix(".toml"))
+            .collect();
+        bail!(
+            "there is no bundled profile \"{machine}\"; choose one of {}",
+            names.join(", ")
+        );
+    };
+    MachineProfile::from_toml(text, file).map_err(|e| anyhow::anyhow!("{e}"))
+}
+
+/// A machine profile read from a file.
+fn read_profile(path: &Path) -> Result<MachineProfile> {
+    let text = fs::read_to_string(path)
+        .with_context(|| format!("cannot read the machine profile {}", path.display()))?;
+    MachineProfile::from_toml(&text, &path.display().to_string())
+        .map_err(|e| anyhow::anyhow!("{e}"))
+}
+
+/// The demo's output stem: `truss-bracket` on the metric mill, else with the profile's name.
+fn demo_stem(machine: &str) -> String {
+    if machine == "metric-mill" {
+        "truss-bracket".to_string()
+    } else {
+        format!("truss-bracket-{machine}")
     }
 }
 

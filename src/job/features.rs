@@ -100,105 +100,128 @@ fn solve_one(spec: &FeatureSpec, inputs: &FeatureInputs) -> SolvedFeature {
     match &spec.source {
         FeatureSource::Bay { select, rule } => {
             let margin = spec.margin.unwrap_or(inputs.default_margin);
-            out.rule = Some(rule.describe());
-            out.margin_mm = Some(margin);
-            out.outcome = find_bay(inputs.part, select).and_then(|bay| {
-                out.source = format!("{} ({} sides)", bay.name, bay.corners.len());
-                out.bay = Some(bay.name.clone());
-                solve_bay(bay, rule, margin).map(|s| {
-                    out.solved_corners = Some(s.solved_corners);
-                    s.solution
-                })
-            });
-            if out.source.is_empty() {
-                out.source = describe_select(select);
-            }
+            bay_feature(&mut out, inputs, select, rule, margin);
         }
         FeatureSource::Constraints {
             through,
             touching,
             choose,
-        } => {
-            let points = match through {
-                PointSource::Given(p) => Ok(p.clone()),
-                PointSource::Layer(layer) => layer_points(inputs.drawing, layer),
-            };
-            let lines = match touching {
-                LineSource::Given(l) => l
-                    .iter()
-                    .map(|(p, q)| {
-                        Line::through(*p, *q).ok_or_else(|| {
-                            format!(
-                                "a line to touch is given by two equal points ({:.3}, {:.3})",
-                                p.x, p.y
-                            )
-                        })
-                    })
-                    .collect(),
-                LineSource::Layer(layer) => layer_lines(inputs.drawing, layer),
-            };
-            out.outcome = match (points, lines) {
-                (Ok(p), Ok(l)) => {
-                    out.source = format!(
-                        "{} point{} and {} line{}",
-                        p.len(),
-                        if p.len() == 1 { "" } else { "s" },
-                        l.len(),
-                        if l.len() == 1 { "" } else { "s" }
-                    );
-                    solve_constraints(&p, &l, *choose)
-                }
-                (Err(e), _) | (_, Err(e)) => Err(failure(e)),
-            };
-            if out.source.is_empty() {
-                out.source = "points and lines".into();
-            }
-        }
-        FeatureSource::Fit { points } => {
-            let pts = match points {
-                FitPoints::Csv(path) => inputs
-                    .csv_points
-                    .get(path)
-                    .cloned()
-                    .ok_or_else(|| format!("the points file {path} was not read")),
-                FitPoints::Layer(layer) => layer_points(inputs.drawing, layer),
-            };
-            out.source = match &pts {
-                Ok(p) => format!("fit to {} points", p.len()),
-                Err(_) => "fit to measured points".into(),
-            };
-            out.outcome = pts.map_err(failure).and_then(|p| {
-                let f = fit_ellipse(&p).map_err(|e| failure(e.to_string()))?;
-                out.fit = Some(FitQuality {
-                    points: f.points,
-                    rms_residual_mm: f.rms_residual,
-                    max_residual_mm: f.max_residual,
-                });
-                let c = Candidate {
-                    kind: if (f.ellipse.a() - f.ellipse.b()) <= 1e-9 * f.ellipse.a() {
-                        crate::solve::conic::ConicKind::Circle
-                    } else {
-                        crate::solve::conic::ConicKind::Ellipse
-                    },
-                    ellipse: Some(f.ellipse),
-                    parameter: None,
-                    cuttable: true,
-                    note: format!(
-                        "least-squares fit: RMS distance {:.4} mm, largest {:.4} mm",
-                        f.rms_residual, f.max_residual
-                    ),
-                    residual: f.max_residual,
-                };
-                Solution::new(
-                    vec![c],
-                    0,
-                    "the direct least-squares ellipse fit (Halíř–Flusser) to the points".into(),
-                )
-                .ok_or_else(|| failure("the fit gave no ellipse".into()))
-            });
-        }
+        } => constraints_feature(&mut out, inputs, through, touching, *choose),
+        FeatureSource::Fit { points } => fit_feature(&mut out, inputs, points),
     }
     out
+}
+
+/// A bay and a rule, the bay's sides moved in by `margin`.
+fn bay_feature(
+    out: &mut SolvedFeature,
+    inputs: &FeatureInputs,
+    select: &BaySelect,
+    rule: &Rule,
+    margin: f64,
+) {
+    out.rule = Some(rule.describe());
+    out.margin_mm = Some(margin);
+    out.outcome = find_bay(inputs.part, select).and_then(|bay| {
+        out.source = format!("{} ({} sides)", bay.name, bay.corners.len());
+        out.bay = Some(bay.name.clone());
+        solve_bay(bay, rule, margin).map(|s| {
+            out.solved_corners = Some(s.solved_corners);
+            s.solution
+        })
+    });
+    if out.source.is_empty() {
+        out.source = describe_select(select);
+    }
+}
+
+/// Five points and lines, from the job file or the drawing's layers.
+fn constraints_feature(
+    out: &mut SolvedFeature,
+    inputs: &FeatureInputs,
+    through: &PointSource,
+    touching: &LineSource,
+    choose: Option<usize>,
+) {
+    let points = match through {
+        PointSource::Given(p) => Ok(p.clone()),
+        PointSource::Layer(layer) => layer_points(inputs.drawing, layer),
+    };
+    let lines = match touching {
+        LineSource::Given(l) => l
+            .iter()
+            .map(|(p, q)| {
+                Line::through(*p, *q).ok_or_else(|| {
+                    format!(
+                        "a line to touch is given by two equal points ({:.3}, {:.3})",
+                        p.x, p.y
+                    )
+                })
+            })
+            .collect(),
+        LineSource::Layer(layer) => layer_lines(inputs.drawing, layer),
+    };
+    out.outcome = match (points, lines) {
+        (Ok(p), Ok(l)) => {
+            out.source = format!(
+                "{} point{} and {} line{}",
+                p.len(),
+                if p.len() == 1 { "" } else { "s" },
+                l.len(),
+                if l.len() == 1 { "" } else { "s" }
+            );
+            solve_constraints(&p, &l, choose)
+        }
+        (Err(e), _) | (_, Err(e)) => Err(failure(e)),
+    };
+    if out.source.is_empty() {
+        out.source = "points and lines".into();
+    }
+}
+
+/// A least-squares fit to measured points (a CSV the job names, or a layer).
+fn fit_feature(out: &mut SolvedFeature, inputs: &FeatureInputs, points: &FitPoints) {
+    let pts = match points {
+        FitPoints::Csv(path) => inputs
+            .csv_points
+            .get(path)
+            .cloned()
+            .ok_or_else(|| format!("the points file {path} was not read")),
+        FitPoints::Layer(layer) => layer_points(inputs.drawing, layer),
+    };
+    out.source = match &pts {
+        Ok(p) => format!("fit to {} points", p.len()),
+        Err(_) => "fit to measured points".into(),
+    };
+    out.outcome = pts.map_err(failure).and_then(|p| {
+        let f = fit_ellipse(&p).map_err(|e| failure(e.to_string()))?;
+        out.fit = Some(FitQuality {
+            points: f.points,
+            rms_residual_mm: f.rms_residual,
+            max_residual_mm: f.max_residual,
+        });
+        let c = Candidate {
+            kind: if (f.ellipse.a() - f.ellipse.b()) <= 1e-9 * f.ellipse.a() {
+                crate::solve::conic::ConicKind::Circle
+            } else {
+                crate::solve::conic::ConicKind::Ellipse
+            },
+            ellipse: Some(f.ellipse),
+            parameter: None,
+            cuttable: true,
+            note: format!(
+                "least-squares fit: RMS distance {:.4} mm, largest {:.4} mm",
+                f.rms_residual, f.max_residual
+            ),
+            residual: f.max_residual,
+        };
+        Solution::new(
+            vec![c],
+            0,
+            "the direct least-squares ellipse fit (Halíř–Flusser) to the points".into(),
+        )
+        .ok_or_else(|| failure("the fit gave no ellipse".into()))
+    });
 }
 
 fn describe_select(select: &BaySelect) -> String {

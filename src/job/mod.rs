@@ -15,7 +15,7 @@ use crate::preview::{self, PreviewInput};
 use crate::read::{self, ReadError, ReadOptions};
 use crate::report::{self, FitSummary, Report, ReportInput, SolvedInfo};
 use crate::settings::job_file::{CutKind, JobFile};
-use crate::settings::{self, SettingsError};
+use crate::settings::{self, ResolvedJob, SettingsError};
 pub use crate::settings::{JobSettings, LeadRequest, TabRequest};
 use features::{FeatureInputs, SolvedFeature};
 use listing::SolveListing;
@@ -234,11 +234,28 @@ fn settings_error(file: String, e: SettingsError) -> JobError {
     }
 }
 
-/// Runs the whole job.
+/// Runs the whole job: resolves `s` against `profile` ([`settings::resolve`]), then
+/// [`run_resolved`].
 pub fn run_job(
     dxf: &[u8],
     profile: &MachineProfile,
     s: &JobSettings,
+) -> Result<JobOutput, JobError> {
+    let resolved = resolve(s, profile)?;
+    run_resolved(dxf, profile, s, &resolved)
+}
+
+/// The request resolved against the profile, or the refusal naming the drawing.
+pub fn resolve(s: &JobSettings, profile: &MachineProfile) -> Result<ResolvedJob, JobError> {
+    settings::resolve(s, profile).map_err(|e| settings_error(s.file_name.clone(), e))
+}
+
+/// Runs the whole job with settings already resolved (`resolved` from [`resolve`] of `s`).
+pub fn run_resolved(
+    dxf: &[u8],
+    profile: &MachineProfile,
+    s: &JobSettings,
+    resolved: &ResolvedJob,
 ) -> Result<JobOutput, JobError> {
     let file = || s.file_name.clone();
     let solved = read_and_solve(dxf, s)?;
@@ -299,7 +316,6 @@ pub fn run_job(
             }),
         });
     }
-    let resolved = settings::resolve(s, profile).map_err(|e| settings_error(file(), e))?;
     let plan = plan::plan_cuts(part, &to_cut, &resolved.plan).map_err(|error| JobError::Plan {
         file: file(),
         error,
