@@ -6,9 +6,10 @@
 //! App. B.5.1 likewise stops when the tool radius is not less than the arc radius.
 
 use conicut::chain::{self, ChainOptions, HoleShape, Part};
+use conicut::geom::ExactPath;
 use conicut::geom::{Ellipse, Point, Segment};
 use conicut::jobfile::Rule;
-use conicut::plan::{CutSide, ExactPath, Opening, PlanError, PlanOptions, plan_cuts};
+use conicut::plan::{CutSide, Opening, PlanError, PlanOptions, plan_cuts};
 use conicut::read::{ReadOptions, read_dxf};
 use conicut::solve::feature::solve_bay;
 

@@ -142,9 +142,10 @@ mod measure;
 
 pub use measure::{SideDeviation, measure_deviation, measure_sides, measure_with_sides};
 
-use crate::chain::{Contour, Element};
+use crate::geom::ExactPath;
 use crate::geom::{ArcSegment, Ellipse};
-use crate::plan::{ExactPath, Plan, PlannedCut};
+use crate::geom::{Contour, Element};
+use crate::plan::{Plan, PlannedCut};
 use band::{Band, CircleCurve, EllipseCurve};
 use std::f64::consts::{FRAC_PI_2, PI, TAU};
 
@@ -562,6 +563,6 @@ fn chord_deviation(curve: &impl Fn(f64) -> Point, t0: f64, t1: f64) -> f64 {
     let Some(n) = (q - p).normalized().map(|v| v.perp()) else {
         return 0.0;
     };
-    let (least, _) = band::golden_min(&|t: f64| -n.dot(curve(t) - p).abs(), t0, t1);
+    let (least, _) = crate::geom::search::golden_min(&|t: f64| -n.dot(curve(t) - p).abs(), t0, t1);
     -least
 }

@@ -1,6 +1,8 @@
-//! Plane geometry shared by every stage: points, vectors, lines, segments, circular arcs and
-//! ellipses, feed moves (lines and arcs) and runs of them, and the numeric helpers they need (real polynomial roots on
-//! an interval), and the one inch-to-millimetre factor.
+//! Plane geometry shared by every stage: points, vectors, lines, segments, circular arcs,
+//! ellipses, bounding boxes, closed contours of lines and arcs, exact tool-centre paths and the
+//! edges they make, feed moves (lines and arcs) and runs of them, the numeric helpers they need
+//! (real polynomial roots on an interval, golden-section and Brent searches), and the one
+//! inch-to-millimetre factor.
 //!
 //! # Units and conventions
 //!
@@ -11,17 +13,24 @@
 //! is a `Point`, and there is no `Point + Point`.
 
 mod arc;
+mod bounds;
+mod contour;
 mod ellipse;
 mod line;
 pub mod moves;
+mod path;
 pub mod roots;
+pub mod search;
 pub mod units;
 mod vector;
 
 pub use arc::ArcSegment;
+pub use bounds::Bounds;
+pub use contour::{Contour, Element, bounds_of};
 pub use ellipse::{Ellipse, EllipseError};
 pub use line::{Line, Segment};
 pub use moves::Move;
+pub use path::{Edge, ExactPath};
 pub use vector::{Point, Vec2};
 
 /// Relative tolerance below which two lines count as parallel (sine of the angle between them).

@@ -78,11 +78,10 @@
 //! edge), zero unless the point is on the cut's scrap side.
 
 use super::{
-    CutSide, Edge, ExactPath, FeatureKind, GOUGE_MARGIN, LeadKind, LeadOptions, PlanError,
-    PlanOptions, PlannedCut,
+    CutSide, FeatureKind, GOUGE_MARGIN, LeadKind, LeadOptions, PlanError, PlanOptions, PlannedCut,
 };
-use crate::chain::Element;
-use crate::geom::{ArcSegment, Point, Segment, Vec2};
+use crate::geom::{ArcSegment, Bounds, Point, Segment, Vec2};
+use crate::geom::{Edge, Element, ExactPath};
 use std::f64::consts::{FRAC_PI_2, PI, TAU};
 
 /// Spacing (mm) of the points at which a lead is checked against the edges; at most
@@ -263,7 +262,7 @@ struct Obstacle {
 
 enum Reach {
     Disc(Point, f64),
-    Box(Point, Point),
+    Box(Bounds),
     Unknown,
 }
 
@@ -271,8 +270,8 @@ impl Obstacle {
     fn of(cut: &PlannedCut) -> Obstacle {
         let reach = match &cut.edge {
             Edge::Ellipse(e) => Reach::Disc(e.center(), e.a()),
-            Edge::Contour(c) => match c.bounds() {
-                Some((lo, hi)) => Reach::Box(lo, hi),
+            Edge::Contour(c) => match c.bounding_box() {
+                Some(b) => Reach::Box(b),
                 None => Reach::Unknown,
             },
         };
@@ -288,11 +287,7 @@ impl Obstacle {
     fn lower_bound(&self, p: Point) -> f64 {
         match self.reach {
             Reach::Disc(c, a) => (p.distance(c) - a).max(0.0),
-            Reach::Box(lo, hi) => {
-                let dx = (lo.x - p.x).max(p.x - hi.x).max(0.0);
-                let dy = (lo.y - p.y).max(p.y - hi.y).max(0.0);
-                dx.hypot(dy)
-            }
+            Reach::Box(b) => b.distance_to(p),
             Reach::Unknown => 0.0,
         }
     }
@@ -393,10 +388,7 @@ fn samples(e: &Element) -> Vec<Point> {
     (0..=n)
         .map(|k| {
             let t = k as f64 / n as f64;
-            match e {
-                Element::Line(s) => s.point_at(t),
-                Element::Arc(a) => a.point_at(t),
-            }
+            e.point_at(t)
         })
         .collect()
 }
@@ -865,7 +857,8 @@ fn place_lead_out(
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::chain::{Contour, Part};
+    use crate::chain::Part;
+    use crate::geom::Contour;
     use crate::geom::Ellipse;
     use crate::plan::{Opening, plan_cuts};
 

@@ -34,8 +34,8 @@ pub mod offset;
 pub mod pocket;
 pub mod tabs;
 
-use crate::chain::{Contour, Element, HoleShape, Part};
-use crate::geom::{Ellipse, Point};
+use crate::chain::{HoleShape, Part};
+use crate::geom::{Contour, Edge, Element, Ellipse, ExactPath, Point};
 
 /// The largest share of the tool radius by which a gouge check may be missed: the path is
 /// refused when it comes closer than `(1 − GOUGE_MARGIN) · r` to an edge it must not cut.
@@ -168,81 +168,6 @@ pub struct Tab {
     /// The length along the tool-centre path (mm) over which the tool does not cut: the tab's
     /// width plus the tool's diameter.
     pub length: f64,
-}
-
-/// The finished edge a cut makes: what leads, pierces and clearing moves must keep away from.
-#[derive(Debug, Clone, PartialEq, Serialize)]
-pub enum Edge {
-    Ellipse(Ellipse),
-    Contour(Contour),
-}
-
-impl Edge {
-    /// The distance from `p` to the edge (mm).
-    pub fn distance_to(&self, p: Point) -> f64 {
-        match self {
-            Edge::Ellipse(e) => e.distance_to(p).0,
-            Edge::Contour(c) => c.distance_to(p),
-        }
-    }
-
-    /// Whether `p` is inside the closed edge.
-    pub fn contains(&self, p: Point) -> bool {
-        match self {
-            Edge::Ellipse(e) => e.contains(p),
-            Edge::Contour(c) => c.contains(p),
-        }
-    }
-}
-
-/// An exact tool-centre path.
-#[derive(Debug, Clone, PartialEq, Serialize)]
-pub enum ExactPath {
-    /// The parallel curve `O_d(t) = P(t) − d N(t)` of `ellipse` at signed distance `inset`
-    /// (positive inside, negative outside), travelled once from anomaly `start`,
-    /// counter-clockwise unless `clockwise`.
-    EllipseParallel {
-        ellipse: Ellipse,
-        inset: f64,
-        start: f64,
-        clockwise: bool,
-    },
-    /// A closed contour of lines and arcs that is itself the tool-centre path.
-    Contour(Contour),
-}
-
-impl ExactPath {
-    /// The point where the cut starts and ends.
-    pub fn start_point(&self) -> Point {
-        match self {
-            ExactPath::EllipseParallel {
-                ellipse,
-                inset,
-                start,
-                ..
-            } => ellipse.inward_offset_point(*start, *inset),
-            ExactPath::Contour(c) => c.start_point().unwrap_or(Point::ORIGIN),
-        }
-    }
-
-    /// The same path travelled the other way from the same start point (exact: the ellipse's
-    /// parallel curve with the other sense, a contour's pieces in reverse order, each reversed).
-    pub fn reversed(&self) -> ExactPath {
-        match self {
-            ExactPath::EllipseParallel {
-                ellipse,
-                inset,
-                start,
-                clockwise,
-            } => ExactPath::EllipseParallel {
-                ellipse: *ellipse,
-                inset: *inset,
-                start: *start,
-                clockwise: !clockwise,
-            },
-            ExactPath::Contour(c) => ExactPath::Contour(c.reversed()),
-        }
-    }
 }
 
 /// One feature's planned cut.
@@ -690,10 +615,7 @@ fn check_clearance(
 ) -> Result<(), PlanError> {
     for e in &path.elements {
         for k in 0..64 {
-            let p = match e {
-                Element::Line(s) => s.point_at(k as f64 / 64.0),
-                Element::Arc(a) => a.point_at(k as f64 / 64.0),
-            };
+            let p = e.point_at(k as f64 / 64.0);
             if drawn.distance_to(p) < r * (1.0 - GOUGE_MARGIN) {
                 return Err(PlanError::ToolDoesNotFit {
                     feature: name.to_string(),
@@ -851,13 +773,6 @@ fn tabs_moved(tabs: &[Tab], from: &ExactPath, to: &ExactPath) -> Vec<Tab> {
     }
 }
 
-fn element_point(e: &Element, t: f64) -> Point {
-    match e {
-        Element::Line(s) => s.point_at(t),
-        Element::Arc(a) => a.point_at(t),
-    }
-}
-
 /// The point at `share` of the contour's length from its start.
 fn point_at_share(c: &Contour, share: f64) -> Point {
     let total: f64 = c.elements.iter().map(Element::length).sum();
@@ -865,7 +780,7 @@ fn point_at_share(c: &Contour, share: f64) -> Point {
     for e in &c.elements {
         let len = e.length();
         if left <= len && len > 0.0 {
-            return element_point(e, left / len);
+            return e.point_at(left / len);
         }
         left -= len;
     }
@@ -911,7 +826,7 @@ fn share_nearest(c: &Contour, p: Point) -> f64 {
                 }
             }
         };
-        let dist = p.distance(element_point(e, t));
+        let dist = p.distance(e.point_at(t));
         if dist < best.0 {
             best = (dist, (walked + t * len) / total);
         }

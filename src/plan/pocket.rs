@@ -73,8 +73,8 @@
 //! straight move outwards along the major axis through material being removed, never nearer the
 //! edge than the ring it reaches.
 
-use super::{ExactPath, PlanError, PlanOptions};
-use crate::chain::{Contour, Element};
+use super::{PlanError, PlanOptions};
+use crate::geom::{Contour, Element, ExactPath};
 use crate::geom::{Ellipse, Point, Segment, Vec2};
 use std::f64::consts::PI;
 

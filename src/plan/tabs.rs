@@ -59,7 +59,7 @@
 use super::{
     ExactPath, LeadKind, LeadOptions, PlanError, PlanOptions, PlannedCut, Tab, TabOptions,
 };
-use crate::chain::Element;
+use crate::geom::Element;
 
 /// An arc is gentle enough for a tab when its tool-centre radius is at least this many tool
 /// diameters (our choice; common practice only says "straight or gently curved stretches",
@@ -256,9 +256,10 @@ fn nearest(set: &[(f64, f64)], aim: f64) -> Option<f64> {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::chain::Contour;
+    use crate::geom::Contour;
+    use crate::geom::Edge;
     use crate::geom::{ArcSegment, Point, Segment};
-    use crate::plan::{CutSide, Edge, FeatureKind};
+    use crate::plan::{CutSide, FeatureKind};
     use std::f64::consts::FRAC_PI_2;
 
     /// A clockwise tool-centre path round a `w` × `h` rectangle whose corners are quarter arcs
