@@ -142,9 +142,9 @@ mod measure;
 
 pub use measure::{SideDeviation, measure_deviation, measure_sides, measure_with_sides};
 
-use crate::geom::ExactPath;
 use crate::geom::{ArcSegment, Ellipse};
 use crate::geom::{Contour, Element};
+use crate::geom::{ExactPath, ParallelCurve};
 use crate::plan::{Plan, PlannedCut};
 use band::{Band, CircleCurve, EllipseCurve};
 use std::f64::consts::{FRAC_PI_2, PI, TAU};
@@ -258,14 +258,13 @@ pub fn fit_cut(cut: &PlannedCut, options: &FitOptions) -> Result<FittedCut, FitE
             start,
             clockwise,
         } => {
-            let limit = ellipse.min_radius_of_curvature();
-            if inset.is_nan() || *inset >= limit {
-                return Err(FitError::IrregularPath {
+            ParallelCurve::new(*ellipse, *inset, 0.0).map_err(|too_deep| {
+                FitError::IrregularPath {
                     feature: cut.name.clone(),
                     inset: *inset,
-                    limit,
-                });
-            }
+                    limit: too_deep.limit,
+                }
+            })?;
             fit_ellipse_parallel(ellipse, *inset, *start, *clockwise, cut.scrap_left, options)
                 .ok_or_else(|| FitError::NoArcSpline {
                     feature: cut.name.clone(),
@@ -347,7 +346,7 @@ fn fit_ellipse_parallel(
     options: &FitOptions,
 ) -> Option<(Point, Vec<Move>)> {
     let curve = EllipseCurve { ellipse: *e, inset };
-    let reach = e.min_radius_of_curvature() - inset;
+    let reach = ParallelCurve::any(*e, inset).reach();
     let band = Band::new(
         options.tolerance,
         options.scrap_side_only,

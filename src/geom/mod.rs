@@ -1,5 +1,5 @@
 //! Plane geometry shared by every stage: points, vectors, lines, segments, circular arcs,
-//! ellipses, bounding boxes, closed contours of lines and arcs, exact tool-centre paths and the
+//! ellipses and their parallel curves, bounding boxes, closed contours of lines and arcs, exact tool-centre paths and the
 //! edges they make, feed moves (lines and arcs) and runs of them, the numeric helpers they need
 //! (real polynomial roots on an interval, golden-section and Brent searches), and the one
 //! inch-to-millimetre factor.
@@ -18,6 +18,7 @@ mod contour;
 mod ellipse;
 mod line;
 pub mod moves;
+mod parallel;
 mod path;
 pub mod roots;
 pub mod search;
@@ -30,6 +31,7 @@ pub use contour::{Contour, Element, bounds_of};
 pub use ellipse::{Ellipse, EllipseError};
 pub use line::{Line, Segment};
 pub use moves::Move;
+pub use parallel::{OffsetTooDeep, ParallelCurve};
 pub use path::{Edge, ExactPath};
 pub use vector::{Point, Vec2};
 

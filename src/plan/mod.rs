@@ -35,7 +35,9 @@ pub mod pocket;
 pub mod tabs;
 
 use crate::chain::{HoleShape, Part};
-use crate::geom::{Contour, Edge, Element, Ellipse, ExactPath, Point};
+use crate::geom::{
+    Contour, Edge, Element, Ellipse, ExactPath, OffsetTooDeep, ParallelCurve, Point,
+};
 
 /// The largest share of the tool radius by which a gouge check may be missed: the path is
 /// refused when it comes closer than `(1 − GOUGE_MARGIN) · r` to an edge it must not cut.
@@ -500,17 +502,20 @@ fn plan_ellipse(
     r: f64,
     d: f64,
 ) -> Result<PlannedCut, PlanError> {
-    let limit = e.min_radius_of_curvature();
-    if r >= limit * (1.0 - GOUGE_MARGIN) {
-        return Err(PlanError::EllipseTooTight {
+    let curve =
+        ParallelCurve::new(*e, r, GOUGE_MARGIN).map_err(|too_deep| PlanError::EllipseTooTight {
             feature: name.to_string(),
             diameter: d,
             radius: r,
-            limit,
-            max_diameter: 2.0 * limit,
-        });
-    }
-    Ok(PlannedCut::around_ellipse(name, kind, *e, r))
+            limit: too_deep.limit,
+            max_diameter: 2.0 * too_deep.limit,
+        })?;
+    Ok(PlannedCut::around_ellipse(
+        name,
+        kind,
+        *curve.ellipse(),
+        curve.inset(),
+    ))
 }
 
 /// The outside cut of an elliptical boss: the outward parallel curve at the tool radius (always
@@ -681,8 +686,7 @@ fn roughing_cut(finish: &PlannedCut, s: f64, r: f64, d: f64) -> Result<PlannedCu
     let mut rough = match &finish.edge {
         Edge::Ellipse(e) => {
             if finish.side == CutSide::Inside {
-                let limit = e.min_radius_of_curvature();
-                if rr >= limit * (1.0 - GOUGE_MARGIN) {
+                if let Err(OffsetTooDeep { limit, .. }) = ParallelCurve::new(*e, rr, GOUGE_MARGIN) {
                     let largest = limit * (1.0 - GOUGE_MARGIN) - r;
                     // Rounded down to 0.1 µm, so that the allowance named fits.
                     let shown = (largest * 1e4).floor() / 1e4;
