@@ -56,10 +56,8 @@
 //! they were placed; band polygons of lines-only output differ in length by far less than the
 //! end margin).
 
-use super::{
-    ExactPath, LeadKind, LeadOptions, PlanError, PlanOptions, PlannedCut, Tab, TabOptions,
-};
-use crate::geom::Element;
+use super::{LeadKind, LeadOptions, PlanError, PlanOptions, PlannedCut, Tab, TabOptions};
+use crate::geom::{Element, ExactPath};
 
 /// An arc is gentle enough for a tab when its tool-centre radius is at least this many tool
 /// diameters (our choice; common practice only says "straight or gently curved stretches",
