@@ -251,28 +251,7 @@ pub fn fit_cut(cut: &PlannedCut, options: &FitOptions) -> Result<FittedCut, FitE
     if !(tolerance >= MIN_TOLERANCE && tolerance.is_finite()) {
         return Err(FitError::BadTolerance(tolerance));
     }
-    let (start, moves) = match &cut.path {
-        ExactPath::EllipseParallel {
-            ellipse,
-            inset,
-            start,
-            clockwise,
-        } => {
-            ParallelCurve::new(*ellipse, *inset, 0.0).map_err(|too_deep| {
-                FitError::IrregularPath {
-                    feature: cut.name.clone(),
-                    inset: *inset,
-                    limit: too_deep.limit,
-                }
-            })?;
-            fit_ellipse_parallel(ellipse, *inset, *start, *clockwise, cut.scrap_left, options)
-                .ok_or_else(|| FitError::NoArcSpline {
-                    feature: cut.name.clone(),
-                    tolerance,
-                })?
-        }
-        ExactPath::Contour(c) => fit_contour(c, cut.scrap_left, options),
-    };
+    let (start, moves) = fit_path(cut, options)?;
     let (measured, sides) = measure::measure_with_sides(start, &moves, &cut.path, cut.scrap_left);
     if measured.is_nan() || measured > tolerance {
         return Err(FitError::ToleranceExceeded {
@@ -298,17 +277,7 @@ pub fn fit_cut(cut: &PlannedCut, options: &FitOptions) -> Result<FittedCut, FitE
     let lead_out_from = overcut.last().map_or(start, Move::end);
     let lead_out = elements_to_moves(&cut.lead_out, lead_out_from, None, options);
     let length = moves::total_length(start, &moves);
-    let tabs = cut
-        .tabs
-        .iter()
-        .map(|t| {
-            let mid = t.at.rem_euclid(1.0) * length;
-            (
-                (mid - 0.5 * t.length).max(0.0),
-                (mid + 0.5 * t.length).min(length),
-            )
-        })
-        .collect();
+    let tabs = tab_spans(cut, length);
     Ok(FittedCut {
         name: cut.name.clone(),
         kind: cut.kind,
@@ -330,6 +299,47 @@ pub fn fit_cut(cut: &PlannedCut, options: &FitOptions) -> Result<FittedCut, FitE
         scrap_left: cut.scrap_left,
         allowance: cut.allowance,
     })
+}
+
+/// The cut's tool-centre path as a start point and moves within the tolerance band; refuses an
+/// irregular parallel curve (inset at or past b²/a).
+fn fit_path(cut: &PlannedCut, options: &FitOptions) -> Result<(Point, Vec<Move>), FitError> {
+    Ok(match &cut.path {
+        ExactPath::EllipseParallel {
+            ellipse,
+            inset,
+            start,
+            clockwise,
+        } => {
+            ParallelCurve::new(*ellipse, *inset, 0.0).map_err(|too_deep| {
+                FitError::IrregularPath {
+                    feature: cut.name.clone(),
+                    inset: *inset,
+                    limit: too_deep.limit,
+                }
+            })?;
+            fit_ellipse_parallel(ellipse, *inset, *start, *clockwise, cut.scrap_left, options)
+                .ok_or_else(|| FitError::NoArcSpline {
+                    feature: cut.name.clone(),
+                    tolerance: options.tolerance,
+                })?
+        }
+        ExactPath::Contour(c) => fit_contour(c, cut.scrap_left, options),
+    })
+}
+
+/// The tabs as stretches `(from, to)` of the fitted contour's length (mm), clipped to it.
+fn tab_spans(cut: &PlannedCut, length: f64) -> Vec<(f64, f64)> {
+    cut.tabs
+        .iter()
+        .map(|t| {
+            let mid = t.at.rem_euclid(1.0) * length;
+            (
+                (mid - 0.5 * t.length).max(0.0),
+                (mid + 0.5 * t.length).min(length),
+            )
+        })
+        .collect()
 }
 
 /// The parallel curve `O_d(t)` (`d` = `inset`) from anomaly `start`, once round, as a start
