@@ -137,7 +137,7 @@ impl PlannedCut {
     /// (each still starts and ends where it did), the scrap on the other side of travel, tabs
     /// kept where they are (their shares measured from the start the other way round). The plunge
     /// point, the edge and the entry room do not change. For cuts without leads (the planner
-    /// reverses before [`leads::add_leads`]): leads, overcut and lead-out are not reversed.
+    /// reverses before [`super::leads::add_leads`]): leads, overcut and lead-out are not reversed.
     pub fn reversed(mut self) -> Self {
         self.path = self.path.reversed();
         self.clearing = self.clearing.iter().map(ExactPath::reversed).collect();

@@ -34,12 +34,12 @@ mod error;
 mod finishing;
 mod lead_room;
 mod lead_shape;
-pub mod leads;
-pub mod offset;
+mod leads;
+mod offset;
 mod options;
 mod paths;
 pub mod pocket;
-pub mod tabs;
+mod tabs;
 
 pub use cut::{PlannedCut, Tab};
 pub use error::PlanError;

@@ -23,7 +23,7 @@ pub struct PlanOptions {
     /// Laser, plasma and waterjet (`Some`): the pierce point's least distance from every
     /// finished edge (mm; one kerf plus the pierce crater, docs/sources.md P4.3).
     /// Mills and routers (`None`): no pierce, but every lead arc must be wider than the tool
-    /// (NISTIR 6556 App. B.3.1). See [`leads`].
+    /// (NISTIR 6556 App. B.3.1). See [`super::leads`].
     pub pierce_clearance: Option<f64>,
 }
 
