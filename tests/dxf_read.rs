@@ -2,9 +2,10 @@
 //! drawings written in memory with the `dxf` crate (R2000 unless said otherwise).
 
 use conicut::chain::{
-    BayProblem, ChainError, ChainOptions, DEFAULT_BAY_LAYER, Element, HoleShape, build_part,
+    BayProblem, ChainError, ChainOptions, DEFAULT_BAY_LAYER, HoleShape, build_part,
 };
 use conicut::demo::{BAYS, BOLT_HOLE_CENTRES, BOLT_HOLE_RADIUS, demo_drawing, demo_dxf_bytes};
+use conicut::geom::Element;
 use conicut::geom::Point;
 use conicut::read::{EntityKind, ReadError, ReadOptions, Units, UnitsSource, read_dxf};
 use dxf::entities::{Arc, Entity, EntityType, Line, Text};

@@ -39,15 +39,16 @@
 
 #[path = "support/demo_job.rs"]
 mod demo_job;
-use conicut::chain::{Contour, Element, Part};
+use conicut::chain::Part;
 use conicut::check::{self, Trace, TraceMove};
 use conicut::fit::FittedCut;
+use conicut::geom::ExactPath;
 use conicut::geom::Move;
+use conicut::geom::{Contour, Element};
 use conicut::geom::{Ellipse, Point, Segment};
 use conicut::job::{JobError, JobOutput, JobSettings, LeadRequest, run_job};
 use conicut::plan::{
-    CutSide, Direction, ExactPath, FeatureKind, LeadKind, Opening, PlanError, PlanOptions,
-    plan_cuts,
+    CutSide, Direction, FeatureKind, LeadKind, Opening, PlanError, PlanOptions, plan_cuts,
 };
 use conicut::post::{ProgramSettings, write_program};
 use demo_job::profile;

@@ -8,11 +8,12 @@
 #[path = "support/fit_estimates.rs"]
 mod fit_estimates;
 
-use conicut::chain::{Contour, Element};
 use conicut::fit::{FitError, FitOptions, FittedCut, MoveKind, PART_SIDE_SLACK, fit_cut};
 use conicut::geom::Move;
 use conicut::geom::{ArcSegment, Ellipse, Point, Segment};
-use conicut::plan::{CutSide, Edge, ExactPath, FeatureKind, PlannedCut};
+use conicut::geom::{Contour, Element};
+use conicut::geom::{Edge, ExactPath};
+use conicut::plan::{CutSide, FeatureKind, PlannedCut};
 use std::f64::consts::{FRAC_PI_2, PI, TAU};
 
 fn ellipse_cut(e: Ellipse, inset: f64) -> PlannedCut {

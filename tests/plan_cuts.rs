@@ -6,8 +6,9 @@
 //! App. B.5.1 likewise stops when the tool radius is not less than the arc radius.
 
 use conicut::chain::{self, ChainOptions, HoleShape, Part};
+use conicut::geom::ExactPath;
 use conicut::geom::{Ellipse, Point, Segment};
-use conicut::plan::{CutSide, ExactPath, Opening, PlanError, PlanOptions, plan_cuts};
+use conicut::plan::{CutSide, Opening, PlanError, PlanOptions, plan_cuts};
 use conicut::read::{ReadOptions, read_dxf};
 use conicut::settings::job_file::Rule;
 use conicut::solve::feature::solve_bay;

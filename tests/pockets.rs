@@ -32,16 +32,17 @@
 
 #[path = "support/demo_job.rs"]
 mod demo_job;
-use conicut::chain::{Element, Part};
+use conicut::chain::Part;
 use conicut::check::{self, Trace, TraceMove};
 use conicut::fit::{FitOptions, MoveKind, fit_cut};
+use conicut::geom::Element;
+use conicut::geom::ExactPath;
 use conicut::geom::Move;
 use conicut::geom::{Ellipse, Point, Vec2};
 use conicut::job::{JobError, JobSettings, LeadRequest, run_job};
 use conicut::plan::pocket::{self, RING_CHORD_TOLERANCE};
 use conicut::plan::{
-    CutSide, ExactPath, FeatureKind, LeadKind, Opening, Plan, PlanError, PlanOptions, PlannedCut,
-    plan_cuts,
+    CutSide, FeatureKind, LeadKind, Opening, Plan, PlanError, PlanOptions, PlannedCut, plan_cuts,
 };
 use conicut::settings::job_file::parse_job_file;
 use demo_job::profile;
@@ -358,8 +359,8 @@ fn insets(cut: &PlannedCut) -> Vec<f64> {
                 // Every vertex of a trimmed ring lies on its level set: read the level back.
                 let p = c.start_point().expect("a ring has vertices");
                 match &cut.edge {
-                    conicut::plan::Edge::Ellipse(e) => e.distance_to(p).0,
-                    conicut::plan::Edge::Contour(_) => f64::NAN,
+                    conicut::geom::Edge::Ellipse(e) => e.distance_to(p).0,
+                    conicut::geom::Edge::Contour(_) => f64::NAN,
                 }
             }
         })
@@ -549,8 +550,8 @@ fn the_coverage_check_finds_islands() {
     );
 }
 
-fn contour_of(points: &[Point]) -> conicut::chain::Contour {
-    conicut::chain::Contour {
+fn contour_of(points: &[Point]) -> conicut::geom::Contour {
+    conicut::geom::Contour {
         elements: points
             .windows(2)
             .map(|w| Element::Line(conicut::geom::Segment::new(w[0], w[1])))

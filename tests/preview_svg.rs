@@ -1,9 +1,10 @@
 //! The SVG preview is well-formed XML, covers the part, draws each solved ellipse exactly, shows
 //! every cut and plunge point, and renders (resvg) with the tool paths and ellipses in place.
 
-use conicut::chain::{Bay, Contour, Element, Hole, HoleShape, Part};
+use conicut::chain::{Bay, Hole, HoleShape, Part};
 use conicut::fit::FittedCut;
 use conicut::geom::{ArcSegment, Ellipse, Point, Segment};
+use conicut::geom::{Contour, Element};
 use conicut::plan::{CutSide, FeatureKind};
 use conicut::preview::{PreviewInput, preview_svg};
 use resvg::tiny_skia;

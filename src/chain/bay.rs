@@ -1,6 +1,7 @@
 //! Checking a closed loop on the bay layer and turning it into a [`Bay`].
 
-use super::{Bay, BayError, BayProblem, ChainError, Element, fmt_handles};
+use super::{Bay, BayError, BayProblem, ChainError, fmt_handles};
+use crate::geom::Element;
 use crate::geom::Point;
 
 /// Consecutive sides whose directions differ by at most this angle (radians) are one side.

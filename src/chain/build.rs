@@ -2,8 +2,9 @@
 
 use super::bay::make_bay;
 use super::join::{Piece, join};
-use super::{Bay, Contour, Element, Hole, HoleShape, Part, bounds_of};
+use super::{Bay, Hole, HoleShape, Part};
 use crate::geom::{ArcSegment, Ellipse, Point, Segment};
+use crate::geom::{Contour, Element, bounds_of};
 use crate::read::{Drawing, EntityKind};
 
 /// The layer that holds bays unless the user names another. Matched case-insensitively, as DXF

@@ -4,7 +4,7 @@
 //! transitively). A group of exactly two ends is a joint; a group of one end is a loose end; a
 //! group of three or more is a branch, which no simple loop can pass, so it is an error.
 
-use super::Element;
+use crate::geom::Element;
 use crate::geom::{ArcSegment, Point};
 use std::collections::HashMap;
 

@@ -22,6 +22,6 @@ pub use build::{
     BayError, BayProblem, CROSSING_CHECK_SAGITTA, ChainError, ChainOptions, DEFAULT_BAY_LAYER,
     DEFAULT_GAP_TOLERANCE, OpenContour, build_part,
 };
-pub use contour::{Bay, Contour, Element, Hole, HoleShape, Part, bounds_of};
+pub use contour::{Bay, Hole, HoleShape, Part};
 
 use build::fmt_handles;

@@ -15,9 +15,9 @@
 //! measurement, not the writer).
 
 use crate::fit::{measure_deviation, measure_sides};
+use crate::geom::ExactPath;
 use crate::geom::Move;
 use crate::geom::Point;
-use crate::plan::ExactPath;
 use serde::Serialize;
 
 pub mod scrap;

@@ -34,9 +34,10 @@
 //! spacing, and only where a move runs along an edge.
 
 use crate::check::{self, Trace, TraceMove};
+use crate::geom::Edge;
 use crate::geom::Move;
 use crate::geom::Point;
-use crate::plan::{CutSide, Edge, FeatureKind, GOUGE_MARGIN, PlannedCut};
+use crate::plan::{CutSide, FeatureKind, GOUGE_MARGIN, PlannedCut};
 
 /// Spacing (mm) of the points checked along each move; at most [`MAX_SAMPLES`] per move.
 pub const SAMPLE_SPACING: f64 = 0.02;
@@ -252,10 +253,10 @@ fn sample_move(m: &TraceMove) -> Vec<(Point, f64)> {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::chain::{Contour, Element};
     use crate::check::trace;
+    use crate::geom::ExactPath;
     use crate::geom::{ArcSegment, Vec2};
-    use crate::plan::ExactPath;
+    use crate::geom::{Contour, Element};
 
     /// A Ø20 mm hole about (50, 50), cut with a 6 mm tool: the path is the circle of radius 7.
     fn hole() -> PlannedCut {

@@ -100,32 +100,3 @@ impl Band {
         0.5 * (self.hi - self.lo)
     }
 }
-
-/// Golden-section search for the smallest value of `f` on `[a, b]` (exact for unimodal `f` up to
-/// the final bracket, 1e-15 of the interval or 100 steps). Returns `(value, argument)`.
-pub(crate) fn golden_min(f: &impl Fn(f64) -> f64, a: f64, b: f64) -> (f64, f64) {
-    let g = 0.5 * (5f64.sqrt() - 1.0);
-    let (mut a, mut b) = (a, b);
-    let (mut c, mut d) = (b - g * (b - a), a + g * (b - a));
-    let (mut fc, mut fd) = (f(c), f(d));
-    let scale = 1e-15 * (1.0 + a.abs().max(b.abs()));
-    for _ in 0..100 {
-        if b - a <= scale {
-            break;
-        }
-        if fc < fd {
-            b = d;
-            d = c;
-            fd = fc;
-            c = b - g * (b - a);
-            fc = f(c);
-        } else {
-            a = c;
-            c = d;
-            fc = fd;
-            d = a + g * (b - a);
-            fd = f(d);
-        }
-    }
-    if fc < fd { (fc, c) } else { (fd, d) }
-}

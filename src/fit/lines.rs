@@ -9,8 +9,9 @@
 //! `N ≈ ∫ √(κ/16ε) ds` (docs/sources.md P3.2; McClure & Vitale for the asymptotics), a
 //! factor √2 fewer than chords with their vertices on the curve.
 
-use super::band::{Band, ConvexCurve, golden_min};
+use super::band::{Band, ConvexCurve};
 use crate::geom::Point;
+use crate::geom::search::golden_min;
 use std::f64::consts::FRAC_PI_2;
 
 /// The largest parameter span of one chord (keeps the curve under each chord turning by less

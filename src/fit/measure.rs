@@ -1,10 +1,10 @@
 //! Measuring how far emitted moves stray from the exact curve they stand for.
 
-use super::band::golden_min;
-use crate::chain::Element;
+use crate::geom::Element;
+use crate::geom::ExactPath;
 use crate::geom::Move;
+use crate::geom::search::golden_min;
 use crate::geom::{ArcSegment, Point, Segment};
-use crate::plan::ExactPath;
 use serde::Serialize;
 use std::f64::consts::TAU;
 
@@ -51,7 +51,7 @@ pub fn measure_with_sides(
     for piece in &pieces {
         let n = samples_for(piece);
         for k in 0..=n {
-            let d = signed_distance_to_exact(exact, piece_point(piece, k as f64 / n as f64));
+            let d = signed_distance_to_exact(exact, piece.point_at(k as f64 / n as f64));
             let d = if scrap_left { d } else { -d };
             if d > 0.0 {
                 sides.scrap_side = sides.scrap_side.max(d);
@@ -85,13 +85,6 @@ fn pieces_of(start: Point, moves: &[Move]) -> Vec<Element> {
     out
 }
 
-fn piece_point(e: &Element, t: f64) -> Point {
-    match e {
-        Element::Line(s) => s.point_at(t),
-        Element::Arc(a) => a.point_at(t),
-    }
-}
-
 /// Points along the exact curve, in the order of travel.
 fn curve_samples(exact: &ExactPath, count: usize) -> Vec<Point> {
     match exact {
@@ -110,10 +103,7 @@ fn curve_samples(exact: &ExactPath, count: usize) -> Vec<Point> {
                 let n = ((count as f64 * e.length() / total).ceil() as usize).max(2);
                 for k in 0..=n {
                     let t = k as f64 / n as f64;
-                    out.push(match e {
-                        Element::Line(s) => s.point_at(t),
-                        Element::Arc(a) => a.point_at(t),
-                    });
+                    out.push(e.point_at(t));
                 }
             }
             out

@@ -142,9 +142,10 @@ mod measure;
 
 pub use measure::{SideDeviation, measure_deviation, measure_sides, measure_with_sides};
 
-use crate::chain::{Contour, Element};
 use crate::geom::{ArcSegment, Ellipse};
-use crate::plan::{ExactPath, Plan, PlannedCut};
+use crate::geom::{Contour, Element};
+use crate::geom::{ExactPath, ParallelCurve};
+use crate::plan::{Plan, PlannedCut};
 use band::{Band, CircleCurve, EllipseCurve};
 use std::f64::consts::{FRAC_PI_2, PI, TAU};
 
@@ -250,29 +251,7 @@ pub fn fit_cut(cut: &PlannedCut, options: &FitOptions) -> Result<FittedCut, FitE
     if !(tolerance >= MIN_TOLERANCE && tolerance.is_finite()) {
         return Err(FitError::BadTolerance(tolerance));
     }
-    let (start, moves) = match &cut.path {
-        ExactPath::EllipseParallel {
-            ellipse,
-            inset,
-            start,
-            clockwise,
-        } => {
-            let limit = ellipse.min_radius_of_curvature();
-            if inset.is_nan() || *inset >= limit {
-                return Err(FitError::IrregularPath {
-                    feature: cut.name.clone(),
-                    inset: *inset,
-                    limit,
-                });
-            }
-            fit_ellipse_parallel(ellipse, *inset, *start, *clockwise, cut.scrap_left, options)
-                .ok_or_else(|| FitError::NoArcSpline {
-                    feature: cut.name.clone(),
-                    tolerance,
-                })?
-        }
-        ExactPath::Contour(c) => fit_contour(c, cut.scrap_left, options),
-    };
+    let (start, moves) = fit_path(cut, options)?;
     let (measured, sides) = measure::measure_with_sides(start, &moves, &cut.path, cut.scrap_left);
     if measured.is_nan() || measured > tolerance {
         return Err(FitError::ToleranceExceeded {
@@ -298,17 +277,7 @@ pub fn fit_cut(cut: &PlannedCut, options: &FitOptions) -> Result<FittedCut, FitE
     let lead_out_from = overcut.last().map_or(start, Move::end);
     let lead_out = elements_to_moves(&cut.lead_out, lead_out_from, None, options);
     let length = moves::total_length(start, &moves);
-    let tabs = cut
-        .tabs
-        .iter()
-        .map(|t| {
-            let mid = t.at.rem_euclid(1.0) * length;
-            (
-                (mid - 0.5 * t.length).max(0.0),
-                (mid + 0.5 * t.length).min(length),
-            )
-        })
-        .collect();
+    let tabs = tab_spans(cut, length);
     Ok(FittedCut {
         name: cut.name.clone(),
         kind: cut.kind,
@@ -332,6 +301,47 @@ pub fn fit_cut(cut: &PlannedCut, options: &FitOptions) -> Result<FittedCut, FitE
     })
 }
 
+/// The cut's tool-centre path as a start point and moves within the tolerance band; refuses an
+/// irregular parallel curve (inset at or past b²/a).
+fn fit_path(cut: &PlannedCut, options: &FitOptions) -> Result<(Point, Vec<Move>), FitError> {
+    Ok(match &cut.path {
+        ExactPath::EllipseParallel {
+            ellipse,
+            inset,
+            start,
+            clockwise,
+        } => {
+            ParallelCurve::new(*ellipse, *inset, 0.0).map_err(|too_deep| {
+                FitError::IrregularPath {
+                    feature: cut.name.clone(),
+                    inset: *inset,
+                    limit: too_deep.limit,
+                }
+            })?;
+            fit_ellipse_parallel(ellipse, *inset, *start, *clockwise, cut.scrap_left, options)
+                .ok_or_else(|| FitError::NoArcSpline {
+                    feature: cut.name.clone(),
+                    tolerance: options.tolerance,
+                })?
+        }
+        ExactPath::Contour(c) => fit_contour(c, cut.scrap_left, options),
+    })
+}
+
+/// The tabs as stretches `(from, to)` of the fitted contour's length (mm), clipped to it.
+fn tab_spans(cut: &PlannedCut, length: f64) -> Vec<(f64, f64)> {
+    cut.tabs
+        .iter()
+        .map(|t| {
+            let mid = t.at.rem_euclid(1.0) * length;
+            (
+                (mid - 0.5 * t.length).max(0.0),
+                (mid + 0.5 * t.length).min(length),
+            )
+        })
+        .collect()
+}
+
 /// The parallel curve `O_d(t)` (`d` = `inset`) from anomaly `start`, once round, as a start
 /// point and moves. The fit runs counter-clockwise and is reversed for a clockwise cut; the scrap
 /// is on the left of travel when `scrap_left` (inside for counter-clockwise and outside for
@@ -346,7 +356,7 @@ fn fit_ellipse_parallel(
     options: &FitOptions,
 ) -> Option<(Point, Vec<Move>)> {
     let curve = EllipseCurve { ellipse: *e, inset };
-    let reach = e.min_radius_of_curvature() - inset;
+    let reach = ParallelCurve::any(*e, inset).reach();
     let band = Band::new(
         options.tolerance,
         options.scrap_side_only,
@@ -562,6 +572,6 @@ fn chord_deviation(curve: &impl Fn(f64) -> Point, t0: f64, t1: f64) -> f64 {
     let Some(n) = (q - p).normalized().map(|v| v.perp()) else {
         return 0.0;
     };
-    let (least, _) = band::golden_min(&|t: f64| -n.dot(curve(t) - p).abs(), t0, t1);
+    let (least, _) = crate::geom::search::golden_min(&|t: f64| -n.dot(curve(t) - p).abs(), t0, t1);
     -least
 }

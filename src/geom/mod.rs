@@ -1,6 +1,8 @@
-//! Plane geometry shared by every stage: points, vectors, lines, segments, circular arcs and
-//! ellipses, feed moves (lines and arcs) and runs of them, and the numeric helpers they need (real polynomial roots on
-//! an interval), and the one inch-to-millimetre factor.
+//! Plane geometry shared by every stage: points, vectors, lines, segments, circular arcs,
+//! ellipses and their parallel curves, bounding boxes, closed contours of lines and arcs, exact tool-centre paths and the
+//! edges they make, feed moves (lines and arcs) and runs of them, the numeric helpers they need
+//! (real polynomial roots on an interval, golden-section and Brent searches), and the one
+//! inch-to-millimetre factor.
 //!
 //! # Units and conventions
 //!
@@ -11,17 +13,26 @@
 //! is a `Point`, and there is no `Point + Point`.
 
 mod arc;
+mod bounds;
+mod contour;
 mod ellipse;
 mod line;
 pub mod moves;
+mod parallel;
+mod path;
 pub mod roots;
+pub mod search;
 pub mod units;
 mod vector;
 
 pub use arc::ArcSegment;
+pub use bounds::Bounds;
+pub use contour::{Contour, Element, bounds_of};
 pub use ellipse::{Ellipse, EllipseError};
 pub use line::{Line, Segment};
 pub use moves::Move;
+pub use parallel::{OffsetTooDeep, ParallelCurve};
+pub use path::{Edge, ExactPath};
 pub use units::Units;
 pub use vector::{Point, Vec2};
 

@@ -6,8 +6,8 @@
 //! the corner; where they cross (a corner turning towards the tool side) they are trimmed at
 //! their crossing, leaving a sharp inside corner that the tool rounds with its own radius.
 
-use crate::chain::{Contour, Element};
 use crate::geom::{ArcSegment, Line, Point, Segment, Vec2};
+use crate::geom::{Contour, Element};
 
 /// Sine of the turn below which two pieces count as meeting tangentially (no join needed).
 const TANGENT_SINE: f64 = 1e-9;

@@ -73,8 +73,8 @@
 //! straight move outwards along the major axis through material being removed, never nearer the
 //! edge than the ring it reaches.
 
-use super::{ExactPath, PlanError, PlanOptions};
-use crate::chain::{Contour, Element};
+use super::{PlanError, PlanOptions};
+use crate::geom::{Contour, Element, ExactPath, ParallelCurve};
 use crate::geom::{Ellipse, Point, Segment, Vec2};
 use std::f64::consts::PI;
 
@@ -135,7 +135,7 @@ pub fn ring_levels(e: &Ellipse, r: f64, stepover: f64) -> RingLevels {
     if !valid || b - r <= r {
         return none;
     }
-    let threshold = REGULAR_SHARE * e.min_radius_of_curvature();
+    let threshold = REGULAR_SHARE * ParallelCurve::limit_of(e);
     let trimmed = b - r >= threshold;
     let (largest_gap, h) = if trimmed {
         // Trimmed (or polygon) rings: the outward argument alone, gap + h ≤ r.
@@ -175,16 +175,15 @@ pub fn clearing_rings(
     if !(r > 0.0 && r.is_finite()) {
         return Err(PlanError::BadTool(d));
     }
-    let limit = e.min_radius_of_curvature();
-    if r >= limit * (1.0 - super::GOUGE_MARGIN) {
-        return Err(PlanError::EllipseTooTight {
+    let limit = ParallelCurve::new(*e, r, super::GOUGE_MARGIN)
+        .map_err(|too_deep| PlanError::EllipseTooTight {
             feature: name.to_string(),
             diameter: d,
             radius: r,
-            limit,
-            max_diameter: 2.0 * limit,
-        });
-    }
+            limit: too_deep.limit,
+            max_diameter: 2.0 * too_deep.limit,
+        })?
+        .limit();
     let s = opts.pocket_stepover;
     let problem = if !(s.is_finite() && s > 0.0) {
         Some("not a positive number")
@@ -258,7 +257,7 @@ pub fn level_set_polygon(e: &Ellipse, inset: f64, chord_tolerance: f64) -> Vec<P
     let on_axis = |x: f64| e.center() + axis * x;
     // t* and the corner's abscissa; t* = 0 for a regular level (no corners, the arcs meet at
     // O_δ(0) and O_δ(π)).
-    let (t_star, corner) = if inset <= e.min_radius_of_curvature() {
+    let (t_star, corner) = if ParallelCurve::any(*e, inset).is_regular() {
         (0.0, a - inset)
     } else {
         let s2 = ((inset * inset * a * a / (b * b) - b * b) / (a * a - b * b)).clamp(0.0, 1.0);

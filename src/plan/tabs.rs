@@ -56,10 +56,8 @@
 //! they were placed; band polygons of lines-only output differ in length by far less than the
 //! end margin).
 
-use super::{
-    ExactPath, LeadKind, LeadOptions, PlanError, PlanOptions, PlannedCut, Tab, TabOptions,
-};
-use crate::chain::Element;
+use super::{LeadKind, LeadOptions, PlanError, PlanOptions, PlannedCut, Tab, TabOptions};
+use crate::geom::{Contour, Element, ExactPath};
 
 /// An arc is gentle enough for a tab when its tool-centre radius is at least this many tool
 /// diameters (our choice; common practice only says "straight or gently curved stretches",
@@ -148,54 +146,19 @@ pub fn place_tabs(
     let length = tab_length(tabs.width, d);
     let gentle_radius = (GENTLE_RADIUS_DIAMETERS * d).max(length / GENTLE_TURN);
 
-    // Step 3: where a tab's middle may go, element by element.
-    let end_margin = END_MARGIN_DIAMETERS * d + 0.5 * length;
-    let mut allowed = Vec::new();
-    let mut at = 0.0;
-    for e in &contour.elements {
-        let l = e.length();
-        let gentle = match e {
-            Element::Line(_) => true,
-            Element::Arc(a) => a.radius >= gentle_radius,
-        };
-        if gentle {
-            push_interval(&mut allowed, at + end_margin, at + l - end_margin);
-        }
-        at += l;
-    }
-    // Step 4: clear of the start.
-    let margin = START_MARGIN_DIAMETERS * d;
-    let leads = &opts.leads;
-    let overcut = if leads.overcut.is_finite() {
-        leads.overcut.max(0.0)
-    } else {
-        0.0
-    };
-    let out_reach = if leads.lead_out {
-        lead_reach(leads)
-    } else {
-        0.0
-    };
-    let after = overcut + out_reach + margin + 0.5 * length;
-    let before = lead_reach(leads) + margin + 0.5 * length;
-    let mut free = intersect(&allowed, after, total - before);
-
-    // Steps 2, 5 and 6.
-    let separation = 2.0 * length;
-    let mut placed: Vec<f64> = Vec::new();
-    for k in 0..wanted {
-        if free.is_empty() {
-            break;
-        }
-        let aim = (k as f64 + 0.5) * total / wanted as f64;
-        let Some(mid) = nearest(&free, aim) else {
-            break;
-        };
-        placed.push(mid);
-        for shift in [-total, 0.0, total] {
-            free = subtract(&free, mid + shift - separation, mid + shift + separation);
-        }
-    }
+    let allowed = gentle_stretches(
+        contour,
+        gentle_radius,
+        END_MARGIN_DIAMETERS * d + 0.5 * length,
+    );
+    let free = clear_of_start(
+        &allowed,
+        &opts.leads,
+        START_MARGIN_DIAMETERS * d,
+        length,
+        total,
+    );
+    let mut placed = spread(free, wanted, total, length);
     if placed.len() < wanted {
         warnings.push(format!(
             "{name}: {} of {wanted} tab(s) placed: the rest found no line or gentle arc \
@@ -214,6 +177,70 @@ pub fn place_tabs(
             length,
         })
         .collect())
+}
+
+/// Step 3: where a tab's middle may go, element by element: along lines and arcs of at least
+/// `gentle_radius`, `end_margin` from each piece's ends (shares of the contour's length in mm).
+fn gentle_stretches(contour: &Contour, gentle_radius: f64, end_margin: f64) -> Vec<(f64, f64)> {
+    let mut allowed = Vec::new();
+    let mut at = 0.0;
+    for e in &contour.elements {
+        let l = e.length();
+        let gentle = match e {
+            Element::Line(_) => true,
+            Element::Arc(a) => a.radius >= gentle_radius,
+        };
+        if gentle {
+            push_interval(&mut allowed, at + end_margin, at + l - end_margin);
+        }
+        at += l;
+    }
+    allowed
+}
+
+/// Step 4: the stretches of `allowed` clear of the start: past the overcut and lead-out, and
+/// before the lead-in, each by `margin` plus half a tab of `length`, on a path `total` mm long.
+fn clear_of_start(
+    allowed: &[(f64, f64)],
+    leads: &LeadOptions,
+    margin: f64,
+    length: f64,
+    total: f64,
+) -> Vec<(f64, f64)> {
+    let overcut = if leads.overcut.is_finite() {
+        leads.overcut.max(0.0)
+    } else {
+        0.0
+    };
+    let out_reach = if leads.lead_out {
+        lead_reach(leads)
+    } else {
+        0.0
+    };
+    let after = overcut + out_reach + margin + 0.5 * length;
+    let before = lead_reach(leads) + margin + 0.5 * length;
+    intersect(allowed, after, total - before)
+}
+
+/// Steps 2, 5 and 6: up to `wanted` tab middles in `free`, each nearest its even share of the
+/// path (`total` mm long) and two tab lengths from the others (round the start too).
+fn spread(mut free: Vec<(f64, f64)>, wanted: usize, total: f64, length: f64) -> Vec<f64> {
+    let separation = 2.0 * length;
+    let mut placed: Vec<f64> = Vec::new();
+    for k in 0..wanted {
+        if free.is_empty() {
+            break;
+        }
+        let aim = (k as f64 + 0.5) * total / wanted as f64;
+        let Some(mid) = nearest(&free, aim) else {
+            break;
+        };
+        placed.push(mid);
+        for shift in [-total, 0.0, total] {
+            free = subtract(&free, mid + shift - separation, mid + shift + separation);
+        }
+    }
+    placed
 }
 
 /// Appends the closed interval `[a, b]` when it is not empty.
@@ -256,9 +283,10 @@ fn nearest(set: &[(f64, f64)], aim: f64) -> Option<f64> {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::chain::Contour;
+    use crate::geom::Contour;
+    use crate::geom::Edge;
     use crate::geom::{ArcSegment, Point, Segment};
-    use crate::plan::{CutSide, Edge, FeatureKind};
+    use crate::plan::{CutSide, FeatureKind};
     use std::f64::consts::FRAC_PI_2;
 
     /// A clockwise tool-centre path round a `w` × `h` rectangle whose corners are quarter arcs

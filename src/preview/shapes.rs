@@ -5,9 +5,9 @@
 //! (see the `frame` module).
 
 use super::frame::num;
-use crate::chain::{Contour, Element};
 use crate::geom::Move;
 use crate::geom::{ArcSegment, Ellipse, Point, Vec2};
+use crate::geom::{Contour, Element};
 use std::f64::consts::PI;
 use std::fmt::Write;
 

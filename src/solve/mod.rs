@@ -150,7 +150,7 @@ pub fn ccw_convex_corners(bay: &str, corners: &[Point]) -> Result<Vec<Point>, So
         return Err(degenerate("a corner is not a finite number".into()));
     }
     // The bounding box's diagonal: within a factor √2 of the diameter, and cheap.
-    let diameter = match crate::chain::bounds_of(corners) {
+    let diameter = match crate::geom::bounds_of(corners) {
         Some((lo, hi)) => lo.distance(hi),
         None => 0.0,
     };

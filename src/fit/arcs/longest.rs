@@ -23,80 +23,131 @@ pub(super) fn longest(
         return None;
     }
     let miss = |x: f64| fit(x).map(|f| ((f.error / target).cbrt() - 1.0, f));
-    // The longest end known to fit and its miss, and the one before (at first `x0`, miss −1).
-    let (mut lo, mut f_lo, mut best): (f64, f64, Option<Span>) = (x0, -1.0, None);
-    let mut lo_before = (x0, -1.0);
-    // The shortest end known not to fit and its miss (`None`: no arc), and the one before.
-    let mut hi: Option<(f64, Option<f64>)> = None;
-    let mut hi_before: Option<(f64, f64)> = None;
-    let mut side = 0i8;
+    let mut bracket = Bracket::new(x0, top);
     let mut x = guess.map_or(x0 + 0.25 * width, |g| g.min(top));
     if x.is_nan() || x <= x0 {
         x = x0 + 0.5 * width;
     }
-    let secant = |(xa, fa): (f64, f64), (xb, fb): (f64, f64)| {
-        if fb != fa {
-            xb - fb * (xb - xa) / (fb - fa)
-        } else {
-            f64::NAN
-        }
-    };
     for _ in 0..100 {
         match miss(x) {
             Some((m, f)) if m <= 0.0 => {
-                if best.is_some() {
-                    lo_before = (lo, f_lo);
-                }
-                lo = x;
-                f_lo = m;
-                best = Some(f);
-                if m > -STRETCH_PRECISION || x >= top {
+                if bracket.fits(x, m, f) {
                     break;
                 }
-                if side == -1
-                    && let Some((_, Some(fh))) = hi.as_mut()
-                {
-                    *fh *= 0.5;
-                }
-                side = -1;
             }
-            other => {
-                if let Some((h, Some(fh))) = hi {
-                    hi_before = Some((h, fh));
-                }
-                hi = Some((x, other.map(|(m, _)| m)));
-                if side == 1 {
-                    f_lo *= 0.5;
-                }
-                side = 1;
-            }
+            other => bracket.too_long(x, other.map(|(m, _)| m)),
         }
-        let h = hi.map_or(top, |(h, _)| h);
-        if h - lo <= 1e-12 * width.max(1.0) {
+        let h = bracket.hi.map_or(top, |(h, _)| h);
+        if h - bracket.lo <= 1e-12 * width.max(1.0) {
             break;
         }
-        x = match hi {
+        x = bracket.next(h);
+    }
+    bracket.best
+}
+
+/// What [`longest`] knows about the far end: the longest end known to fit, the shortest known
+/// not to, and the points before them (for the secants).
+struct Bracket {
+    x0: f64,
+    top: f64,
+    /// The longest end known to fit and its miss (at first `x0`, miss −1), and its arc.
+    lo: f64,
+    f_lo: f64,
+    best: Option<Span>,
+    /// The end that fitted before `lo`.
+    lo_before: (f64, f64),
+    /// The shortest end known not to fit and its miss (`None`: no arc), and the one before.
+    hi: Option<(f64, Option<f64>)>,
+    hi_before: Option<(f64, f64)>,
+    /// The side of the last evaluation: −1 fitted, 1 too long, 0 none yet (Illinois halving).
+    side: i8,
+}
+
+impl Bracket {
+    fn new(x0: f64, top: f64) -> Self {
+        Bracket {
+            x0,
+            top,
+            lo: x0,
+            f_lo: -1.0,
+            best: None,
+            lo_before: (x0, -1.0),
+            hi: None,
+            hi_before: None,
+            side: 0,
+        }
+    }
+
+    /// Records an end `x` that fits with miss `m`; `true` when the search is done (the miss
+    /// within [`STRETCH_PRECISION`], or `x` at the top).
+    fn fits(&mut self, x: f64, m: f64, f: Span) -> bool {
+        if self.best.is_some() {
+            self.lo_before = (self.lo, self.f_lo);
+        }
+        self.lo = x;
+        self.f_lo = m;
+        self.best = Some(f);
+        if m > -STRETCH_PRECISION || x >= self.top {
+            return true;
+        }
+        if self.side == -1
+            && let Some((_, Some(fh))) = self.hi.as_mut()
+        {
+            *fh *= 0.5;
+        }
+        self.side = -1;
+        false
+    }
+
+    /// Records an end `x` that is too long, with its miss (`None`: no arc).
+    fn too_long(&mut self, x: f64, m: Option<f64>) {
+        if let Some((h, Some(fh))) = self.hi {
+            self.hi_before = Some((h, fh));
+        }
+        self.hi = Some((x, m));
+        if self.side == 1 {
+            self.f_lo *= 0.5;
+        }
+        self.side = 1;
+    }
+
+    /// The next end to try, with `h` the bracket's upper end (`top` while nothing is known to
+    /// be too long).
+    fn next(&self, h: f64) -> f64 {
+        let (x0, lo, f_lo) = (self.x0, self.lo, self.f_lo);
+        let x = match self.hi {
             // Nothing too long yet: extrapolate past the last fits.
             None => {
-                let root = secant(lo_before, (lo, f_lo));
+                let root = secant(self.lo_before, (lo, f_lo));
                 root + 1e-3 * (root - x0)
             }
             // Nothing fits yet: extrapolate below the last misses.
-            Some((h, Some(fh))) if best.is_none() => {
-                let root = secant(hi_before.unwrap_or((x0, -1.0)), (h, fh));
+            Some((h, Some(fh))) if self.best.is_none() => {
+                let root = secant(self.hi_before.unwrap_or((x0, -1.0)), (h, fh));
                 root - 1e-3 * (root - x0)
             }
             Some((h, Some(fh))) => secant((lo, f_lo), (h, fh)),
             Some((h, None)) => 0.5 * (lo + h),
         };
         // Strictly inside the bracket, or `top` itself while nothing is known to be too long.
-        if hi.is_none() && x >= top {
-            x = top;
+        if self.hi.is_none() && x >= self.top {
+            self.top
         } else if !(x > lo && x < h) {
-            x = 0.5 * (lo + h);
+            0.5 * (lo + h)
+        } else {
+            x
         }
     }
-    best
+}
+
+/// The root of the line through `(xa, fa)` and `(xb, fb)`; NaN when it is flat.
+fn secant((xa, fa): (f64, f64), (xb, fb): (f64, f64)) -> f64 {
+    if fb != fa {
+        xb - fb * (xb - xa) / (fb - fa)
+    } else {
+        f64::NAN
+    }
 }
 
 /// How a chain of arcs begins at its anchor parameter `at`: the first arc as a function of its

@@ -42,8 +42,9 @@
 //!
 //! Every arc is finally re-measured with golden-section refinement against half the band's width.
 
-use super::band::{ConvexCurve, golden_min};
+use super::band::ConvexCurve;
 use crate::geom::Move;
+use crate::geom::search::{brent_max, golden_min};
 use crate::geom::{Point, Vec2};
 use std::f64::consts::{FRAC_PI_2, PI, TAU};
 
@@ -307,83 +308,6 @@ fn peak(f: &impl Fn(f64) -> f64, tc: f64, step: f64, around: (f64, f64, f64)) ->
         (f64::NEG_INFINITY, tc),
         |best, c| if c.0 > best.0 { c } else { best },
     )
-}
-
-/// The largest value of `f` on `[a, b]` (a bracket of one peak, `x` inside it with value `fx`),
-/// by Brent's method: successive parabolic interpolation, with golden-section steps whenever a
-/// parabola's step is not safely inside the bracket or does not shrink fast enough (R. P. Brent,
-/// Algorithms for Minimization without Derivatives, 1973, ch. 5, procedure `localmin`). Stops
-/// when the peak is located within `tol` (so its value is within about `|f″| tol²`) or after 60
-/// steps; returns the largest value evaluated and where.
-fn brent_max(f: &impl Fn(f64) -> f64, a: f64, b: f64, x: f64, fx: f64, tol: f64) -> (f64, f64) {
-    // Minimise g = −f.
-    const GOLDEN: f64 = 0.381_966_011_250_105_1;
-    let (mut a, mut b) = (a, b);
-    let (mut x, mut w, mut v) = (x, x, x);
-    let (mut gx, mut gw, mut gv) = (-fx, -fx, -fx);
-    let (mut d, mut e): (f64, f64) = (0.0, 0.0);
-    for _it in 0..60 {
-        let xm = 0.5 * (a + b);
-        let tol2 = 2.0 * tol;
-        if (x - xm).abs() <= tol2 - 0.5 * (b - a) {
-            break;
-        }
-        let mut golden = true;
-        if e.abs() > tol {
-            // The parabola through x, w and v.
-            let r = (x - w) * (gx - gv);
-            let q = (x - v) * (gx - gw);
-            let mut p = (x - v) * q - (x - w) * r;
-            let mut q = 2.0 * (q - r);
-            if q > 0.0 {
-                p = -p;
-            }
-            q = q.abs();
-            let e_before = e;
-            e = d;
-            if p.abs() < (0.5 * q * e_before).abs() && p > q * (a - x) && p < q * (b - x) {
-                d = p / q;
-                let u = x + d;
-                if u - a < tol2 || b - u < tol2 {
-                    d = tol.copysign(xm - x);
-                }
-                golden = false;
-            }
-        }
-        if golden {
-            e = if x >= xm { a - x } else { b - x };
-            d = GOLDEN * e;
-        }
-        let u = if d.abs() >= tol {
-            x + d
-        } else {
-            x + tol.copysign(d)
-        };
-        let gu = -f(u);
-        if gu <= gx {
-            if u >= x {
-                a = x;
-            } else {
-                b = x;
-            }
-            (v, gv) = (w, gw);
-            (w, gw) = (x, gx);
-            (x, gx) = (u, gu);
-        } else {
-            if u < x {
-                a = u;
-            } else {
-                b = u;
-            }
-            if gu <= gw || w == x {
-                (v, gv) = (w, gw);
-                (w, gw) = (u, gu);
-            } else if gu <= gv || v == x || v == w {
-                (v, gv) = (u, gu);
-            }
-        }
-    }
-    (-gx, x)
 }
 
 /// The two lobes of the arc with curvature `k` between the chord's ends over the sampled

@@ -79,16 +79,45 @@ pub(super) fn symmetric_spline(
     target: f64,
     half_width: f64,
 ) -> Option<Vec<Span>> {
+    let nearest = axis_quarters(t_start)?;
+    // Which vertex of the quarter [0, π/2] the start is at: 0 (t = 0 or π) or 1 (π/2 or 3π/2).
+    let start_vertex = nearest.rem_euclid(2.0) as usize;
+    let start_vertex_angle = FRAC_PI_2 * nearest.rem_euclid(4.0);
+    let options = quarter_options(curve, s, start_vertex, target);
+    let evaluated = mirrored_options(curve, s, &options, start_vertex_angle, t_start, target);
+    let (_, chosen, quarter) = least_kinked(evaluated)?;
+    // Re-measure the quarter's arcs (the others are their mirror images).
+    for span in &quarter {
+        if !precise_error(curve, s, span).is_some_and(|e| e <= half_width) {
+            return None;
+        }
+    }
+    Some(chosen.spans)
+}
+
+/// A quarter chain to try: (moves of the whole spline, anchor, finish, arcs of the quarter's
+/// chain, the greedy chain).
+type QuarterOption = (usize, Anchor, Finish, usize, Vec<Span>);
+
+/// `t_start` in quarter turns, when it is a multiple of π/2 (to 1e-12).
+fn axis_quarters(t_start: f64) -> Option<f64> {
     let quarters = t_start / FRAC_PI_2;
     let nearest = quarters.round();
     if (quarters - nearest).abs() > 1e-12 * (1.0 + nearest.abs()) {
         return None;
     }
-    // Which vertex of the quarter [0, π/2] the start is at: 0 (t = 0 or π) or 1 (π/2 or 3π/2).
-    let start_vertex = nearest.rem_euclid(2.0) as usize;
-    let start_vertex_angle = FRAC_PI_2 * nearest.rem_euclid(4.0);
-    // At the start vertex: a joint or the tangent arc through the start; at the other: a joint
-    // or a centred minimax arc.
+    Some(nearest)
+}
+
+/// The greedy quarter chains over `[0, π/2]` for every anchor and finish, in order of moves.
+/// At the start vertex: a joint or the tangent arc through the start; at the other: a joint or a
+/// centred minimax arc.
+fn quarter_options(
+    curve: &impl ConvexCurve,
+    s: f64,
+    start_vertex: usize,
+    target: f64,
+) -> Vec<QuarterOption> {
     let left: [Anchor; 2] = if start_vertex == 0 {
         [Anchor::Joint(Bend::Balanced), Anchor::HalfTangent]
     } else {
@@ -99,8 +128,7 @@ pub(super) fn symmetric_spline(
     } else {
         [Finish::Joint(Bend::Balanced), Finish::Centred]
     };
-    // (moves, anchor, finish, arcs of the quarter's chain, the greedy chain)
-    let mut options: Vec<(usize, Anchor, Finish, usize, Vec<Span>)> = Vec::new();
+    let mut options: Vec<QuarterOption> = Vec::new();
     for anchor in left {
         let chain = Chain {
             curve,
@@ -123,12 +151,23 @@ pub(super) fn symmetric_spline(
         }
     }
     options.sort_by_key(|o| o.0);
-    // Evened out and mirrored, in order of moves: all with the fewest moves; more only while no
-    // kink is within the limit, up to a quarter more moves.
+    options
+}
+
+/// The options evened out and mirrored, in order of moves: all with the fewest moves; more only
+/// while no kink is within the limit, up to a quarter more moves. Each with its quarter.
+fn mirrored_options(
+    curve: &impl ConvexCurve,
+    s: f64,
+    options: &[QuarterOption],
+    start_vertex_angle: f64,
+    t_start: f64,
+    target: f64,
+) -> Vec<(usize, Candidate, Vec<Span>)> {
     let fewest = options.first().map_or(0, |o| o.0);
     let budget = (fewest + fewest / 4).max(fewest + 1);
     let mut evaluated: Vec<(usize, Candidate, Vec<Span>)> = Vec::new();
-    for (moves, anchor, finish, arcs, greedy) in &options {
+    for (moves, anchor, finish, arcs, greedy) in options {
         let (moves, anchor, finish) = (*moves, *anchor, *finish);
         let settled = evaluated
             .iter()
@@ -154,8 +193,14 @@ pub(super) fn symmetric_spline(
             evaluated.push((moves, Candidate::new(curve, s, full), quarter));
         }
     }
-    // The fewest moves with every kink within the limit; else the fewest whose largest kink is
-    // within half as much again as the smallest found. Ties: the smaller kink.
+    evaluated
+}
+
+/// The fewest moves with every kink within the limit; else the fewest whose largest kink is
+/// within half as much again as the smallest found. Ties: the smaller kink.
+fn least_kinked(
+    evaluated: Vec<(usize, Candidate, Vec<Span>)>,
+) -> Option<(usize, Candidate, Vec<Span>)> {
     let least_kink = evaluated
         .iter()
         .map(|(_, c, _)| c.kink)
@@ -165,18 +210,10 @@ pub(super) fn symmetric_spline(
     } else {
         1.5 * least_kink
     };
-    let best = evaluated
+    evaluated
         .into_iter()
         .filter(|(_, c, _)| c.kink <= bar)
-        .min_by(|a, b| a.0.cmp(&b.0).then(a.1.kink.total_cmp(&b.1.kink)));
-    let (_, chosen, quarter) = best?;
-    // Re-measure the quarter's arcs (the others are their mirror images).
-    for span in &quarter {
-        if !precise_error(curve, s, span).is_some_and(|e| e <= half_width) {
-            return None;
-        }
-    }
-    Some(chosen.spans)
+        .min_by(|a, b| a.0.cmp(&b.0).then(a.1.kink.total_cmp(&b.1.kink)))
 }
 
 /// The closed spline of a quadrant-symmetric curve from its quarter chain over `[0, π/2]` (see
@@ -191,8 +228,15 @@ pub(super) fn mirror_quarter(
     vertex: f64,
     t_start: f64,
 ) -> Option<Vec<Span>> {
+    let arcs = whole_arcs(quarter, anchor, finish)?;
+    let placed = placed_once(mirror_images(&arcs), vertex);
+    let out = split_at_start(&placed);
+    tiled(out, t_start)
+}
+
+/// The quarter's whole arcs, `(t0, t1, k, error)`: a half arc through a vertex made whole.
+fn whole_arcs(quarter: &[Span], anchor: Anchor, finish: Finish) -> Option<Vec<Span>> {
     let last = quarter.len().checked_sub(1)?;
-    // The quarter's whole arcs, `(t0, t1, k, error)`.
     let mut arcs: Vec<Span> = Vec::with_capacity(4 * quarter.len());
     for (i, span) in quarter.iter().enumerate() {
         let mut arc = *span;
@@ -204,8 +248,12 @@ pub(super) fn mirror_quarter(
         }
         arcs.push(arc);
     }
-    let images: Vec<Span> = arcs
-        .iter()
+    Some(arcs)
+}
+
+/// Each arc and its images under `t ↦ π − t`, `t ↦ −t` and `t ↦ t + π`.
+fn mirror_images(arcs: &[Span]) -> Vec<Span> {
+    arcs.iter()
         .flat_map(|a| {
             [
                 *a,
@@ -226,8 +274,11 @@ pub(super) fn mirror_quarter(
                 },
             ]
         })
-        .collect();
-    // Each arc once, counted from the start vertex: its start in [0, 2π).
+        .collect()
+}
+
+/// Each arc once, counted from the start vertex at `vertex`: its start in [0, 2π), sorted.
+fn placed_once(images: Vec<Span>, vertex: f64) -> Vec<Span> {
     let mut placed: Vec<Span> = Vec::with_capacity(images.len());
     for a in images {
         let shift = (a.t0 - vertex).rem_euclid(TAU) - (a.t0 - vertex);
@@ -246,8 +297,12 @@ pub(super) fn mirror_quarter(
         }
     }
     placed.sort_by(|a, b| a.t0.total_cmp(&b.t0));
-    // The arc whose start is before the start vertex (at the end of the list, running past 2π)
-    // is split at it.
+    placed
+}
+
+/// The arc whose start is before the start vertex (at the end of the list, running past 2π)
+/// split at it: its part after the start first, its part before the start last.
+fn split_at_start(placed: &[Span]) -> Vec<Span> {
     let mut out: Vec<Span> = Vec::with_capacity(placed.len() + 1);
     let wrap = placed.iter().position(|a| a.t1 > TAU + 1e-9);
     let mut tail = None;
@@ -265,7 +320,12 @@ pub(super) fn mirror_quarter(
     }
     out.sort_by(|a, b| a.t0.total_cmp(&b.t0));
     out.extend(tail);
-    // The arcs must tile [0, 2π] end to start; snap their joints together and shift to the start.
+    out
+}
+
+/// The arcs, which must tile [0, 2π] end to start (to 1e-9), with their joints snapped together
+/// and shifted to start at `t_start`; `None` if they do not tile.
+fn tiled(mut out: Vec<Span>, t_start: f64) -> Option<Vec<Span>> {
     if out.first()?.t0.abs() > 1e-9 || (out.last()?.t1 - TAU).abs() > 1e-9 {
         return None;
     }
@@ -388,16 +448,7 @@ pub(super) fn general_spline(
     let budget = n + (n / 4).max(1);
     // Acceptable: small kinks, and (for a closed run) a closing joint no worse than the largest
     // inner one.
-    let acceptable = |c: &Candidate| {
-        let k = kinks(curve, s, &c.spans);
-        let closing = k.last().copied().unwrap_or(0.0);
-        let inner = k[..k.len().saturating_sub(1)]
-            .iter()
-            .copied()
-            .fold(0.0, f64::max);
-        let kink = if closed { c.kink } else { inner };
-        kink <= KINK_LIMIT_DEG && (!closed || closing <= inner + 1e-9) && c.spans.len() <= budget
-    };
+    let acceptable = |c: &Candidate| acceptable_spline(curve, s, c, closed, budget);
     let evened = |c: &Chain<'_, _>, f: Finish, arcs: usize, greedy: &[Span]| {
         c.even(f, arcs, greedy, target)
             .and_then(|spans| remeasure(curve, s, t_start, &spans, half_width))
@@ -440,34 +491,56 @@ pub(super) fn general_spline(
             candidates.extend(evened(&plain, finish, n + 1, &greedy));
         }
     }
-    // The fewest arcs among the acceptable ones; else, within the budget, the fewest whose
-    // largest kink is within half as much again as the smallest found. Ties: the smaller kink.
     candidates.retain(|c| c.spans.len() <= budget);
+    let chosen = fewest_arcs(&candidates, acceptable)?;
+    Some(chosen.spans.clone())
+}
+
+/// Acceptable: small kinks, and (for a closed run) a closing joint no worse than the largest
+/// inner one, within the `budget` of arcs.
+fn acceptable_spline(
+    curve: &impl ConvexCurve,
+    s: f64,
+    c: &Candidate,
+    closed: bool,
+    budget: usize,
+) -> bool {
+    let k = kinks(curve, s, &c.spans);
+    let closing = k.last().copied().unwrap_or(0.0);
+    let inner = k[..k.len().saturating_sub(1)]
+        .iter()
+        .copied()
+        .fold(0.0, f64::max);
+    let kink = if closed { c.kink } else { inner };
+    kink <= KINK_LIMIT_DEG && (!closed || closing <= inner + 1e-9) && c.spans.len() <= budget
+}
+
+/// The fewest arcs among the acceptable candidates; else the fewest whose largest kink is within
+/// half as much again as the smallest found. Ties: the smaller kink.
+fn fewest_arcs(
+    candidates: &[Candidate],
+    acceptable: impl Fn(&Candidate) -> bool,
+) -> Option<&Candidate> {
     let least_kink = candidates
         .iter()
         .map(|c| c.kink)
         .fold(f64::INFINITY, f64::min);
-    let chosen = candidates
+    let order = |a: &&Candidate, b: &&Candidate| {
+        a.spans
+            .len()
+            .cmp(&b.spans.len())
+            .then(a.kink.total_cmp(&b.kink))
+    };
+    candidates
         .iter()
         .filter(|c| acceptable(c))
-        .min_by(|a, b| {
-            a.spans
-                .len()
-                .cmp(&b.spans.len())
-                .then(a.kink.total_cmp(&b.kink))
-        })
+        .min_by(order)
         .or_else(|| {
             candidates
                 .iter()
                 .filter(|c| c.kink <= 1.5 * least_kink)
-                .min_by(|a, b| {
-                    a.spans
-                        .len()
-                        .cmp(&b.spans.len())
-                        .then(a.kink.total_cmp(&b.kink))
-                })
-        })?;
-    Some(chosen.spans.clone())
+                .min_by(order)
+        })
 }
 
 /// Re-measures each stretch precisely; one that does not fit is shortened until it does (and

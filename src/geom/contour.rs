@@ -1,0 +1,237 @@
+//! Closed contours made of straight and circular pieces (lines and arcs).
+
+use super::{ArcSegment, Bounds, Point, Segment, Vec2};
+use serde::Serialize;
+
+/// One piece of a contour.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+pub enum Element {
+    Line(Segment),
+    Arc(ArcSegment),
+}
+
+impl Element {
+    pub fn start(&self) -> Point {
+        match self {
+            Element::Line(s) => s.start,
+            Element::Arc(a) => a.start_point(),
+        }
+    }
+
+    pub fn end(&self) -> Point {
+        match self {
+            Element::Line(s) => s.end,
+            Element::Arc(a) => a.end_point(),
+        }
+    }
+
+    /// The point at share `t` (0 to 1) of the piece from its start.
+    pub fn point_at(&self, t: f64) -> Point {
+        match self {
+            Element::Line(s) => s.point_at(t),
+            Element::Arc(a) => a.point_at(t),
+        }
+    }
+
+    pub fn length(&self) -> f64 {
+        match self {
+            Element::Line(s) => s.length(),
+            Element::Arc(a) => a.length(),
+        }
+    }
+
+    /// Unit tangent in the direction of travel at the start.
+    pub fn start_tangent(&self) -> Option<Vec2> {
+        match self {
+            Element::Line(s) => s.direction().normalized(),
+            Element::Arc(a) => Some(a.tangent_at(0.0)),
+        }
+    }
+
+    /// Unit tangent in the direction of travel at the end.
+    pub fn end_tangent(&self) -> Option<Vec2> {
+        match self {
+            Element::Line(s) => s.direction().normalized(),
+            Element::Arc(a) => Some(a.tangent_at(1.0)),
+        }
+    }
+
+    pub fn reversed(&self) -> Element {
+        match self {
+            Element::Line(s) => Element::Line(Segment::new(s.end, s.start)),
+            Element::Arc(a) => Element::Arc(a.reversed()),
+        }
+    }
+
+    /// Shortest distance from `p` to this piece.
+    pub fn distance_to(&self, p: Point) -> f64 {
+        match self {
+            Element::Line(s) => s.distance_to(p),
+            Element::Arc(a) => a.distance_to(p),
+        }
+    }
+
+    /// The signed area contribution `∮ x dy − y dx / 2` of this piece (Green's theorem).
+    fn area_term(&self) -> f64 {
+        match self {
+            Element::Line(s) => 0.5 * s.start.to_vec().cross(s.end.to_vec()),
+            Element::Arc(a) => {
+                // ½ ∫ (x dy − y dx) over the arc = ½ [c × (p1 − p0) + r² Δθ].
+                let c = a.center.to_vec();
+                let chord = a.end_point() - a.start_point();
+                0.5 * (c.cross(chord) + a.radius * a.radius * a.sweep)
+            }
+        }
+    }
+}
+
+/// A closed chain of pieces: each piece ends where the next one starts, and the last ends where
+/// the first starts (to within the chaining gap tolerance; the stored end points are snapped
+/// together).
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Contour {
+    pub elements: Vec<Element>,
+    /// The DXF layer the pieces came from.
+    pub layer: String,
+    /// DXF entity handles of the pieces, for messages.
+    pub handles: Vec<String>,
+}
+
+impl Contour {
+    /// Signed enclosed area: positive when the contour runs counter-clockwise.
+    pub fn signed_area(&self) -> f64 {
+        self.elements.iter().map(Element::area_term).sum()
+    }
+
+    pub fn is_ccw(&self) -> bool {
+        self.signed_area() > 0.0
+    }
+
+    /// The same contour travelled the other way.
+    pub fn reversed(&self) -> Contour {
+        Contour {
+            elements: self.elements.iter().rev().map(Element::reversed).collect(),
+            layer: self.layer.clone(),
+            handles: self.handles.iter().rev().cloned().collect(),
+        }
+    }
+
+    pub fn start_point(&self) -> Option<Point> {
+        self.elements.first().map(Element::start)
+    }
+
+    /// Shortest distance from `p` to the contour.
+    pub fn distance_to(&self, p: Point) -> f64 {
+        self.elements
+            .iter()
+            .map(|e| e.distance_to(p))
+            .fold(f64::INFINITY, f64::min)
+    }
+
+    /// Whether `p` lies inside the contour (non-zero winding number), exactly for arcs too.
+    /// Points on the contour itself may go either way.
+    ///
+    /// A line adds the angle it subtends at `p`. An arc adds the angle its chord subtends, plus
+    /// one turn in the arc's sense when `p` lies in the region between the chord and the arc
+    /// (inside the circle, on the arc's side of the chord): the closed loop "arc, then chord
+    /// back" winds once round exactly those points.
+    pub fn contains(&self, p: Point) -> bool {
+        let mut total = 0.0;
+        for e in &self.elements {
+            match e {
+                Element::Line(s) => total += angle_between(s.start - p, s.end - p),
+                Element::Arc(a) => {
+                    let (s, t) = (a.start_point(), a.end_point());
+                    let full = a.is_full_circle();
+                    if !full {
+                        total += angle_between(s - p, t - p);
+                    }
+                    if p.distance(a.center) < a.radius {
+                        let side = |q: Point| (t - s).cross(q - s);
+                        if full || side(p) * side(a.point_at(0.5)) > 0.0 {
+                            total += std::f64::consts::TAU * a.sweep.signum();
+                        }
+                    }
+                }
+            }
+        }
+        (total / std::f64::consts::TAU).round() != 0.0
+    }
+
+    /// Axis-aligned bounds `(min, max)` of the contour, arcs included exactly.
+    pub fn bounds(&self) -> Option<(Point, Point)> {
+        self.bounding_box().map(Bounds::corners)
+    }
+
+    /// The axis-aligned box of the contour, arcs included exactly.
+    pub fn bounding_box(&self) -> Option<Bounds> {
+        let mut pts = Vec::new();
+        for e in &self.elements {
+            pts.push(e.start());
+            pts.push(e.end());
+            if let Element::Arc(a) = e {
+                for k in 0..4 {
+                    let ang = k as f64 * std::f64::consts::FRAC_PI_2;
+                    if a.contains_angle(ang) {
+                        pts.push(a.point_at_angle(ang));
+                    }
+                }
+            }
+        }
+        Bounds::of_points(&pts)
+    }
+}
+
+/// The signed angle from `u` to `v` in (−π, π].
+fn angle_between(u: Vec2, v: Vec2) -> f64 {
+    u.cross(v).atan2(u.dot(v))
+}
+
+/// Axis-aligned bounds `(min, max)` of a set of points; `None` when empty.
+pub fn bounds_of(points: &[Point]) -> Option<(Point, Point)> {
+    Bounds::of_points(points).map(Bounds::corners)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn square() -> Contour {
+        let p = [
+            Point::new(0.0, 0.0),
+            Point::new(2.0, 0.0),
+            Point::new(2.0, 2.0),
+            Point::new(0.0, 2.0),
+        ];
+        Contour {
+            elements: (0..4)
+                .map(|i| Element::Line(Segment::new(p[i], p[(i + 1) % 4])))
+                .collect(),
+            layer: "0".into(),
+            handles: vec![],
+        }
+    }
+
+    #[test]
+    fn area_orientation_and_containment() {
+        let s = square();
+        assert!((s.signed_area() - 4.0).abs() < 1e-15);
+        assert!((s.reversed().signed_area() + 4.0).abs() < 1e-15);
+        assert!(s.contains(Point::new(1.0, 1.0)));
+        assert!(!s.contains(Point::new(3.0, 1.0)));
+    }
+
+    #[test]
+    fn circle_area_is_pi_r_squared() {
+        let c = Contour {
+            elements: vec![Element::Arc(ArcSegment::circle(Point::new(5.0, 1.0), 2.0))],
+            layer: "0".into(),
+            handles: vec![],
+        };
+        assert!((c.signed_area() - 4.0 * std::f64::consts::PI).abs() < 1e-12);
+        assert!(c.contains(Point::new(5.5, 1.5)));
+        assert!(!c.contains(Point::new(8.0, 1.0)));
+        let (lo, hi) = c.bounds().unwrap();
+        assert!((lo.x - 3.0).abs() < 1e-12 && (hi.y - 3.0).abs() < 1e-12);
+    }
+}
