@@ -10,7 +10,7 @@ use conicut::geom::{Ellipse, Point, Segment};
 use conicut::jobfile::Rule;
 use conicut::plan::{CutSide, ExactPath, Opening, PlanError, PlanOptions, plan_cuts};
 use conicut::read::{ReadOptions, read_dxf};
-use conicut::solve::feature::solve_bay;
+use conicut::solve::solve_bay;
 
 fn plan_one(e: Ellipse, diameter: f64) -> Result<(), PlanError> {
     let part = Part::default();

@@ -81,7 +81,7 @@ mod parse;
 use crate::geom::Point;
 use crate::read::Units;
 
-pub use crate::solve::quad_rules::Rule;
+pub use crate::solve::Rule;
 pub use parse::parse_job_file;
 
 /// A parsed job file, every length in mm.

@@ -40,7 +40,7 @@
 //! the line conic when the routine gives it directly or in closed form (0+5, 1+4, 2+3, 3+2), which
 //! stays accurate for very thin ellipses, and from the point conic otherwise (5+0, 4+1). Its residuals
 //! are measured in the same frame, each constraint on the conic it is linear in (points on `C`,
-//! lines on `adj C`); see [`Solution`].
+//! lines on `adj C`); see [`ConicSolution`].
 //!
 //! The world-frame [`Conic`] of a solution is exact up to rounding, but for a very thin ellipse
 //! far from the origin its adjugate can drown in rounding, so tangency is better judged on the
@@ -74,7 +74,7 @@ type V3 = Vector3<f64>;
 
 /// One real conic through the given points and tangent to the given lines.
 #[derive(Debug, Clone, PartialEq, Serialize)]
-pub struct Solution {
+pub struct ConicSolution {
     /// The conic in world coordinates (normalised).
     pub conic: Conic,
     /// What it is (classified in the normalised frame).
@@ -157,7 +157,7 @@ pub enum ConstraintError {
 pub fn conics_through_and_tangent(
     points: &[Point],
     lines: &[Line],
-) -> Result<Vec<Solution>, ConstraintError> {
+) -> Result<Vec<ConicSolution>, ConstraintError> {
     let (p, t) = (points.len(), lines.len());
     if p + t != 5 {
         return Err(ConstraintError::WrongCount {
@@ -239,7 +239,7 @@ pub fn conics_through_and_tangent(
         .collect()
 }
 
-/// Builds a [`Solution`] from a conic found in the normalised frame (`dual`: a line conic).
+/// Builds a [`ConicSolution`] from a conic found in the normalised frame (`dual`: a line conic).
 ///
 /// The point conic `C` and line conic `D = adj C` are both needed: one is what the routine
 /// found, the other its closed-form adjugate (3+2, 2+3) or, failing that, the cofactors. The
@@ -255,7 +255,7 @@ fn solution(
     dual: bool,
     hp: &[V3],
     hl: &[V3],
-) -> Result<Solution, ConstraintError> {
+) -> Result<ConicSolution, ConstraintError> {
     let breakdown = |what: String| ConstraintError::Degenerate {
         reason: format!("a solution {what}"),
     };
@@ -279,7 +279,7 @@ fn solution(
         .map_err(|e| breakdown(e.to_string()))?;
     let point_residual = hp.iter().map(|x| relative_form(&c, x)).fold(0.0, f64::max);
     let tangency_residual = hl.iter().map(|l| relative_form(&d, l)).fold(0.0, f64::max);
-    Ok(Solution {
+    Ok(ConicSolution {
         conic,
         kind,
         ellipse,

@@ -88,14 +88,14 @@ pub const MIN_POINTS: usize = 5;
 
 /// An ellipse fitted to measured points.
 #[derive(Debug, Clone, PartialEq)]
-pub struct EllipseFit {
+pub struct LeastSquaresEllipse {
     /// The fitted ellipse, in the points' coordinates (mm).
     pub ellipse: Ellipse,
     /// `[a, b, c, d, e, f]` of `a x² + b xy + c y² + d x + e y + f = 0` in the points'
     /// coordinates, scaled so that `4ac − b² = 1` and signed so that `a + c > 0`.
     ///
     /// For a small ellipse far from the origin these numbers are badly conditioned (`f` is a
-    /// difference of large terms); use [`EllipseFit::ellipse`] for geometry.
+    /// difference of large terms); use [`LeastSquaresEllipse::ellipse`] for geometry.
     pub coefficients: [f64; 6],
     /// Root mean square of the geometric distances of the points to the ellipse (mm).
     pub rms_residual: f64,
@@ -107,7 +107,7 @@ pub struct EllipseFit {
 
 /// Why no ellipse was fitted.
 #[derive(Debug, Clone, PartialEq, thiserror::Error)]
-pub enum FitError {
+pub enum LeastSquaresError {
     #[error(
         "an ellipse fit needs at least {MIN_POINTS} points and {found} were given; measure more \
          points around the feature"
@@ -151,21 +151,21 @@ pub enum FitError {
 ///
 /// ```
 /// use conicut::geom::{Ellipse, Point};
-/// use conicut::solve::fit::fit_ellipse;
+/// use conicut::solve::least_squares_ellipse;
 ///
 /// let e = Ellipse::new(Point::new(30.0, -12.0), 40.0, 15.0, 25f64.to_radians()).unwrap();
 /// let points: Vec<Point> = (0..8).map(|k| e.point(0.7 * k as f64)).collect();
-/// let fit = fit_ellipse(&points).unwrap();
+/// let fit = least_squares_ellipse(&points).unwrap();
 /// assert!((fit.ellipse.a() - 40.0).abs() < 1e-9);
 /// assert!(fit.max_residual < 1e-9);
 /// ```
-pub fn fit_ellipse(points: &[Point]) -> Result<EllipseFit, FitError> {
+pub fn least_squares_ellipse(points: &[Point]) -> Result<LeastSquaresEllipse, LeastSquaresError> {
     let n = points.len();
     if n < MIN_POINTS {
-        return Err(FitError::TooFewPoints { found: n });
+        return Err(LeastSquaresError::TooFewPoints { found: n });
     }
     if let Some((i, p)) = points.iter().enumerate().find(|(_, p)| !p.is_finite()) {
-        return Err(FitError::NotFinite {
+        return Err(LeastSquaresError::NotFinite {
             index: i + 1,
             x: p.x,
             y: p.y,
@@ -194,7 +194,7 @@ pub fn fit_ellipse(points: &[Point]) -> Result<EllipseFit, FitError> {
         ));
     }
     if s <= COINCIDENT_RELATIVE * size {
-        return Err(FitError::Coincident { points: n });
+        return Err(LeastSquaresError::Coincident { points: n });
     }
     // Principal spreads of the points (eigenvalues of the 2×2 scatter), closed form.
     let half_sum = 0.5 * (cxx + cyy);
@@ -203,7 +203,7 @@ pub fn fit_ellipse(points: &[Point]) -> Result<EllipseFit, FitError> {
     let across = ((cxx * cyy - cxy * cxy) / along).max(0.0);
     let thickness = (across / along).sqrt();
     if thickness.is_nan() || thickness <= COLLINEAR_RATIO {
-        return Err(FitError::Collinear {
+        return Err(LeastSquaresError::Collinear {
             points: n,
             ratio: thickness,
         });
@@ -231,7 +231,7 @@ pub fn fit_ellipse(points: &[Point]) -> Result<EllipseFit, FitError> {
     let sv = &svd.singular_values;
     let ratio = sv[4] / sv[0];
     if ratio.is_nan() || ratio <= UNDERDETERMINED_RATIO {
-        return Err(FitError::Underdetermined { points: n, ratio });
+        return Err(LeastSquaresError::Underdetermined { points: n, ratio });
     }
 
     // Points that lie on a hyperbola, parabola or line pair to within rounding (the smallest
@@ -242,7 +242,7 @@ pub fn fit_ellipse(points: &[Point]) -> Result<EllipseFit, FitError> {
         let r = v_t.row(5);
         let kind = classify([r[0], r[1], r[2], r[3], r[4], r[5]])?;
         if !kind.is_ellipse() {
-            return Err(FitError::NotAnEllipse { points: n, kind });
+            return Err(LeastSquaresError::NotAnEllipse { points: n, kind });
         }
     }
 
@@ -256,7 +256,7 @@ pub fn fit_ellipse(points: &[Point]) -> Result<EllipseFit, FitError> {
             return Err(if kind.is_ellipse() {
                 numerical("no eigenvector with 4ac − b² > 0 was found")
             } else {
-                FitError::NotAnEllipse { points: n, kind }
+                LeastSquaresError::NotAnEllipse { points: n, kind }
             });
         }
     };
@@ -264,10 +264,12 @@ pub fn fit_ellipse(points: &[Point]) -> Result<EllipseFit, FitError> {
     // single point.
     let conic_u = Conic::from_coefficients(coeffs_u)
         .map_err(|e| numerical(&format!("the fitted conic is unusable: {e}")))?;
-    let ellipse_u = conic_u.to_ellipse().map_err(|e| FitError::NotAnEllipse {
-        points: n,
-        kind: e.kind,
-    })?;
+    let ellipse_u = conic_u
+        .to_ellipse()
+        .map_err(|e| LeastSquaresError::NotAnEllipse {
+            points: n,
+            kind: e.kind,
+        })?;
 
     // Map back: centre m + s c_u, axes × s, angle unchanged.
     let cu = ellipse_u.center();
@@ -293,7 +295,7 @@ pub fn fit_ellipse(points: &[Point]) -> Result<EllipseFit, FitError> {
     if !(rms_residual.is_finite() && max_residual.is_finite()) {
         return Err(numerical("the residuals are not finite"));
     }
-    Ok(EllipseFit {
+    Ok(LeastSquaresEllipse {
         ellipse,
         coefficients,
         rms_residual,
@@ -302,8 +304,8 @@ pub fn fit_ellipse(points: &[Point]) -> Result<EllipseFit, FitError> {
     })
 }
 
-fn numerical(reason: &str) -> FitError {
-    FitError::Numerical {
+fn numerical(reason: &str) -> LeastSquaresError {
+    LeastSquaresError::Numerical {
         reason: reason.to_string(),
     }
 }
@@ -366,7 +368,7 @@ fn halir_flusser(u: &[(f64, f64)]) -> Option<[f64; 6]> {
 }
 
 /// What a conic is, by [`Conic::classify`] (tolerances in [`super::conic`]).
-fn classify(c: [f64; 6]) -> Result<ConicKind, FitError> {
+fn classify(c: [f64; 6]) -> Result<ConicKind, LeastSquaresError> {
     Conic::from_coefficients(c)
         .map(|conic| conic.classify())
         .map_err(|e| numerical(&format!("the least-squares conic is unusable: {e}")))
