@@ -160,6 +160,23 @@ pub enum LeastSquaresError {
 /// assert!(fit.max_residual < 1e-9);
 /// ```
 pub fn least_squares_ellipse(points: &[Point]) -> Result<LeastSquaresEllipse, LeastSquaresError> {
+    check_points(points)?;
+    let frame = Normalised::of(points)?;
+    let free = check_design(&frame.u)?;
+    let (coeffs_u, ellipse_u) = fit_normalised(&frame.u, free)?;
+    let (ellipse, coefficients) = frame.map_back(&ellipse_u, coeffs_u)?;
+    let (rms_residual, max_residual) = residuals(points, &ellipse)?;
+    Ok(LeastSquaresEllipse {
+        ellipse,
+        coefficients,
+        rms_residual,
+        max_residual,
+        points: points.len(),
+    })
+}
+
+/// Enough points, every coordinate finite.
+fn check_points(points: &[Point]) -> Result<(), LeastSquaresError> {
     let n = points.len();
     if n < MIN_POINTS {
         return Err(LeastSquaresError::TooFewPoints { found: n });
@@ -171,48 +188,92 @@ pub fn least_squares_ellipse(points: &[Point]) -> Result<LeastSquaresEllipse, Le
             y: p.y,
         });
     }
+    Ok(())
+}
 
-    // Centre and scale: u = (p − m) / s with s the RMS distance from the centroid.
-    let nf = n as f64;
-    let mx = points.iter().map(|p| p.x).sum::<f64>() / nf;
-    let my = points.iter().map(|p| p.y).sum::<f64>() / nf;
-    let (mut cxx, mut cxy, mut cyy) = (0.0, 0.0, 0.0);
-    for p in points {
-        let (dx, dy) = (p.x - mx, p.y - my);
-        cxx += dx * dx;
-        cxy += dx * dy;
-        cyy += dy * dy;
-    }
-    let s = ((cxx + cyy) / nf).sqrt();
-    let size = points
-        .iter()
-        .map(|p| p.x.abs().max(p.y.abs()))
-        .fold(1.0, f64::max);
-    if !s.is_finite() {
-        return Err(numerical(
-            "the coordinates are too large to square without overflow",
-        ));
-    }
-    if s <= COINCIDENT_RELATIVE * size {
-        return Err(LeastSquaresError::Coincident { points: n });
-    }
-    // Principal spreads of the points (eigenvalues of the 2×2 scatter), closed form.
-    let half_sum = 0.5 * (cxx + cyy);
-    let half_diff = (0.5 * (cxx - cyy)).hypot(cxy);
-    let along = half_sum + half_diff;
-    let across = ((cxx * cyy - cxy * cxy) / along).max(0.0);
-    let thickness = (across / along).sqrt();
-    if thickness.is_nan() || thickness <= COLLINEAR_RATIO {
-        return Err(LeastSquaresError::Collinear {
-            points: n,
-            ratio: thickness,
-        });
-    }
-    let u: Vec<(f64, f64)> = points
-        .iter()
-        .map(|p| ((p.x - mx) / s, (p.y - my) / s))
-        .collect();
+/// The points centred and scaled: `u = (p − m) / s` with `s` the RMS distance from the centroid.
+struct Normalised {
+    mx: f64,
+    my: f64,
+    s: f64,
+    u: Vec<(f64, f64)>,
+}
 
+impl Normalised {
+    /// Refuses points that are one point or lie on a line.
+    fn of(points: &[Point]) -> Result<Normalised, LeastSquaresError> {
+        let n = points.len();
+        let nf = n as f64;
+        let mx = points.iter().map(|p| p.x).sum::<f64>() / nf;
+        let my = points.iter().map(|p| p.y).sum::<f64>() / nf;
+        let (mut cxx, mut cxy, mut cyy) = (0.0, 0.0, 0.0);
+        for p in points {
+            let (dx, dy) = (p.x - mx, p.y - my);
+            cxx += dx * dx;
+            cxy += dx * dy;
+            cyy += dy * dy;
+        }
+        let s = ((cxx + cyy) / nf).sqrt();
+        let size = points
+            .iter()
+            .map(|p| p.x.abs().max(p.y.abs()))
+            .fold(1.0, f64::max);
+        if !s.is_finite() {
+            return Err(numerical(
+                "the coordinates are too large to square without overflow",
+            ));
+        }
+        if s <= COINCIDENT_RELATIVE * size {
+            return Err(LeastSquaresError::Coincident { points: n });
+        }
+        // Principal spreads of the points (eigenvalues of the 2×2 scatter), closed form.
+        let half_sum = 0.5 * (cxx + cyy);
+        let half_diff = (0.5 * (cxx - cyy)).hypot(cxy);
+        let along = half_sum + half_diff;
+        let across = ((cxx * cyy - cxy * cxy) / along).max(0.0);
+        let thickness = (across / along).sqrt();
+        if thickness.is_nan() || thickness <= COLLINEAR_RATIO {
+            return Err(LeastSquaresError::Collinear {
+                points: n,
+                ratio: thickness,
+            });
+        }
+        let u = points
+            .iter()
+            .map(|p| ((p.x - mx) / s, (p.y - my) / s))
+            .collect();
+        Ok(Normalised { mx, my, s, u })
+    }
+
+    /// The ellipse and coefficients found for `u` in the points' own coordinates: centre
+    /// `m + s c_u`, axes × s, angle unchanged.
+    fn map_back(
+        &self,
+        ellipse_u: &Ellipse,
+        coeffs_u: [f64; 6],
+    ) -> Result<(Ellipse, [f64; 6]), LeastSquaresError> {
+        let (mx, my, s) = (self.mx, self.my, self.s);
+        let cu = ellipse_u.center();
+        let ellipse = Ellipse::new(
+            Point::new(mx + s * cu.x, my + s * cu.y),
+            s * ellipse_u.a(),
+            s * ellipse_u.b(),
+            ellipse_u.angle(),
+        )
+        .map_err(|e| numerical(&format!("mapping the ellipse back failed: {e}")))?;
+        let coefficients = unnormalise(coeffs_u, mx, my, s);
+        if !coefficients.iter().all(|c| c.is_finite()) {
+            return Err(numerical("the coefficients are not finite"));
+        }
+        Ok((ellipse, coefficients))
+    }
+}
+
+/// Checks that the normalised points fix one conic and do not lie exactly on a conic that is no
+/// ellipse; returns the free least-squares conic (the right singular vector of the smallest
+/// singular value of the design matrix).
+fn check_design(u: &[(f64, f64)]) -> Result<[f64; 6], LeastSquaresError> {
+    let n = u.len();
     // Five distinct points at least: the design matrix must have rank five. Padded with zero rows
     // to at least six so that the SVD returns all six right singular vectors.
     let rows = n.max(6);
@@ -233,26 +294,34 @@ pub fn least_squares_ellipse(points: &[Point]) -> Result<LeastSquaresEllipse, Le
     if ratio.is_nan() || ratio <= UNDERDETERMINED_RATIO {
         return Err(LeastSquaresError::Underdetermined { points: n, ratio });
     }
+    let r = v_t.row(5);
+    let free = [r[0], r[1], r[2], r[3], r[4], r[5]];
 
     // Points that lie on a hyperbola, parabola or line pair to within rounding (the smallest
     // singular value is negligible): the direct fit would still return an ellipse (it is
     // ellipse-specific), one that misses the points; refuse and say what they lie on.
     let exact = sv[5] / sv[0];
     if exact <= EXACT_CONIC_RATIO {
-        let r = v_t.row(5);
-        let kind = classify([r[0], r[1], r[2], r[3], r[4], r[5]])?;
+        let kind = classify(free)?;
         if !kind.is_ellipse() {
             return Err(LeastSquaresError::NotAnEllipse { points: n, kind });
         }
     }
+    Ok(free)
+}
 
-    let coeffs_u = match halir_flusser(&u) {
+/// The direct fit of the normalised points: its coefficients and its ellipse. `free` is the free
+/// least-squares conic, described when no eigenvector gives an ellipse.
+fn fit_normalised(
+    u: &[(f64, f64)],
+    free: [f64; 6],
+) -> Result<([f64; 6], Ellipse), LeastSquaresError> {
+    let n = u.len();
+    let coeffs_u = match halir_flusser(u) {
         Some(c) => c,
         None => {
-            // No eigenvector with 4ac − b² > 0: describe the free least-squares conic instead
-            // (the right singular vector of the smallest singular value).
-            let r = v_t.row(5);
-            let kind = classify([r[0], r[1], r[2], r[3], r[4], r[5]])?;
+            // No eigenvector with 4ac − b² > 0: describe the free least-squares conic instead.
+            let kind = classify(free)?;
             return Err(if kind.is_ellipse() {
                 numerical("no eigenvector with 4ac − b² > 0 was found")
             } else {
@@ -270,38 +339,22 @@ pub fn least_squares_ellipse(points: &[Point]) -> Result<LeastSquaresEllipse, Le
             points: n,
             kind: e.kind,
         })?;
+    Ok((coeffs_u, ellipse_u))
+}
 
-    // Map back: centre m + s c_u, axes × s, angle unchanged.
-    let cu = ellipse_u.center();
-    let ellipse = Ellipse::new(
-        Point::new(mx + s * cu.x, my + s * cu.y),
-        s * ellipse_u.a(),
-        s * ellipse_u.b(),
-        ellipse_u.angle(),
-    )
-    .map_err(|e| numerical(&format!("mapping the ellipse back failed: {e}")))?;
-    let coefficients = unnormalise(coeffs_u, mx, my, s);
-    if !coefficients.iter().all(|c| c.is_finite()) {
-        return Err(numerical("the coefficients are not finite"));
-    }
-
+/// RMS and largest geometric distance of the points to `ellipse` (mm).
+fn residuals(points: &[Point], ellipse: &Ellipse) -> Result<(f64, f64), LeastSquaresError> {
     let (mut sum_sq, mut max_residual) = (0.0_f64, 0.0_f64);
     for p in points {
         let (d, _) = ellipse.distance_to(*p);
         sum_sq += d * d;
         max_residual = max_residual.max(d);
     }
-    let rms_residual = (sum_sq / nf).sqrt();
+    let rms_residual = (sum_sq / points.len() as f64).sqrt();
     if !(rms_residual.is_finite() && max_residual.is_finite()) {
         return Err(numerical("the residuals are not finite"));
     }
-    Ok(LeastSquaresEllipse {
-        ellipse,
-        coefficients,
-        rms_residual,
-        max_residual,
-        points: n,
-    })
+    Ok((rms_residual, max_residual))
 }
 
 fn numerical(reason: &str) -> LeastSquaresError {
