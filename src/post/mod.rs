@@ -20,17 +20,26 @@
 //! written.
 
 mod arcs;
+mod entries;
+mod error;
+mod header;
 mod number;
+mod passes;
+mod pierce;
 mod profile;
 mod program;
+mod refusals;
 mod safety;
+mod writer;
 
 pub use arcs::{MAX_SPLITS, RADIUS_MARGIN};
+pub use error::PostError;
 pub use number::format_number;
 pub use profile::{
     ArcForm, BUNDLED_PROFILES, CommentStyle, Cutter, DwellUnit, MAX_DECIMALS, METRIC_MILL_TOML,
     MM_PER_INCH, MachineKind, MachineProfile, Process, ProfileError, Spindle, TravelEnvelope,
     Units, radius_rule,
 };
-pub use program::{PostError, ProgramSettings, pass_depths, sanitize, write_program};
+pub use program::{ProgramSettings, pass_depths, write_program};
 pub use safety::{PRECEDENCE, SAFETY_HEADING, cautions};
+pub use writer::sanitize;
