@@ -2,12 +2,58 @@
 //! contour (rising over each tab), overcut and lead-out.
 
 use super::error::PostError;
-use super::program::Written;
-use super::writer::Writer;
+use super::profile::Spindle;
+use super::program::{ProgramSettings, Resolved, Written, pass_depths};
+use super::writer::{Writer, units_point};
 use crate::fit::FittedCut;
 use crate::geom::Move;
 
 impl Writer<'_> {
+    /// Every pass of a cut on a mill or router ([`pass_depths`]; one pass at the full depth for a
+    /// finishing cut): over the plunge point at the retract height, the entry into the pass's
+    /// depth, the runs; then up to the retract height. Returns what the last pass's contour took.
+    pub(super) fn passes(
+        &mut self,
+        cut: &FittedCut,
+        s: &Spindle,
+        settings: &ProgramSettings,
+        r: &Resolved,
+    ) -> Result<Written, PostError> {
+        let units = self.profile.units();
+        let floors = if cut.full_depth_only {
+            vec![settings.depth]
+        } else {
+            pass_depths(settings.depth, settings.stepdown)
+        };
+        let tab_top = -units.from_mm(settings.depth - settings.tab_height);
+        let mut done = Written::default();
+        let mut z_prev = 0.0;
+        let passes = floors.len();
+        for (k, depth) in floors.into_iter().enumerate() {
+            let z = -units.from_mm(depth);
+            if passes > 1 {
+                self.comment(&format!("pass {} of {passes}", k + 1));
+            }
+            self.rapid_z(s.retract_height);
+            self.rapid_xy(units_point(units, cut.plunge));
+            // Down to the top of the stock, or to the floor the last pass left around
+            // the plunge point, then into the new depth.
+            if settings.ramp_angle_deg.is_some() {
+                self.feed_z(z_prev, r.plunge_feed);
+            }
+            let consumed = self.enter(cut, settings, z_prev, z, r.plunge_feed)?;
+            let tabs = if cut.tabs.is_empty() || z >= tab_top {
+                None
+            } else {
+                Some((tab_top, z))
+            };
+            done = self.cut_runs(cut, consumed, r.cut_feed, tabs)?;
+            z_prev = z;
+        }
+        self.rapid_z(s.retract_height);
+        Ok(done)
+    }
+
     /// The runs of a cut at one depth on a mill or router: the clearing and the lead-in (less the
     /// `skip` entry moves the ramp already made), the contour (rising to the tab top over each
     /// tab when `tabs` gives the tab top and the floor), the overcut and the lead-out, each after

@@ -4,12 +4,31 @@
 use super::error::PostError;
 use super::passes::tab_pieces;
 use super::profile::Process;
-use super::program::Written;
+use super::program::{Resolved, Written};
 use super::writer::Writer;
 use crate::fit::FittedCut;
 use crate::geom::Move;
 
 impl Writer<'_> {
+    /// A cut on a laser, plasma table or waterjet, the tool over the pierce point at the safe
+    /// height: down to the pierce height, the process on, the pierce dwell, a feed down to the
+    /// cut height, the runs, the process off.
+    pub(super) fn pierced(
+        &mut self,
+        cut: &FittedCut,
+        p: &Process,
+        r: &Resolved,
+    ) -> Result<Written, PostError> {
+        self.rapid_z(p.pierce_height);
+        self.block(p.on.clone());
+        self.dwell(p.pierce_dwell);
+        self.feed_z(p.cut_height, r.plunge_feed);
+        let gaps = (!cut.tabs.is_empty()).then_some(p);
+        let done = self.cut_runs_process(cut, r.cut_feed, r.plunge_feed, gaps)?;
+        self.block(p.off.clone());
+        Ok(done)
+    }
+
     /// The runs of a cut on a laser, plasma table or waterjet, the process already on at the
     /// pierce point: the lead-in, the contour (with `gaps`, the process off over each tab, moved
     /// across at the pierce height and pierced again after it), the overcut and the lead-out.

@@ -137,54 +137,65 @@ pub fn write_program(
         return Err(PostError::NoCuts);
     }
     check_settings(settings, profile.cutter())?;
-    let units = profile.units();
-    let cut_feed = settings
-        .cut_feed
-        .map_or(profile.cut_feed(), |f| units.from_mm(f));
-    let plunge_feed = settings
-        .plunge_feed
-        .map_or(profile.plunge_feed(), |f| units.from_mm(f));
-    check_feed(profile, "cut feed", cut_feed)?;
-    let plunge_name = match profile.cutter() {
-        Cutter::Spindle(_) => "plunge feed",
-        Cutter::Process(_) => "feed down to the cut height",
-    };
-    check_feed(profile, plunge_name, plunge_feed)?;
-    let mut spindle_speed = 0.0;
-    if let Cutter::Spindle(s) = profile.cutter() {
-        spindle_speed = settings.spindle_speed.unwrap_or(s.speed);
-        if spindle_speed > s.max_speed {
-            return Err(PostError::SpindleTooFast {
-                value: format_number(spindle_speed, 0),
-                max: format_number(s.max_speed, 0),
-                profile: profile.name().to_string(),
-            });
-        }
-    }
-    let r = Resolved {
-        cut_feed,
-        plunge_feed,
-        spindle_speed,
-        floor: -units.from_mm(settings.depth),
-        tool_diameter: settings.tool_diameter,
-        helical: helical(settings, profile),
-    };
+    let r = Resolved::new(profile, settings)?;
     for cut in cuts {
         check_cut(cut, profile, &r)?;
     }
+    let (body, written) = write_body(cuts, profile, settings, &r)?;
+    let head = header(cuts, &written, profile, settings, &r);
+    Ok(assemble(&head, &body))
+}
 
+impl Resolved {
+    /// The feeds and spindle speed of `settings` (or the profile's), refused above the profile's
+    /// limits, in the profile's units.
+    fn new(profile: &MachineProfile, settings: &ProgramSettings) -> Result<Resolved, PostError> {
+        let units = profile.units();
+        let cut_feed = settings
+            .cut_feed
+            .map_or(profile.cut_feed(), |f| units.from_mm(f));
+        let plunge_feed = settings
+            .plunge_feed
+            .map_or(profile.plunge_feed(), |f| units.from_mm(f));
+        check_feed(profile, "cut feed", cut_feed)?;
+        let plunge_name = match profile.cutter() {
+            Cutter::Spindle(_) => "plunge feed",
+            Cutter::Process(_) => "feed down to the cut height",
+        };
+        check_feed(profile, plunge_name, plunge_feed)?;
+        let mut spindle_speed = 0.0;
+        if let Cutter::Spindle(s) = profile.cutter() {
+            spindle_speed = settings.spindle_speed.unwrap_or(s.speed);
+            if spindle_speed > s.max_speed {
+                return Err(PostError::SpindleTooFast {
+                    value: format_number(spindle_speed, 0),
+                    max: format_number(s.max_speed, 0),
+                    profile: profile.name().to_string(),
+                });
+            }
+        }
+        Ok(Resolved {
+            cut_feed,
+            plunge_feed,
+            spindle_speed,
+            floor: -units.from_mm(settings.depth),
+            tool_diameter: settings.tool_diameter,
+            helical: helical(settings, profile),
+        })
+    }
+}
+
+/// The program's blocks after the header: the opening, every cut, the closing; and what was
+/// written for each cut.
+fn write_body(
+    cuts: &[FittedCut],
+    profile: &MachineProfile,
+    settings: &ProgramSettings,
+    r: &Resolved,
+) -> Result<(Vec<String>, Vec<Written>), PostError> {
     let mut w = Writer::new(profile);
+    w.opening(r);
     let mut written = Vec::new();
-    w.block(format!("{} G90 G17 G94 G40", units.g_word()));
-    for line in profile.start_block() {
-        w.block(line.clone());
-    }
-    let safe = profile.safe_height();
-    w.rapid_z(safe);
-    if let Cutter::Spindle(s) = profile.cutter() {
-        w.block(format!("{} S{}", s.on, format_number(spindle_speed, 0)));
-        w.dwell(s.delay);
-    }
     for (i, cut) in cuts.iter().enumerate() {
         w.comment(&format!(
             "cut {} of {}: {}",
@@ -192,77 +203,71 @@ pub fn write_program(
             cuts.len(),
             sanitize(&cut.name)
         ));
-        w.rapid_z(safe);
-        w.rapid_xy(units_point(units, cut.plunge));
-        let done = match profile.cutter() {
-            Cutter::Spindle(s) => {
-                let floors = if cut.full_depth_only {
-                    vec![settings.depth]
-                } else {
-                    pass_depths(settings.depth, settings.stepdown)
-                };
-                let tab_top = -units.from_mm(settings.depth - settings.tab_height);
-                let mut done = Written::default();
-                let mut z_prev = 0.0;
-                let passes = floors.len();
-                for (k, depth) in floors.into_iter().enumerate() {
-                    let z = -units.from_mm(depth);
-                    if passes > 1 {
-                        w.comment(&format!("pass {} of {passes}", k + 1));
-                    }
-                    w.rapid_z(s.retract_height);
-                    w.rapid_xy(units_point(units, cut.plunge));
-                    // Down to the top of the stock, or to the floor the last pass left around
-                    // the plunge point, then into the new depth.
-                    if settings.ramp_angle_deg.is_some() {
-                        w.feed_z(z_prev, plunge_feed);
-                    }
-                    let consumed = w.enter(cut, settings, z_prev, z, plunge_feed)?;
-                    let tabs = if cut.tabs.is_empty() || z >= tab_top {
-                        None
-                    } else {
-                        Some((tab_top, z))
-                    };
-                    done = w.cut_runs(cut, consumed, cut_feed, tabs)?;
-                    z_prev = z;
-                }
-                w.rapid_z(s.retract_height);
-                done
-            }
-            Cutter::Process(p) => {
-                w.rapid_z(p.pierce_height);
-                w.block(p.on.clone());
-                w.dwell(p.pierce_dwell);
-                w.feed_z(p.cut_height, plunge_feed);
-                let gaps = (!cut.tabs.is_empty()).then_some(p);
-                let done = w.cut_runs_process(cut, cut_feed, plunge_feed, gaps)?;
-                w.block(p.off.clone());
-                done
-            }
-        };
-        w.rapid_z(safe);
-        written.push(done);
+        written.push(w.cut(cut, settings, r)?);
     }
-    if let Cutter::Spindle(s) = profile.cutter() {
-        w.block(s.off.clone());
-    }
-    for line in profile.end_block() {
-        w.block(line.clone());
-    }
-    w.block("M30".to_string());
+    w.closing();
     if w.line_number > MAX_LINE_NUMBER + 10 {
         return Err(PostError::TooManyLineNumbers);
     }
+    Ok((w.lines, written))
+}
 
+/// The whole program text: `%`, the header, the body, `%`.
+fn assemble(head: &[String], body: &[String]) -> String {
     let mut out = String::from("%\n");
-    for line in header(cuts, &written, profile, settings, &r) {
-        out.push_str(&line);
-        out.push('\n');
-    }
-    for line in &w.lines {
+    for line in head.iter().chain(body) {
         out.push_str(line);
         out.push('\n');
     }
     out.push_str("%\n");
-    Ok(out)
+    out
+}
+
+impl Writer<'_> {
+    /// The modal line, the profile's start block, a rapid to the safe height, and on a mill or
+    /// router the spindle on (and its delay).
+    fn opening(&mut self, r: &Resolved) {
+        let profile = self.profile;
+        self.block(format!("{} G90 G17 G94 G40", profile.units().g_word()));
+        for line in profile.start_block() {
+            self.block(line.clone());
+        }
+        self.rapid_z(profile.safe_height());
+        if let Cutter::Spindle(s) = profile.cutter() {
+            self.block(format!("{} S{}", s.on, format_number(r.spindle_speed, 0)));
+            self.dwell(s.delay);
+        }
+    }
+
+    /// One cut from the safe height back to it: over the plunge point, then its passes (mill,
+    /// router) or its pierce sequence (laser, plasma, waterjet).
+    fn cut(
+        &mut self,
+        cut: &FittedCut,
+        settings: &ProgramSettings,
+        r: &Resolved,
+    ) -> Result<Written, PostError> {
+        let profile = self.profile;
+        let safe = profile.safe_height();
+        self.rapid_z(safe);
+        self.rapid_xy(units_point(profile.units(), cut.plunge));
+        let done = match profile.cutter() {
+            Cutter::Spindle(s) => self.passes(cut, s, settings, r)?,
+            Cutter::Process(p) => self.pierced(cut, p, r)?,
+        };
+        self.rapid_z(safe);
+        Ok(done)
+    }
+
+    /// On a mill or router the spindle off; the profile's end block and `M30`.
+    fn closing(&mut self) {
+        let profile = self.profile;
+        if let Cutter::Spindle(s) = profile.cutter() {
+            self.block(s.off.clone());
+        }
+        for line in profile.end_block() {
+            self.block(line.clone());
+        }
+        self.block("M30".to_string());
+    }
 }

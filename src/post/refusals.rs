@@ -110,15 +110,39 @@ pub(super) fn check_cut(
             points: cut.moves.len() + 1,
         });
     }
-    // Every run of the cut from where it starts: the clearing and lead-in from the plunge
-    // point, the contour and overcut from the start, the lead-out from the overcut's end.
-    let runs: [(Point, &[Move]); 5] = [
+    let runs = runs_of(cut);
+    check_arcs_allowed(cut, &runs, profile)?;
+    check_finite(cut, &runs)?;
+    let envelope = Envelope {
+        profile,
+        feature: &cut.name,
+    };
+    envelope.check_heights(r)?;
+    envelope.check_plunge(cut)?;
+    for (start, run) in runs {
+        envelope.check_run(start, run)?;
+    }
+    envelope.check_helix(cut, r)
+}
+
+/// Every run of the cut from where it starts: the clearing and lead-in from the plunge point,
+/// the contour and overcut from the start, the lead-out from the overcut's end.
+fn runs_of(cut: &FittedCut) -> [(Point, &[Move]); 5] {
+    [
         (cut.plunge, &cut.clearing),
         (cut.lead_in_start(), &cut.lead_in),
         (cut.start, &cut.moves),
         (cut.start, &cut.overcut),
         (cut.lead_out_start(), &cut.lead_out),
-    ];
+    ]
+}
+
+/// Refuses arcs for a profile that writes straight moves only.
+fn check_arcs_allowed(
+    cut: &FittedCut,
+    runs: &[(Point, &[Move])],
+    profile: &MachineProfile,
+) -> Result<(), PostError> {
     let has_arcs = runs
         .iter()
         .any(|(_, run)| run.iter().any(|m| matches!(m, Move::Arc { .. })));
@@ -128,6 +152,11 @@ pub(super) fn check_cut(
             profile: profile.name().to_string(),
         });
     }
+    Ok(())
+}
+
+/// Refuses a plunge point or a path with a coordinate that is not finite.
+fn check_finite(cut: &FittedCut, runs: &[(Point, &[Move])]) -> Result<(), PostError> {
     if !cut.plunge.is_finite() {
         return Err(PostError::NotFinite {
             feature: cut.name.clone(),
@@ -147,8 +176,19 @@ pub(super) fn check_cut(
             what: "the path",
         });
     }
-    let units = profile.units();
-    let check = |what: &'static str, axis: char, value: f64| {
+    Ok(())
+}
+
+/// The profile's travel envelope, checked for one feature on exact values in the profile's units.
+struct Envelope<'a> {
+    profile: &'a MachineProfile,
+    feature: &'a str,
+}
+
+impl Envelope<'_> {
+    /// Refuses `value` on `axis` outside the travel, naming `what` moves there.
+    fn check(&self, what: &'static str, axis: char, value: f64) -> Result<(), PostError> {
+        let profile = self.profile;
         let (min, max) = profile.travel().limits(axis);
         if value < min || value > max {
             let d = if axis == 'Z' {
@@ -157,38 +197,51 @@ pub(super) fn check_cut(
                 profile.xy_decimals()
             };
             return Err(PostError::OutsideEnvelope {
-                feature: cut.name.clone(),
+                feature: self.feature.to_string(),
                 what,
                 axis,
                 value: format_number(value, d),
                 limits: format!("{} .. {}", format_number(min, d), format_number(max, d)),
-                units,
+                units: profile.units(),
             });
         }
         Ok(())
-    };
-    check("the safe height", 'Z', profile.safe_height())?;
-    match profile.cutter() {
-        Cutter::Spindle(s) => {
-            check("the retract height", 'Z', s.retract_height)?;
-            check("the cut depth", 'Z', r.floor)?;
-        }
-        Cutter::Process(p) => {
-            check("the pierce height", 'Z', p.pierce_height)?;
-            check("the cut height", 'Z', p.cut_height)?;
-        }
     }
-    let plunge = units_point(units, cut.plunge);
-    let entry = match profile.cutter() {
-        Cutter::Spindle(_) => "the plunge point",
-        Cutter::Process(_) => "the pierce point",
-    };
-    check(entry, 'X', plunge.x)?;
-    check(entry, 'Y', plunge.y)?;
-    for (start, run) in runs {
+
+    /// The safe height, and the retract height and floor (mill, router) or the pierce and cut
+    /// heights (laser, plasma, waterjet).
+    fn check_heights(&self, r: &Resolved) -> Result<(), PostError> {
+        self.check("the safe height", 'Z', self.profile.safe_height())?;
+        match self.profile.cutter() {
+            Cutter::Spindle(s) => {
+                self.check("the retract height", 'Z', s.retract_height)?;
+                self.check("the cut depth", 'Z', r.floor)?;
+            }
+            Cutter::Process(p) => {
+                self.check("the pierce height", 'Z', p.pierce_height)?;
+                self.check("the cut height", 'Z', p.cut_height)?;
+            }
+        }
+        Ok(())
+    }
+
+    /// The plunge (or pierce) point.
+    fn check_plunge(&self, cut: &FittedCut) -> Result<(), PostError> {
+        let plunge = units_point(self.profile.units(), cut.plunge);
+        let entry = match self.profile.cutter() {
+            Cutter::Spindle(_) => "the plunge point",
+            Cutter::Process(_) => "the pierce point",
+        };
+        self.check(entry, 'X', plunge.x)?;
+        self.check(entry, 'Y', plunge.y)
+    }
+
+    /// Every point of a run from `start`, arcs by their extremes.
+    fn check_run(&self, start: Point, run: &[Move]) -> Result<(), PostError> {
+        let units = self.profile.units();
         let mut from = units_point(units, start);
-        check("the tool path", 'X', from.x)?;
-        check("the tool path", 'Y', from.y)?;
+        self.check("the tool path", 'X', from.x)?;
+        self.check("the tool path", 'Y', from.y)?;
         for m in run {
             let (what, points) = match *m {
                 Move::Line { to } => ("the tool path", vec![units_point(units, to)]),
@@ -203,20 +256,26 @@ pub(super) fn check_cut(
                 ),
             };
             for q in &points {
-                check(what, 'X', q.x)?;
-                check(what, 'Y', q.y)?;
+                self.check(what, 'X', q.x)?;
+                self.check(what, 'Y', q.y)?;
             }
             from = units_point(units, m.end());
         }
+        Ok(())
     }
-    // A helical entry reaches one helix radius round the plunge point.
-    let helix = helix_radius(r.tool_diameter);
-    if profile.spindle().is_some() && r.helical && cut.entry_room >= helix {
-        let reach = units.from_mm(helix);
-        for (dx, dy) in [(reach, 0.0), (-reach, 0.0), (0.0, reach), (0.0, -reach)] {
-            check("the helical entry", 'X', plunge.x + dx)?;
-            check("the helical entry", 'Y', plunge.y + dy)?;
+
+    /// A helical entry reaches one helix radius round the plunge point.
+    fn check_helix(&self, cut: &FittedCut, r: &Resolved) -> Result<(), PostError> {
+        let profile = self.profile;
+        let helix = helix_radius(r.tool_diameter);
+        if profile.spindle().is_some() && r.helical && cut.entry_room >= helix {
+            let plunge = units_point(profile.units(), cut.plunge);
+            let reach = profile.units().from_mm(helix);
+            for (dx, dy) in [(reach, 0.0), (-reach, 0.0), (0.0, reach), (0.0, -reach)] {
+                self.check("the helical entry", 'X', plunge.x + dx)?;
+                self.check("the helical entry", 'Y', plunge.y + dy)?;
+            }
         }
+        Ok(())
     }
-    Ok(())
 }
