@@ -2,7 +2,7 @@
 //!
 //! Today: the largest ellipse tangent to all four sides of a four-sided bay, with an optional edge
 //! margin (the sides moved inward before solving), in closed form along the Newton line
-//! ([`quad_family`]).
+//! ([`TangentFamily`]).
 
 mod candidate;
 mod conic;
