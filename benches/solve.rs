@@ -7,7 +7,7 @@
 
 use conicut::chain::Bay;
 use conicut::geom::{Line, Point};
-use conicut::solve::constraints::conics_through_and_tangent;
+use conicut::solve::conics_through_and_tangent;
 use conicut::solve::largest_tangent_ellipse;
 use criterion::{Criterion, criterion_group, criterion_main};
 use std::hint::black_box;

@@ -4,8 +4,8 @@
 //! computed independently (numpy / sympy / mpmath; the scripts are named beside each check).
 
 use conicut::geom::{Ellipse, Line, Point, Vec2};
-use conicut::solve::conic::{Conic, ConicKind, ellipse_from_conjugate_semi_diameters};
-use conicut::solve::constraints::{ConstraintError, Solution, conics_through_and_tangent};
+use conicut::solve::{Conic, ConicKind, ellipse_from_conjugate_semi_diameters};
+use conicut::solve::{ConicSolution, ConstraintError, conics_through_and_tangent};
 use nalgebra::{Matrix3, Vector3};
 use proptest::prelude::*;
 use std::f64::consts::{PI, TAU};
@@ -782,7 +782,7 @@ fn homogeneous_line(v: Vector3<f64>) -> Line {
 /// distance of each point from it and the support-function gap of each line, which do not use the
 /// conic code, within `geometric` times the ellipse's size (its semi-major axis plus its centre's
 /// distance from the origin).
-fn check_solution(s: &Solution, case: &Case, geometric: f64) -> Result<(), TestCaseError> {
+fn check_solution(s: &ConicSolution, case: &Case, geometric: f64) -> Result<(), TestCaseError> {
     prop_assert!(
         s.point_residual <= 1e-9,
         "point residual {}",

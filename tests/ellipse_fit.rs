@@ -1,4 +1,4 @@
-//! The least-squares ellipse fit (`conicut::solve::fit`) against the independently computed values
+//! The least-squares ellipse fit (`conicut::solve::least_squares_ellipse`) against the independently computed values
 //! of docs/sources.md M9 (scripts `ellipse_fit.py`, numpy, and
 //! `ellipse_fit_mp.py`, the Halíř–Flusser reduction in 50-digit mpmath arithmetic).
 //!
@@ -6,8 +6,8 @@
 //! angle t_k, displaced along the outward unit normal by δ_k = 0.5 sin(2.3k + 0.7).
 
 use conicut::geom::{Ellipse, Point, Vec2};
-use conicut::solve::conic::ConicKind;
-use conicut::solve::fit::{FitError, fit_ellipse};
+use conicut::solve::ConicKind;
+use conicut::solve::{LeastSquaresError, least_squares_ellipse};
 
 #[path = "support/perturbed_points.rs"]
 mod perturbed_points;
@@ -113,7 +113,7 @@ fn generator_reproduces_the_published_table() {
 fn exact_points_give_the_true_ellipse() {
     // docs/sources.md M9, "exact points (δ = 0)": centre (30, −12), a = 40, b = 15, angle 25°, to
     // 1e-10 in the reference; checked here to 1e-9 absolute.
-    let fit = fit_ellipse(&sample(&full_ts(), 0.0)).unwrap();
+    let fit = least_squares_ellipse(&sample(&full_ts(), 0.0)).unwrap();
     let e = fit.ellipse;
     assert_abs(e.center().x, 30.0, 1e-9, "centre x");
     assert_abs(e.center().y, -12.0, 1e-9, "centre y");
@@ -130,7 +130,7 @@ fn five_exact_points_fix_the_ellipse() {
     // Five points determine a conic (docs/sources.md M5 conventions); five points of the §9 ellipse
     // at uneven angles give it back exactly (1e-9 absolute).
     let ts = [0.3, 1.1, 2.9, 4.0, 5.5];
-    let fit = fit_ellipse(&sample(&ts, 0.0)).unwrap();
+    let fit = least_squares_ellipse(&sample(&ts, 0.0)).unwrap();
     let e = fit.ellipse;
     assert_abs(e.center().x, 30.0, 1e-9, "centre x");
     assert_abs(e.center().y, -12.0, 1e-9, "centre y");
@@ -142,7 +142,7 @@ fn five_exact_points_fix_the_ellipse() {
 #[test]
 fn perturbed_full_ellipse_matches_the_50_digit_reference() {
     // docs/sources.md M9, "perturbed, full ellipse", HF 50 digits: relative error ≤ 1e-9 each.
-    let fit = fit_ellipse(&table_points()).unwrap();
+    let fit = least_squares_ellipse(&table_points()).unwrap();
     assert_matches(&fit.ellipse, &FULL_REFERENCE, 1e-9);
     // The geometric (orthogonal-distance) fit of §9 is a different ellipse (a = 40.0617…): the
     // algebraic fit must not drift towards it (S6).
@@ -153,7 +153,7 @@ fn perturbed_full_ellipse_matches_the_50_digit_reference() {
 fn perturbed_arc_matches_the_50_digit_reference() {
     // docs/sources.md M9, "perturbed, 20 points on the arc t ∈ [0, 2.4]" (t_k = 2.4k/19, same δ_k),
     // HF 50 digits: relative error ≤ 1e-9 each.
-    let fit = fit_ellipse(&sample(&arc_ts(), 0.5)).unwrap();
+    let fit = least_squares_ellipse(&sample(&arc_ts(), 0.5)).unwrap();
     assert_matches(&fit.ellipse, &ARC_REFERENCE, 1e-9);
 }
 
@@ -169,7 +169,7 @@ fn coefficients_are_normalised_to_the_reference_vector() {
         53.35900592541,
         530.7220986405,
     ];
-    let fit = fit_ellipse(&table_points()).unwrap();
+    let fit = least_squares_ellipse(&table_points()).unwrap();
     let c = fit.coefficients;
     let sign = if c[0] * want[0] < 0.0 { -1.0 } else { 1.0 };
     for (i, (&got, &w)) in c.iter().zip(&want).enumerate() {
@@ -211,7 +211,7 @@ fn small_far_rotated_copy_reproduces_the_mapped_reference() {
         ),
     ] {
         let moved: Vec<Point> = points.iter().map(|&p| map(p)).collect();
-        let fit = fit_ellipse(&moved).unwrap();
+        let fit = least_squares_ellipse(&moved).unwrap();
         let want_c = map(Point::new(r.cx, r.cy));
         let e = fit.ellipse;
         // The centre is compared relative to the ellipse's size (0.01 · a): 1e-9 of it.
@@ -236,7 +236,7 @@ fn residuals_are_geometric_distances() {
     // best one by golden-section search (agreement to 1e-9 mm), against `max_residual`,
     // `rms_residual` and `Ellipse::distance_to` for the point furthest out.
     let points = table_points();
-    let fit = fit_ellipse(&points).unwrap();
+    let fit = least_squares_ellipse(&points).unwrap();
     let e = fit.ellipse;
     let brute = |p: Point| {
         let n = 200_000;
@@ -286,30 +286,39 @@ fn residuals_are_geometric_distances() {
 #[test]
 fn refuses_too_few_points() {
     let pts = &table_points()[..4];
-    assert_eq!(fit_ellipse(pts), Err(FitError::TooFewPoints { found: 4 }));
-    assert_eq!(fit_ellipse(&[]), Err(FitError::TooFewPoints { found: 0 }));
+    assert_eq!(
+        least_squares_ellipse(pts),
+        Err(LeastSquaresError::TooFewPoints { found: 4 })
+    );
+    assert_eq!(
+        least_squares_ellipse(&[]),
+        Err(LeastSquaresError::TooFewPoints { found: 0 })
+    );
 }
 
 #[test]
 fn refuses_non_finite_coordinates() {
     let mut pts = table_points();
     pts[6].y = f64::NAN;
-    match fit_ellipse(&pts) {
-        Err(FitError::NotFinite { index: 7, .. }) => {}
+    match least_squares_ellipse(&pts) {
+        Err(LeastSquaresError::NotFinite { index: 7, .. }) => {}
         other => panic!("expected NotFinite at point 7, got {other:?}"),
     }
     pts[6].y = 1.0;
     pts[2].x = f64::INFINITY;
     assert!(matches!(
-        fit_ellipse(&pts),
-        Err(FitError::NotFinite { index: 3, .. })
+        least_squares_ellipse(&pts),
+        Err(LeastSquaresError::NotFinite { index: 3, .. })
     ));
 }
 
 #[test]
 fn refuses_coincident_points() {
     let pts = vec![Point::new(12.5, -3.0); 10];
-    assert_eq!(fit_ellipse(&pts), Err(FitError::Coincident { points: 10 }));
+    assert_eq!(
+        least_squares_ellipse(&pts),
+        Err(LeastSquaresError::Coincident { points: 10 })
+    );
 }
 
 #[test]
@@ -319,8 +328,8 @@ fn refuses_collinear_points() {
         .map(|k| Point::new(k as f64 * 0.5, k as f64 - 1.0))
         .collect();
     assert!(matches!(
-        fit_ellipse(&pts),
-        Err(FitError::Collinear { points: 12, .. })
+        least_squares_ellipse(&pts),
+        Err(LeastSquaresError::Collinear { points: 12, .. })
     ));
 }
 
@@ -332,8 +341,8 @@ fn refuses_fewer_than_five_distinct_points() {
         .map(|k| Point::new(four[k % 4].0, four[k % 4].1))
         .collect();
     assert!(matches!(
-        fit_ellipse(&pts),
-        Err(FitError::Underdetermined { points: 20, .. })
+        least_squares_ellipse(&pts),
+        Err(LeastSquaresError::Underdetermined { points: 20, .. })
     ));
 }
 
@@ -347,9 +356,9 @@ fn refuses_points_on_a_hyperbola() {
         pts.push(Point::new(3.0 * u.cosh(), 2.0 * u.sinh()));
         pts.push(Point::new(-3.0 * u.cosh(), 2.0 * u.sinh()));
     }
-    match fit_ellipse(&pts) {
+    match least_squares_ellipse(&pts) {
         Err(
-            e @ FitError::NotAnEllipse {
+            e @ LeastSquaresError::NotAnEllipse {
                 kind: ConicKind::Hyperbola,
                 ..
             },
@@ -372,8 +381,8 @@ fn refuses_points_on_a_parabola() {
         .map(|k| Point::new(2.0 * k as f64, 0.4 * (k * k) as f64))
         .collect();
     assert!(matches!(
-        fit_ellipse(&pts),
-        Err(FitError::NotAnEllipse {
+        least_squares_ellipse(&pts),
+        Err(LeastSquaresError::NotAnEllipse {
             kind: ConicKind::Parabola,
             ..
         })
@@ -394,8 +403,8 @@ fn refuses_points_on_two_lines() {
     ]
     .map(|(x, y)| Point::new(x, y));
     assert!(matches!(
-        fit_ellipse(&pts),
-        Err(FitError::NotAnEllipse {
+        least_squares_ellipse(&pts),
+        Err(LeastSquaresError::NotAnEllipse {
             kind: ConicKind::LinePair,
             ..
         })
@@ -414,7 +423,7 @@ fn points_read_from_csv_fit_to_the_reference() {
     }
     let points = parse_points_csv(&csv, "scan.csv", Units::Inches).unwrap();
     assert_eq!(points.len(), 20);
-    let fit = fit_ellipse(&points).unwrap();
+    let fit = least_squares_ellipse(&points).unwrap();
     assert_matches(&fit.ellipse, &FULL_REFERENCE, 1e-9);
 }
 
@@ -425,7 +434,7 @@ fn refuses_points_all_but_one_on_a_line() {
     let mut pts: Vec<Point> = (0..6).map(|k| Point::new(k as f64, 0.0)).collect();
     pts.push(Point::new(2.5, 3.0));
     assert!(matches!(
-        fit_ellipse(&pts),
-        Err(FitError::Underdetermined { points: 7, .. })
+        least_squares_ellipse(&pts),
+        Err(LeastSquaresError::Underdetermined { points: 7, .. })
     ));
 }

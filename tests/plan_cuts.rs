@@ -11,7 +11,7 @@ use conicut::geom::{Ellipse, Point, Segment};
 use conicut::plan::{CutSide, Opening, PlanError, PlanOptions, plan_cuts};
 use conicut::read::{ReadOptions, read_dxf};
 use conicut::settings::job_file::Rule;
-use conicut::solve::feature::solve_bay;
+use conicut::solve::solve_bay;
 
 fn plan_one(e: Ellipse, diameter: f64) -> Result<(), PlanError> {
     let part = Part::default();

@@ -7,9 +7,9 @@
 
 use conicut::chain::Bay;
 use conicut::geom::Point;
-use conicut::solve::conic::ConicKind;
-use conicut::solve::feature::solve_bay;
-use conicut::solve::quad_rules::Rule;
+use conicut::solve::ConicKind;
+use conicut::solve::Rule;
+use conicut::solve::solve_bay;
 use std::f64::consts::PI;
 
 fn bay(corners: &[(f64, f64)]) -> Bay {

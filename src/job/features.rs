@@ -7,10 +7,10 @@ use crate::read::{Drawing, EntityKind};
 use crate::settings::job_file::{
     BaySelect, CutKind, FeatureSource, FeatureSpec, FitPoints, LineSource, PointSource, Rule,
 };
-use crate::solve::candidate::{Candidate, Solution};
-use crate::solve::constraints::conics_through_and_tangent;
-use crate::solve::feature::{Failure, solve_bay};
-use crate::solve::fit::fit_ellipse;
+use crate::solve::conics_through_and_tangent;
+use crate::solve::least_squares_ellipse;
+use crate::solve::{Candidate, Solution};
+use crate::solve::{Failure, solve_bay};
 use serde::Serialize;
 use std::collections::BTreeMap;
 
@@ -194,7 +194,7 @@ fn fit_feature(out: &mut SolvedFeature, inputs: &FeatureInputs, points: &FitPoin
         Err(_) => "fit to measured points".into(),
     };
     out.outcome = pts.map_err(failure).and_then(|p| {
-        let f = fit_ellipse(&p).map_err(|e| failure(e.to_string()))?;
+        let f = least_squares_ellipse(&p).map_err(|e| failure(e.to_string()))?;
         out.fit = Some(FitQuality {
             points: f.points,
             rms_residual_mm: f.rms_residual,
@@ -202,9 +202,9 @@ fn fit_feature(out: &mut SolvedFeature, inputs: &FeatureInputs, points: &FitPoin
         });
         let c = Candidate {
             kind: if (f.ellipse.a() - f.ellipse.b()) <= 1e-9 * f.ellipse.a() {
-                crate::solve::conic::ConicKind::Circle
+                crate::solve::ConicKind::Circle
             } else {
-                crate::solve::conic::ConicKind::Ellipse
+                crate::solve::ConicKind::Ellipse
             },
             ellipse: Some(f.ellipse),
             parameter: None,

@@ -4,8 +4,8 @@
 use super::features::SolvedFeature;
 use crate::report::write_list;
 use crate::settings::job_file::CutKind;
-use crate::solve::candidate::Candidate;
-use crate::solve::conic::ConicKind;
+use crate::solve::Candidate;
+use crate::solve::ConicKind;
 use serde::Serialize;
 use std::fmt::Write as _;
 

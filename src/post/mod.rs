@@ -20,17 +20,26 @@
 //! written.
 
 mod arcs;
+mod entries;
+mod error;
+mod header;
 mod number;
+mod passes;
+mod pierce;
 mod profile;
 mod program;
+mod refusals;
 mod safety;
+mod writer;
 
 pub use arcs::{MAX_SPLITS, RADIUS_MARGIN};
+pub use error::PostError;
 pub use number::format_number;
 pub(crate) use profile::format_limit;
 pub use profile::{
     ArcForm, CommentStyle, Cutter, DwellUnit, MAX_DECIMALS, MM_PER_INCH, MachineKind,
     MachineProfile, Process, ProgramUnits, Spindle, TravelEnvelope, radius_rule,
 };
-pub use program::{PostError, ProgramSettings, pass_depths, sanitize, write_program};
+pub use program::{ProgramSettings, pass_depths, write_program};
 pub use safety::{PRECEDENCE, SAFETY_HEADING, cautions};
+pub use writer::sanitize;

@@ -320,90 +320,114 @@ fn cut_group(input: &PreviewInput, frame: &Frame) -> Group {
     let show_band = input.tool_diameter.is_finite() && input.tool_diameter > 0.0;
     let mut previous_end: Option<Point> = None;
     for cut in input.cuts {
-        let path = drawn_path(cut);
         if show_band {
-            bands = bands.add(
-                Path::new()
-                    .set("class", "tool-band")
-                    .set("data-name", cut.name.as_str())
-                    .set("d", moves_d(None, cut.start, &cut.moves))
-                    .set("stroke-width", num(input.tool_diameter)),
-            );
+            bands = bands.add(tool_band(cut, input.tool_diameter));
         }
         if let Some(from) = previous_end
             && from.is_finite()
             && cut.plunge.is_finite()
         {
-            paths = paths.add(
-                Path::new()
-                    .set("class", "rapid")
-                    .set("d", polyline_d(&[from, cut.plunge], false))
-                    .set("fill", "none")
-                    .set("stroke", palette::RAPID)
-                    .set("stroke-width", num(u))
-                    .set(
-                        "stroke-dasharray",
-                        format!("{} {}", num(3.0 * u), num(3.0 * u)),
-                    ),
-            );
+            paths = paths.add(rapid(from, cut.plunge, u));
         }
-        // The clearing and the lead-in, the contour, then the overcut and the lead-out.
-        for (class, from, moves) in runs(cut) {
-            if moves.is_empty() {
-                continue;
-            }
-            let (colour, width) = match class {
-                "tool-path" => (palette::TOOL, 1.5 * u),
-                "clearing" => (palette::CLEARING, 1.2 * u),
-                _ => (palette::LEAD, 1.5 * u),
-            };
-            paths = paths.add(
-                Path::new()
-                    .set("class", class)
-                    .set("data-name", cut.name.as_str())
-                    .set("d", moves_d(None, from, moves))
-                    .set("fill", "none")
-                    .set("stroke", colour)
-                    .set("stroke-width", num(width))
-                    .set("stroke-linejoin", "round"),
-            );
-        }
+        paths = run_paths(paths, cut, u);
         paths = tab_marks(paths, cut, u);
-        for (at, dir) in arrow_spots(&path, &[0.2, 0.7]) {
-            paths = paths.add(
-                Path::new()
-                    .set("class", "direction")
-                    .set("data-name", cut.name.as_str())
-                    .set("d", arrow_d(at, dir, 9.0 * u))
-                    .set("fill", palette::TOOL),
-            );
-        }
-        if cut.plunge.is_finite() {
-            let (x, y) = frame.svg_xy(cut.plunge);
-            paths = paths.add(
-                Circle::new()
-                    .set("class", "plunge")
-                    .set("data-name", cut.name.as_str())
-                    .set("cx", num(x))
-                    .set("cy", num(y))
-                    .set("r", num(4.0 * u))
-                    .set("fill", palette::BACKGROUND)
-                    .set("fill-opacity", "0.6")
-                    .set("stroke", palette::PLUNGE)
-                    .set("stroke-width", num(1.5 * u)),
-            );
-            paths = paths.add(
-                Circle::new()
-                    .set("class", "plunge-centre")
-                    .set("cx", num(x))
-                    .set("cy", num(y))
-                    .set("r", num(1.2 * u))
-                    .set("fill", palette::PLUNGE),
-            );
-        }
+        paths = direction_arrows(paths, cut, u);
+        paths = plunge_marks(paths, cut, frame, u);
         previous_end = Some(cut.end());
     }
     Group::new().set("class", "cuts").add(bands).add(paths)
+}
+
+/// The band the tool sweeps along the contour of `cut`, `diameter` wide.
+fn tool_band(cut: &FittedCut, diameter: f64) -> Path {
+    Path::new()
+        .set("class", "tool-band")
+        .set("data-name", cut.name.as_str())
+        .set("d", moves_d(None, cut.start, &cut.moves))
+        .set("stroke-width", num(diameter))
+}
+
+/// The rapid from the end of one cut to the plunge point of the next, dashed.
+fn rapid(from: Point, to: Point, u: f64) -> Path {
+    Path::new()
+        .set("class", "rapid")
+        .set("d", polyline_d(&[from, to], false))
+        .set("fill", "none")
+        .set("stroke", palette::RAPID)
+        .set("stroke-width", num(u))
+        .set(
+            "stroke-dasharray",
+            format!("{} {}", num(3.0 * u), num(3.0 * u)),
+        )
+}
+
+/// Adds the runs of `cut` to `g`: the clearing and the lead-in, the contour, then the overcut and
+/// the lead-out.
+fn run_paths(mut g: Group, cut: &FittedCut, u: f64) -> Group {
+    for (class, from, moves) in runs(cut) {
+        if moves.is_empty() {
+            continue;
+        }
+        let (colour, width) = match class {
+            "tool-path" => (palette::TOOL, 1.5 * u),
+            "clearing" => (palette::CLEARING, 1.2 * u),
+            _ => (palette::LEAD, 1.5 * u),
+        };
+        g = g.add(
+            Path::new()
+                .set("class", class)
+                .set("data-name", cut.name.as_str())
+                .set("d", moves_d(None, from, moves))
+                .set("fill", "none")
+                .set("stroke", colour)
+                .set("stroke-width", num(width))
+                .set("stroke-linejoin", "round"),
+        );
+    }
+    g
+}
+
+/// Adds arrows showing the direction of travel of `cut` to `g`, at 20 % and 70 % of its path.
+fn direction_arrows(mut g: Group, cut: &FittedCut, u: f64) -> Group {
+    let path = drawn_path(cut);
+    for (at, dir) in arrow_spots(&path, &[0.2, 0.7]) {
+        g = g.add(
+            Path::new()
+                .set("class", "direction")
+                .set("data-name", cut.name.as_str())
+                .set("d", arrow_d(at, dir, 9.0 * u))
+                .set("fill", palette::TOOL),
+        );
+    }
+    g
+}
+
+/// Adds the plunge point of `cut` to `g`: a ring and its centre dot.
+fn plunge_marks(mut g: Group, cut: &FittedCut, frame: &Frame, u: f64) -> Group {
+    if !cut.plunge.is_finite() {
+        return g;
+    }
+    let (x, y) = frame.svg_xy(cut.plunge);
+    g = g.add(
+        Circle::new()
+            .set("class", "plunge")
+            .set("data-name", cut.name.as_str())
+            .set("cx", num(x))
+            .set("cy", num(y))
+            .set("r", num(4.0 * u))
+            .set("fill", palette::BACKGROUND)
+            .set("fill-opacity", "0.6")
+            .set("stroke", palette::PLUNGE)
+            .set("stroke-width", num(1.5 * u)),
+    );
+    g.add(
+        Circle::new()
+            .set("class", "plunge-centre")
+            .set("cx", num(x))
+            .set("cy", num(y))
+            .set("r", num(1.2 * u))
+            .set("fill", palette::PLUNGE),
+    )
 }
 
 /// Adds each tab of `cut` to `g`: the uncut stretch of the tool-centre path drawn over it, wide

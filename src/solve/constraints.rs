@@ -40,7 +40,7 @@
 //! the line conic when the routine gives it directly or in closed form (0+5, 1+4, 2+3, 3+2), which
 //! stays accurate for very thin ellipses, and from the point conic otherwise (5+0, 4+1). Its residuals
 //! are measured in the same frame, each constraint on the conic it is linear in (points on `C`,
-//! lines on `adj C`); see [`Solution`].
+//! lines on `adj C`); see [`ConicSolution`].
 //!
 //! The world-frame [`Conic`] of a solution is exact up to rounding, but for a very thin ellipse
 //! far from the origin its adjugate can drown in rounding, so tangency is better judged on the
@@ -74,7 +74,7 @@ type V3 = Vector3<f64>;
 
 /// One real conic through the given points and tangent to the given lines.
 #[derive(Debug, Clone, PartialEq, Serialize)]
-pub struct Solution {
+pub struct ConicSolution {
     /// The conic in world coordinates (normalised).
     pub conic: Conic,
     /// What it is (classified in the normalised frame).
@@ -157,7 +157,25 @@ pub enum ConstraintError {
 pub fn conics_through_and_tangent(
     points: &[Point],
     lines: &[Line],
-) -> Result<Vec<Solution>, ConstraintError> {
+) -> Result<Vec<ConicSolution>, ConstraintError> {
+    check_input(points, lines)?;
+    let frame = Frame::new(points, lines);
+    let hp: Vec<V3> = points.iter().map(|&q| frame.point(q)).collect();
+    let hl: Vec<V3> = lines.iter().map(|l| frame.line(l)).collect();
+    check_configuration(points, lines, &hp, &hl)?;
+    let (found, dual) = solve_local(&hp, &hl)?;
+    if found.is_empty() {
+        let reason = no_real_reason(points, lines, dual);
+        return Err(ConstraintError::NoRealSolution { reason });
+    }
+    found
+        .into_iter()
+        .map(|f| solution(&frame, f, dual, &hp, &hl))
+        .collect()
+}
+
+/// Five conditions in all, every coordinate finite.
+fn check_input(points: &[Point], lines: &[Line]) -> Result<(), ConstraintError> {
     let (p, t) = (points.len(), lines.len());
     if p + t != 5 {
         return Err(ConstraintError::WrongCount {
@@ -180,66 +198,62 @@ pub fn conics_through_and_tangent(
             index: i + 1,
         });
     }
-    let frame = Frame::new(points, lines);
-    let hp: Vec<V3> = points.iter().map(|&q| frame.point(q)).collect();
-    let hl: Vec<V3> = lines.iter().map(|l| frame.line(l)).collect();
-    check_configuration(points, lines, &hp, &hl)?;
+    Ok(())
+}
 
-    // (local matrices, whether they are dual conics)
-    let (found, dual) = match (p, t) {
-        (5, 0) => (vec![Found::plain(through_five(&hp))], false),
-        (0, 5) => (vec![Found::plain(through_five(&hl))], true),
-        (4, 1) => (through_four_touching_one(&hp, &hl[0]), false),
-        (1, 4) => (through_four_touching_one(&hl, &hp[0]), true),
+/// The conics found in the normalised frame for the homogeneous points `hp` and lines `hl`, and
+/// whether they are dual (line) conics.
+fn solve_local(hp: &[V3], hl: &[V3]) -> Result<(Vec<Found>, bool), ConstraintError> {
+    Ok(match (hp.len(), hl.len()) {
+        (5, 0) => (vec![Found::plain(through_five(hp))], false),
+        (0, 5) => (vec![Found::plain(through_five(hl))], true),
+        (4, 1) => (through_four_touching_one(hp, &hl[0]), false),
+        (1, 4) => (through_four_touching_one(hl, &hp[0]), true),
         (3, 2) => (
-            through_three_touching_two(&hp, &hl[0], &hl[1])
+            through_three_touching_two(hp, &hl[0], &hl[1])
                 .map_err(|xy| mixed_sides_error(&xy, false))?,
             false,
         ),
         (2, 3) => (
-            through_three_touching_two(&hl, &hp[0], &hp[1])
+            through_three_touching_two(hl, &hp[0], &hp[1])
                 .map_err(|xy| mixed_sides_error(&xy, true))?,
             true,
         ),
         _ => unreachable!("p + t = 5 was checked"),
-    };
-    if found.is_empty() {
-        let reason = if dual {
-            "the pairs of tangents from the point to the conics touching the four lines \
+    })
+}
+
+/// Why no real conic exists when the 4+1 (or, `dual`, the 1+4) quadratic has no real root.
+fn no_real_reason(points: &[Point], lines: &[Line], dual: bool) -> String {
+    if dual {
+        return "the pairs of tangents from the point to the conics touching the four lines \
              separate each other (Desargues' involution on the lines through the point has no \
              fixed line), so no real conic touching the four lines passes through the point. \
              (For the four sides of a convex bay, a point inside the bay and off its diagonals \
              always has two; Horwitz 2015, docs/sources.md M5)"
-                .to_string()
-        } else {
-            let line = &lines[0];
-            let left = points
-                .iter()
-                .filter(|&&q| line.signed_distance(q) > 0.0)
-                .count();
-            let position = if convex_position(points) {
-                "are the corners of a convex quadrilateral"
-            } else {
-                "are not in convex position (one lies inside the triangle of the others)"
-            };
-            format!(
-                "every conic through the four points crosses the line, and their pairs of \
-                 crossing points separate each other (Desargues' involution on the line has no \
-                 fixed point). Here the line has {} of the points on one side and {} on the \
-                 other, and the points {position}",
-                left.max(4 - left),
-                left.min(4 - left)
-            )
-        };
-        return Err(ConstraintError::NoRealSolution { reason });
+            .to_string();
     }
-    found
-        .into_iter()
-        .map(|f| solution(&frame, f, dual, &hp, &hl))
-        .collect()
+    let line = &lines[0];
+    let left = points
+        .iter()
+        .filter(|&&q| line.signed_distance(q) > 0.0)
+        .count();
+    let position = if convex_position(points) {
+        "are the corners of a convex quadrilateral"
+    } else {
+        "are not in convex position (one lies inside the triangle of the others)"
+    };
+    format!(
+        "every conic through the four points crosses the line, and their pairs of \
+         crossing points separate each other (Desargues' involution on the line has no \
+         fixed point). Here the line has {} of the points on one side and {} on the \
+         other, and the points {position}",
+        left.max(4 - left),
+        left.min(4 - left)
+    )
 }
 
-/// Builds a [`Solution`] from a conic found in the normalised frame (`dual`: a line conic).
+/// Builds a [`ConicSolution`] from a conic found in the normalised frame (`dual`: a line conic).
 ///
 /// The point conic `C` and line conic `D = adj C` are both needed: one is what the routine
 /// found, the other its closed-form adjugate (3+2, 2+3) or, failing that, the cofactors. The
@@ -255,7 +269,7 @@ fn solution(
     dual: bool,
     hp: &[V3],
     hl: &[V3],
-) -> Result<Solution, ConstraintError> {
+) -> Result<ConicSolution, ConstraintError> {
     let breakdown = |what: String| ConstraintError::Degenerate {
         reason: format!("a solution {what}"),
     };
@@ -279,7 +293,7 @@ fn solution(
         .map_err(|e| breakdown(e.to_string()))?;
     let point_residual = hp.iter().map(|x| relative_form(&c, x)).fold(0.0, f64::max);
     let tangency_residual = hl.iter().map(|l| relative_form(&d, l)).fold(0.0, f64::max);
-    Ok(Solution {
+    Ok(ConicSolution {
         conic,
         kind,
         ellipse,

@@ -2,24 +2,32 @@
 //!
 //! Today: the largest ellipse tangent to all four sides of a four-sided bay, with an optional edge
 //! margin (the sides moved inward before solving), in closed form along the Newton line
-//! ([`quad_family`]).
+//! ([`TangentFamily`]).
 
-pub mod candidate;
-pub mod conic;
-pub mod constraints;
-pub mod contained;
-pub mod feature;
-pub mod fit;
-pub mod pentagon;
-pub mod quad_family;
-pub mod quad_rules;
-pub mod triangle;
+mod candidate;
+mod conic;
+mod constraints;
+mod contained;
+mod feature;
+mod least_squares;
+mod pentagon;
+mod quad_family;
+mod quad_rules;
+mod triangle;
 
 use crate::chain::Bay;
 use crate::geom::{Ellipse, Line, Point, Vec2};
 use serde::Serialize;
 
+pub use candidate::{Candidate, Solution};
+pub use conic::{
+    Conic, ConicError, ConicKind, DualConic, NotAnEllipse, ellipse_from_conjugate_semi_diameters,
+};
+pub use constraints::{ConicSolution, ConstraintError, conics_through_and_tangent};
+pub use feature::{BaySolution, Failure, solve_bay};
+pub use least_squares::{LeastSquaresEllipse, LeastSquaresError, least_squares_ellipse};
 pub use quad_family::TangentFamily;
+pub use quad_rules::Rule;
 
 /// Relative size below which a bay counts as degenerate: a side shorter than this fraction of the
 /// bay's diameter, or an area below this fraction of the diameter squared.

@@ -130,166 +130,216 @@ pub fn choose(
     corners: &[Point],
     rule: &Rule,
 ) -> Result<Solution, RuleFailure> {
-    let largest_t = family.largest_area_parameter();
-    let largest_area = largest_t.map(|t| PI * family.axes_product_squared(t).max(0.0).sqrt());
-    let fail = |reason: String, candidates: Vec<Candidate>| RuleFailure { reason, candidates };
+    match *rule {
+        Rule::Largest | Rule::LargestInside => choose_largest(family, corners),
+        Rule::Area(area) => choose_area(family, corners, area),
+        Rule::SemiAxesSquared(s) => choose_semi_axes_squared(family, corners, s),
+        Rule::SemiMajor(axis) => choose_semi_axis(family, corners, axis, true),
+        Rule::SemiMinor(axis) => choose_semi_axis(family, corners, axis, false),
+        Rule::Roundest => choose_roundest(family, corners),
+        Rule::CentreNear(x) => choose_centre_near(family, corners, x),
+    }
+}
+
+fn fail(reason: String, candidates: Vec<Candidate>) -> RuleFailure {
+    RuleFailure { reason, candidates }
+}
+
+/// The largest member: the one maximum of `a²b²` along the family.
+fn choose_largest(family: &TangentFamily, corners: &[Point]) -> Result<Solution, RuleFailure> {
+    let t = family
+        .largest_area_parameter()
+        .ok_or_else(|| fail("the area has no maximum inside the bay".into(), vec![]))?;
+    let c = member(family, t, corners);
+    pick_one(
+        vec![c],
+        "the only maximum of the area along the family".into(),
+    )
+}
+
+/// The member(s) of area `area`: roots of `a²b² = (A/π)²`.
+fn choose_area(
+    family: &TangentFamily,
+    corners: &[Point],
+    area: f64,
+) -> Result<Solution, RuleFailure> {
+    if !(area > 0.0 && area.is_finite()) {
+        return Err(fail(
+            format!("the area must be positive (got {area})"),
+            vec![],
+        ));
+    }
+    let largest_area = family
+        .largest_area_parameter()
+        .map(|t| PI * family.axes_product_squared(t).max(0.0).sqrt());
+    let target = (area / PI).powi(2);
+    let eq = poly::add_scaled(&family.axes_product_squared_poly(), &[target], -1.0);
+    let cands = all_members(family, corners, &eq);
+    pick_roundest(cands, |_| true).map_err(|c| {
+        fail(
+            format!(
+                "no ellipse of area {area:.3} mm² touches all four sides inside the bay; \
+                 the largest that does has area {:.3} mm²",
+                largest_area.unwrap_or(0.0)
+            ),
+            c,
+        )
+    })
+}
+
+/// The member(s) with `a² + b² = s`.
+fn choose_semi_axes_squared(
+    family: &TangentFamily,
+    corners: &[Point],
+    s: f64,
+) -> Result<Solution, RuleFailure> {
+    if !(s > 0.0 && s.is_finite()) {
+        return Err(fail(format!("a² + b² must be positive (got {s})"), vec![]));
+    }
+    let sum = family.axes_sum_squared_poly();
+    let eq = poly::add_scaled(&sum, &[s], -1.0);
+    let cands = all_members(family, corners, &eq);
+    let (lo, hi) = range_on_unit(&sum);
+    pick_roundest(cands, |_| true).map_err(|c| {
+        fail(
+            format!(
+                "no ellipse touching all four sides inside the bay has a² + b² = {s:.3} \
+                 mm²; inside the bay a² + b² runs from {lo:.3} to {hi:.3} mm²"
+            ),
+            c,
+        )
+    })
+}
+
+/// The member(s) with semi-major (`major`) or semi-minor axis `axis`:
+/// roots of `(A² − a²)(A² − b²) = 0`, those where `axis` is the other axis marked not cuttable.
+fn choose_semi_axis(
+    family: &TangentFamily,
+    corners: &[Point],
+    axis: f64,
+    major: bool,
+) -> Result<Solution, RuleFailure> {
+    let word = if major { "semi-major" } else { "semi-minor" };
+    if !(axis > 0.0 && axis.is_finite()) {
+        return Err(fail(
+            format!("the {word} axis must be positive (got {axis})"),
+            vec![],
+        ));
+    }
     let sum = family.axes_sum_squared_poly();
     let prod = family.axes_product_squared_poly();
-    match *rule {
-        Rule::Largest | Rule::LargestInside => {
-            let t = largest_t
-                .ok_or_else(|| fail("the area has no maximum inside the bay".into(), vec![]))?;
-            let c = member(family, t, corners);
-            pick_one(
-                vec![c],
-                "the only maximum of the area along the family".into(),
-            )
-        }
-        Rule::Area(area) => {
-            if !(area > 0.0 && area.is_finite()) {
-                return Err(fail(
-                    format!("the area must be positive (got {area})"),
-                    vec![],
-                ));
-            }
-            let target = (area / PI).powi(2);
-            let eq = poly::add_scaled(&prod, &[target], -1.0);
-            let cands = all_members(family, corners, &eq);
-            pick_roundest(cands, |_| true).map_err(|c| {
-                fail(
-                    format!(
-                        "no ellipse of area {area:.3} mm² touches all four sides inside the bay; \
-                         the largest that does has area {:.3} mm²",
-                        largest_area.unwrap_or(0.0)
-                    ),
-                    c,
-                )
-            })
-        }
-        Rule::SemiAxesSquared(s) => {
-            if !(s > 0.0 && s.is_finite()) {
-                return Err(fail(format!("a² + b² must be positive (got {s})"), vec![]));
-            }
-            let eq = poly::add_scaled(&sum, &[s], -1.0);
-            let cands = all_members(family, corners, &eq);
-            let (lo, hi) = range_on_unit(&sum);
-            pick_roundest(cands, |_| true).map_err(|c| {
-                fail(
-                    format!(
-                        "no ellipse touching all four sides inside the bay has a² + b² = {s:.3} \
-                         mm²; inside the bay a² + b² runs from {lo:.3} to {hi:.3} mm²"
-                    ),
-                    c,
-                )
-            })
-        }
-        Rule::SemiMajor(axis) | Rule::SemiMinor(axis) => {
-            let major = matches!(rule, Rule::SemiMajor(_));
-            let word = if major { "semi-major" } else { "semi-minor" };
-            if !(axis > 0.0 && axis.is_finite()) {
-                return Err(fail(
-                    format!("the {word} axis must be positive (got {axis})"),
-                    vec![],
-                ));
-            }
-            let a2 = axis * axis;
-            // (A² − a²)(A² − b²) = a²b² − A²(a² + b²) + A⁴
-            let eq = poly::add_scaled(&poly::add_scaled(&prod, &sum, -a2), &[a2 * a2], 1.0);
-            let mut cands = all_members(family, corners, &eq);
-            for c in &mut cands {
-                if let Some(e) = c.ellipse {
-                    let (mine, other) = if major {
-                        (e.a(), e.b())
-                    } else {
-                        (e.b(), e.a())
-                    };
-                    if (mine - axis).abs() > AXIS_MATCH_RELATIVE * axis
-                        && (other - axis).abs() <= AXIS_MATCH_RELATIVE * axis
-                    {
-                        c.cuttable = false;
-                        c.note = format!(
-                            "{axis} mm is this ellipse's {} axis, not its {word} axis",
-                            if major { "semi-minor" } else { "semi-major" }
-                        );
-                    }
-                }
-            }
-            pick_roundest(cands, |_| true).map_err(|c| {
-                fail(
-                    format!(
-                        "no ellipse touching all four sides inside the bay has a {word} axis of \
-                         {axis:.3} mm"
-                    ),
-                    c,
-                )
-            })
-        }
-        Rule::Roundest => {
-            // 2 S′ P − S P′ = 0
-            let ds = poly::derivative(&sum);
-            let dp = poly::derivative(&prod);
-            let eq = poly::add_scaled(
-                &poly::mul(&poly::mul(&[2.0], &ds), &prod),
-                &poly::mul(&sum, &dp),
-                -1.0,
-            );
-            let roots = poly::real_roots_in(&eq, 0.0, 1.0);
-            let cands: Vec<Candidate> = roots
-                .iter()
-                .filter(|t| **t > 0.0 && **t < 1.0)
-                .map(|&t| member(family, t, corners))
-                .collect();
-            let best = cands
-                .iter()
-                .enumerate()
-                .filter(|(_, c)| c.cuttable)
-                .max_by(|(_, x), (_, y)| ratio(x).total_cmp(&ratio(y)))
-                .map(|(i, _)| i);
-            match best {
-                Some(i) => Solution::new(
-                    cands,
-                    i,
-                    "the member whose axes are closest to equal (least eccentricity)".into(),
-                )
-                .ok_or_else(|| fail("no cuttable member".into(), vec![])),
-                None => Err(fail(
-                    "no member of least eccentricity was found inside the bay".into(),
-                    cands,
-                )),
-            }
-        }
-        Rule::CentreNear(x) => {
-            if family.is_parallelogram() {
-                return Err(fail(
-                    "in a parallelogram every ellipse touching the four sides has the same \
-                     centre (where the diagonals cross), so a centre does not pick one; use \
-                     rule largest or roundest"
-                        .into(),
-                    vec![],
-                ));
-            }
-            let (m1, m2) = family.newton_segment();
-            let w = m2 - m1;
-            let t = (x - m1).dot(w) / w.length_squared();
-            if !(t > 0.0 && t < 1.0) {
-                return Err(fail(
-                    format!(
-                        "the centres of ellipses touching all four sides lie strictly between \
-                         ({:.3}, {:.3}) and ({:.3}, {:.3}) (the midpoints of the diagonals); the \
-                         point ({:.3}, {:.3}) is nearest an end, where the ellipse flattens to a \
-                         line. Give a point nearer the middle of that segment",
-                        m1.x, m1.y, m2.x, m2.y, x.x, x.y
-                    ),
-                    vec![],
-                ));
-            }
-            let c = member(family, t, corners);
-            pick_one(
-                vec![c],
-                "the centre on the Newton line nearest the given point".into(),
-            )
-        }
+    let a2 = axis * axis;
+    // (A² − a²)(A² − b²) = a²b² − A²(a² + b²) + A⁴
+    let eq = poly::add_scaled(&poly::add_scaled(&prod, &sum, -a2), &[a2 * a2], 1.0);
+    let mut cands = all_members(family, corners, &eq);
+    for c in &mut cands {
+        mark_other_axis(c, axis, major, word);
     }
+    pick_roundest(cands, |_| true).map_err(|c| {
+        fail(
+            format!(
+                "no ellipse touching all four sides inside the bay has a {word} axis of \
+                 {axis:.3} mm"
+            ),
+            c,
+        )
+    })
+}
+
+/// Marks `c` not cuttable when `axis` is its other semi-axis rather than the one asked for.
+fn mark_other_axis(c: &mut Candidate, axis: f64, major: bool, word: &str) {
+    let Some(e) = c.ellipse else {
+        return;
+    };
+    let (mine, other) = if major {
+        (e.a(), e.b())
+    } else {
+        (e.b(), e.a())
+    };
+    if (mine - axis).abs() > AXIS_MATCH_RELATIVE * axis
+        && (other - axis).abs() <= AXIS_MATCH_RELATIVE * axis
+    {
+        c.cuttable = false;
+        c.note = format!(
+            "{axis} mm is this ellipse's {} axis, not its {word} axis",
+            if major { "semi-minor" } else { "semi-major" }
+        );
+    }
+}
+
+/// The member of least eccentricity: roots of `2 S′ P − S P′ = 0` in (0, 1), the roundest taken.
+fn choose_roundest(family: &TangentFamily, corners: &[Point]) -> Result<Solution, RuleFailure> {
+    let sum = family.axes_sum_squared_poly();
+    let prod = family.axes_product_squared_poly();
+    // 2 S′ P − S P′ = 0
+    let ds = poly::derivative(&sum);
+    let dp = poly::derivative(&prod);
+    let eq = poly::add_scaled(
+        &poly::mul(&poly::mul(&[2.0], &ds), &prod),
+        &poly::mul(&sum, &dp),
+        -1.0,
+    );
+    let roots = poly::real_roots_in(&eq, 0.0, 1.0);
+    let cands: Vec<Candidate> = roots
+        .iter()
+        .filter(|t| **t > 0.0 && **t < 1.0)
+        .map(|&t| member(family, t, corners))
+        .collect();
+    let best = cands
+        .iter()
+        .enumerate()
+        .filter(|(_, c)| c.cuttable)
+        .max_by(|(_, x), (_, y)| ratio(x).total_cmp(&ratio(y)))
+        .map(|(i, _)| i);
+    match best {
+        Some(i) => Solution::new(
+            cands,
+            i,
+            "the member whose axes are closest to equal (least eccentricity)".into(),
+        )
+        .ok_or_else(|| fail("no cuttable member".into(), vec![])),
+        None => Err(fail(
+            "no member of least eccentricity was found inside the bay".into(),
+            cands,
+        )),
+    }
+}
+
+/// The member whose centre is the projection of `x` on the Newton line.
+fn choose_centre_near(
+    family: &TangentFamily,
+    corners: &[Point],
+    x: Point,
+) -> Result<Solution, RuleFailure> {
+    if family.is_parallelogram() {
+        return Err(fail(
+            "in a parallelogram every ellipse touching the four sides has the same \
+             centre (where the diagonals cross), so a centre does not pick one; use \
+             rule largest or roundest"
+                .into(),
+            vec![],
+        ));
+    }
+    let (m1, m2) = family.newton_segment();
+    let w = m2 - m1;
+    let t = (x - m1).dot(w) / w.length_squared();
+    if !(t > 0.0 && t < 1.0) {
+        return Err(fail(
+            format!(
+                "the centres of ellipses touching all four sides lie strictly between \
+                 ({:.3}, {:.3}) and ({:.3}, {:.3}) (the midpoints of the diagonals); the \
+                 point ({:.3}, {:.3}) is nearest an end, where the ellipse flattens to a \
+                 line. Give a point nearer the middle of that segment",
+                m1.x, m1.y, m2.x, m2.y, x.x, x.y
+            ),
+            vec![],
+        ));
+    }
+    let c = member(family, t, corners);
+    pick_one(
+        vec![c],
+        "the centre on the Newton line nearest the given point".into(),
+    )
 }
 
 /// `b/a` of a candidate, 0 when it has no ellipse.

@@ -85,7 +85,7 @@ use crate::geom::Point;
 use crate::plan::LeadKind;
 use crate::read::Units;
 
-pub use crate::solve::quad_rules::Rule;
+pub use crate::solve::Rule;
 pub use parse::parse_job_file;
 
 /// A parsed job file, every length in mm.

@@ -88,14 +88,14 @@ pub const MIN_POINTS: usize = 5;
 
 /// An ellipse fitted to measured points.
 #[derive(Debug, Clone, PartialEq)]
-pub struct EllipseFit {
+pub struct LeastSquaresEllipse {
     /// The fitted ellipse, in the points' coordinates (mm).
     pub ellipse: Ellipse,
     /// `[a, b, c, d, e, f]` of `a x² + b xy + c y² + d x + e y + f = 0` in the points'
     /// coordinates, scaled so that `4ac − b² = 1` and signed so that `a + c > 0`.
     ///
     /// For a small ellipse far from the origin these numbers are badly conditioned (`f` is a
-    /// difference of large terms); use [`EllipseFit::ellipse`] for geometry.
+    /// difference of large terms); use [`LeastSquaresEllipse::ellipse`] for geometry.
     pub coefficients: [f64; 6],
     /// Root mean square of the geometric distances of the points to the ellipse (mm).
     pub rms_residual: f64,
@@ -107,7 +107,7 @@ pub struct EllipseFit {
 
 /// Why no ellipse was fitted.
 #[derive(Debug, Clone, PartialEq, thiserror::Error)]
-pub enum FitError {
+pub enum LeastSquaresError {
     #[error(
         "an ellipse fit needs at least {MIN_POINTS} points and {found} were given; measure more \
          points around the feature"
@@ -151,68 +151,129 @@ pub enum FitError {
 ///
 /// ```
 /// use conicut::geom::{Ellipse, Point};
-/// use conicut::solve::fit::fit_ellipse;
+/// use conicut::solve::least_squares_ellipse;
 ///
 /// let e = Ellipse::new(Point::new(30.0, -12.0), 40.0, 15.0, 25f64.to_radians()).unwrap();
 /// let points: Vec<Point> = (0..8).map(|k| e.point(0.7 * k as f64)).collect();
-/// let fit = fit_ellipse(&points).unwrap();
+/// let fit = least_squares_ellipse(&points).unwrap();
 /// assert!((fit.ellipse.a() - 40.0).abs() < 1e-9);
 /// assert!(fit.max_residual < 1e-9);
 /// ```
-pub fn fit_ellipse(points: &[Point]) -> Result<EllipseFit, FitError> {
+pub fn least_squares_ellipse(points: &[Point]) -> Result<LeastSquaresEllipse, LeastSquaresError> {
+    check_points(points)?;
+    let frame = Normalised::of(points)?;
+    let free = check_design(&frame.u)?;
+    let (coeffs_u, ellipse_u) = fit_normalised(&frame.u, free)?;
+    let (ellipse, coefficients) = frame.map_back(&ellipse_u, coeffs_u)?;
+    let (rms_residual, max_residual) = residuals(points, &ellipse)?;
+    Ok(LeastSquaresEllipse {
+        ellipse,
+        coefficients,
+        rms_residual,
+        max_residual,
+        points: points.len(),
+    })
+}
+
+/// Enough points, every coordinate finite.
+fn check_points(points: &[Point]) -> Result<(), LeastSquaresError> {
     let n = points.len();
     if n < MIN_POINTS {
-        return Err(FitError::TooFewPoints { found: n });
+        return Err(LeastSquaresError::TooFewPoints { found: n });
     }
     if let Some((i, p)) = points.iter().enumerate().find(|(_, p)| !p.is_finite()) {
-        return Err(FitError::NotFinite {
+        return Err(LeastSquaresError::NotFinite {
             index: i + 1,
             x: p.x,
             y: p.y,
         });
     }
+    Ok(())
+}
 
-    // Centre and scale: u = (p − m) / s with s the RMS distance from the centroid.
-    let nf = n as f64;
-    let mx = points.iter().map(|p| p.x).sum::<f64>() / nf;
-    let my = points.iter().map(|p| p.y).sum::<f64>() / nf;
-    let (mut cxx, mut cxy, mut cyy) = (0.0, 0.0, 0.0);
-    for p in points {
-        let (dx, dy) = (p.x - mx, p.y - my);
-        cxx += dx * dx;
-        cxy += dx * dy;
-        cyy += dy * dy;
-    }
-    let s = ((cxx + cyy) / nf).sqrt();
-    let size = points
-        .iter()
-        .map(|p| p.x.abs().max(p.y.abs()))
-        .fold(1.0, f64::max);
-    if !s.is_finite() {
-        return Err(numerical(
-            "the coordinates are too large to square without overflow",
-        ));
-    }
-    if s <= COINCIDENT_RELATIVE * size {
-        return Err(FitError::Coincident { points: n });
-    }
-    // Principal spreads of the points (eigenvalues of the 2×2 scatter), closed form.
-    let half_sum = 0.5 * (cxx + cyy);
-    let half_diff = (0.5 * (cxx - cyy)).hypot(cxy);
-    let along = half_sum + half_diff;
-    let across = ((cxx * cyy - cxy * cxy) / along).max(0.0);
-    let thickness = (across / along).sqrt();
-    if thickness.is_nan() || thickness <= COLLINEAR_RATIO {
-        return Err(FitError::Collinear {
-            points: n,
-            ratio: thickness,
-        });
-    }
-    let u: Vec<(f64, f64)> = points
-        .iter()
-        .map(|p| ((p.x - mx) / s, (p.y - my) / s))
-        .collect();
+/// The points centred and scaled: `u = (p − m) / s` with `s` the RMS distance from the centroid.
+struct Normalised {
+    mx: f64,
+    my: f64,
+    s: f64,
+    u: Vec<(f64, f64)>,
+}
 
+impl Normalised {
+    /// Refuses points that are one point or lie on a line.
+    fn of(points: &[Point]) -> Result<Normalised, LeastSquaresError> {
+        let n = points.len();
+        let nf = n as f64;
+        let mx = points.iter().map(|p| p.x).sum::<f64>() / nf;
+        let my = points.iter().map(|p| p.y).sum::<f64>() / nf;
+        let (mut cxx, mut cxy, mut cyy) = (0.0, 0.0, 0.0);
+        for p in points {
+            let (dx, dy) = (p.x - mx, p.y - my);
+            cxx += dx * dx;
+            cxy += dx * dy;
+            cyy += dy * dy;
+        }
+        let s = ((cxx + cyy) / nf).sqrt();
+        let size = points
+            .iter()
+            .map(|p| p.x.abs().max(p.y.abs()))
+            .fold(1.0, f64::max);
+        if !s.is_finite() {
+            return Err(numerical(
+                "the coordinates are too large to square without overflow",
+            ));
+        }
+        if s <= COINCIDENT_RELATIVE * size {
+            return Err(LeastSquaresError::Coincident { points: n });
+        }
+        // Principal spreads of the points (eigenvalues of the 2×2 scatter), closed form.
+        let half_sum = 0.5 * (cxx + cyy);
+        let half_diff = (0.5 * (cxx - cyy)).hypot(cxy);
+        let along = half_sum + half_diff;
+        let across = ((cxx * cyy - cxy * cxy) / along).max(0.0);
+        let thickness = (across / along).sqrt();
+        if thickness.is_nan() || thickness <= COLLINEAR_RATIO {
+            return Err(LeastSquaresError::Collinear {
+                points: n,
+                ratio: thickness,
+            });
+        }
+        let u = points
+            .iter()
+            .map(|p| ((p.x - mx) / s, (p.y - my) / s))
+            .collect();
+        Ok(Normalised { mx, my, s, u })
+    }
+
+    /// The ellipse and coefficients found for `u` in the points' own coordinates: centre
+    /// `m + s c_u`, axes × s, angle unchanged.
+    fn map_back(
+        &self,
+        ellipse_u: &Ellipse,
+        coeffs_u: [f64; 6],
+    ) -> Result<(Ellipse, [f64; 6]), LeastSquaresError> {
+        let (mx, my, s) = (self.mx, self.my, self.s);
+        let cu = ellipse_u.center();
+        let ellipse = Ellipse::new(
+            Point::new(mx + s * cu.x, my + s * cu.y),
+            s * ellipse_u.a(),
+            s * ellipse_u.b(),
+            ellipse_u.angle(),
+        )
+        .map_err(|e| numerical(&format!("mapping the ellipse back failed: {e}")))?;
+        let coefficients = unnormalise(coeffs_u, mx, my, s);
+        if !coefficients.iter().all(|c| c.is_finite()) {
+            return Err(numerical("the coefficients are not finite"));
+        }
+        Ok((ellipse, coefficients))
+    }
+}
+
+/// Checks that the normalised points fix one conic and do not lie exactly on a conic that is no
+/// ellipse; returns the free least-squares conic (the right singular vector of the smallest
+/// singular value of the design matrix).
+fn check_design(u: &[(f64, f64)]) -> Result<[f64; 6], LeastSquaresError> {
+    let n = u.len();
     // Five distinct points at least: the design matrix must have rank five. Padded with zero rows
     // to at least six so that the SVD returns all six right singular vectors.
     let rows = n.max(6);
@@ -231,32 +292,40 @@ pub fn fit_ellipse(points: &[Point]) -> Result<EllipseFit, FitError> {
     let sv = &svd.singular_values;
     let ratio = sv[4] / sv[0];
     if ratio.is_nan() || ratio <= UNDERDETERMINED_RATIO {
-        return Err(FitError::Underdetermined { points: n, ratio });
+        return Err(LeastSquaresError::Underdetermined { points: n, ratio });
     }
+    let r = v_t.row(5);
+    let free = [r[0], r[1], r[2], r[3], r[4], r[5]];
 
     // Points that lie on a hyperbola, parabola or line pair to within rounding (the smallest
     // singular value is negligible): the direct fit would still return an ellipse (it is
     // ellipse-specific), one that misses the points; refuse and say what they lie on.
     let exact = sv[5] / sv[0];
     if exact <= EXACT_CONIC_RATIO {
-        let r = v_t.row(5);
-        let kind = classify([r[0], r[1], r[2], r[3], r[4], r[5]])?;
+        let kind = classify(free)?;
         if !kind.is_ellipse() {
-            return Err(FitError::NotAnEllipse { points: n, kind });
+            return Err(LeastSquaresError::NotAnEllipse { points: n, kind });
         }
     }
+    Ok(free)
+}
 
-    let coeffs_u = match halir_flusser(&u) {
+/// The direct fit of the normalised points: its coefficients and its ellipse. `free` is the free
+/// least-squares conic, described when no eigenvector gives an ellipse.
+fn fit_normalised(
+    u: &[(f64, f64)],
+    free: [f64; 6],
+) -> Result<([f64; 6], Ellipse), LeastSquaresError> {
+    let n = u.len();
+    let coeffs_u = match halir_flusser(u) {
         Some(c) => c,
         None => {
-            // No eigenvector with 4ac − b² > 0: describe the free least-squares conic instead
-            // (the right singular vector of the smallest singular value).
-            let r = v_t.row(5);
-            let kind = classify([r[0], r[1], r[2], r[3], r[4], r[5]])?;
+            // No eigenvector with 4ac − b² > 0: describe the free least-squares conic instead.
+            let kind = classify(free)?;
             return Err(if kind.is_ellipse() {
                 numerical("no eigenvector with 4ac − b² > 0 was found")
             } else {
-                FitError::NotAnEllipse { points: n, kind }
+                LeastSquaresError::NotAnEllipse { points: n, kind }
             });
         }
     };
@@ -264,46 +333,32 @@ pub fn fit_ellipse(points: &[Point]) -> Result<EllipseFit, FitError> {
     // single point.
     let conic_u = Conic::from_coefficients(coeffs_u)
         .map_err(|e| numerical(&format!("the fitted conic is unusable: {e}")))?;
-    let ellipse_u = conic_u.to_ellipse().map_err(|e| FitError::NotAnEllipse {
-        points: n,
-        kind: e.kind,
-    })?;
+    let ellipse_u = conic_u
+        .to_ellipse()
+        .map_err(|e| LeastSquaresError::NotAnEllipse {
+            points: n,
+            kind: e.kind,
+        })?;
+    Ok((coeffs_u, ellipse_u))
+}
 
-    // Map back: centre m + s c_u, axes × s, angle unchanged.
-    let cu = ellipse_u.center();
-    let ellipse = Ellipse::new(
-        Point::new(mx + s * cu.x, my + s * cu.y),
-        s * ellipse_u.a(),
-        s * ellipse_u.b(),
-        ellipse_u.angle(),
-    )
-    .map_err(|e| numerical(&format!("mapping the ellipse back failed: {e}")))?;
-    let coefficients = unnormalise(coeffs_u, mx, my, s);
-    if !coefficients.iter().all(|c| c.is_finite()) {
-        return Err(numerical("the coefficients are not finite"));
-    }
-
+/// RMS and largest geometric distance of the points to `ellipse` (mm).
+fn residuals(points: &[Point], ellipse: &Ellipse) -> Result<(f64, f64), LeastSquaresError> {
     let (mut sum_sq, mut max_residual) = (0.0_f64, 0.0_f64);
     for p in points {
         let (d, _) = ellipse.distance_to(*p);
         sum_sq += d * d;
         max_residual = max_residual.max(d);
     }
-    let rms_residual = (sum_sq / nf).sqrt();
+    let rms_residual = (sum_sq / points.len() as f64).sqrt();
     if !(rms_residual.is_finite() && max_residual.is_finite()) {
         return Err(numerical("the residuals are not finite"));
     }
-    Ok(EllipseFit {
-        ellipse,
-        coefficients,
-        rms_residual,
-        max_residual,
-        points: n,
-    })
+    Ok((rms_residual, max_residual))
 }
 
-fn numerical(reason: &str) -> FitError {
-    FitError::Numerical {
+fn numerical(reason: &str) -> LeastSquaresError {
+    LeastSquaresError::Numerical {
         reason: reason.to_string(),
     }
 }
@@ -366,7 +421,7 @@ fn halir_flusser(u: &[(f64, f64)]) -> Option<[f64; 6]> {
 }
 
 /// What a conic is, by [`Conic::classify`] (tolerances in [`super::conic`]).
-fn classify(c: [f64; 6]) -> Result<ConicKind, FitError> {
+fn classify(c: [f64; 6]) -> Result<ConicKind, LeastSquaresError> {
     Conic::from_coefficients(c)
         .map(|conic| conic.classify())
         .map_err(|e| numerical(&format!("the least-squares conic is unusable: {e}")))
