@@ -1,5 +1,8 @@
 use super::*;
 use crate::chain::BayProblem;
+use crate::chain::{ChainError, HoleShape};
+use crate::geom::{Ellipse, Segment};
+use crate::read::EntityKind;
 use crate::read::{Entity, Units, UnitsSource};
 
 struct D(Vec<Entity>);

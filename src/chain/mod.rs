@@ -14,14 +14,19 @@
 
 mod bay;
 mod build;
+mod classify;
 mod contour;
+mod crossing;
+mod error;
+mod gather;
 mod join;
 
 pub use bay::COLLINEAR_ANGLE_TOLERANCE;
 pub use build::{
-    BayError, BayProblem, CROSSING_CHECK_SAGITTA, ChainError, ChainOptions, DEFAULT_BAY_LAYER,
-    DEFAULT_GAP_TOLERANCE, OpenContour, build_part,
+    CROSSING_CHECK_SAGITTA, ChainOptions, DEFAULT_BAY_LAYER, DEFAULT_GAP_TOLERANCE, build_part,
 };
 pub use contour::{Bay, Contour, Element, Hole, HoleShape, Part, bounds_of};
 
-use build::fmt_handles;
+pub use error::{BayError, BayProblem, ChainError, OpenContour};
+
+use error::fmt_handles;
