@@ -14,12 +14,13 @@ use crate::read::Drawing;
 /// layer names are.
 pub const DEFAULT_BAY_LAYER: &str = "OPENING-BAYS";
 
-/// Default gap tolerance, mm: piece ends this close or closer are joined.
+/// Default largest gap closed, mm (the `--gap-tolerance` flag): piece ends this close or closer
+/// are joined.
 ///
 /// 0.01 mm is ten times the usual 0.001 mm resolution of a CNC program yet far below a laser
 /// kerf or the smallest end mill a bay is cut with (common practice); CAD exports are
 /// normally exact to 1e-6 mm or better, so a larger gap is a drawing error worth showing.
-pub const DEFAULT_GAP_TOLERANCE: f64 = 0.01;
+pub const DEFAULT_MAX_GAP: f64 = 0.01;
 
 /// How far a flattened arc or ellipse may lie inside the true curve (mm) in the crossing
 /// check between contours: the sagitta of each chord. Crossings by less than this may be missed.
@@ -29,7 +30,7 @@ pub const CROSSING_CHECK_SAGITTA: f64 = 1e-3;
 #[derive(Debug, Clone, PartialEq)]
 pub struct ChainOptions {
     /// Ends at most this far apart (mm) are joined; must be finite and not negative.
-    pub gap_tolerance: f64,
+    pub max_gap: f64,
     /// The layer holding bays (compared case-insensitively).
     pub bay_layer: String,
     /// Layers of construction geometry that is neither cut nor a bay (probe points, guide lines
@@ -40,7 +41,7 @@ pub struct ChainOptions {
 impl Default for ChainOptions {
     fn default() -> Self {
         ChainOptions {
-            gap_tolerance: DEFAULT_GAP_TOLERANCE,
+            max_gap: DEFAULT_MAX_GAP,
             bay_layer: DEFAULT_BAY_LAYER.to_string(),
             construction_layers: Vec::new(),
         }
@@ -50,7 +51,7 @@ impl Default for ChainOptions {
 /// Joins the drawing's pieces into closed contours and sorts them into the part.
 ///
 /// * Per layer (layer names compared case-insensitively), LINEs, ARCs and open polylines are
-///   joined end to end where ends lie within `gap_tolerance`; shared points are snapped. Closed
+///   joined end to end where ends lie within `max_gap`; shared points are snapped. Closed
 ///   polylines (a last vertex repeating the first is dropped) and CIRCLEs (one arc of sweep 2π)
 ///   are contours as they are; a full ELLIPSE on a cut layer is a hole.
 /// * Any run that does not close, on any layer, is reported in one [`ChainError::Open`].
@@ -66,16 +67,16 @@ impl Default for ChainOptions {
 /// * A bay not inside the outline, and ignored POINT entities, give warnings.
 /// * Entities on the construction layers are left out altogether.
 pub fn build_part(drawing: &Drawing, opts: &ChainOptions) -> Result<Part, ChainError> {
-    let tol = opts.gap_tolerance;
-    if !(tol.is_finite() && tol >= 0.0) {
-        return Err(ChainError::BadGapTolerance(tol));
+    let max_gap = opts.max_gap;
+    if !(max_gap.is_finite() && max_gap >= 0.0) {
+        return Err(ChainError::BadMaxGap(max_gap));
     }
     let mut warnings = Vec::new();
-    let (mut layers, points) = gather(drawing, opts, tol)?;
+    let (mut layers, points) = gather(drawing, opts, max_gap)?;
     warnings.extend(points_warning(&points));
-    join_layers(&mut layers, tol)?;
-    let (bay_loops, shapes) = sort_loops(layers, tol)?;
-    let bays = make_bays(bay_loops, tol)?;
+    join_layers(&mut layers, max_gap)?;
+    let (bay_loops, shapes) = sort_loops(layers, max_gap)?;
+    let bays = make_bays(bay_loops, max_gap)?;
     let (outline, holes, mut more) = classify(shapes)?;
     warnings.append(&mut more);
     if let Some(outline) = &outline {
@@ -103,10 +104,10 @@ fn points_warning(points: &[String]) -> Option<String> {
 }
 
 /// Joins every layer's pieces into loops; collects all open runs before failing.
-fn join_layers(layers: &mut [LayerStuff], tol: f64) -> Result<(), ChainError> {
+fn join_layers(layers: &mut [LayerStuff], max_gap: f64) -> Result<(), ChainError> {
     let mut open = Vec::new();
     for layer in layers {
-        let joined = join(&layer.pieces, tol).map_err(|b| ChainError::Branch {
+        let joined = join(&layer.pieces, max_gap).map_err(|b| ChainError::Branch {
             layer: layer.name.clone(),
             at: b.at,
             handles: b.handles,
@@ -127,7 +128,7 @@ fn join_layers(layers: &mut [LayerStuff], tol: f64) -> Result<(), ChainError> {
     if !open.is_empty() {
         return Err(ChainError::Open {
             contours: open,
-            tolerance: tol,
+            max_gap,
         });
     }
     Ok(())
@@ -145,13 +146,16 @@ fn nearest_loose_end(loose: &[Point], me: usize) -> (Point, Option<(Point, f64)>
     (end, nearest)
 }
 
+/// A loop on the bay layer, with its layer's name.
+type BayLoop = (Piece, String);
+
 /// The loops of the bay layer (with their layer names), and every cut layer's loops and
 /// ellipses as shapes (contours made counter-clockwise).
 fn sort_loops(
     layers: Vec<LayerStuff>,
-    tol: f64,
-) -> Result<(Vec<(Piece, String)>, Vec<Shape>), ChainError> {
-    let mut bay_loops: Vec<(Piece, String)> = Vec::new();
+    max_gap: f64,
+) -> Result<(Vec<BayLoop>, Vec<Shape>), ChainError> {
+    let mut bay_loops: Vec<BayLoop> = Vec::new();
     let mut shapes: Vec<Shape> = Vec::new();
     for layer in layers {
         if layer.is_bay {
@@ -159,7 +163,7 @@ fn sort_loops(
             continue;
         }
         for piece in layer.loops {
-            shapes.push(cut_shape(piece, &layer.name, tol)?);
+            shapes.push(cut_shape(piece, &layer.name, max_gap)?);
         }
         for (e, h) in layer.ellipses {
             shapes.push(Shape::from_ellipse(e, layer.name.clone(), h));
@@ -169,7 +173,7 @@ fn sort_loops(
 }
 
 /// A loop on a cut layer as a counter-clockwise contour; refused when it encloses no area.
-fn cut_shape(piece: Piece, layer: &str, tol: f64) -> Result<Shape, ChainError> {
+fn cut_shape(piece: Piece, layer: &str, max_gap: f64) -> Result<Shape, ChainError> {
     let contour = Contour {
         elements: piece.elements,
         layer: layer.to_string(),
@@ -177,7 +181,7 @@ fn cut_shape(piece: Piece, layer: &str, tol: f64) -> Result<Shape, ChainError> {
     };
     let area = contour.signed_area();
     let perimeter: f64 = contour.elements.iter().map(Element::length).sum();
-    if area.abs() <= tol.max(1e-9) * perimeter {
+    if area.abs() <= max_gap.max(1e-9) * perimeter {
         return Err(ChainError::NoArea {
             layer: contour.layer.clone(),
             handles: contour.handles.clone(),
@@ -193,7 +197,7 @@ fn cut_shape(piece: Piece, layer: &str, tol: f64) -> Result<Shape, ChainError> {
 }
 
 /// The bay loops in order (see [`order_key`]) made into bays named `bay 1`, `bay 2`, ….
-fn make_bays(mut bay_loops: Vec<(Piece, String)>, tol: f64) -> Result<Vec<Bay>, ChainError> {
+fn make_bays(mut bay_loops: Vec<BayLoop>, max_gap: f64) -> Result<Vec<Bay>, ChainError> {
     bay_loops.sort_by(|a, b| order_key(&a.0.elements, &a.0.handles, &b.0.elements, &b.0.handles));
     let mut bays: Vec<Bay> = Vec::new();
     for (i, (piece, layer)) in bay_loops.iter().enumerate() {
@@ -202,7 +206,7 @@ fn make_bays(mut bay_loops: Vec<(Piece, String)>, tol: f64) -> Result<Vec<Bay>, 
             layer,
             &piece.elements,
             &piece.handles,
-            tol,
+            max_gap,
         )?);
     }
     Ok(bays)

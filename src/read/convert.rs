@@ -32,7 +32,7 @@ pub(super) fn convert(e: &EntityType, ctx: &Ctx) -> Result<Converted, ReadError>
         EntityType::Circle(c) => circle(c, ctx),
         EntityType::Arc(a) => arc(a, ctx),
         EntityType::LwPolyline(p) => lwpolyline(p, ctx),
-        EntityType::Polyline(p) => old_polyline(p, ctx),
+        EntityType::Polyline(p) => dxf_polyline(p, ctx),
         EntityType::Ellipse(el) => ellipse(el, ctx),
         EntityType::ModelPoint(p) => {
             ctx.finite(&[p.location.x, p.location.y])?;
@@ -136,7 +136,7 @@ fn lwpolyline(p: &de::LwPolyline, ctx: &Ctx) -> Result<Converted, ReadError> {
 }
 
 /// A POLYLINE (2-D in its OCS, or a flat 3-D one); meshes are not read.
-fn old_polyline(p: &de::Polyline, ctx: &Ctx) -> Result<Converted, ReadError> {
+fn dxf_polyline(p: &de::Polyline, ctx: &Ctx) -> Result<Converted, ReadError> {
     if p.is_polyface_mesh() || p.is_3d_polygon_mesh() {
         return Ok(Converted::Unsupported);
     }
