@@ -8,11 +8,11 @@ use crate::geom::Point;
 /// 1e-4 rad (about 0.0057°): merging two pieces of total length L that bend by δ moves the
 /// dropped corner at most L·δ/4 off the merged side, 5 µm for a 200 mm side; yet it is far above
 /// the bend left by coordinates rounded to 1e-12 mm or by inch-to-mm conversion.
-pub const COLLINEAR_ANGLE_TOLERANCE: f64 = 1e-4;
+pub const COLLINEAR_ANGLE_LIMIT: f64 = 1e-4;
 
 /// Checks a closed loop from the bay layer and returns the bay: straight sides only, each
-/// longer than `gap_tolerance`, collinear neighbours merged, at least three sides, enclosing
-/// more than `gap_tolerance × perimeter` of area (thinner than the gap tolerance counts as
+/// longer than `max_gap`, collinear neighbours merged, at least three sides, enclosing
+/// more than `max_gap × perimeter` of area (thinner than the largest gap counts as
 /// flat), strictly convex and winding once. Corners come back counter-clockwise, starting from
 /// the lowest corner (the leftmost of equally low ones).
 pub(super) fn make_bay(
@@ -20,14 +20,14 @@ pub(super) fn make_bay(
     layer: &str,
     elements: &[Element],
     handles: &[String],
-    gap_tolerance: f64,
+    max_gap: f64,
 ) -> Result<Bay, ChainError> {
     let at = Where {
         name,
         layer,
         handles,
     };
-    let min_side = gap_tolerance.max(1e-9);
+    let min_side = max_gap.max(1e-9);
     let mut corners = straight_corners(elements, min_side, &at)?;
     merge_corners(&mut corners, &at)?;
     orient_counter_clockwise(&mut corners, min_side, &at)?;
@@ -178,9 +178,9 @@ fn unique_handles(handles: &[String]) -> Vec<String> {
 }
 
 /// Removes corners where the outline goes straight on (within
-/// [`COLLINEAR_ANGLE_TOLERANCE`]); returns `Err(corner)` where it turns straight back.
+/// [`COLLINEAR_ANGLE_LIMIT`]); returns `Err(corner)` where it turns straight back.
 fn merge_collinear(corners: &mut Vec<Point>) -> Result<(), Point> {
-    let max_sine = COLLINEAR_ANGLE_TOLERANCE.sin();
+    let max_sine = COLLINEAR_ANGLE_LIMIT.sin();
     loop {
         let n = corners.len();
         if n < 3 {
@@ -242,7 +242,7 @@ mod tests {
     }
 
     #[test]
-    fn collinear_pieces_merge_within_the_angular_tolerance() {
+    fn collinear_pieces_merge_within_the_angle_limit() {
         // The bottom side is drawn in two pieces bent by 5e-5 rad (below 1e-4).
         let bend = 5e-5_f64;
         let mid = (6.0, 6.0 * bend.tan());

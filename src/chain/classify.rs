@@ -3,7 +3,7 @@
 
 use super::crossing::{flatten_contour, flatten_ellipse, polygons_cross};
 use super::error::{ChainError, fmt_handles};
-use super::{Contour, Element, Hole, HoleShape, bounds_of};
+use super::{Contour, Element, InnerBoundary, InnerShape, bounds_of};
 use crate::geom::{Ellipse, Point};
 
 /// A closed cut shape, with what the classification needs.
@@ -90,7 +90,7 @@ impl Shape {
     }
 }
 
-type Classified = (Option<Contour>, Vec<Hole>, Vec<String>);
+type Classified = (Option<Contour>, Vec<InnerBoundary>, Vec<String>);
 
 /// The outline, the holes (named `hole 1`, … in order of the lower-left corner of their boxes,
 /// then by first handle) and warnings, from the cut shapes. See [`super::build_part`].
@@ -216,7 +216,7 @@ fn take_outline(
 }
 
 /// The remaining shapes as holes, in order and named.
-fn name_holes(mut shapes: Vec<Shape>) -> Vec<Hole> {
+fn name_holes(mut shapes: Vec<Shape>) -> Vec<InnerBoundary> {
     shapes.sort_by(|a, b| {
         a.low
             .x
@@ -230,15 +230,15 @@ fn name_holes(mut shapes: Vec<Shape>) -> Vec<Hole> {
         .map(|(i, s)| {
             let name = format!("hole {}", i + 1);
             match s.kind {
-                ShapeKind::Contour(c) => Hole {
+                ShapeKind::Contour(c) => InnerBoundary {
                     name,
                     layer: c.layer.clone(),
-                    shape: HoleShape::Contour(c),
+                    shape: InnerShape::Contour(c),
                 },
-                ShapeKind::Ellipse(e, layer) => Hole {
+                ShapeKind::Ellipse(e, layer) => InnerBoundary {
                     name,
                     layer,
-                    shape: HoleShape::Ellipse(e),
+                    shape: InnerShape::Ellipse(e),
                 },
             }
         })

@@ -46,16 +46,16 @@ impl std::fmt::Display for OpenContour {
 #[derive(Debug, Clone, PartialEq, thiserror::Error)]
 pub enum ChainError {
     #[error("the gap tolerance must be a finite number of mm, zero or more (got {0})")]
-    BadGapTolerance(f64),
+    BadMaxGap(f64),
     #[error(
-        "{} contour{} not closed (gap tolerance {tolerance} mm): {}. Close the gaps in the \
+        "{} contour{} not closed (gap tolerance {max_gap} mm): {}. Close the gaps in the \
          drawing, or raise the gap tolerance above the gap if the ends are meant to meet",
         contours.len(), if contours.len() == 1 { " is" } else { "s are" },
         contours.iter().map(|c| format!("[{c}]")).collect::<Vec<_>>().join(" ")
     )]
     Open {
         contours: Vec<OpenContour>,
-        tolerance: f64,
+        max_gap: f64,
     },
     #[error(
         "layer {layer}: three or more pieces meet at {} (handles {}), so they do not form a \
@@ -152,7 +152,7 @@ pub struct BayError {
 pub enum BayProblem {
     /// A side is an arc.
     Arc,
-    /// A side is no longer than the gap tolerance (a repeated corner).
+    /// A side is no longer than the largest gap (a repeated corner).
     ShortSide { length: f64 },
     /// Fewer than three sides once collinear runs are merged.
     TooFewSides { sides: usize },

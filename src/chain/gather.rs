@@ -11,7 +11,7 @@ use crate::read::{Drawing, Entity, EntityKind};
 pub(super) fn gather(
     drawing: &Drawing,
     opts: &ChainOptions,
-    tol: f64,
+    max_gap: f64,
 ) -> Result<(Vec<LayerStuff>, Vec<String>), ChainError> {
     let bay_key = opts.bay_layer.to_lowercase();
     let mut layers: Vec<LayerStuff> = Vec::new();
@@ -39,7 +39,7 @@ pub(super) fn gather(
                 layers.len() - 1
             }
         };
-        add_entity(&mut layers[idx], e, tol, &mut points)?;
+        add_entity(&mut layers[idx], e, max_gap, &mut points)?;
     }
     Ok((layers, points))
 }
@@ -48,7 +48,7 @@ pub(super) fn gather(
 fn add_entity(
     layer: &mut LayerStuff,
     e: &Entity,
-    tol: f64,
+    max_gap: f64,
     points: &mut Vec<String>,
 ) -> Result<(), ChainError> {
     let h = e.handle.clone();
@@ -66,7 +66,7 @@ fn add_entity(
             handles: vec![h],
         }),
         EntityKind::Polyline { vertices, closed } => {
-            add_polyline(layer, vertices, *closed, &h, tol);
+            add_polyline(layer, vertices, *closed, &h, max_gap);
         }
         EntityKind::Ellipse { ellipse, start, .. } => {
             if !e.kind.is_full_ellipse() {
@@ -95,16 +95,16 @@ fn add_entity(
     Ok(())
 }
 
-/// A polyline as a loop (closed, or its ends within `tol`: snapped) or an open piece; nothing
+/// A polyline as a loop (closed, or its ends within `max_gap`: snapped) or an open piece; nothing
 /// when it has no pieces left.
 fn add_polyline(
     layer: &mut LayerStuff,
     vertices: &[(Point, f64)],
     closed: bool,
     h: &str,
-    tol: f64,
+    max_gap: f64,
 ) {
-    let mut piece = polyline_piece(vertices, closed, h, tol, !layer.is_bay);
+    let mut piece = polyline_piece(vertices, closed, h, max_gap, !layer.is_bay);
     if piece.elements.is_empty() {
         return;
     }
@@ -112,7 +112,7 @@ fn add_polyline(
         .elements
         .first()
         .zip(piece.elements.last())
-        .is_some_and(|(f, l)| l.end().distance(f.start()) <= tol);
+        .is_some_and(|(f, l)| l.end().distance(f.start()) <= max_gap);
     if closed || (ends_meet && piece.elements.len() > 1) {
         snap_loop(&mut piece.elements);
         layer.loops.push(piece);
@@ -135,18 +135,18 @@ pub(super) struct LayerStuff {
 
 /// The elements of a polyline. Zero-length pieces (consecutive vertices at most 1e-9 mm apart)
 /// are dropped on cut layers and kept on the bay layer (where they are reported); a closed
-/// polyline's last vertex repeating its first (within `tol`) is dropped in either case.
+/// polyline's last vertex repeating its first (within `max_gap`) is dropped in either case.
 fn polyline_piece(
     vertices: &[(Point, f64)],
     closed: bool,
     handle: &str,
-    tol: f64,
+    max_gap: f64,
     drop_zero: bool,
 ) -> Piece {
     let mut v = vertices.to_vec();
     if closed && v.len() > 1 {
         let (first, last) = (v[0].0, v[v.len() - 1].0);
-        if first.distance(last) <= tol {
+        if first.distance(last) <= max_gap {
             v.pop();
         }
     }

@@ -5,7 +5,7 @@
 pub mod features;
 pub mod listing;
 
-use crate::chain::{self, ChainError, ChainOptions, HoleShape};
+use crate::chain::{self, ChainError, ChainOptions, InnerShape};
 use crate::check;
 use crate::fit::{self, FitError};
 use crate::geom::{Ellipse, Point};
@@ -83,7 +83,7 @@ impl JobSettings {
             file_name: file_name.to_string(),
             units: None,
             bay_layer: chain::DEFAULT_BAY_LAYER.to_string(),
-            gap_tolerance: chain::DEFAULT_GAP_TOLERANCE,
+            gap_tolerance: chain::DEFAULT_MAX_GAP,
             margin: defaults::MARGIN_MM,
             tool_diameter,
             tolerance: defaults::TOLERANCE_MM,
@@ -250,7 +250,7 @@ fn read_and_solve(dxf: &[u8], s: &JobSettings) -> Result<Solved, JobError> {
     let part = chain::build_part(
         &drawing,
         &ChainOptions {
-            gap_tolerance: s.gap_tolerance,
+            max_gap: s.gap_tolerance,
             bay_layer: bay_layer.clone(),
             construction_layers: s
                 .job
@@ -723,8 +723,8 @@ pub fn run_job(
         .holes
         .iter()
         .filter_map(|h| match &h.shape {
-            HoleShape::Ellipse(e) => Some((h.name.clone(), *e)),
-            HoleShape::Contour(_) => None,
+            InnerShape::Ellipse(e) => Some((h.name.clone(), *e)),
+            InnerShape::Contour(_) => None,
         })
         .collect();
     ellipses.extend(ellipse_holes.iter().cloned());

@@ -934,10 +934,10 @@ mod tests {
     fn small_hole_falls_back_to_a_straight_entry_with_a_warning() {
         // Ø9 hole, 6 mm tool: the path is a 1.5 mm circle and no arc wider than the tool fits.
         let part = Part {
-            holes: vec![crate::chain::Hole {
+            holes: vec![crate::chain::InnerBoundary {
                 name: "hole 1".into(),
                 layer: "0".into(),
-                shape: crate::chain::HoleShape::Contour(circle_hole(10.0, 10.0, 4.5)),
+                shape: crate::chain::InnerShape::Contour(circle_hole(10.0, 10.0, 4.5)),
             }],
             ..Part::default()
         };
@@ -964,10 +964,10 @@ mod tests {
     #[test]
     fn thermal_pierce_keeps_its_clearance_or_the_plan_is_refused() {
         let part = Part {
-            holes: vec![crate::chain::Hole {
+            holes: vec![crate::chain::InnerBoundary {
                 name: "hole 1".into(),
                 layer: "0".into(),
-                shape: crate::chain::HoleShape::Contour(circle_hole(0.0, 0.0, 4.5)),
+                shape: crate::chain::InnerShape::Contour(circle_hole(0.0, 0.0, 4.5)),
             }],
             ..Part::default()
         };

@@ -34,7 +34,7 @@ pub mod offset;
 pub mod pocket;
 pub mod tabs;
 
-use crate::chain::{Contour, Element, HoleShape, Part};
+use crate::chain::{Contour, Element, InnerShape, Part};
 use crate::geom::{Ellipse, Point};
 
 /// The largest share of the tool radius by which a gouge check may be missed: the path is
@@ -519,8 +519,8 @@ pub fn plan_cuts(part: &Part, openings: &[Opening], opts: &PlanOptions) -> Resul
     }
     for h in &part.holes {
         let cut = match &h.shape {
-            HoleShape::Ellipse(e) => plan_ellipse(&h.name, FeatureKind::Hole, e, r, d)?,
-            HoleShape::Contour(c) => {
+            InnerShape::Ellipse(e) => plan_ellipse(&h.name, FeatureKind::Hole, e, r, d)?,
+            InnerShape::Contour(c) => {
                 let ccw = if c.is_ccw() { c.clone() } else { c.reversed() };
                 plan_contour(
                     &h.name,
