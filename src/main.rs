@@ -2,7 +2,7 @@
 
 use anyhow::{Context, Result, bail};
 use clap::{Args, Parser, Subcommand};
-use conicut::chain::{DEFAULT_BAY_LAYER, DEFAULT_GAP_TOLERANCE};
+use conicut::chain::{DEFAULT_BAY_LAYER, DEFAULT_MAX_GAP};
 use conicut::geom::Point;
 use conicut::job::{JobOutput, resolve, run_resolved, solve_job};
 use conicut::plan::{Direction, LeadKind};
@@ -101,7 +101,7 @@ struct DrawingArgs {
     #[arg(long, default_value_t = 0.0, allow_negative_numbers = true)]
     margin: f64,
     /// Largest gap closed when joining drawing pieces into contours (mm).
-    #[arg(long, default_value_t = DEFAULT_GAP_TOLERANCE, allow_negative_numbers = true)]
+    #[arg(long, default_value_t = DEFAULT_MAX_GAP, allow_negative_numbers = true)]
     gap_tolerance: f64,
 }
 
@@ -311,7 +311,7 @@ fn run(cli: Cli) -> Result<()> {
                 units: None,
                 bay_layer: DEFAULT_BAY_LAYER.to_string(),
                 margin,
-                gap_tolerance: DEFAULT_GAP_TOLERANCE,
+                gap_tolerance: DEFAULT_MAX_GAP,
             };
             let mut request = request(DEMO_NAME.to_string(), &input, Some(&cut))?;
             // The demo's own stock and end mill; cut-through kinds use their kerf.

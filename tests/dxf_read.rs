@@ -2,7 +2,7 @@
 //! drawings written in memory with the `dxf` crate (R2000 unless said otherwise).
 
 use conicut::chain::{
-    BayProblem, ChainError, ChainOptions, DEFAULT_BAY_LAYER, HoleShape, build_part,
+    BayProblem, ChainError, ChainOptions, DEFAULT_BAY_LAYER, InnerShape, build_part,
 };
 use conicut::demo::{BAYS, BOLT_HOLE_CENTRES, BOLT_HOLE_RADIUS, demo_drawing, demo_dxf_bytes};
 use conicut::geom::Element;
@@ -85,14 +85,14 @@ fn demo_round_trip_keeps_contours_holes_and_bays() {
         .holes
         .iter()
         .map(|h| match &h.shape {
-            HoleShape::Contour(c) => match c.elements[..] {
+            InnerShape::Contour(c) => match c.elements[..] {
                 [Element::Arc(a)] => {
                     assert!((a.radius - BOLT_HOLE_RADIUS).abs() < 1e-12);
                     (a.center.x, a.center.y)
                 }
                 _ => panic!("{} is not a circle", h.name),
             },
-            HoleShape::Ellipse(_) => panic!("{} is an ellipse", h.name),
+            InnerShape::Ellipse(_) => panic!("{} is an ellipse", h.name),
         })
         .collect();
     // Holes are named left to right, then bottom to top.

@@ -5,7 +5,7 @@
 //! smallest radius of curvature (docs/sources.md M8; Farouki & Neff, CAGD 7 (1990)); NISTIR 6556
 //! App. B.5.1 likewise stops when the tool radius is not less than the arc radius.
 
-use conicut::chain::{self, ChainOptions, HoleShape, Part};
+use conicut::chain::{self, ChainOptions, InnerShape, Part};
 use conicut::geom::ExactPath;
 use conicut::geom::{Ellipse, Point, Segment};
 use conicut::plan::{CutSide, Opening, PlanError, PlanOptions, plan_cuts};
@@ -88,10 +88,10 @@ fn plunges_and_moves_in_stay_in_the_scrap() {
                                 .find(|h| h.name == cut.name)
                                 .expect("a drawn hole");
                             match &hole.shape {
-                                HoleShape::Contour(c) => {
+                                InnerShape::Contour(c) => {
                                     c.contains(p) && c.distance_to(p) >= r - 1e-9
                                 }
-                                HoleShape::Ellipse(e) => {
+                                InnerShape::Ellipse(e) => {
                                     e.contains(p) && e.distance_to(p).0 >= r - 1e-9
                                 }
                             }

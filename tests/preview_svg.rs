@@ -1,7 +1,7 @@
 //! The SVG preview is well-formed XML, covers the part, draws each solved ellipse exactly, shows
 //! every cut and plunge point, and renders (resvg) with the tool paths and ellipses in place.
 
-use conicut::chain::{Bay, Hole, HoleShape, Part};
+use conicut::chain::{Bay, InnerBoundary, InnerShape, Part};
 use conicut::fit::FittedCut;
 use conicut::geom::{ArcSegment, Ellipse, Point, Segment};
 use conicut::geom::{Contour, Element};
@@ -38,10 +38,10 @@ fn plate() -> Part {
         layer: "CUT".into(),
         handles: vec![],
     };
-    let hole = Hole {
+    let hole = InnerBoundary {
         name: "hole 1".into(),
         layer: "CUT".into(),
-        shape: HoleShape::Contour(Contour {
+        shape: InnerShape::Contour(Contour {
             elements: vec![Element::Arc(ArcSegment::circle(
                 Point::new(170.0, 25.0),
                 8.0,

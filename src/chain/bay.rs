@@ -9,11 +9,11 @@ use crate::geom::Point;
 /// 1e-4 rad (about 0.0057°): merging two pieces of total length L that bend by δ moves the
 /// dropped corner at most L·δ/4 off the merged side, 5 µm for a 200 mm side; yet it is far above
 /// the bend left by coordinates rounded to 1e-12 mm or by inch-to-mm conversion.
-pub const COLLINEAR_ANGLE_TOLERANCE: f64 = 1e-4;
+pub const COLLINEAR_ANGLE_LIMIT: f64 = 1e-4;
 
 /// Checks a closed loop from the bay layer and returns the bay: straight sides only, each
-/// longer than `gap_tolerance`, collinear neighbours merged, at least three sides, enclosing
-/// more than `gap_tolerance × perimeter` of area (thinner than the gap tolerance counts as
+/// longer than `max_gap`, collinear neighbours merged, at least three sides, enclosing
+/// more than `max_gap × perimeter` of area (thinner than the largest gap counts as
 /// flat), strictly convex and winding once. Corners come back counter-clockwise, starting from
 /// the lowest corner (the leftmost of equally low ones).
 pub(super) fn make_bay(
@@ -21,53 +21,97 @@ pub(super) fn make_bay(
     layer: &str,
     elements: &[Element],
     handles: &[String],
-    gap_tolerance: f64,
+    max_gap: f64,
 ) -> Result<Bay, ChainError> {
-    let err = |at: Point, problem: BayProblem| {
+    let at = Where {
+        name,
+        layer,
+        handles,
+    };
+    let min_side = max_gap.max(1e-9);
+    let mut corners = straight_corners(elements, min_side, &at)?;
+    merge_corners(&mut corners, &at)?;
+    orient_counter_clockwise(&mut corners, min_side, &at)?;
+    check_convex(&corners, &at)?;
+    start_at_lowest(&mut corners);
+    Ok(Bay {
+        name: name.to_string(),
+        layer: layer.to_string(),
+        corners,
+        handles: unique_handles(handles),
+    })
+}
+
+/// The bay being checked, for its errors.
+struct Where<'a> {
+    name: &'a str,
+    layer: &'a str,
+    handles: &'a [String],
+}
+
+impl Where<'_> {
+    fn err(&self, at: Point, problem: BayProblem) -> ChainError {
         ChainError::Bay(Box::new(BayError {
-            bay: name.to_string(),
-            layer: layer.to_string(),
-            handles: fmt_handles(handles),
+            bay: self.name.to_string(),
+            layer: self.layer.to_string(),
+            handles: fmt_handles(self.handles),
             at,
             problem,
         }))
-    };
+    }
+}
+
+/// The start of each side; refuses arcs and sides not longer than `min_side`.
+fn straight_corners(
+    elements: &[Element],
+    min_side: f64,
+    at: &Where,
+) -> Result<Vec<Point>, ChainError> {
     let mut corners = Vec::with_capacity(elements.len());
     for e in elements {
         match e {
             Element::Arc(a) => {
-                return Err(err(a.start_point(), BayProblem::Arc));
+                return Err(at.err(a.start_point(), BayProblem::Arc));
             }
             Element::Line(s) => corners.push(s.start),
         }
     }
-    let min_side = gap_tolerance.max(1e-9);
     for (i, e) in elements.iter().enumerate() {
         if e.length() <= min_side {
-            return Err(err(
-                corners[i],
-                BayProblem::ShortSide { length: e.length() },
-            ));
+            return Err(at.err(corners[i], BayProblem::ShortSide { length: e.length() }));
         }
     }
+    Ok(corners)
+}
 
-    merge_collinear(&mut corners).map_err(|at| {
-        err(
-            at,
+/// Collinear sides merged; refuses a bay turning straight back or left with fewer than 3 sides.
+fn merge_corners(corners: &mut Vec<Point>, at: &Where) -> Result<(), ChainError> {
+    merge_collinear(corners).map_err(|p| {
+        at.err(
+            p,
             BayProblem::Degenerate {
                 reason: "its outline turns back on itself there".into(),
             },
         )
     })?;
     if corners.len() < 3 {
-        return Err(err(
+        return Err(at.err(
             corners[0],
             BayProblem::TooFewSides {
                 sides: corners.len(),
             },
         ));
     }
+    Ok(())
+}
 
+/// Refuses a bay enclosing no more than `min_side × perimeter`; makes the corners run
+/// counter-clockwise.
+fn orient_counter_clockwise(
+    corners: &mut [Point],
+    min_side: f64,
+    at: &Where,
+) -> Result<(), ChainError> {
     let n = corners.len();
     let area: f64 = (0..n)
         .map(|i| 0.5 * corners[i].to_vec().cross(corners[(i + 1) % n].to_vec()))
@@ -76,7 +120,7 @@ pub(super) fn make_bay(
         .map(|i| corners[i].distance(corners[(i + 1) % n]))
         .sum();
     if area.abs() <= min_side * perimeter {
-        return Err(err(
+        return Err(at.err(
             corners[0],
             BayProblem::Degenerate {
                 reason: format!(
@@ -89,22 +133,31 @@ pub(super) fn make_bay(
     if area < 0.0 {
         corners.reverse();
     }
+    Ok(())
+}
 
+/// Every corner turns left, and the turns add up to one turn.
+fn check_convex(corners: &[Point], at: &Where) -> Result<(), ChainError> {
+    let n = corners.len();
     let mut turning = 0.0;
     for i in 0..n {
         let (a, b, c) = (corners[(i + n - 1) % n], corners[i], corners[(i + 1) % n]);
         let (u, v) = (b - a, c - b);
         if u.cross(v) <= 0.0 {
-            return Err(err(b, BayProblem::NotConvex));
+            return Err(at.err(b, BayProblem::NotConvex));
         }
         turning += u.cross(v).atan2(u.dot(v));
     }
     if (turning - std::f64::consts::TAU).abs() > 1e-6 {
         // All turns left but more than once round: the sides cross each other (a star).
-        return Err(err(corners[0], BayProblem::NotConvex));
+        return Err(at.err(corners[0], BayProblem::NotConvex));
     }
+    Ok(())
+}
 
-    let first = (0..n)
+/// Starts the corners at the lowest one (the leftmost of equally low ones).
+fn start_at_lowest(corners: &mut [Point]) {
+    let first = (0..corners.len())
         .min_by(|&i, &j| {
             (corners[i].y, corners[i].x)
                 .partial_cmp(&(corners[j].y, corners[j].x))
@@ -112,25 +165,23 @@ pub(super) fn make_bay(
         })
         .unwrap_or(0);
     corners.rotate_left(first);
+}
 
+/// The handles without repeats, in order.
+fn unique_handles(handles: &[String]) -> Vec<String> {
     let mut hs: Vec<String> = Vec::new();
     for h in handles {
         if !hs.contains(h) {
             hs.push(h.clone());
         }
     }
-    Ok(Bay {
-        name: name.to_string(),
-        layer: layer.to_string(),
-        corners,
-        handles: hs,
-    })
+    hs
 }
 
 /// Removes corners where the outline goes straight on (within
-/// [`COLLINEAR_ANGLE_TOLERANCE`]); returns `Err(corner)` where it turns straight back.
+/// [`COLLINEAR_ANGLE_LIMIT`]); returns `Err(corner)` where it turns straight back.
 fn merge_collinear(corners: &mut Vec<Point>) -> Result<(), Point> {
-    let max_sine = COLLINEAR_ANGLE_TOLERANCE.sin();
+    let max_sine = COLLINEAR_ANGLE_LIMIT.sin();
     loop {
         let n = corners.len();
         if n < 3 {
@@ -192,7 +243,7 @@ mod tests {
     }
 
     #[test]
-    fn collinear_pieces_merge_within_the_angular_tolerance() {
+    fn collinear_pieces_merge_within_the_angle_limit() {
         // The bottom side is drawn in two pieces bent by 5e-5 rad (below 1e-4).
         let bend = 5e-5_f64;
         let mid = (6.0, 6.0 * bend.tan());

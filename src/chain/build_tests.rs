@@ -1,5 +1,8 @@
 use super::*;
 use crate::chain::BayProblem;
+use crate::chain::{ChainError, InnerShape};
+use crate::geom::{Ellipse, Segment};
+use crate::read::EntityKind;
 use crate::read::{Entity, Units, UnitsSource};
 
 struct D(Vec<Entity>);
@@ -89,7 +92,7 @@ fn outline_holes_and_bays_are_sorted_and_named() {
     assert!(outline.is_ccw());
     assert_eq!(part.holes.len(), 2);
     assert_eq!(part.holes[0].name, "hole 1");
-    let HoleShape::Contour(c) = &part.holes[0].shape else {
+    let InnerShape::Contour(c) = &part.holes[0].shape else {
         panic!("circle hole should be a contour")
     };
     let Element::Arc(a) = c.elements[0] else {
@@ -132,7 +135,7 @@ fn open_contour_error_gives_gap_location_and_size() {
 }
 
 #[test]
-fn raising_the_gap_tolerance_closes_the_gap_and_snaps_it() {
+fn raising_the_max_gap_closes_the_gap_and_snaps_it() {
     let mut d = D::new();
     d.lines(
         "CUT",
@@ -152,7 +155,7 @@ fn raising_the_gap_tolerance_closes_the_gap_and_snaps_it() {
         notes: Vec::new(),
     };
     let opts = ChainOptions {
-        gap_tolerance: 0.3,
+        max_gap: 0.3,
         ..ChainOptions::default()
     };
     let part = build_part(&drawing, &opts).unwrap();
@@ -244,7 +247,7 @@ fn full_ellipse_is_a_hole_and_partial_ellipse_is_refused() {
     );
     let part = d.build().unwrap();
     assert_eq!(part.holes.len(), 1);
-    assert_eq!(part.holes[0].shape, HoleShape::Ellipse(e));
+    assert_eq!(part.holes[0].shape, InnerShape::Ellipse(e));
 
     let mut d = D::new();
     d.poly("CUT", &PLATE).push(
@@ -334,7 +337,7 @@ fn duplicate_lines_enclose_no_area() {
 }
 
 #[test]
-fn negative_gap_tolerance_is_refused() {
+fn negative_max_gap_is_refused() {
     let d = Drawing {
         entities: Vec::new(),
         units: Units::Millimetres,
@@ -342,11 +345,8 @@ fn negative_gap_tolerance_is_refused() {
         notes: Vec::new(),
     };
     let opts = ChainOptions {
-        gap_tolerance: -1.0,
+        max_gap: -1.0,
         ..ChainOptions::default()
     };
-    assert_eq!(
-        build_part(&d, &opts),
-        Err(ChainError::BadGapTolerance(-1.0))
-    );
+    assert_eq!(build_part(&d, &opts), Err(ChainError::BadMaxGap(-1.0)));
 }

@@ -14,31 +14,34 @@ pub struct Bay {
     pub handles: Vec<String>,
 }
 
-/// The shape of a hole in the part.
+/// The shape of an inner boundary of the part.
 #[derive(Debug, Clone, PartialEq, Serialize)]
-pub enum HoleShape {
+pub enum InnerShape {
     /// Lines and arcs; a circle is one arc of sweep 2π.
     Contour(Contour),
     /// A whole ELLIPSE entity drawn on a cut layer.
     Ellipse(Ellipse),
 }
 
-/// A hole: a closed shape inside the outline that is cut with the tool inside it.
+/// An inner boundary: a closed shape already in the drawing, inside the outline, cut with the
+/// tool inside it (named `hole N` in messages and reports; not to be confused with the cut kind
+/// `Hole`, which cuts a new opening).
 #[derive(Debug, Clone, PartialEq, Serialize)]
-pub struct Hole {
+pub struct InnerBoundary {
     /// A name for messages and reports, e.g. `hole 3`.
     pub name: String,
     pub layer: String,
-    pub shape: HoleShape,
+    pub shape: InnerShape,
 }
 
-/// What the drawing describes: the part's outline, its holes, and the bays to fill.
+/// What the drawing describes: the part's outline, its inner boundaries (`holes`), and the bays
+/// to fill.
 #[derive(Debug, Clone, PartialEq, Serialize, Default)]
 pub struct Part {
     /// The outermost closed contour, cut with the tool outside it. `None` for a drawing that
     /// holds only bays (a user may cut the openings into an existing plate).
     pub outline: Option<Contour>,
-    pub holes: Vec<Hole>,
+    pub holes: Vec<InnerBoundary>,
     pub bays: Vec<Bay>,
     /// Things the user should know that did not stop the job.
     pub warnings: Vec<String>,

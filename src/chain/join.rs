@@ -1,6 +1,6 @@
 //! Joining open pieces (lines, arcs, open polylines) of one layer into closed loops.
 //!
-//! Two piece ends *meet* when they are at most the gap tolerance apart (ends are grouped
+//! Two piece ends *meet* when they are at most the gap max_gap apart (ends are grouped
 //! transitively). A group of exactly two ends is a joint; a group of one end is a loose end; a
 //! group of three or more is a branch, which no simple loop can pass, so it is an error.
 
@@ -55,7 +55,7 @@ pub(super) struct Branch {
 }
 
 /// Joins `pieces` into loops. Each loop's shared points are snapped (see [`snap_loop`]).
-pub(super) fn join(pieces: &[Piece], tolerance: f64) -> Result<Joined, Branch> {
+pub(super) fn join(pieces: &[Piece], max_gap: f64) -> Result<Joined, Branch> {
     let pieces: Vec<&Piece> = pieces.iter().filter(|p| !p.elements.is_empty()).collect();
     // End k belongs to piece k / 2; k % 2 == 0 is its start.
     let ends: Vec<Point> = pieces
@@ -63,7 +63,7 @@ pub(super) fn join(pieces: &[Piece], tolerance: f64) -> Result<Joined, Branch> {
         .flat_map(|p| [p.end_point(0), p.end_point(1)])
         .map(|p| p.unwrap_or(Point::ORIGIN))
         .collect();
-    let groups = group_ends(&ends, tolerance);
+    let groups = group_ends(&ends, max_gap);
 
     let mut partner: Vec<Option<usize>> = vec![None; ends.len()];
     for g in &groups {
@@ -161,10 +161,10 @@ fn walk(
     }
 }
 
-/// Groups end points that lie within `tolerance` of each other (transitively), using a grid of
-/// cells `tolerance` wide (at least 1e-6 mm) so that only neighbouring cells are compared.
-fn group_ends(ends: &[Point], tolerance: f64) -> Vec<Vec<usize>> {
-    let cell = tolerance.max(1e-6);
+/// Groups end points that lie within `max_gap` of each other (transitively), using a grid of
+/// cells `max_gap` wide (at least 1e-6 mm) so that only neighbouring cells are compared.
+fn group_ends(ends: &[Point], max_gap: f64) -> Vec<Vec<usize>> {
+    let cell = max_gap.max(1e-6);
     let key = |p: Point| ((p.x / cell).floor() as i64, (p.y / cell).floor() as i64);
     let mut grid: HashMap<(i64, i64), Vec<usize>> = HashMap::new();
     for (k, &p) in ends.iter().enumerate() {
@@ -186,7 +186,7 @@ fn group_ends(ends: &[Point], tolerance: f64) -> Vec<Vec<usize>> {
                     continue;
                 };
                 for &j in cands {
-                    if j > k && p.distance(ends[j]) <= tolerance {
+                    if j > k && p.distance(ends[j]) <= max_gap {
                         let (a, b) = (find(&mut parent, k), find(&mut parent, j));
                         parent[a] = b;
                     }
@@ -316,7 +316,7 @@ mod tests {
     }
 
     #[test]
-    fn gap_above_tolerance_leaves_an_open_run_with_its_loose_ends() {
+    fn gap_above_max_gap_leaves_an_open_run_with_its_loose_ends() {
         let pieces = [
             line("A", (0.0, 0.0), (10.0, 0.0)),
             line("B", (10.0, 0.0), (10.0, 10.0)),

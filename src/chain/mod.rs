@@ -1,27 +1,32 @@
 //! Stage 2, chain: joins the drawing's entities into closed contours and sorts them into the
 //! part outline, its holes, and bays (construction geometry on the bay layer).
 //!
-//! # Tolerances
+//! # Limits
 //!
-//! * Gap tolerance ([`ChainOptions::gap_tolerance`], default [`DEFAULT_GAP_TOLERANCE`] =
-//!   0.01 mm): piece ends this close are joined, and snapped to one shared point. A bay side or
-//!   a bay's mean width not above it is degenerate.
+//! * Largest gap ([`ChainOptions::max_gap`], the `--gap-tolerance` flag, default
+//!   [`DEFAULT_MAX_GAP`] = 0.01 mm): piece ends this close are joined, and snapped to one shared
+//!   point. A bay side or a bay's mean width not above it is degenerate.
 //! * Collinear sides of a bay merge when their directions differ by at most
-//!   [`COLLINEAR_ANGLE_TOLERANCE`] = 1e-4 rad.
+//!   [`COLLINEAR_ANGLE_LIMIT`] = 1e-4 rad.
 //! * Polyline pieces at most 1e-9 mm long are zero-length.
 //! * Crossings between contours are looked for on chords that lie within
 //!   [`CROSSING_CHECK_SAGITTA`] = 0.001 mm of the arcs and ellipses.
 
 mod bay;
 mod build;
+mod classify;
 mod contour;
+mod crossing;
+mod error;
+mod gather;
 mod join;
 
-pub use bay::COLLINEAR_ANGLE_TOLERANCE;
+pub use bay::COLLINEAR_ANGLE_LIMIT;
 pub use build::{
-    BayError, BayProblem, CROSSING_CHECK_SAGITTA, ChainError, ChainOptions, DEFAULT_BAY_LAYER,
-    DEFAULT_GAP_TOLERANCE, OpenContour, build_part,
+    CROSSING_CHECK_SAGITTA, ChainOptions, DEFAULT_BAY_LAYER, DEFAULT_MAX_GAP, build_part,
 };
-pub use contour::{Bay, Hole, HoleShape, Part};
+pub use contour::{Bay, InnerBoundary, InnerShape, Part};
 
-use build::fmt_handles;
+pub use error::{BayError, BayProblem, ChainError, OpenContour};
+
+use error::fmt_handles;

@@ -5,7 +5,7 @@
 pub mod features;
 pub mod listing;
 
-use crate::chain::{self, ChainError, ChainOptions, HoleShape};
+use crate::chain::{self, ChainError, ChainOptions, InnerShape};
 use crate::check;
 use crate::fit::{self, FitError};
 use crate::geom::{Ellipse, Point};
@@ -142,7 +142,7 @@ fn read_and_solve(dxf: &[u8], s: &JobSettings) -> Result<Solved, JobError> {
     let part = chain::build_part(
         &drawing,
         &ChainOptions {
-            gap_tolerance: s.gap_tolerance,
+            max_gap: s.gap_tolerance,
             bay_layer: bay_layer.clone(),
             construction_layers: s
                 .job
@@ -463,8 +463,8 @@ pub fn run_resolved(
         .holes
         .iter()
         .filter_map(|h| match &h.shape {
-            HoleShape::Ellipse(e) => Some((h.name.clone(), *e)),
-            HoleShape::Contour(_) => None,
+            InnerShape::Ellipse(e) => Some((h.name.clone(), *e)),
+            InnerShape::Contour(_) => None,
         })
         .collect();
     ellipses.extend(ellipse_holes.iter().cloned());

@@ -71,10 +71,10 @@ fn arc_lead_is_tangent_and_inside_an_opening() {
 fn small_hole_falls_back_to_a_straight_entry_with_a_warning() {
     // Ø9 hole, 6 mm tool: the path is a 1.5 mm circle and no arc wider than the tool fits.
     let part = Part {
-        holes: vec![crate::chain::Hole {
+        holes: vec![crate::chain::InnerBoundary {
             name: "hole 1".into(),
             layer: "0".into(),
-            shape: crate::chain::HoleShape::Contour(circle_hole(10.0, 10.0, 4.5)),
+            shape: crate::chain::InnerShape::Contour(circle_hole(10.0, 10.0, 4.5)),
         }],
         ..Part::default()
     };
@@ -101,10 +101,10 @@ fn too_narrow_a_mill_arc_is_widened_with_a_warning() {
 #[test]
 fn thermal_pierce_keeps_its_clearance_or_the_plan_is_refused() {
     let part = Part {
-        holes: vec![crate::chain::Hole {
+        holes: vec![crate::chain::InnerBoundary {
             name: "hole 1".into(),
             layer: "0".into(),
-            shape: crate::chain::HoleShape::Contour(circle_hole(0.0, 0.0, 4.5)),
+            shape: crate::chain::InnerShape::Contour(circle_hole(0.0, 0.0, 4.5)),
         }],
         ..Part::default()
     };

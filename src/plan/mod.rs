@@ -45,7 +45,7 @@ pub use cut::{PlannedCut, Tab};
 pub use error::PlanError;
 pub use options::{Direction, LeadKind, LeadOptions, PlanOptions, TabOptions};
 
-use crate::chain::{HoleShape, Part};
+use crate::chain::{InnerShape, Part};
 use crate::geom::{Ellipse, Point};
 use finishing::add_finishing_cuts;
 use paths::{plan_contour, plan_ellipse, plan_ellipse_boss};
@@ -115,8 +115,8 @@ pub fn plan_cuts(part: &Part, openings: &[Opening], opts: &PlanOptions) -> Resul
     }
     for h in &part.holes {
         let cut = match &h.shape {
-            HoleShape::Ellipse(e) => plan_ellipse(&h.name, FeatureKind::Hole, e, r, d)?,
-            HoleShape::Contour(c) => {
+            InnerShape::Ellipse(e) => plan_ellipse(&h.name, FeatureKind::Hole, e, r, d)?,
+            InnerShape::Contour(c) => {
                 let ccw = if c.is_ccw() { c.clone() } else { c.reversed() };
                 plan_contour(
                     &h.name,

@@ -23,7 +23,7 @@
 mod frame;
 mod shapes;
 
-use crate::chain::{HoleShape, Part};
+use crate::chain::{InnerShape, Part};
 use crate::fit::FittedCut;
 use crate::geom::Move;
 use crate::geom::{Ellipse, Point, Vec2};
@@ -175,12 +175,12 @@ fn content_bounds(input: &PreviewInput) -> Option<Bounds> {
     }
     for hole in &input.part.holes {
         match &hole.shape {
-            HoleShape::Contour(c) => {
+            InnerShape::Contour(c) => {
                 if let Some((lo, hi)) = c.bounds() {
                     pts.extend([lo, hi]);
                 }
             }
-            HoleShape::Ellipse(e) => pts.extend(ellipse_bounds(e)),
+            InnerShape::Ellipse(e) => pts.extend(ellipse_bounds(e)),
         }
     }
     for bay in &input.part.bays {
@@ -237,8 +237,8 @@ fn part_group(part: &Part, u: f64) -> Group {
     }
     for hole in &part.holes {
         let d = match &hole.shape {
-            HoleShape::Contour(c) => contour_d(c),
-            HoleShape::Ellipse(e) => ellipse_d(e),
+            InnerShape::Contour(c) => contour_d(c),
+            InnerShape::Ellipse(e) => ellipse_d(e),
         };
         g = g.add(
             Path::new()

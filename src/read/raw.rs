@@ -82,95 +82,127 @@ pub(super) fn scan(text: &str) -> Result<RawScan, Box<BadValue>> {
         .split('\n')
         .map(|l| l.strip_suffix('\r').unwrap_or(l))
         .collect();
-
-    let mut out = RawScan::default();
-    let mut flat: Vec<RawRecord> = Vec::new();
-    let mut section: Option<String> = None;
-    let mut expect_section_name = false;
-    let mut last_header_variable: Option<&str> = None;
-
-    let mut i = 0;
-    while i + 1 < lines.len() {
-        let code_line = lines[i].trim();
-        if code_line.is_empty() {
+    let mut scanner = Scanner::default();
+    for (line_no, code, value) in pairs(&lines) {
+        if !scanner.pair(line_no, code, value)? {
             break;
         }
-        let Ok(code) = code_line.parse::<i32>() else {
-            break;
-        };
-        let value = lines[i + 1];
-        let line_no = i + 1;
-        i += 2;
+    }
+    let mut out = scanner.out;
+    out.records = fold(scanner.flat);
+    Ok(out)
+}
 
-        if expect_section_name {
-            expect_section_name = false;
+/// The group-code/value pairs of `lines`, each with the 1-based line of its code, up to the first
+/// line that is not a group code.
+fn pairs<'a>(lines: &'a [&'a str]) -> impl Iterator<Item = (usize, i32, &'a str)> + 'a {
+    let mut i = 0;
+    std::iter::from_fn(move || {
+        if i + 1 >= lines.len() {
+            return None;
+        }
+        let code_line = lines[i].trim();
+        if code_line.is_empty() {
+            return None;
+        }
+        let code = code_line.parse::<i32>().ok()?;
+        let pair = (i + 1, code, lines[i + 1]);
+        i += 2;
+        Some(pair)
+    })
+}
+
+/// The scan's state between pairs.
+#[derive(Default)]
+struct Scanner<'a> {
+    out: RawScan,
+    flat: Vec<RawRecord>,
+    section: Option<String>,
+    expect_section_name: bool,
+    last_header_variable: Option<&'a str>,
+}
+
+impl<'a> Scanner<'a> {
+    /// Takes one pair; `Ok(false)` at the end of the file.
+    fn pair(&mut self, line_no: usize, code: i32, value: &'a str) -> Result<bool, Box<BadValue>> {
+        if self.expect_section_name {
+            self.expect_section_name = false;
             if code == 2 {
                 let name = value.trim().to_string();
-                out.has_entities_section |= name == "ENTITIES";
-                section = Some(name);
-                continue;
+                self.out.has_entities_section |= name == "ENTITIES";
+                self.section = Some(name);
+                return Ok(true);
             }
         }
         if code == 0 {
             match value.trim() {
                 "SECTION" => {
-                    expect_section_name = true;
-                    section = None;
-                    continue;
+                    self.expect_section_name = true;
+                    self.section = None;
+                    return Ok(true);
                 }
                 "ENDSEC" => {
-                    section = None;
-                    continue;
+                    self.section = None;
+                    return Ok(true);
                 }
-                "EOF" => break,
+                "EOF" => return Ok(false),
                 _ => {}
             }
         }
-        match section.as_deref() {
-            Some("HEADER") => {
-                if code == 9 {
-                    last_header_variable = Some(value.trim());
-                } else if code == 70 && last_header_variable == Some("$INSUNITS") {
-                    out.insunits = value.trim().parse::<f64>().ok().map(|v| v as i64);
-                }
-            }
-            Some("ENTITIES") => {
-                if code == 0 {
-                    flat.push(RawRecord {
-                        kind: value.trim().to_string(),
-                        line: line_no,
-                        handle: None,
-                        layer: None,
-                        vertices: 0,
-                        entities_follow: false,
-                    });
-                    continue;
-                }
-                if !value_is_valid(code, value) {
-                    return Err(Box::new(BadValue {
-                        line: line_no + 1,
-                        code,
-                        value: value.to_string(),
-                        record: flat.last().cloned(),
-                    }));
-                }
-                if let Some(rec) = flat.last_mut() {
-                    match code {
-                        5 => rec.handle = Some(value.trim().to_string()),
-                        8 => rec.layer = Some(value.to_string()),
-                        66 => {
-                            rec.entities_follow =
-                                value.trim().parse::<f64>().is_ok_and(|v| v != 0.0)
-                        }
-                        _ => {}
-                    }
-                }
-            }
+        match self.section.as_deref() {
+            Some("HEADER") => self.header_pair(code, value),
+            Some("ENTITIES") => self.entities_pair(line_no, code, value)?,
             _ => {}
         }
+        Ok(true)
     }
-    out.records = fold(flat);
-    Ok(out)
+
+    /// A pair of the HEADER section: only `$INSUNITS` is kept.
+    fn header_pair(&mut self, code: i32, value: &'a str) {
+        if code == 9 {
+            self.last_header_variable = Some(value.trim());
+        } else if code == 70 && self.last_header_variable == Some("$INSUNITS") {
+            self.out.insunits = value.trim().parse::<f64>().ok().map(|v| v as i64);
+        }
+    }
+
+    /// A pair of the ENTITIES section: a new record, or a value checked and, for the handle,
+    /// layer and "entities follow" flag, kept.
+    fn entities_pair(
+        &mut self,
+        line_no: usize,
+        code: i32,
+        value: &str,
+    ) -> Result<(), Box<BadValue>> {
+        if code == 0 {
+            self.flat.push(RawRecord {
+                kind: value.trim().to_string(),
+                line: line_no,
+                handle: None,
+                layer: None,
+                vertices: 0,
+                entities_follow: false,
+            });
+            return Ok(());
+        }
+        if !value_is_valid(code, value) {
+            return Err(Box::new(BadValue {
+                line: line_no + 1,
+                code,
+                value: value.to_string(),
+                record: self.flat.last().cloned(),
+            }));
+        }
+        if let Some(rec) = self.flat.last_mut() {
+            match code {
+                5 => rec.handle = Some(value.trim().to_string()),
+                8 => rec.layer = Some(value.to_string()),
+                66 => rec.entities_follow = value.trim().parse::<f64>().is_ok_and(|v| v != 0.0),
+                _ => {}
+            }
+        }
+        Ok(())
+    }
 }
 
 /// Folds sub-records into their owners the way the crate's entity collector does.

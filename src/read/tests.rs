@@ -1,6 +1,9 @@
 use super::*;
+use crate::geom::{ArcSegment, Point};
+use dxf::entities::EntityType;
 use dxf::entities::{self as de, Entity as DxfEntity};
 use dxf::enums::AcadVersion;
+use std::f64::consts::TAU;
 
 fn opts(units: Option<Units>) -> ReadOptions<'static> {
     ReadOptions {

@@ -75,7 +75,7 @@ impl JobSettings {
             file_name: file_name.to_string(),
             units: None,
             bay_layer: chain::DEFAULT_BAY_LAYER.to_string(),
-            gap_tolerance: chain::DEFAULT_GAP_TOLERANCE,
+            gap_tolerance: chain::DEFAULT_MAX_GAP,
             margin: defaults::MARGIN_MM,
             tool_diameter: Some(tool_diameter),
             fallback_tool_diameter: None,

@@ -1,0 +1,247 @@
+//! Sorting the closed cut shapes into the outline and the holes: no crossings, no hole inside a
+//! hole, one outermost shape.
+
+use super::crossing::{flatten_contour, flatten_ellipse, polygons_cross};
+use super::error::{ChainError, fmt_handles};
+use super::{InnerBoundary, InnerShape};
+use crate::geom::{Contour, Element, bounds_of};
+use crate::geom::{Ellipse, Point};
+
+/// A closed cut shape, with what the classification needs.
+pub(super) struct Shape {
+    kind: ShapeKind,
+    description: String,
+    area: f64,
+    polygon: Vec<Point>,
+    low: Point,
+    high: Point,
+    sample: Point,
+    first_handle: String,
+}
+
+enum ShapeKind {
+    Contour(Contour),
+    Ellipse(Ellipse, String),
+}
+
+impl Shape {
+    pub(super) fn from_contour(c: Contour) -> Shape {
+        let polygon = flatten_contour(&c);
+        let (low, high) = c.bounds().unwrap_or((Point::ORIGIN, Point::ORIGIN));
+        let kinds: Vec<&str> = c
+            .elements
+            .iter()
+            .map(|e| match e {
+                Element::Line(_) => "line",
+                Element::Arc(_) => "arc",
+            })
+            .collect();
+        let description = if c.elements.len() == 1 && kinds[0] == "arc" {
+            format!(
+                "the circle on layer {} (handle {})",
+                c.layer,
+                fmt_handles(&c.handles)
+            )
+        } else {
+            format!(
+                "the contour on layer {} (handles {})",
+                c.layer,
+                fmt_handles(&c.handles)
+            )
+        };
+        Shape {
+            area: c.signed_area().abs(),
+            sample: c.elements[0].start(),
+            first_handle: c.handles.first().cloned().unwrap_or_default(),
+            polygon,
+            low,
+            high,
+            description,
+            kind: ShapeKind::Contour(c),
+        }
+    }
+
+    pub(super) fn from_ellipse(e: Ellipse, layer: String, handle: String) -> Shape {
+        let polygon = flatten_ellipse(&e);
+        let (low, high) = bounds_of(&polygon).unwrap_or((Point::ORIGIN, Point::ORIGIN));
+        Shape {
+            description: format!("the ELLIPSE on layer {layer} (handle {handle})"),
+            area: e.area(),
+            sample: e.point(0.0),
+            first_handle: handle,
+            polygon,
+            low,
+            high,
+            kind: ShapeKind::Ellipse(e, layer),
+        }
+    }
+
+    fn contains(&self, p: Point) -> bool {
+        match &self.kind {
+            ShapeKind::Contour(c) => c.contains(p),
+            ShapeKind::Ellipse(e, _) => e.contains(p),
+        }
+    }
+
+    fn boxes_overlap(&self, other: &Shape) -> bool {
+        self.low.x <= other.high.x
+            && other.low.x <= self.high.x
+            && self.low.y <= other.high.y
+            && other.low.y <= self.high.y
+    }
+}
+
+type Classified = (Option<Contour>, Vec<InnerBoundary>, Vec<String>);
+
+/// The outline, the holes (named `hole 1`, … in order of the lower-left corner of their boxes,
+/// then by first handle) and warnings, from the cut shapes. See [`super::build_part`].
+pub(super) fn classify(mut shapes: Vec<Shape>) -> Result<Classified, ChainError> {
+    refuse_crossings(&shapes)?;
+    let parents = parents_of(&shapes);
+    refuse_nesting(&shapes, &parents)?;
+    let mut warnings = Vec::new();
+    let nested = parents.iter().any(|p| !p.is_empty());
+    let outline_index = outline_index(&shapes, &parents, nested, &mut warnings)?;
+    let outline = match outline_index {
+        Some(i) => take_outline(&mut shapes, i, nested)?,
+        None => None,
+    };
+    Ok((outline, name_holes(shapes), warnings))
+}
+
+/// Crossings first: without them, each pair is either nested or apart.
+fn refuse_crossings(shapes: &[Shape]) -> Result<(), ChainError> {
+    let n = shapes.len();
+    for i in 0..n {
+        for j in i + 1..n {
+            if shapes[i].boxes_overlap(&shapes[j])
+                && let Some(at) = polygons_cross(&shapes[i].polygon, &shapes[j].polygon)
+            {
+                return Err(ChainError::Crossing {
+                    first: shapes[i].description.clone(),
+                    second: shapes[j].description.clone(),
+                    at,
+                });
+            }
+        }
+    }
+    Ok(())
+}
+
+/// `parents[i]`: the shapes shape i lies inside.
+fn parents_of(shapes: &[Shape]) -> Vec<Vec<usize>> {
+    let n = shapes.len();
+    let mut parents: Vec<Vec<usize>> = vec![Vec::new(); n];
+    for i in 0..n {
+        for j in 0..n {
+            if i != j
+                && shapes[j].area > shapes[i].area
+                && shapes[i].boxes_overlap(&shapes[j])
+                && shapes[j].contains(shapes[i].sample)
+            {
+                parents[i].push(j);
+            }
+        }
+    }
+    parents
+}
+
+/// Refuses a shape inside two others (a hole inside a hole).
+fn refuse_nesting(shapes: &[Shape], parents: &[Vec<usize>]) -> Result<(), ChainError> {
+    if let Some(i) = (0..shapes.len()).find(|&i| parents[i].len() >= 2) {
+        let mut ps = parents[i].clone();
+        ps.sort_by(|&a, &b| shapes[a].area.total_cmp(&shapes[b].area));
+        return Err(ChainError::Nested {
+            inner: shapes[i].description.clone(),
+            middle: shapes[ps[0]].description.clone(),
+            outer: shapes[ps[ps.len() - 1]].description.clone(),
+        });
+    }
+    Ok(())
+}
+
+/// Which shape is the outline: the one outermost shape when some are nested, a lone shape, or
+/// none (several shapes apart: all holes, with a warning).
+fn outline_index(
+    shapes: &[Shape],
+    parents: &[Vec<usize>],
+    nested: bool,
+    warnings: &mut Vec<String>,
+) -> Result<Option<usize>, ChainError> {
+    let n = shapes.len();
+    if nested {
+        let roots: Vec<usize> = (0..n).filter(|&i| parents[i].is_empty()).collect();
+        if roots.len() > 1 {
+            return Err(ChainError::SeveralOutlines {
+                shapes: roots
+                    .iter()
+                    .map(|&i| shapes[i].description.clone())
+                    .collect(),
+            });
+        }
+        return Ok(Some(roots[0]));
+    }
+    if n == 1 {
+        return Ok(Some(0));
+    }
+    if n > 1 {
+        warnings.push(format!(
+            "no closed shape holds the others, so all {n} are taken as holes in a plate that \
+             is not drawn (no outline is cut); if they are separate parts, draw one part per \
+             drawing"
+        ));
+    }
+    Ok(None)
+}
+
+/// Takes shape `i` out as the outline. An ELLIPSE holding others is refused; a lone ELLIPSE is
+/// a hole (cut inside), not an outline, and stays among the shapes.
+fn take_outline(
+    shapes: &mut Vec<Shape>,
+    i: usize,
+    nested: bool,
+) -> Result<Option<Contour>, ChainError> {
+    let s = shapes.remove(i);
+    match s.kind {
+        ShapeKind::Contour(c) => Ok(Some(c)),
+        ShapeKind::Ellipse(..) => {
+            if nested {
+                return Err(ChainError::EllipseOutline {
+                    shape: s.description,
+                });
+            }
+            shapes.push(s);
+            Ok(None)
+        }
+    }
+}
+
+/// The remaining shapes as holes, in order and named.
+fn name_holes(mut shapes: Vec<Shape>) -> Vec<InnerBoundary> {
+    shapes.sort_by(|a, b| {
+        a.low
+            .x
+            .total_cmp(&b.low.x)
+            .then(a.low.y.total_cmp(&b.low.y))
+            .then_with(|| a.first_handle.cmp(&b.first_handle))
+    });
+    shapes
+        .into_iter()
+        .enumerate()
+        .map(|(i, s)| {
+            let name = format!("hole {}", i + 1);
+            match s.kind {
+                ShapeKind::Contour(c) => InnerBoundary {
+                    name,
+                    layer: c.layer.clone(),
+                    shape: InnerShape::Contour(c),
+                },
+                ShapeKind::Ellipse(e, layer) => InnerBoundary {
+                    name,
+                    layer,
+                    shape: InnerShape::Ellipse(e),
+                },
+            }
+        })
+        .collect()
+}

@@ -1,0 +1,227 @@
+//! Loading a file: the text checked and scanned on its own ([`super::raw`]), the `dxf` crate's
+//! load, the units, and each scanned record matched with what the crate loaded.
+
+use super::convert::{Converted, convert};
+use super::dropped::match_loaded;
+use super::entity::describe;
+use super::notes::{Notes, describe_raw, label, label_raw};
+use super::ocs::Ctx;
+use super::raw::{self, RawRecord, RawScan};
+use super::{Drawing, Entity, ReadError, ReadOptions, Units, UnitsSource};
+
+/// Reads an ASCII DXF file's bytes. See the module documentation for what is read and how.
+pub fn read_dxf(bytes: &[u8], opts: &ReadOptions) -> Result<Drawing, ReadError> {
+    let file = opts.file_name.to_string();
+    refuse_non_text(bytes, &file)?;
+    let scan = scan_text(bytes, &file)?;
+    let loaded = load_with_crate(bytes, &file)?;
+    let (units, units_from) = resolve_units(&file, scan.insunits, opts.units)?;
+    let loaded_entities: Vec<&dxf::entities::Entity> = loaded.entities().collect();
+    let mut found = Found::default();
+    let matched = collect(
+        &file,
+        units.mm_per_unit(),
+        &scan.records,
+        &loaded_entities,
+        &mut found,
+    )?;
+    if matched != loaded_entities.len() {
+        return Err(ReadError::CountMismatch {
+            file,
+            loaded: loaded_entities.len(),
+            counted: matched,
+        });
+    }
+    Ok(Drawing {
+        entities: found.entities,
+        units,
+        units_from,
+        notes: found.notes.finish(),
+    })
+}
+
+/// Refuses binary DXF and anything holding NUL bytes.
+fn refuse_non_text(bytes: &[u8], file: &str) -> Result<(), ReadError> {
+    let file = file.to_string();
+    if bytes.starts_with(b"AutoCAD Binary DXF") || bytes.starts_with(b"AutoCAD DXB") {
+        return Err(ReadError::Binary { file });
+    }
+    if bytes.contains(&0) {
+        return Err(ReadError::NotDxf {
+            file,
+            reason: "it holds NUL bytes, so it is not text".into(),
+        });
+    }
+    Ok(())
+}
+
+/// The file's own scan: every numeric value of the ENTITIES section checked, the records listed.
+fn scan_text(bytes: &[u8], file: &str) -> Result<RawScan, ReadError> {
+    let text = String::from_utf8_lossy(bytes);
+    let scan = raw::scan(&text).map_err(|b| {
+        let what = match &b.record {
+            Some(r) => describe_raw(r),
+            None => "an entity".to_string(),
+        };
+        ReadError::BadNumber {
+            file: file.to_string(),
+            line: b.line,
+            code: b.code,
+            value: b.value,
+            what,
+        }
+    })?;
+    if !scan.has_entities_section {
+        return Err(ReadError::NotDxf {
+            file: file.to_string(),
+            reason: "it has no ENTITIES section".into(),
+        });
+    }
+    Ok(scan)
+}
+
+fn load_with_crate(bytes: &[u8], file: &str) -> Result<dxf::Drawing, ReadError> {
+    dxf::Drawing::load(&mut &bytes[..]).map_err(|e| ReadError::Load {
+        file: file.to_string(),
+        line: dxf_error_line(&e),
+        message: e.to_string(),
+    })
+}
+
+/// What the records gave: entities kept, and notes on the rest.
+#[derive(Default)]
+struct Found {
+    entities: Vec<Entity>,
+    notes: Notes,
+}
+
+/// Walks the scanned records in step with the loaded entities; returns how many loaded entities
+/// were matched.
+fn collect(
+    file: &str,
+    scale: f64,
+    records: &[RawRecord],
+    loaded: &[&dxf::entities::Entity],
+    found: &mut Found,
+) -> Result<usize, ReadError> {
+    let mut next = 0;
+    for rec in records {
+        let kind = if rec.kind == "3DLINE" {
+            "LINE"
+        } else {
+            rec.kind.as_str()
+        };
+        match match_loaded(kind, rec, loaded.get(next).copied(), file)? {
+            None => found.notes.add(
+                &rec.kind,
+                rec.layer.as_deref().unwrap_or("0"),
+                &label_raw(rec),
+            ),
+            Some(ent) => {
+                next += 1;
+                take(file, scale, rec, kind, ent, found)?;
+            }
+        }
+    }
+    Ok(next)
+}
+
+/// One matched record: its polyline vertices counted, paper space noted, the geometry converted.
+fn take(
+    file: &str,
+    scale: f64,
+    rec: &RawRecord,
+    kind: &str,
+    ent: &dxf::entities::Entity,
+    found: &mut Found,
+) -> Result<(), ReadError> {
+    let handle = rec
+        .handle
+        .clone()
+        .unwrap_or_else(|| format!("L{}", rec.line));
+    let layer = ent.common.layer.clone();
+    let ctx = Ctx {
+        file,
+        what: describe(kind, &layer, &handle, rec.line),
+        scale,
+    };
+    if let dxf::entities::EntityType::Polyline(p) = &ent.specific
+        && p.vertices().count() != rec.vertices
+    {
+        return Err(ReadError::EntityLost {
+            file: file.to_string(),
+            line: rec.line,
+            what: ctx.what,
+        });
+    }
+    let notes = &mut found.notes;
+    if ent.common.is_in_paper_space {
+        notes.add(
+            &format!("{} (paper space)", rec.kind),
+            &layer,
+            &label(&handle, rec.line),
+        );
+        return Ok(());
+    }
+    match convert(&ent.specific, &ctx)? {
+        Converted::Kind(kind) => found.entities.push(Entity {
+            layer,
+            handle,
+            line: rec.line,
+            kind,
+        }),
+        Converted::Degenerate(why) => notes.add(
+            &format!("{} ({why})", rec.kind),
+            &layer,
+            &label(&handle, rec.line),
+        ),
+        Converted::Unsupported => notes.add(&rec.kind, &layer, &label(&handle, rec.line)),
+    }
+    Ok(())
+}
+
+fn resolve_units(
+    file: &str,
+    insunits: Option<i64>,
+    flag: Option<Units>,
+) -> Result<(Units, UnitsSource), ReadError> {
+    let header = match Units::from_insunits(insunits.unwrap_or(0)) {
+        Ok(u) => u,
+        Err(name) => {
+            return Err(ReadError::UnsupportedUnits {
+                file: file.to_string(),
+                code: insunits.unwrap_or(0),
+                name: name.to_string(),
+            });
+        }
+    };
+    match (header, flag) {
+        (Some(h), Some(f)) if h != f => Err(ReadError::UnitsDisagree {
+            file: file.to_string(),
+            header: h,
+            flag: f,
+        }),
+        (Some(h), _) => Ok((h, UnitsSource::Header)),
+        (None, Some(f)) => Ok((f, UnitsSource::UserFlag)),
+        (None, None) => Err(ReadError::NoUnits {
+            file: file.to_string(),
+        }),
+    }
+}
+
+/// The line a `dxf` crate error points at (its "line/offset"; a line number for text files).
+fn dxf_error_line(e: &dxf::DxfError) -> Option<usize> {
+    use dxf::DxfError as E;
+    match e {
+        E::ParseFloatError(_, o)
+        | E::ParseIntError(_, o)
+        | E::ParseError(o)
+        | E::UnexpectedCode(_, o)
+        | E::UnexpectedByte(_, o)
+        | E::UnexpectedEnumValue(o)
+        | E::ExpectedTableType(o)
+        | E::WrongValueType(o) => Some(*o),
+        E::UnexpectedCodePair(pair, _) => Some(pair.offset),
+        _ => None,
+    }
+}
