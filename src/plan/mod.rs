@@ -43,7 +43,9 @@ mod tabs;
 
 pub use cut::{PlannedCut, Tab};
 pub use error::PlanError;
-pub use options::{Direction, LeadKind, LeadOptions, PlanOptions, TabOptions};
+pub use options::{
+    Direction, LeadKind, LeadOptions, POCKET_STEPOVER_PER_DIAMETER, PlanOptions, TabOptions,
+};
 
 use crate::chain::{InnerShape, Part};
 use crate::geom::{Ellipse, Point};

@@ -27,6 +27,11 @@ pub struct PlanOptions {
     pub pierce_clearance: Option<f64>,
 }
 
+/// Pocket stepover as a fraction of the tool diameter when none is asked for. Common practice:
+/// 30–50 % of the diameter; 40 % leaves overlapping passes without scallops standing proud.
+/// The one definition: `settings::defaults` names it too.
+pub const POCKET_STEPOVER_PER_DIAMETER: f64 = 0.4;
+
 impl PlanOptions {
     /// The plan of earlier versions: a straight move from the plunge point to the path, no
     /// overcut or lead-out, climb direction, no tabs, no finishing pass, pockets cleared at 40 %
@@ -38,7 +43,7 @@ impl PlanOptions {
             direction: Direction::Climb,
             tabs: None,
             finish_allowance: None,
-            pocket_stepover: 0.4 * tool_diameter,
+            pocket_stepover: POCKET_STEPOVER_PER_DIAMETER * tool_diameter,
             pierce_clearance: None,
         }
     }

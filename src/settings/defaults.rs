@@ -9,9 +9,9 @@ pub const TOLERANCE_MM: f64 = 0.01;
 /// to 5–10° in aluminium; the lowest safe value of the common range is the default.
 pub const RAMP_ANGLE_DEG: f64 = 3.0;
 
-/// Pocket stepover as a fraction of the tool diameter when none is asked for. Common practice:
-/// 40 % of the diameter leaves overlapping passes without scallops standing proud.
-pub const POCKET_STEPOVER_PER_DIAMETER: f64 = 0.4;
+/// Pocket stepover as a fraction of the tool diameter when none is asked for (defined with its
+/// reason beside the plan options, which use it too).
+pub use crate::plan::POCKET_STEPOVER_PER_DIAMETER;
 
 /// Pocket stepover (mm) for a tool of `tool_diameter` mm.
 pub fn pocket_stepover(tool_diameter: f64) -> f64 {
