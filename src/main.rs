@@ -98,11 +98,15 @@ struct DrawingArgs {
     bay_layer: String,
     /// Edge margin: each bay side is moved inward by this much before solving (mm; a job file's
     /// margin wins).
-    #[arg(long, default_value_t = 0.0, allow_negative_numbers = true)]
+    #[arg(long, default_value_t = defaults::MARGIN_MM, allow_negative_numbers = true)]
     margin: f64,
     /// Largest gap closed when joining drawing pieces into contours (mm).
-    #[arg(long, default_value_t = DEFAULT_MAX_GAP, allow_negative_numbers = true)]
-    gap_tolerance: f64,
+    #[arg(
+        long = "gap-tolerance",
+        default_value_t = DEFAULT_MAX_GAP,
+        allow_negative_numbers = true
+    )]
+    max_gap: f64,
 }
 
 #[derive(Args, Debug)]
@@ -252,7 +256,7 @@ fn request(file_name: String, input: &DrawingArgs, cut: Option<&CutArgs>) -> Res
         file_name,
         units: input.units,
         bay_layer: input.bay_layer.clone(),
-        gap_tolerance: input.gap_tolerance,
+        max_gap: input.max_gap,
         margin: input.margin,
         tool_diameter: None,
         fallback_tool_diameter: None,
@@ -311,7 +315,7 @@ fn run(cli: Cli) -> Result<()> {
                 units: None,
                 bay_layer: DEFAULT_BAY_LAYER.to_string(),
                 margin,
-                gap_tolerance: DEFAULT_MAX_GAP,
+                max_gap: DEFAULT_MAX_GAP,
             };
             let mut request = request(DEMO_NAME.to_string(), &input, Some(&cut))?;
             // The demo's own stock and end mill; cut-through kinds use their kerf.

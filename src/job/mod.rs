@@ -142,7 +142,7 @@ fn read_and_solve(dxf: &[u8], s: &JobSettings) -> Result<Solved, JobError> {
     let part = chain::build_part(
         &drawing,
         &ChainOptions {
-            max_gap: s.gap_tolerance,
+            max_gap: s.max_gap,
             bay_layer: bay_layer.clone(),
             construction_layers: s
                 .job

@@ -18,7 +18,7 @@ pub struct JobSettings {
     /// The layer holding the bays (a job file's `bay_layer` overrides it).
     pub bay_layer: String,
     /// Largest gap closed when chaining pieces into contours (mm).
-    pub gap_tolerance: f64,
+    pub max_gap: f64,
     /// Edge margin for bays when neither the job file nor its feature states one (mm).
     pub margin: f64,
     /// Cutter diameter (mm); `None`: the profile's kerf width on a laser, plasma table or
@@ -75,7 +75,7 @@ impl JobSettings {
             file_name: file_name.to_string(),
             units: None,
             bay_layer: chain::DEFAULT_BAY_LAYER.to_string(),
-            gap_tolerance: chain::DEFAULT_MAX_GAP,
+            max_gap: chain::DEFAULT_MAX_GAP,
             margin: defaults::MARGIN_MM,
             tool_diameter: Some(tool_diameter),
             fallback_tool_diameter: None,
