@@ -2,8 +2,11 @@
 //! with an outside G-code parser (the `gcode` crate) and checked against the format rules of the
 //! NIST RS274/NGC report (NISTIR 6556) and against the exact tool-centre curve.
 
+#[path = "support/gcode_read.rs"]
+mod gcode_read;
 use assert_cmd::Command;
 use conicut::geom::{Ellipse, Point};
+use gcode_read::{marked_moves, read_back};
 use std::fs;
 use std::path::Path;
 
@@ -94,7 +97,18 @@ fn demo_writes_program_preview_and_report() {
     assert!(summary.contains("bay 1") && summary.contains("outline"));
 
     let program = fs::read_to_string(out.join("truss-bracket.ngc")).unwrap();
-    check_format(&program);
+    check_demo_program(&program);
+    let json: serde_json::Value =
+        serde_json::from_str(&fs::read_to_string(out.join("truss-bracket-report.json")).unwrap())
+            .expect("report JSON");
+    let openings = check_demo_report(&json);
+    check_openings_on_the_curve(&program, &json, &openings);
+}
+
+/// The demo program: format rules, units and modes, the safety block, and what an outside parser
+/// reads in it.
+fn check_demo_program(program: &str) {
+    check_format(program);
     assert!(program.contains("G21") && program.contains("G90") && program.contains("G17"));
     assert!(program.contains("(SAFETY"));
     assert!(
@@ -103,7 +117,7 @@ fn demo_writes_program_preview_and_report() {
     );
 
     // An outside parser reads the whole program: feed moves, arcs among them.
-    let parsed = gcode::parse(&program).expect("the gcode crate parses the program");
+    let parsed = gcode::parse(program).expect("the gcode crate parses the program");
     let count = |major: u32| {
         parsed
             .blocks
@@ -114,10 +128,11 @@ fn demo_writes_program_preview_and_report() {
     };
     assert!(count(3) > 40, "{} G3 blocks", count(3));
     assert!(count(1) >= 9, "{} G1 blocks", count(1));
+}
 
-    let json: serde_json::Value =
-        serde_json::from_str(&fs::read_to_string(out.join("truss-bracket-report.json")).unwrap())
-            .expect("report JSON");
+/// The demo report: every feature within the tolerance and in two moves at least; returns the
+/// openings.
+fn check_demo_report(json: &serde_json::Value) -> Vec<&serde_json::Value> {
     let features = json["features"].as_array().expect("features");
     let openings: Vec<_> = features.iter().filter(|f| f["kind"] == "opening").collect();
     assert!(openings.len() >= 3);
@@ -127,13 +142,20 @@ fn demo_writes_program_preview_and_report() {
         // A full circle takes at least two arcs (each below 180°), an ellipse more.
         assert!(f["contour_moves"].as_u64().unwrap() >= 2);
     }
+    openings
+}
 
+fn check_openings_on_the_curve(
+    program: &str,
+    json: &serde_json::Value,
+    openings: &[&serde_json::Value],
+) {
     // Every G1 point of every opening's cut lies on the exact tool-centre curve (the inward
     // parallel curve at the tool radius) to within the tolerance, read back from the program text
     // by the outside parser (f32 values: allow 1e-4 mm more).
     let tol = json["tolerance_mm"].as_f64().unwrap();
     let r = json["tool_diameter_mm"].as_f64().unwrap() / 2.0;
-    let cuts = split_cuts(&program);
+    let cuts = split_cuts(program);
     for f in openings {
         let name = f["name"].as_str().unwrap();
         let e = &f["ellipse"];
@@ -166,52 +188,24 @@ fn demo_writes_program_preview_and_report() {
     }
 }
 
-/// The XY end points of the G1, G2 and G3 moves of each cut, by the cut's name from its comment
-/// `(cut N of M: NAME)`, read with the `gcode` crate: only the moves after a `(contour)` comment
-/// (not the entry, leads, overcut or lead-out).
+/// The XY end points of the feed moves of each cut, by the cut's name from its comment
+/// `(cut N of M: NAME)`, read with the `gcode` crate (`support/gcode_read.rs`, f32 values): only
+/// the moves after a `(contour)` comment (not the entry, leads, overcut or lead-out), and of
+/// those not the moves that change Z (entries: ramps into the material).
 fn split_cuts(program: &str) -> Vec<(String, Vec<Point>)> {
-    let parsed = gcode::parse(program).expect("parse");
-    let mut cuts: Vec<(String, Vec<Point>)> = Vec::new();
-    let mut in_contour = false;
-    for b in &parsed.blocks {
-        for c in &b.comments {
-            let text = c.value.trim_start_matches('(').trim_end_matches(')');
-            in_contour = text == "contour";
-            if let Some((_, name)) = text
-                .strip_prefix("cut ")
-                .and_then(|rest| rest.split_once(": "))
-            {
-                cuts.push((name.to_string(), Vec::new()));
-            }
-        }
-        if !in_contour {
-            continue;
-        }
-        for code in &b.codes {
-            if let gcode::Code::General(g) = code {
-                if !(1..=3).contains(&g.number.major()) {
-                    continue;
-                }
-                let get = |l: char| {
-                    g.args
-                        .iter()
-                        .find(|a| a.letter == l)
-                        .and_then(|a| match a.value {
-                            gcode::Value::Literal(v) => Some(v as f64),
-                            _ => None,
-                        })
-                };
-                // Moves that change Z are entries (ramps into the material), not the contour.
-                if get('Z').is_some() {
-                    continue;
-                }
-                if let (Some(x), Some(y), Some(cut)) = (get('X'), get('Y'), cuts.last_mut()) {
-                    cut.1.push(Point::new(x, y));
-                }
-            }
-        }
-    }
-    cuts
+    let read = read_back(program);
+    read.features
+        .iter()
+        .map(|(name, _)| {
+            let points = marked_moves(&read, name, "contour")
+                .into_iter()
+                .map(|k| read.moves[k])
+                .filter(|m| !m.rapid && m.from[2] == m.to[2])
+                .map(|m| Point::new(m.to[0], m.to[1]))
+                .collect();
+            (name.clone(), points)
+        })
+        .collect()
 }
 
 #[test]
@@ -452,7 +446,7 @@ fn ramps_enter_no_steeper_than_asked_and_end_on_the_contour() {
         .assert()
         .success();
     let program = fs::read_to_string(tmp.path().join("ramps/truss-bracket.ngc")).unwrap();
-    let trace = conicut::check::trace(&program).expect("the checker reads it");
+    let trace = read_back(&program);
     let legs: Vec<_> = trace
         .moves
         .iter()

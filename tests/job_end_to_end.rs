@@ -118,6 +118,39 @@ fn close(x: f64, y: f64, tol: f64) -> bool {
     (x - y).abs() <= tol * y.abs().max(1.0)
 }
 
+/// `conicut plan bracket.dxf --job JOB` with a 2 mm tool on the metric mill, into `out/`.
+fn plan_with_job(dir: &Path, job: &str) -> assert_cmd::assert::Assert {
+    let root = Path::new(env!("CARGO_MANIFEST_DIR"));
+    conicut(dir)
+        .args(["plan", "bracket.dxf", "--job", job, "--tool-diameter", "2"])
+        .arg("--machine")
+        .arg(root.join("machine-profiles/metric-mill.toml"))
+        .args(["--out", "out"])
+        .assert()
+}
+
+/// The feature `name` of a `solve --json` listing.
+fn feature(v: &serde_json::Value, name: &str) -> serde_json::Value {
+    v["features"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|f| f["name"] == name)
+        .unwrap_or_else(|| panic!("{name} listed"))
+        .clone()
+}
+
+/// The chosen candidate of a listed feature.
+fn chosen(f: &serde_json::Value) -> serde_json::Value {
+    f["candidates"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|c| c["chosen"] == true)
+        .unwrap()
+        .clone()
+}
+
 #[test]
 fn solve_lists_every_candidate_and_plan_cuts_the_chosen_ones() {
     let tmp = tempfile::tempdir().unwrap();
@@ -130,27 +163,17 @@ fn solve_lists_every_candidate_and_plan_cuts_the_chosen_ones() {
         .stdout
         .clone();
     let v: serde_json::Value = serde_json::from_slice(&out).unwrap();
-    let feature = |name: &str| {
-        v["features"]
-            .as_array()
-            .unwrap()
-            .iter()
-            .find(|f| f["name"] == name)
-            .unwrap_or_else(|| panic!("{name} listed"))
-            .clone()
-    };
-    let chosen = |f: &serde_json::Value| {
-        f["candidates"]
-            .as_array()
-            .unwrap()
-            .iter()
-            .find(|c| c["chosen"] == true)
-            .unwrap()
-            .clone()
-    };
+    check_triangle(&v);
+    check_pentagon(&v);
+    check_probe(&v);
+    check_scan(&v);
+    check_solve_table(tmp.path());
+    check_plan_cuts_them(tmp.path());
+}
 
+fn check_triangle(v: &serde_json::Value) {
     // §3 ×10: a = 18.0157654880780, b = 12.8187785208836, centre (100 + 80/3, 40/3).
-    let tri = feature("tri");
+    let tri = feature(v, "tri");
     assert_eq!(tri["status"], "solved");
     let c = chosen(&tri);
     assert!(close(
@@ -168,18 +191,22 @@ fn solve_lists_every_candidate_and_plan_cuts_the_chosen_ones() {
         100.0 + 80.0 / 3.0,
         1e-12
     ));
+}
 
+fn check_pentagon(v: &serde_json::Value) {
     // The regular pentagon's one tangent conic is its incircle, radius 20 cos 36°.
-    let c = chosen(&feature("penta"));
+    let c = chosen(&feature(v, "penta"));
     assert!(close(
         c["semi_minor_mm"].as_f64().unwrap(),
         20.0 * 36f64.to_radians().cos(),
         1e-9
     ));
+}
 
+fn check_probe(v: &serde_json::Value) {
     // §5 worked example, world frame: four real ellipses; #2 has centre (21.9946296429,
     // 3.5501812071), a = 8.1519506989, b = 3.2603444436.
-    let probe = feature("probe");
+    let probe = feature(v, "probe");
     let cands = probe["candidates"].as_array().unwrap();
     assert_eq!(cands.len(), 4);
     assert!(
@@ -215,10 +242,12 @@ fn solve_lists_every_candidate_and_plan_cuts_the_chosen_ones() {
         8.1519506989,
         1e-8
     ));
+}
 
+fn check_scan(v: &serde_json::Value) {
     // §9: centre (30.016369280775, −11.992731884159) + (200, 150), a = 39.999101631552,
     // b = 15.014726264521, angle 25.00141389547°.
-    let scan = feature("scan");
+    let scan = feature(v, "scan");
     assert_eq!(scan["fit_points"], 20);
     let c = chosen(&scan);
     assert!(close(
@@ -241,9 +270,11 @@ fn solve_lists_every_candidate_and_plan_cuts_the_chosen_ones() {
         25.00141389547,
         1e-9
     ));
+}
 
+fn check_solve_table(dir: &Path) {
     // The table for people marks the chosen candidate and says why.
-    let text = conicut(tmp.path())
+    let text = conicut(dir)
         .args(["solve", "bracket.dxf", "--job", "job.toml"])
         .assert()
         .success()
@@ -259,27 +290,14 @@ fn solve_lists_every_candidate_and_plan_cuts_the_chosen_ones() {
         "{text}"
     );
     assert!(text.contains("chosen: solution 2, as the job file chooses"));
+}
 
+fn check_plan_cuts_them(dir: &Path) {
     // The same features are what `plan` cuts (a 2 mm tool: the smallest b²/a here is 1.30 mm).
-    let root = Path::new(env!("CARGO_MANIFEST_DIR"));
-    conicut(tmp.path())
-        .args([
-            "plan",
-            "bracket.dxf",
-            "--job",
-            "job.toml",
-            "--tool-diameter",
-            "2",
-        ])
-        .arg("--machine")
-        .arg(root.join("machine-profiles/metric-mill.toml"))
-        .args(["--out", "out"])
-        .assert()
-        .success();
-    let report: serde_json::Value = serde_json::from_str(
-        &fs::read_to_string(tmp.path().join("out/bracket-report.json")).unwrap(),
-    )
-    .unwrap();
+    plan_with_job(dir, "job.toml").success();
+    let report: serde_json::Value =
+        serde_json::from_str(&fs::read_to_string(dir.join("out/bracket-report.json")).unwrap())
+            .unwrap();
     let names: Vec<&str> = report["features"]
         .as_array()
         .unwrap()
@@ -312,20 +330,7 @@ fn job_file_errors_name_the_line_and_key_and_write_nothing() {
         "units = \"mm\"\n\n[[feature]]\nname = \"tri\"\ninside = [125.0, 10.0]\nrule = \"area\"\nareaa = 100.0\n",
     )
     .unwrap();
-    let root = Path::new(env!("CARGO_MANIFEST_DIR"));
-    let out = conicut(tmp.path())
-        .args([
-            "plan",
-            "bracket.dxf",
-            "--job",
-            "bad.toml",
-            "--tool-diameter",
-            "2",
-        ])
-        .arg("--machine")
-        .arg(root.join("machine-profiles/metric-mill.toml"))
-        .args(["--out", "out"])
-        .assert()
+    let out = plan_with_job(tmp.path(), "bad.toml")
         .failure()
         .get_output()
         .stderr
@@ -340,19 +345,7 @@ fn job_file_errors_name_the_line_and_key_and_write_nothing() {
         "units = \"mm\"\n\n[[feature]]\nname = \"probe\"\nthrough_layer = \"PROBE\"\ntouching_layer = \"GUIDES\"\n",
     )
     .unwrap();
-    let out = conicut(tmp.path())
-        .args([
-            "plan",
-            "bracket.dxf",
-            "--job",
-            "unchosen.toml",
-            "--tool-diameter",
-            "2",
-        ])
-        .arg("--machine")
-        .arg(root.join("machine-profiles/metric-mill.toml"))
-        .args(["--out", "out"])
-        .assert()
+    let out = plan_with_job(tmp.path(), "unchosen.toml")
         .failure()
         .get_output()
         .stderr

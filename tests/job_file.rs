@@ -31,6 +31,16 @@ fn refusal(lines: &[&str]) -> JobFileError {
     }
 }
 
+/// [`refusal`] of a job file in millimetres whose one feature, named "a", holds `lines`: its
+/// first line is line 4 of the file.
+fn feature_refusal(lines: &[&str]) -> JobFileError {
+    let file: Vec<&str> = ["units = \"mm\"", "[[feature]]", "name = \"a\""]
+        .into_iter()
+        .chain(lines.iter().copied())
+        .collect();
+    refusal(&file)
+}
+
 /// Asserts the error's kind, line and key, and that its message names them.
 fn assert_at(e: &JobFileError, kind: Kind, line: Option<usize>, key: Option<&str>) {
     assert_eq!(
@@ -384,45 +394,28 @@ fn unknown_keys_are_refused() {
         "name = \"a\"",
     ]);
     assert_at(&e, Kind::UnknownKey, Some(2), Some("tolerance"));
-    let e = refusal(&[
-        "units = \"mm\"",
-        "[[feature]]",
-        "name = \"a\"",
+    let e = feature_refusal(&[
         "bay = \"bay 1\"",
         "rule = \"centre-near\"",
         "center = [1, 2]",
     ]);
     assert_at(&e, Kind::UnknownKey, Some(6), Some("center"));
     assert!(e.message.contains("did you mean `centre`"), "{e}");
-    let e = refusal(&[
-        "units = \"mm\"",
-        "[[feature]]",
-        "name = \"a\"",
-        "bay = \"bay 1\"",
-        "rule = \"area\"",
-        "aera = 5",
-    ]);
+    let e = feature_refusal(&["bay = \"bay 1\"", "rule = \"area\"", "aera = 5"]);
     assert_at(&e, Kind::UnknownKey, Some(6), Some("aera"));
     assert!(e.message.contains("did you mean `area`"), "{e}");
 }
 
 #[test]
 fn wrong_types_are_refused() {
-    let e = refusal(&[
-        "units = \"mm\"",
-        "[[feature]]",
-        "name = \"a\"",
-        "bay = \"bay 1\"",
-        "rule = \"area\"",
-        "area = \"900\"",
-    ]);
+    let e = feature_refusal(&["bay = \"bay 1\"", "rule = \"area\"", "area = \"900\""]);
     assert_at(&e, Kind::WrongType, Some(6), Some("area"));
     assert!(
         e.message
             .contains("expected a number but found a string; write the number without quotes"),
         "{e}"
     );
-    let e = refusal(&["units = \"mm\"", "[[feature]]", "name = \"a\"", "bay = 2"]);
+    let e = feature_refusal(&["bay = 2"]);
     assert_at(&e, Kind::WrongType, Some(4), Some("bay"));
     let e = refusal(&["units = 25.4", "[[feature]]", "name = \"a\"", "bay = \"b\""]);
     assert_at(&e, Kind::WrongType, Some(1), Some("units"));
@@ -432,10 +425,7 @@ fn wrong_types_are_refused() {
         (Kind::WrongType, Some("feature"))
     );
     assert!(e.message.contains("[[feature]]"), "{e}");
-    let e = refusal(&[
-        "units = \"mm\"",
-        "[[feature]]",
-        "name = \"a\"",
+    let e = feature_refusal(&[
         "through = [[0, 0], [1, 0], [0, 1]]",
         "touching = [[[0, -1], [1, -1]], [[-1, 0], [-1, 1]]]",
         "choose = 1.5",
@@ -446,10 +436,7 @@ fn wrong_types_are_refused() {
 #[test]
 fn an_element_error_names_its_own_line() {
     // A list written over several lines: the bad line, not the key's, is named.
-    let e = refusal(&[
-        "units = \"mm\"",
-        "[[feature]]",
-        "name = \"a\"",
+    let e = feature_refusal(&[
         "through = [[0, 0], [1, 0], [0, 1]]",
         "touching = [",
         "  [[0, -1], [1, -1]],",
@@ -458,12 +445,7 @@ fn an_element_error_names_its_own_line() {
     ]);
     assert_at(&e, Kind::BadValue, Some(7), Some("touching"));
     assert!(e.message.contains("same point"), "{e}");
-    let e = refusal(&[
-        "units = \"mm\"",
-        "[[feature]]",
-        "name = \"a\"",
-        "inside = [1, 2, 3]",
-    ]);
+    let e = feature_refusal(&["inside = [1, 2, 3]"]);
     assert_at(&e, Kind::BadValue, Some(4), Some("inside"));
 }
 
@@ -471,12 +453,7 @@ fn an_element_error_names_its_own_line() {
 fn missing_name_and_missing_source_are_refused_at_the_feature() {
     let e = refusal(&["units = \"mm\"", "", "[[feature]]", "bay = \"bay 1\""]);
     assert_at(&e, Kind::Missing, Some(3), Some("name"));
-    let e = refusal(&[
-        "units = \"mm\"",
-        "[[feature]]",
-        "name = \"a\"",
-        "cut = \"hole\"",
-    ]);
+    let e = feature_refusal(&["cut = \"hole\""]);
     assert_at(&e, Kind::Missing, Some(2), None);
     assert!(e.message.contains("`bay` or `inside`"), "{e}");
     let e = refusal(&["units = \"mm\""]);
@@ -500,82 +477,36 @@ fn duplicate_names_are_refused() {
 
 #[test]
 fn two_sources_are_refused() {
-    let e = refusal(&[
-        "units = \"mm\"",
-        "[[feature]]",
-        "name = \"a\"",
-        "bay = \"bay 1\"",
-        "inside = [1, 2]",
-    ]);
+    let e = feature_refusal(&["bay = \"bay 1\"", "inside = [1, 2]"]);
     assert_at(&e, Kind::Conflict, Some(5), Some("inside"));
-    let e = refusal(&[
-        "units = \"mm\"",
-        "[[feature]]",
-        "name = \"a\"",
-        "fit_csv = \"scan.csv\"",
-        "bay = \"bay 1\"",
-    ]);
+    let e = feature_refusal(&["fit_csv = \"scan.csv\"", "bay = \"bay 1\""]);
     assert_at(&e, Kind::Conflict, Some(5), Some("bay"));
     assert!(e.message.contains("`fit_csv` (line 4)"), "{e}");
-    let e = refusal(&[
-        "units = \"mm\"",
-        "[[feature]]",
-        "name = \"a\"",
+    let e = feature_refusal(&[
         "through_layer = \"P\"",
         "touching = [[[0, 0], [1, 0]]]",
         "through = [[0, 1], [1, 1], [2, 3], [4, 4]]",
     ]);
     assert_at(&e, Kind::Conflict, Some(6), Some("through"));
-    let e = refusal(&[
-        "units = \"mm\"",
-        "[[feature]]",
-        "name = \"a\"",
-        "fit_layer = \"SCAN\"",
-        "fit_csv = \"scan.csv\"",
-    ]);
+    let e = feature_refusal(&["fit_layer = \"SCAN\"", "fit_csv = \"scan.csv\""]);
     assert_at(&e, Kind::Conflict, Some(5), Some("fit_csv"));
 }
 
 #[test]
 fn a_value_key_of_another_rule_is_refused() {
-    let e = refusal(&[
-        "units = \"mm\"",
-        "[[feature]]",
-        "name = \"a\"",
-        "bay = \"bay 1\"",
-        "rule = \"roundest\"",
-        "area = 900",
-    ]);
+    let e = feature_refusal(&["bay = \"bay 1\"", "rule = \"roundest\"", "area = 900"]);
     assert_at(&e, Kind::Conflict, Some(6), Some("area"));
     assert!(e.message.contains("rule = \"area\""), "{e}");
     // No rule means "largest", which takes no value.
-    let e = refusal(&[
-        "units = \"mm\"",
-        "[[feature]]",
-        "name = \"a\"",
-        "bay = \"bay 1\"",
-        "semi_minor = 12",
-    ]);
+    let e = feature_refusal(&["bay = \"bay 1\"", "semi_minor = 12"]);
     assert_at(&e, Kind::Conflict, Some(5), Some("semi_minor"));
 }
 
 #[test]
 fn a_missing_rule_value_is_refused_at_the_rule() {
-    let e = refusal(&[
-        "units = \"mm\"",
-        "[[feature]]",
-        "name = \"a\"",
-        "bay = \"bay 1\"",
-        "rule = \"semi-major\"",
-    ]);
+    let e = feature_refusal(&["bay = \"bay 1\"", "rule = \"semi-major\""]);
     assert_at(&e, Kind::Missing, Some(5), Some("semi_major"));
-    let e = refusal(&[
-        "units = \"mm\"",
-        "[[feature]]",
-        "name = \"a\"",
-        "bay = \"bay 1\"",
-        "rule = \"biggest\"",
-    ]);
+    let e = feature_refusal(&["bay = \"bay 1\"", "rule = \"biggest\""]);
     assert_at(&e, Kind::BadValue, Some(5), Some("rule"));
     assert!(e.message.contains("\"largest-inside\""), "{e}");
 }
@@ -591,14 +522,7 @@ fn non_positive_sizes_and_negative_margins_are_refused() {
     ] {
         let rule_line = format!("rule = \"{rule}\"");
         let value_line = format!("{key} = {value}");
-        let e = refusal(&[
-            "units = \"mm\"",
-            "[[feature]]",
-            "name = \"a\"",
-            "bay = \"bay 1\"",
-            &rule_line,
-            &value_line,
-        ]);
+        let e = feature_refusal(&["bay = \"bay 1\"", &rule_line, &value_line]);
         assert_at(&e, Kind::BadValue, Some(6), Some(key));
     }
     let e = refusal(&[
@@ -609,54 +533,30 @@ fn non_positive_sizes_and_negative_margins_are_refused() {
         "bay = \"b\"",
     ]);
     assert_at(&e, Kind::BadValue, Some(2), Some("margin"));
-    let e = refusal(&[
-        "units = \"mm\"",
-        "[[feature]]",
-        "name = \"a\"",
-        "bay = \"b\"",
-        "margin = -0.5",
-    ]);
+    let e = feature_refusal(&["bay = \"b\"", "margin = -0.5"]);
     assert_at(&e, Kind::BadValue, Some(5), Some("margin"));
 }
 
 #[test]
 fn keys_of_other_feature_kinds_are_refused() {
     // A rule on a constraints feature.
-    let e = refusal(&[
-        "units = \"mm\"",
-        "[[feature]]",
-        "name = \"a\"",
+    let e = feature_refusal(&[
         "through = [[0, 0], [1, 0], [0, 1]]",
         "touching = [[[0, -1], [1, -1]], [[-1, 0], [-1, 1]]]",
         "rule = \"largest\"",
     ]);
     assert_at(&e, Kind::Conflict, Some(6), Some("rule"));
     // A margin on a fit feature.
-    let e = refusal(&[
-        "units = \"mm\"",
-        "[[feature]]",
-        "name = \"a\"",
-        "fit_csv = \"s.csv\"",
-        "margin = 2",
-    ]);
+    let e = feature_refusal(&["fit_csv = \"s.csv\"", "margin = 2"]);
     assert_at(&e, Kind::Conflict, Some(5), Some("margin"));
     // `choose` on a bay feature.
-    let e = refusal(&[
-        "units = \"mm\"",
-        "[[feature]]",
-        "name = \"a\"",
-        "bay = \"bay 1\"",
-        "choose = 1",
-    ]);
+    let e = feature_refusal(&["bay = \"bay 1\"", "choose = 1"]);
     assert_at(&e, Kind::Conflict, Some(5), Some("choose"));
 }
 
 #[test]
 fn constraints_must_number_five() {
-    let e = refusal(&[
-        "units = \"mm\"",
-        "[[feature]]",
-        "name = \"a\"",
+    let e = feature_refusal(&[
         "through = [[0, 0], [1, 0], [0, 1]]",
         "touching = [[[0, -1], [1, -1]]]",
     ]);
@@ -665,18 +565,12 @@ fn constraints_must_number_five() {
         e.message.contains("3 points and 1 line: 4 constraints"),
         "{e}"
     );
-    let e = refusal(&[
-        "units = \"mm\"",
-        "[[feature]]",
-        "name = \"a\"",
+    let e = feature_refusal(&[
         "touching_layer = \"GUIDES\"",
         "through = [[0, 0], [1, 0], [0, 1], [2, 2], [3, 1]]",
     ]);
     assert_at(&e, Kind::BadValue, Some(5), Some("through"));
-    let e = refusal(&[
-        "units = \"mm\"",
-        "[[feature]]",
-        "name = \"a\"",
+    let e = feature_refusal(&[
         "through = [[0, 0], [4, 0], [5, 3], [2, 5], [-1, 3]]",
         "choose = 0",
     ]);
@@ -685,13 +579,7 @@ fn constraints_must_number_five() {
 
 #[test]
 fn bad_words_are_refused() {
-    let e = refusal(&[
-        "units = \"mm\"",
-        "[[feature]]",
-        "name = \"a\"",
-        "bay = \"b\"",
-        "cut = \"drill\"",
-    ]);
+    let e = feature_refusal(&["bay = \"b\"", "cut = \"drill\""]);
     assert_at(&e, Kind::BadValue, Some(5), Some("cut"));
     let e = refusal(&[
         "units = \"mm\"",

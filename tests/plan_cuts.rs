@@ -5,11 +5,11 @@
 //! smallest radius of curvature (docs/sources.md M8; Farouki & Neff, CAGD 7 (1990)); NISTIR 6556
 //! App. B.5.1 likewise stops when the tool radius is not less than the arc radius.
 
-use conicut::chain::{self, ChainOptions, InnerShape, Part};
-use conicut::geom::ExactPath;
-use conicut::geom::{Ellipse, Point, Segment};
+#[path = "support/demo_job.rs"]
+mod demo_job;
+use conicut::chain::{InnerShape, Part};
+use conicut::geom::{Ellipse, ExactPath, Point, Segment};
 use conicut::plan::{CutSide, Opening, PlanError, PlanOptions, plan_cuts};
-use conicut::read::{ReadOptions, read_dxf};
 use conicut::settings::job_file::Rule;
 use conicut::solve::solve_bay;
 
@@ -38,16 +38,7 @@ fn gouge_refusal_exactly_at_the_smallest_radius_of_curvature() {
 
 /// The demo part with every bay solved (largest, 4 mm margin, as `conicut demo` does).
 fn demo() -> (Part, Vec<Opening>) {
-    let bytes = conicut::demo::demo_dxf_bytes();
-    let d = read_dxf(
-        &bytes,
-        &ReadOptions {
-            file_name: "demo",
-            units: None,
-        },
-    )
-    .unwrap();
-    let part = chain::build_part(&d, &ChainOptions::default()).unwrap();
+    let part = demo_job::demo_part();
     let openings = part
         .bays
         .iter()

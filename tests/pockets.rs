@@ -32,8 +32,11 @@
 
 #[path = "support/demo_job.rs"]
 mod demo_job;
+#[path = "support/gcode_read.rs"]
+mod gcode_read;
+#[path = "support/machine.rs"]
+mod machine;
 use conicut::chain::Part;
-use conicut::check::{self, Trace, TraceMove};
 use conicut::fit::{FitOptions, MoveKind, fit_cut};
 use conicut::geom::Element;
 use conicut::geom::ExactPath;
@@ -45,7 +48,8 @@ use conicut::plan::{
     CutSide, FeatureKind, LeadKind, Opening, Plan, PlanError, PlanOptions, PlannedCut, plan_cuts,
 };
 use conicut::settings::job_file::parse_job_file;
-use demo_job::profile;
+use gcode_read::{ReadBack, ReadMove, marked_moves, read_back};
+use machine::profile;
 use std::collections::HashMap;
 use std::f64::consts::{PI, TAU};
 
@@ -114,7 +118,7 @@ fn sample_moves(start: Point, moves: &[Move]) -> Vec<Point> {
 }
 
 /// Samples of traced program moves (XY only).
-fn sample_trace(moves: &[&TraceMove]) -> Vec<Point> {
+fn sample_trace(moves: &[&ReadMove]) -> Vec<Point> {
     let mut out = Vec::new();
     for m in moves {
         let from = Point::new(m.from[0], m.from[1]);
@@ -240,7 +244,7 @@ fn interior_points(e: &Ellipse) -> usize {
 /// The points of traced moves that the gouge check needs: the ends of straight moves (the
 /// distance to the edge of a convex region is a concave function inside it, so along a segment
 /// whose ends are inside it is smallest at an end) and samples [`STEP`] apart along arcs.
-fn gouge_points(moves: &[&TraceMove]) -> Vec<Point> {
+fn gouge_points(moves: &[&ReadMove]) -> Vec<Point> {
     let mut out = Vec::new();
     for m in moves {
         let from = Point::new(m.from[0], m.from[1]);
@@ -603,7 +607,7 @@ fn pocket_job_settings(tool_diameter: f64, scrap_side_only: bool) -> JobSettings
 }
 
 /// The moves of feature `name` in the trace, by index.
-fn feature_indices(trace: &Trace, name: &str) -> std::ops::Range<usize> {
+fn feature_indices(trace: &ReadBack, name: &str) -> std::ops::Range<usize> {
     let k = trace
         .features
         .iter()
@@ -631,7 +635,7 @@ fn demo_pockets(scrap_side_only: bool) {
     let mill = profile("metric-mill");
     let s = pocket_job_settings(d, scrap_side_only);
     let out = run_job(&conicut::demo::demo_dxf_bytes(), &mill, &s).expect("the job runs");
-    let trace = check::trace(&out.program).expect("the program reads back");
+    let trace = read_back(&out.program);
     let mut pockets = 0;
     for f in &out.report.features {
         if f.kind != FeatureKind::Pocket {
@@ -654,9 +658,9 @@ fn demo_pockets(scrap_side_only: bool) {
     assert_eq!(pockets, 2, "the job file makes two pockets");
 }
 
-fn check_demo_pocket(trace: &Trace, name: &str, e: &Ellipse, r: f64, scrap_side_only: bool) {
+fn check_demo_pocket(trace: &ReadBack, name: &str, e: &Ellipse, r: f64, scrap_side_only: bool) {
     let range = feature_indices(trace, name);
-    let moves: Vec<&TraceMove> = range
+    let moves: Vec<&ReadMove> = range
         .clone()
         .map(|i| &trace.moves[i])
         .filter(|m| !m.rapid)
@@ -664,17 +668,17 @@ fn check_demo_pocket(trace: &Trace, name: &str, e: &Ellipse, r: f64, scrap_side_
     let floor = moves.iter().map(|m| m.to[2]).fold(f64::INFINITY, f64::min);
     assert!((floor + 3.0).abs() < 1e-9, "floor {floor}");
     // The clearing comes before the contour.
-    let clearing = check::marked_moves(trace, name, "clearing");
-    let mut contour = check::marked_moves(trace, name, "contour");
+    let clearing = marked_moves(trace, name, "clearing");
+    let mut contour = marked_moves(trace, name, "contour");
     assert!(!clearing.is_empty() && !contour.is_empty());
     // Each pass clears before it finishes: the first and the last clearing move come before the
     // first and the last contour move.
     assert!(clearing.iter().min() < contour.iter().min());
     assert!(clearing.iter().max() < contour.iter().max());
     // The overcut runs along the finish contour again: it keeps the contour's bounds.
-    contour.extend(check::marked_moves(trace, name, "overcut"));
+    contour.extend(marked_moves(trace, name, "overcut"));
     // Coverage at the floor.
-    let at_floor: Vec<&TraceMove> = moves
+    let at_floor: Vec<&ReadMove> = moves
         .iter()
         .copied()
         .filter(|m| m.from[2] == floor && m.to[2] == floor)
@@ -691,13 +695,13 @@ fn check_demo_pocket(trace: &Trace, name: &str, e: &Ellipse, r: f64, scrap_side_
         let m = &trace.moves[*i];
         !m.rapid && (m.from[2] < 0.0 || m.to[2] < 0.0)
     };
-    let off: Vec<&TraceMove> = range
+    let off: Vec<&ReadMove> = range
         .clone()
         .filter(|i| !contour.contains(i))
         .filter(in_material)
         .map(|i| &trace.moves[i])
         .collect();
-    let on: Vec<&TraceMove> = contour
+    let on: Vec<&ReadMove> = contour
         .iter()
         .filter(|i| in_material(i))
         .map(|&i| &trace.moves[i])

@@ -6,38 +6,20 @@
 //! that the 0.002 mm / 0.0002 in radius rule is checked on the very numbers a controller reads;
 //! the outside `gcode` crate reads the NIST example too.
 
+#[path = "support/machine.rs"]
+mod machine;
 use conicut::fit::FittedCut;
 use conicut::geom::Move;
 use conicut::geom::{Point, Vec2};
 use conicut::plan::{CutSide, FeatureKind};
 use conicut::post::{MachineProfile, PostError, ProgramSettings, RADIUS_MARGIN, write_program};
-use conicut::settings::{BUNDLED_PROFILES, METRIC_MILL_TOML};
+use conicut::settings::METRIC_MILL_TOML;
+use machine::{profile, profile_text, program_settings};
 use proptest::prelude::*;
 use std::f64::consts::{PI, TAU};
 
-fn bundled(file: &str) -> MachineProfile {
-    let (name, text) = BUNDLED_PROFILES
-        .iter()
-        .find(|(name, _)| name.ends_with(file))
-        .expect("a bundled profile");
-    MachineProfile::from_toml(text, name).expect("bundled profile loads")
-}
-
 fn settings(profile: &MachineProfile) -> ProgramSettings {
-    ProgramSettings {
-        title: "arcs".into(),
-        source: "arcs.dxf".into(),
-        tool_diameter: profile.kerf_width().unwrap_or(6.0),
-        depth: 1.0,
-        tolerance: 0.01,
-        cut_feed: None,
-        plunge_feed: None,
-        spindle_speed: None,
-        stepdown: None,
-        ramp_angle_deg: None,
-        helical_entry: false,
-        tab_height: 0.0,
-    }
+    program_settings("arcs", "arcs.dxf", profile.kerf_width().unwrap_or(6.0), 1.0)
 }
 
 fn cut(start: Point, moves: Vec<Move>, plunge: Point) -> FittedCut {
@@ -177,7 +159,7 @@ fn distance_to_polyline(p: Point, pts: &[Point]) -> f64 {
 fn nist_centre_format_example_reads_back() {
     // NISTIR 6556 §3.5.3.2: from (7, 7), `G17 G2 X10 Y16 I3 J4 Z9` has its centre at (10, 11)
     // and radius 5 (we write the arc in the XY plane, without the helix's Z).
-    let profile = bundled("metric-mill.toml");
+    let profile = profile("metric-mill");
     let arc = Move::Arc {
         to: Point::new(10.0, 16.0),
         center: Point::new(10.0, 11.0),
@@ -228,7 +210,7 @@ fn nist_centre_format_example_reads_back() {
 #[test]
 fn half_turns_and_more_are_split_and_directions_kept() {
     // docs/sources.md P1.2 (common practice): arcs of 180° or more are written as two.
-    let profile = bundled("metric-mill.toml");
+    let profile = profile("metric-mill");
     let c = Point::new(100.0, 100.0);
     let on = |deg: f64| c + Vec2::from_angle(deg.to_radians()) * 20.0;
     let cases: [(f64, f64, bool, usize); 5] = [
@@ -317,7 +299,7 @@ fn lines_only_profiles_refuse_arcs() {
 fn envelope_check_includes_the_bulge_of_arcs() {
     // The metric mill allows X up to 400 mm. Both arcs run from (390, 115) to (390, 85) about
     // (390, 100): clockwise through X = 405, counter-clockwise through X = 375.
-    let profile = bundled("metric-mill.toml");
+    let profile = profile("metric-mill");
     let c = Point::new(390.0, 100.0);
     let arc = |ccw| {
         vec![Move::Arc {
@@ -362,6 +344,18 @@ fn arc_strategy() -> impl Strategy<Value = (Point, f64, f64, f64)> {
 }
 
 /// Writes one random arc with `profile` and checks what a controller would read.
+/// A random arc as asked: centre, radius, start angle and its exact sweep (radians), start and
+/// end points (mm).
+#[derive(Clone, Copy)]
+struct AskedArc {
+    c: Point,
+    r: f64,
+    a0: f64,
+    exact_sweep: f64,
+    start: Point,
+    end: Point,
+}
+
 fn check_random_arc(profile: &MachineProfile, (c, r, a0, sweep): (Point, f64, f64, f64)) {
     let start = c + Vec2::from_angle(a0) * r;
     let end = c + Vec2::from_angle(a0 + sweep) * r;
@@ -384,7 +378,6 @@ fn check_random_arc(profile: &MachineProfile, (c, r, a0, sweep): (Point, f64, f6
     let reads = feed_moves(&program);
     // The first feed move is the lead from the plunge point to the arc's start.
     let path = &reads[1..];
-    let mm = |p: Point| Point::new(units.to_mm(p.x), units.to_mm(p.y));
     let exact_sweep = Move::Arc {
         to: end,
         center: c,
@@ -401,6 +394,29 @@ fn check_random_arc(profile: &MachineProfile, (c, r, a0, sweep): (Point, f64, f6
             "a turn of {exact_sweep} rad in one arc: {program}"
         );
     }
+    let asked = AskedArc {
+        c,
+        r,
+        a0,
+        exact_sweep,
+        start,
+        end,
+    };
+    let written = check_written_arcs(path, &asked, ccw, rule, units);
+    check_written_path_both_ways(&written, &asked, units, step);
+}
+
+/// Every written arc keeps the radius rule, runs the asked way and turns less than half a turn;
+/// returns the written path sampled 65 points a move (mm).
+fn check_written_arcs(
+    path: &[Read],
+    asked: &AskedArc,
+    ccw: bool,
+    rule: f64,
+    units: conicut::post::ProgramUnits,
+) -> Vec<Point> {
+    let exact_sweep = asked.exact_sweep;
+    let mm = |p: Point| Point::new(units.to_mm(p.x), units.to_mm(p.y));
     let mut written = Vec::new();
     for m in path {
         if let Some(ij) = m.ij {
@@ -418,6 +434,23 @@ fn check_random_arc(profile: &MachineProfile, (c, r, a0, sweep): (Point, f64, f6
             written.push(mm(written_point(m, k as f64 / 64.0)));
         }
     }
+    written
+}
+
+fn check_written_path_both_ways(
+    written: &[Point],
+    asked: &AskedArc,
+    units: conicut::post::ProgramUnits,
+    step: f64,
+) {
+    let AskedArc {
+        c,
+        r,
+        a0,
+        exact_sweep,
+        start,
+        end,
+    } = *asked;
     // The written path (arcs as a controller interpolates them) stays within 2·√2 steps of the
     // last decimal of the exact arc, both ways. Our stated bound, from the post module's
     // construction: the end points move by up to √2/2 step, the corrected centre keeps the
@@ -437,7 +470,7 @@ fn check_random_arc(profile: &MachineProfile, (c, r, a0, sweep): (Point, f64, f6
         let worst_in = (0..=256)
             .map(|k| {
                 let p = c + Vec2::from_angle(a0 + exact_sweep * k as f64 / 256.0) * r;
-                distance_to_polyline(p, &written)
+                distance_to_polyline(p, written)
             })
             .fold(0.0, f64::max);
         // The written path is sampled at 65 points a move: allow the sagitta of a sample chord.
@@ -457,25 +490,25 @@ proptest! {
 
     #[test]
     fn random_arcs_keep_the_radius_rule_metric_4_decimals(arc in arc_strategy()) {
-        check_random_arc(&bundled("metric-mill.toml"), arc);
+        check_random_arc(&profile("metric-mill"), arc);
     }
 
     #[test]
     fn random_arcs_keep_the_radius_rule_metric_3_decimals(arc in arc_strategy()) {
         // The plasma profile writes 3 decimals: naive rounding of I, J could break the rule
         // (docs/sources.md P1.6: worst 2.36 µm), the bisector correction keeps it.
-        check_random_arc(&bundled("plasma.toml"), arc);
+        check_random_arc(&profile("plasma"), arc);
     }
 
     #[test]
     fn random_arcs_keep_the_radius_rule_inch_5_decimals(arc in arc_strategy()) {
-        check_random_arc(&bundled("inch-router.toml"), arc);
+        check_random_arc(&profile("inch-router"), arc);
     }
 
     #[test]
     fn random_arcs_keep_the_radius_rule_inch_4_decimals(arc in arc_strategy()) {
         // 4 decimals in inch is the least a centre-format profile may ask for (§1.6).
-        let text = BUNDLED_PROFILES[1].1.replace("xy_decimals = 5", "xy_decimals = 4");
+        let text = profile_text("inch-router").1.replace("xy_decimals = 5", "xy_decimals = 4");
         check_random_arc(&MachineProfile::from_toml(&text, "inch-4.toml").unwrap(), arc);
     }
 }

@@ -2,179 +2,17 @@
 //! to the same moves, that keep the format rules of NISTIR 6556, and that refuse what the machine
 //! profile forbids.
 
-use conicut::fit::FittedCut;
+#[path = "support/machine.rs"]
+mod machine;
+#[path = "support/post_checks.rs"]
+mod post_checks;
 use conicut::geom::Point;
-use conicut::plan::{CutSide, FeatureKind};
+use conicut::plan::FeatureKind;
 use conicut::post::{
     MachineProfile, PRECEDENCE, PostError, ProgramSettings, SAFETY_HEADING, write_program,
 };
-use conicut::settings::{BUNDLED_PROFILES, METRIC_MILL_TOML};
-use gcode::{Code, Value};
-
-fn square_cut(name: &str, x0: f64, y0: f64, side: f64) -> FittedCut {
-    let path = vec![
-        Point::new(x0, y0),
-        Point::new(x0 + side, y0),
-        Point::new(x0 + side, y0 + side),
-        Point::new(x0, y0 + side),
-        Point::new(x0, y0),
-    ];
-    FittedCut::from_points(
-        name,
-        FeatureKind::Hole,
-        CutSide::Inside,
-        Point::new(x0 + side / 2.0, y0 + side / 2.0),
-        &path,
-        0.01,
-        0.0,
-    )
-}
-
-fn settings() -> ProgramSettings {
-    ProgramSettings {
-        title: "test plate (rev A)".into(),
-        source: "plate.dxf".into(),
-        tool_diameter: 6.0,
-        depth: 1.5,
-        tolerance: 0.01,
-        cut_feed: Some(500.0),
-        plunge_feed: Some(120.0),
-        spindle_speed: Some(9000.0),
-        stepdown: None,
-        ramp_angle_deg: None,
-        helical_entry: false,
-        tab_height: 0.0,
-    }
-}
-
-fn mill() -> MachineProfile {
-    MachineProfile::metric_mill().expect("shipped profile loads")
-}
-
-/// One parsed move: the G number and its X, Y, Z, F arguments.
-#[derive(Debug, Default, Clone, PartialEq)]
-struct Move {
-    g: u32,
-    x: Option<f32>,
-    y: Option<f32>,
-    z: Option<f32>,
-    f: Option<f32>,
-}
-
-/// The G0/G1 moves of a program as the `gcode` crate reads them.
-fn moves(program: &str) -> Vec<Move> {
-    let parsed = gcode::parse(program).expect("the gcode crate parses the program");
-    let mut out = Vec::new();
-    for block in &parsed.blocks {
-        assert!(
-            block.word_addresses.is_empty(),
-            "bare words outside a code: {block:?}"
-        );
-        for code in &block.codes {
-            if let Code::General(g) = code
-                && g.number.minor().is_none()
-                && (g.number.major() == 0 || g.number.major() == 1)
-            {
-                let mut m = Move {
-                    g: g.number.major(),
-                    ..Move::default()
-                };
-                for arg in &g.args {
-                    let Value::Literal(v) = arg.value else {
-                        panic!("variable in {arg:?}")
-                    };
-                    match arg.letter.to_ascii_uppercase() {
-                        'X' => m.x = Some(v),
-                        'Y' => m.y = Some(v),
-                        'Z' => m.z = Some(v),
-                        'F' => m.f = Some(v),
-                        other => panic!("unexpected word {other} in a move"),
-                    }
-                }
-                out.push(m);
-            }
-        }
-    }
-    out
-}
-
-fn close(a: Option<f32>, b: f64) -> bool {
-    // The gcode crate reads values as f32 (CRATES.md §6): compare at 1e-3.
-    a.is_some_and(|a| (a as f64 - b).abs() < 1e-3)
-}
-
-/// The format rules every line must keep (NISTIR 6556 §3.1, §3.3, §3.3.2.1, §3.3.4).
-fn assert_format_rules(program: &str) {
-    let lines: Vec<&str> = program.lines().collect();
-    assert_eq!(
-        lines.first(),
-        Some(&"%"),
-        "first line is % (NISTIR 6556 §3.1)"
-    );
-    assert_eq!(
-        lines.last(),
-        Some(&"%"),
-        "last line is % (NISTIR 6556 §3.1)"
-    );
-    let m30 = lines.iter().position(|l| {
-        l.trim_start_matches(|c: char| c == 'N' || c.is_ascii_digit())
-            .trim()
-            == "M30"
-    });
-    assert_eq!(m30, Some(lines.len() - 2), "M30 just before the final %");
-    for (i, line) in lines.iter().enumerate() {
-        assert!(
-            line.len() < 256,
-            "line {} has {} characters (§3.3)",
-            i + 1,
-            line.len()
-        );
-        assert!(line.is_ascii(), "line {} is not ASCII", i + 1);
-        if *line == "%" {
-            assert!(i == 0 || i == lines.len() - 1, "% inside the program");
-            continue;
-        }
-        if let Some(inner) = line.strip_prefix('(') {
-            let inner = inner
-                .strip_suffix(')')
-                .expect("a comment closes on its line (§3.3.4)");
-            assert!(
-                !inner.contains(['(', ')']),
-                "nested comment on line {} (§3.3.4)",
-                i + 1
-            );
-            continue;
-        }
-        assert!(
-            !line.contains(['(', ')', ';']),
-            "comment inside a block on line {}",
-            i + 1
-        );
-        for word in line.split_whitespace() {
-            let (letter, number) = word.split_at(1);
-            assert!(
-                letter.chars().all(|c| c.is_ascii_uppercase()),
-                "word {word}"
-            );
-            assert!(
-                !number.contains(['e', 'E']),
-                "exponent in {word} (§3.3.2.1)"
-            );
-            assert!(
-                number.parse::<f64>().is_ok(),
-                "word {word} on line {} is not a letter and a number",
-                i + 1
-            );
-            if let Some(rest) = number.strip_prefix('-') {
-                assert!(
-                    rest.chars().any(|c| ('1'..='9').contains(&c)),
-                    "negative zero {word} on line {}",
-                    i + 1
-                );
-            }
-        }
-    }
-}
+use conicut::settings::METRIC_MILL_TOML;
+use post_checks::*;
 
 #[test]
 fn square_program_parses_back_to_the_same_moves() {
@@ -363,11 +201,11 @@ fn points_outside_the_travel_envelope_are_refused() {
 
 #[test]
 fn feeds_and_speeds_above_the_profile_limits_are_refused() {
-    let s = ProgramSettings {
+    let err = small_square_with(ProgramSettings {
         cut_feed: Some(2600.0),
         ..settings()
-    };
-    let err = write_program(&[square_cut("a", 10.0, 10.0, 5.0)], &mill(), &s).unwrap_err();
+    })
+    .unwrap_err();
     assert!(
         matches!(
             &err,
@@ -380,11 +218,11 @@ fn feeds_and_speeds_above_the_profile_limits_are_refused() {
     );
     assert!(err.to_string().contains("2500.0"), "{err}");
 
-    let s = ProgramSettings {
+    let err = small_square_with(ProgramSettings {
         plunge_feed: Some(3000.0),
         ..settings()
-    };
-    let err = write_program(&[square_cut("a", 10.0, 10.0, 5.0)], &mill(), &s).unwrap_err();
+    })
+    .unwrap_err();
     assert!(
         matches!(
             &err,
@@ -397,18 +235,25 @@ fn feeds_and_speeds_above_the_profile_limits_are_refused() {
     );
 
     // At the limit is allowed.
-    let s = ProgramSettings {
-        cut_feed: Some(2500.0),
-        ..settings()
-    };
-    assert!(write_program(&[square_cut("a", 10.0, 10.0, 5.0)], &mill(), &s).is_ok());
+    assert!(
+        small_square_with(ProgramSettings {
+            cut_feed: Some(2500.0),
+            ..settings()
+        })
+        .is_ok()
+    );
 
-    let s = ProgramSettings {
+    let err = small_square_with(ProgramSettings {
         spindle_speed: Some(12000.0),
         ..settings()
-    };
-    let err = write_program(&[square_cut("a", 10.0, 10.0, 5.0)], &mill(), &s).unwrap_err();
+    })
+    .unwrap_err();
     assert!(matches!(&err, PostError::SpindleTooFast { .. }), "{err:?}");
+}
+
+/// A 5 mm square hole at (10, 10) written for the metric mill with settings `s`.
+fn small_square_with(s: ProgramSettings) -> Result<String, PostError> {
+    write_program(&[square_cut("a", 10.0, 10.0, 5.0)], &mill(), &s)
 }
 
 #[test]
@@ -437,151 +282,6 @@ fn bad_settings_and_bad_cuts_are_refused_without_panic() {
     };
     let err = write_program(&[cut], &mill(), &settings()).unwrap_err();
     assert!(matches!(&err, PostError::NotFinite { feature, .. } if feature == "hole 9"));
-}
-
-fn bundled(file: &str) -> MachineProfile {
-    let (name, text) = BUNDLED_PROFILES
-        .iter()
-        .find(|(name, _)| name.ends_with(file))
-        .expect("a bundled profile");
-    MachineProfile::from_toml(text, name).expect("bundled profile loads")
-}
-
-/// The non-comment blocks of a program, line numbers stripped.
-fn blocks(program: &str) -> Vec<String> {
-    program
-        .lines()
-        .filter(|l| *l != "%" && !l.starts_with('(') && !l.starts_with(';'))
-        .map(|l| {
-            l.trim_start_matches(|c: char| c == 'N' || c.is_ascii_digit())
-                .trim()
-                .to_string()
-        })
-        .collect()
-}
-
-#[test]
-fn laser_plasma_and_waterjet_pierce_dwell_and_cut_at_height() {
-    // Sequence from the brief for cut-through kinds (docs/sources.md P4.3, common
-    // practice): rapid at safe height over the pierce point, down to the pierce height, process
-    // on, pierce dwell G4 P in seconds (NISTIR 6556 §3.5.4), down to the cut height, feed along the
-    // path, process off, up to the safe height.
-    for (file, on, off, safe, pierce, cut_z, dwell) in [
-        ("laser.toml", "M3", "M5", "10.000", "1.500", "0.800", "0.50"),
-        ("plasma.toml", "M3", "M5", "15.00", "3.80", "1.50", "0.80"),
-        (
-            "waterjet.toml",
-            "M3",
-            "M5",
-            "25.000",
-            "3.000",
-            "2.000",
-            "2.00",
-        ),
-    ] {
-        let profile = bundled(file);
-        let cuts = [
-            square_cut("hole 1", 10.0, 20.0, 30.0),
-            square_cut("hole 2", 60.0, 20.0, 30.0),
-        ];
-        let s = ProgramSettings {
-            tool_diameter: profile.kerf_width().unwrap(),
-            depth: 0.0,
-            ..settings()
-        };
-        let program = write_program(&cuts, &profile, &s).unwrap();
-        assert_format_rules(&program);
-        let b = blocks(&program);
-        let at = |i: usize| b[i].as_str();
-        let first = b.iter().position(|l| l.starts_with("G0 X")).unwrap();
-        assert_eq!(at(first - 1), format!("G0 Z{safe}"), "{file}: {b:#?}");
-        assert!(at(first).starts_with("G0 X25.") && at(first).contains(" Y35."));
-        assert_eq!(at(first + 1), format!("G0 Z{pierce}"), "{file}");
-        assert_eq!(at(first + 2), on, "{file}");
-        assert_eq!(at(first + 3), format!("G4 P{dwell}"), "{file}");
-        assert!(
-            at(first + 4).starts_with(&format!("G1 Z{cut_z} F")),
-            "{file}"
-        );
-        assert!(at(first + 5).starts_with("G1 X10.") && at(first + 5).contains(" F"));
-        // Four sides of the square, then off and up.
-        assert_eq!(at(first + 10), off, "{file}: {b:#?}");
-        assert_eq!(at(first + 11), format!("G0 Z{safe}"), "{file}");
-        // Two cuts: the process is switched on and off once per cut, the dwell once per pierce.
-        assert_eq!(b.iter().filter(|l| *l == on).count(), 2, "{file}");
-        assert_eq!(b.iter().filter(|l| *l == off).count(), 2, "{file}");
-        assert_eq!(b.iter().filter(|l| l.starts_with("G4 ")).count(), 2);
-        // Cut-through kinds never go below the sheet, and never write a spindle speed.
-        for m in moves(&program) {
-            assert!(m.z.is_none_or(|z| z > 0.0), "{file}: {m:?}");
-        }
-        assert!(!b.iter().any(|l| l.contains(" S")), "{file}");
-        assert!(program.contains("kerf width the paths allow for"), "{file}");
-        assert!(program.contains("cut through, no depth"), "{file}");
-    }
-}
-
-#[test]
-fn a_kerf_other_than_the_profiles_is_noted_in_the_header() {
-    let laser = bundled("laser.toml");
-    let s = ProgramSettings {
-        tool_diameter: 0.3,
-        ..settings()
-    };
-    let program = write_program(&[square_cut("a", 10.0, 10.0, 5.0)], &laser, &s).unwrap();
-    assert!(
-        program.contains(
-            "(kerf width the paths allow for 0.3000 mm; the profile's kerf width is 0.2000 mm)"
-        ),
-        "{program}"
-    );
-    // A cut-through kind needs a positive kerf but no depth.
-    let s = ProgramSettings {
-        tool_diameter: 0.0,
-        ..settings()
-    };
-    let err = write_program(&[square_cut("a", 10.0, 10.0, 5.0)], &laser, &s).unwrap_err();
-    assert!(err.to_string().contains("kerf width"), "{err}");
-}
-
-#[test]
-fn kerf_width_is_given_in_millimetres() {
-    assert_eq!(bundled("laser.toml").kerf_width(), Some(0.2));
-    assert_eq!(bundled("metric-mill.toml").kerf_width(), None);
-    assert_eq!(bundled("inch-router.toml").kerf_width(), None);
-    let text = BUNDLED_PROFILES[2]
-        .1
-        .replace("units = \"mm\"", "units = \"in\"")
-        .replace("kerf_width = 0.2 ", "kerf_width = 0.01")
-        .replace("xy_decimals = 4", "xy_decimals = 5");
-    let inch_laser = MachineProfile::from_toml(&text, "inch-laser.toml").unwrap();
-    // 0.01 in = 0.254 mm exactly (international inch, 1959).
-    assert!((inch_laser.kerf_width().unwrap() - 0.254).abs() < 1e-12);
-}
-
-#[test]
-fn semicolon_comments_and_millisecond_dwells_are_profile_options() {
-    let text = METRIC_MILL_TOML
-        .replace(
-            "comment_style = \"parentheses\"",
-            "comment_style = \"semicolon\"",
-        )
-        .replace("dwell_unit = \"seconds\"", "dwell_unit = \"milliseconds\"");
-    let p = MachineProfile::from_toml(&text, "semicolon.toml").unwrap();
-    let program = write_program(&[square_cut("a (x)", 10.0, 10.0, 5.0)], &p, &settings()).unwrap();
-    assert!(!program.lines().any(|l| l.starts_with('(')), "{program}");
-    assert!(program.contains("\n; SAFETY - read before running this program\n"));
-    // The metric mill waits 2 s for its spindle: 2000 ms.
-    assert!(program.contains("\nG4 P2000\n"), "{program}");
-    // The outside parser reads `;` comments and finds the same moves as with parentheses.
-    let parens = write_program(
-        &[square_cut("a (x)", 10.0, 10.0, 5.0)],
-        &mill(),
-        &settings(),
-    )
-    .unwrap();
-    assert_eq!(moves(&program), moves(&parens));
-    assert!(parens.contains("\nG4 P2.00\n"));
 }
 
 #[test]
@@ -680,156 +380,6 @@ fn moves_that_round_to_nothing_are_left_out() {
     );
     let program = write_program(&[cut], &mill(), &settings()).unwrap();
     assert_eq!(program.matches("X15.0000 Y10.0000").count(), 1, "{program}");
-}
-
-mod profile_errors {
-    use super::*;
-
-    #[test]
-    fn unknown_key_reports_line_and_key() {
-        let text = METRIC_MILL_TOML.replace("cut_feed = 400.0", "cut_fed = 400.0");
-        let line = text.lines().position(|l| l.starts_with("cut_fed")).unwrap() + 1;
-        let err = MachineProfile::from_toml(&text, "shop.toml").unwrap_err();
-        assert_eq!(err.file, "shop.toml");
-        assert_eq!(err.line, Some(line));
-        assert_eq!(err.key.as_deref(), Some("cut_fed"));
-        let msg = err.to_string();
-        assert!(
-            msg.contains(&format!("shop.toml, line {line}, key `cut_fed`")),
-            "{msg}"
-        );
-    }
-
-    #[test]
-    fn wrong_type_reports_line_and_key() {
-        let text = METRIC_MILL_TOML.replace("max_feed = 2500.0", "max_feed = \"fast\"");
-        let line = text
-            .lines()
-            .position(|l| l.starts_with("max_feed"))
-            .unwrap()
-            + 1;
-        let err = MachineProfile::from_toml(&text, "shop.toml").unwrap_err();
-        assert_eq!(
-            (err.line, err.key.as_deref()),
-            (Some(line), Some("max_feed")),
-            "{err}"
-        );
-    }
-
-    #[test]
-    fn bad_units_value_reports_line_and_key() {
-        let text = METRIC_MILL_TOML.replace("units = \"mm\"", "units = \"cm\"");
-        let line = text.lines().position(|l| l.starts_with("units")).unwrap() + 1;
-        let err = MachineProfile::from_toml(&text, "shop.toml").unwrap_err();
-        assert_eq!(
-            (err.line, err.key.as_deref()),
-            (Some(line), Some("units")),
-            "{err}"
-        );
-    }
-
-    #[test]
-    fn missing_key_is_named() {
-        let text: String = METRIC_MILL_TOML
-            .lines()
-            .filter(|l| !l.starts_with("plunge_feed"))
-            .map(|l| format!("{l}\n"))
-            .collect();
-        let err = MachineProfile::from_toml(&text, "shop.toml").unwrap_err();
-        assert_eq!(err.key.as_deref(), Some("plunge_feed"), "{err}");
-        assert!(err.to_string().contains("missing"), "{err}");
-    }
-
-    #[test]
-    fn values_are_validated_with_line_and_key() {
-        let cases = [
-            ("cut_feed = 400.0", "cut_feed = -5.0", "cut_feed"),
-            ("cut_feed = 400.0", "cut_feed = 3000.0", "cut_feed"),
-            ("xy_decimals = 4", "xy_decimals = 7", "xy_decimals"),
-            (
-                "retract_height = 2.0",
-                "retract_height = 20.0",
-                "retract_height",
-            ),
-            ("x_max = 400.0", "x_max = -20.0", "travel.x_min"),
-            ("safe_height = 15.0", "safe_height = 90.0", "safe_height"),
-            (
-                "start_block = [\"G54\"]",
-                "start_block = [\"G54\", \"M30\"]",
-                "start_block",
-            ),
-            (
-                "spindle_on = \"M3\"",
-                "spindle_on = \"M3 (on\"",
-                "spindle_on",
-            ),
-            ("arc_form = \"centre\"", "arc_form = \"radius\"", "arc_form"),
-            ("xy_decimals = 4", "xy_decimals = 2", "xy_decimals"),
-            (
-                "max_feed = 2500.0",
-                "max_feed = 2500.0\npierce_height = 3.0",
-                "pierce_height",
-            ),
-            ("rapid_feed = 5000.0", "rapid_feed = 2000.0", "max_feed"),
-            ("acceleration = 500.0", "acceleration = 0.0", "acceleration"),
-        ];
-        for (from, to, key) in cases {
-            let text = METRIC_MILL_TOML.replace(from, to);
-            assert_ne!(text, METRIC_MILL_TOML, "{from} not in the profile");
-            let err = MachineProfile::from_toml(&text, "shop.toml").unwrap_err();
-            assert_eq!(err.key.as_deref(), Some(key), "{to}: {err}");
-            let (table, bare) = key.rsplit_once('.').unwrap_or(("", key));
-            let expected_line = text
-                .lines()
-                .position(|l| l.starts_with(&format!("{bare} ")))
-                .map(|i| i + 1);
-            assert!(table.is_empty() || text.contains(&format!("[{table}]")));
-            assert_eq!(err.line, expected_line, "{to}: {err}");
-        }
-    }
-
-    #[test]
-    fn keys_of_other_kinds_are_refused_and_own_keys_required() {
-        // A laser takes beam_on / beam_off, not a plasma's torch words nor a spindle.
-        let laser = BUNDLED_PROFILES[2].1;
-        let text = laser.replace("beam_on = ", "torch_on = ");
-        let err = MachineProfile::from_toml(&text, "laser.toml").unwrap_err();
-        assert_eq!(err.key.as_deref(), Some("torch_on"), "{err}");
-        assert!(err.to_string().contains("plasma profiles"), "{err}");
-        assert!(err.to_string().contains("beam_on and beam_off"), "{err}");
-        let text = format!("spindle_speed = 100.0\n{laser}");
-        let err = MachineProfile::from_toml(&text, "laser.toml").unwrap_err();
-        assert_eq!(
-            (err.key.as_deref(), err.line),
-            (Some("spindle_speed"), Some(1)),
-            "{err}"
-        );
-        // A missing kerf width is named, with the kind that needs it.
-        let text: String = laser
-            .lines()
-            .filter(|l| !l.starts_with("kerf_width"))
-            .map(|l| format!("{l}\n"))
-            .collect();
-        let err = MachineProfile::from_toml(&text, "laser.toml").unwrap_err();
-        assert_eq!(err.key.as_deref(), Some("kerf_width"), "{err}");
-        assert!(err.to_string().contains("a laser profile needs"), "{err}");
-        // Heights in order: the pierce starts above the cut height.
-        let text = laser.replace("cut_height = 0.8", "cut_height = 2.0");
-        let err = MachineProfile::from_toml(&text, "laser.toml").unwrap_err();
-        assert_eq!(err.key.as_deref(), Some("cut_height"), "{err}");
-    }
-
-    #[test]
-    fn toml_syntax_error_reports_the_line() {
-        let text = METRIC_MILL_TOML.replace("spindle_speed = 8000.0", "spindle_speed = = 8000");
-        let line = text
-            .lines()
-            .position(|l| l.starts_with("spindle_speed"))
-            .unwrap()
-            + 1;
-        let err = MachineProfile::from_toml(&text, "shop.toml").unwrap_err();
-        assert_eq!(err.line, Some(line), "{err}");
-    }
 }
 
 #[test]

@@ -468,9 +468,29 @@ fn commands(d: &str) -> Vec<(char, Vec<f64>)> {
 
 #[test]
 fn arc_moves_are_drawn_as_exact_svg_arcs() {
+    let cuts = stadium_and_hook();
+    let part = Part::default();
+    let svg = preview_svg(&PreviewInput {
+        title: "arcs",
+        part: &part,
+        ellipses: &[],
+        cuts: &cuts,
+        tool_diameter: 2.0,
+    });
+    let doc = roxmltree::Document::parse(&svg).unwrap();
+    for (cut, (centres, flag)) in cuts.iter().zip([
+        (vec![Point::new(60.0, 30.0), Point::new(40.0, 30.0)], 0.0),
+        (vec![Point::new(120.0, 30.0)], 1.0),
+    ]) {
+        check_svg_arcs(&doc, cut, &centres, flag);
+    }
+    check_arcs_rendered(&svg);
+}
+
+/// A stadium run counter-clockwise (two half turns about (60, 30) and (40, 30), radius 10),
+/// and a three-quarter turn clockwise about (120, 30), radius 10.
+fn stadium_and_hook() -> [FittedCut; 2] {
     use conicut::geom::Move;
-    // A stadium run counter-clockwise (two half turns about (60, 30) and (40, 30), radius 10),
-    // and a three-quarter turn clockwise about (120, 30), radius 10.
     let mut stadium = FittedCut::from_points(
         "stadium",
         FeatureKind::Hole,
@@ -512,67 +532,62 @@ fn arc_moves_are_drawn_as_exact_svg_arcs() {
         center: Point::new(120.0, 30.0),
         ccw: false,
     }];
-    let part = Part::default();
-    let cuts = [stadium, hook];
-    let svg = preview_svg(&PreviewInput {
-        title: "arcs",
-        part: &part,
-        ellipses: &[],
-        cuts: &cuts,
-        tool_diameter: 2.0,
-    });
-    let doc = roxmltree::Document::parse(&svg).unwrap();
-    for (cut, (centres, flag)) in cuts.iter().zip([
-        (vec![Point::new(60.0, 30.0), Point::new(40.0, 30.0)], 0.0),
-        (vec![Point::new(120.0, 30.0)], 1.0),
-    ]) {
-        let path = by_class(&doc, "tool-path")
-            .into_iter()
-            .find(|n| n.attribute("data-name") == Some(cut.name.as_str()))
-            .unwrap();
-        let cmds = commands(path.attribute("d").unwrap());
-        let mut current = (0.0, 0.0);
-        let mut arcs = 0;
-        for (c, v) in &cmds {
-            if *c == 'A' {
-                // SVG 1.1 §8.3.8: A rx ry x-axis-rotation large-arc-flag sweep-flag x y. Every
-                // piece turns at most half a turn (large-arc 0); with the y flip a
-                // counter-clockwise (G3) move has sweep flag 0, a clockwise (G2) one 1
-                // (docs/sources.md P7).
-                assert_eq!(&v[..5], &[10.0, 10.0, 0.0, 0.0, flag], "{cmds:?}");
-                let (cx, cy) = svg_arc_centre(
-                    current.0,
-                    current.1,
-                    v[0],
-                    v[1],
-                    v[2],
-                    false,
-                    v[4] == 1.0,
-                    v[5],
-                    v[6],
-                );
-                // Coordinates are written with 4 decimals (0.1 µm); a piece of 135° moves its
-                // centre by well under 1 µm for that rounding.
-                let centre = Point::new(cx, -cy);
-                assert!(
-                    centres.iter().any(|c| c.distance(centre) < 1e-3),
-                    "{}: centre {centre:?}",
-                    cut.name
-                );
-                arcs += 1;
-            }
-            // `Z` (the closing of a run that ends where it starts) has no numbers.
-            if v.len() >= 2 {
-                current = (v[v.len() - 2], v[v.len() - 1]);
-            }
+    [stadium, hook]
+}
+
+/// The tool path of `cut` is drawn with SVG arcs of radius 10 about `centres`, each with the
+/// sweep flag `flag`, two pieces per turn.
+fn check_svg_arcs(doc: &roxmltree::Document, cut: &FittedCut, centres: &[Point], flag: f64) {
+    let path = by_class(doc, "tool-path")
+        .into_iter()
+        .find(|n| n.attribute("data-name") == Some(cut.name.as_str()))
+        .unwrap();
+    let cmds = commands(path.attribute("d").unwrap());
+    let mut current = (0.0, 0.0);
+    let mut arcs = 0;
+    for (c, v) in &cmds {
+        if *c == 'A' {
+            // SVG 1.1 §8.3.8: A rx ry x-axis-rotation large-arc-flag sweep-flag x y. Every
+            // piece turns at most half a turn (large-arc 0); with the y flip a
+            // counter-clockwise (G3) move has sweep flag 0, a clockwise (G2) one 1
+            // (docs/sources.md P7).
+            assert_eq!(&v[..5], &[10.0, 10.0, 0.0, 0.0, flag], "{cmds:?}");
+            let (cx, cy) = svg_arc_centre(
+                current.0,
+                current.1,
+                v[0],
+                v[1],
+                v[2],
+                false,
+                v[4] == 1.0,
+                v[5],
+                v[6],
+            );
+            // Coordinates are written with 4 decimals (0.1 µm); a piece of 135° moves its
+            // centre by well under 1 µm for that rounding.
+            let centre = Point::new(cx, -cy);
+            assert!(
+                centres.iter().any(|c| c.distance(centre) < 1e-3),
+                "{}: centre {centre:?}",
+                cut.name
+            );
+            arcs += 1;
         }
-        // Half turns and the three-quarter turn are drawn in two pieces each.
-        assert_eq!(arcs, 2 * centres.len(), "{}: {cmds:?}", cut.name);
+        // `Z` (the closing of a run that ends where it starts) has no numbers.
+        if v.len() >= 2 {
+            current = (v[v.len() - 2], v[v.len() - 1]);
+        }
     }
+    // Half turns and the three-quarter turn are drawn in two pieces each.
+    assert_eq!(arcs, 2 * centres.len(), "{}: {cmds:?}", cut.name);
+}
+
+/// Rendered, the arcs bulge the way they turn.
+fn check_arcs_rendered(svg: &str) {
     // Rendered, the stadium's right end bulges to the right (through (70, 30)) and not to the
     // left (through (50, 30), where a wrong sweep flag would put it).
     let ppm = 8.0;
-    let (pixmap, vb) = raster(&svg, ppm);
+    let (pixmap, vb) = raster(svg, ppm);
     let at = |p: Point| colour_at(&pixmap, vb, ppm, p);
     let is_blue = |(r, g, b, a): (u8, u8, u8, u8)| a == 255 && b > 150 && r < 90 && g < 140;
     assert!(

@@ -11,14 +11,17 @@
 //!
 //! and read the difference before committing it.
 
+#[path = "support/machine.rs"]
+mod machine;
 use conicut::fit::FittedCut;
 use conicut::geom::Move;
 use conicut::geom::Point;
 use conicut::plan::{CutSide, FeatureKind};
 use conicut::post::{
-    Cutter, MachineKind, MachineProfile, PRECEDENCE, ProgramSettings, SAFETY_HEADING, write_program,
+    Cutter, MachineKind, MachineProfile, PRECEDENCE, SAFETY_HEADING, write_program,
 };
 use conicut::settings::BUNDLED_PROFILES;
+use machine::program_settings;
 use std::path::Path;
 
 /// A small oval hole made of two straight flats and six arcs, counter-clockwise from its right
@@ -60,20 +63,12 @@ fn oval_cut() -> FittedCut {
 }
 
 fn program_for(profile: &MachineProfile) -> String {
-    let settings = ProgramSettings {
-        title: "snapshot oval".into(),
-        source: "oval.dxf".into(),
-        tool_diameter: profile.kerf_width().unwrap_or(6.0),
-        depth: 3.0,
-        tolerance: 0.01,
-        cut_feed: None,
-        plunge_feed: None,
-        spindle_speed: None,
-        stepdown: None,
-        ramp_angle_deg: None,
-        helical_entry: false,
-        tab_height: 0.0,
-    };
+    let settings = program_settings(
+        "snapshot oval",
+        "oval.dxf",
+        profile.kerf_width().unwrap_or(6.0),
+        3.0,
+    );
     write_program(&[oval_cut()], profile, &settings).expect("the oval is written")
 }
 

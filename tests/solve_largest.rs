@@ -9,20 +9,13 @@
 //! inequality for ellipses inscribed in quadrilaterals", J. Math. Inequalities 4(3) (2010):
 //! area ratio ≤ π/4 with equality exactly for parallelograms, touching the side midpoints.
 
-use conicut::chain::Bay;
+#[path = "support/bay.rs"]
+mod bay;
+use bay::bay;
 use conicut::geom::{Ellipse, Point};
 use conicut::solve::{BayOpening, largest_tangent_ellipse};
 use proptest::prelude::*;
 use std::f64::consts::PI;
-
-fn bay(corners: &[(f64, f64)]) -> Bay {
-    Bay {
-        name: "bay 1".into(),
-        layer: "test".into(),
-        corners: corners.iter().map(|&(x, y)| Point::new(x, y)).collect(),
-        handles: vec![],
-    }
-}
 
 fn solve(corners: &[(f64, f64)]) -> BayOpening {
     largest_tangent_ellipse(&bay(corners), 0.0).expect("solvable bay")

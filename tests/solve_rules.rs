@@ -5,21 +5,14 @@
 //! the "given size" table (a = 2.2, b = 1.5, area = 9) and the family table rows; §2–§3 for the
 //! triangle and the corner-cut warning cases.
 
-use conicut::chain::Bay;
+#[path = "support/bay.rs"]
+mod bay;
+use bay::bay;
 use conicut::geom::Point;
 use conicut::solve::ConicKind;
 use conicut::solve::Rule;
 use conicut::solve::solve_bay;
 use std::f64::consts::PI;
-
-fn bay(corners: &[(f64, f64)]) -> Bay {
-    Bay {
-        name: "bay 1".into(),
-        layer: "test".into(),
-        corners: corners.iter().map(|&(x, y)| Point::new(x, y)).collect(),
-        handles: vec![],
-    }
-}
 
 const IRREGULAR_1: [(f64, f64); 4] = [(0.0, 0.0), (5.0, 0.0), (4.0, 3.0), (1.0, 4.0)];
 

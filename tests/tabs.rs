@@ -14,12 +14,16 @@
 
 #[path = "support/demo_job.rs"]
 mod demo_job;
-use conicut::check::{self, Trace, TraceMove};
+#[path = "support/gcode_read.rs"]
+mod gcode_read;
+#[path = "support/machine.rs"]
+mod machine;
 use conicut::demo::{CORNER_RADIUS, PLATE_HEIGHT, PLATE_WIDTH, demo_dxf_bytes};
 use conicut::job::{JobError, JobOutput, JobSettings, LeadRequest, TabRequest, run_job};
 use conicut::plan::LeadKind;
 use conicut::post::MachineProfile;
-use demo_job::profile;
+use gcode_read::{ReadBack, ReadMove, marked_moves, read_back};
+use machine::profile;
 use resvg::usvg::roxmltree;
 use std::f64::consts::TAU;
 
@@ -72,7 +76,7 @@ fn run(stem: &str, tabs: TabRequest, stepdown: Option<f64>) -> (MachineProfile, 
 }
 
 /// The moves of the outline after each of its `(contour)` comments, one run per pass.
-fn outline_contour_runs(trace: &Trace) -> Vec<Vec<TraceMove>> {
+fn outline_contour_runs(trace: &ReadBack) -> Vec<Vec<ReadMove>> {
     let k = trace
         .features
         .iter()
@@ -96,7 +100,7 @@ fn outline_contour_runs(trace: &Trace) -> Vec<Vec<TraceMove>> {
 }
 
 /// The XY length of a move (an arc by its radius and the angle it turns, in its sense).
-fn xy_length(m: &TraceMove) -> f64 {
+fn xy_length(m: &ReadMove) -> f64 {
     let (dx, dy) = (m.to[0] - m.from[0], m.to[1] - m.from[1]);
     match m.arc {
         None => dx.hypot(dy),
@@ -127,7 +131,7 @@ struct Stretch {
 
 /// The stretches of `run` whose XY moves satisfy `pick`, consecutive moves joined, measured
 /// along the run's XY path from its start.
-fn stretches(run: &[TraceMove], pick: impl Fn(&TraceMove) -> bool) -> Vec<Stretch> {
+fn stretches(run: &[ReadMove], pick: impl Fn(&ReadMove) -> bool) -> Vec<Stretch> {
     let mut out: Vec<Stretch> = Vec::new();
     let mut walked = 0.0;
     let mut open = false;
@@ -161,7 +165,7 @@ fn stretches(run: &[TraceMove], pick: impl Fn(&TraceMove) -> bool) -> Vec<Stretc
 }
 
 /// The total XY length of a run.
-fn run_length(run: &[TraceMove]) -> f64 {
+fn run_length(run: &[ReadMove]) -> f64 {
     run.iter().map(xy_length).sum()
 }
 
@@ -211,7 +215,7 @@ fn outline_length(r: f64) -> f64 {
 /// radius is at least 5 tool diameters (gently curved: src/plan/tabs.rs's rule), and keeps clear
 /// of the start region: after the overcut and the lead-out's reach, before the lead-in's, with a
 /// tool diameter to spare, along the path and in the plane.
-fn check_tab_places(tabs: &[Stretch], run: &[TraceMove], d: f64, trace: &Trace, what: &str) {
+fn check_tab_places(tabs: &[Stretch], run: &[ReadMove], d: f64, trace: &ReadBack, what: &str) {
     let r = 0.5 * d;
     let total = run_length(run);
     assert!(
@@ -245,7 +249,7 @@ fn check_tab_places(tabs: &[Stretch], run: &[TraceMove], d: f64, trace: &Trace, 
     // diameter from every tab's ends.
     let leads: Vec<usize> = ["lead-in", "overcut", "lead-out"]
         .iter()
-        .flat_map(|m| check::marked_moves(trace, "outline", m))
+        .flat_map(|m| marked_moves(trace, "outline", m))
         .collect();
     for i in leads {
         let m = &trace.moves[i];
@@ -262,7 +266,7 @@ fn check_tab_places(tabs: &[Stretch], run: &[TraceMove], d: f64, trace: &Trace, 
 }
 
 /// The XY point at share `s` of a move (arcs turned about their centre in their sense).
-fn point_on(m: &TraceMove, s: f64) -> [f64; 2] {
+fn point_on(m: &ReadMove, s: f64) -> [f64; 2] {
     match m.arc {
         None => [
             m.from[0] + s * (m.to[0] - m.from[0]),
@@ -296,7 +300,7 @@ fn mill_tabs_rise_to_the_tab_height_on_the_last_pass_only() {
         let n = 4;
         let (p, out) = run(stem, count(n), Some(2.0));
         let d = tool_of(&p);
-        let trace = check::trace(&out.program).expect("the checker reads it");
+        let trace = read_back(&out.program);
         let runs = outline_contour_runs(&trace);
         assert_eq!(runs.len(), 2, "{stem}: two passes (2 mm, then 3.5 mm)");
         // Pass 1 at 2 mm lies above the tab top (3.5 − 1 = 2.5 mm deep): no tabs there.
@@ -345,7 +349,7 @@ fn thermal_tabs_are_gaps_with_the_process_off() {
             p.units().to_mm(process.pierce_height),
             p.units().to_mm(process.cut_height),
         );
-        let trace = check::trace(&out.program).expect("the checker reads it");
+        let trace = read_back(&out.program);
         let runs = outline_contour_runs(&trace);
         assert_eq!(runs.len(), 1);
         let run = &runs[0];
@@ -376,7 +380,7 @@ fn thermal_tabs_are_gaps_with_the_process_off() {
             lines[a..b - 1].iter().map(|l| block(l)).collect()
         };
         for g in &gaps {
-            let cutting = |m: &TraceMove| xy_length(m) > 0.0 && (m.to[2] - cut).abs() < Z_TOL;
+            let cutting = |m: &ReadMove| xy_length(m) > 0.0 && (m.to[2] - cut).abs() < Z_TOL;
             let previous = run[..g.moves.0]
                 .iter()
                 .rev()
@@ -417,7 +421,7 @@ fn spacing_gives_the_path_length_over_the_spacing_rounded() {
             },
             None,
         );
-        let trace = check::trace(&out.program).unwrap();
+        let trace = read_back(&out.program);
         let run = &outline_contour_runs(&trace)[0];
         let z = match p.process() {
             Some(pr) => p.units().to_mm(pr.pierce_height),
@@ -439,7 +443,7 @@ fn too_many_tabs_place_what_fits_and_warn() {
     for n in [60, 30] {
         let (p, out) = run("metric-mill", count(n), None);
         let d = tool_of(&p);
-        let trace = check::trace(&out.program).unwrap();
+        let trace = read_back(&out.program);
         let run = &outline_contour_runs(&trace)[0];
         let raised = stretches(run, |m| (m.from[2] + DEPTH - 1.0).abs() < Z_TOL);
         assert!(
@@ -483,7 +487,7 @@ fn tight_corners_never_take_tabs() {
     );
     s.tool_diameter = Some(3.0);
     let out = run_job(&demo_dxf_bytes(), &p, &s).expect("the job runs");
-    let trace = check::trace(&out.program).unwrap();
+    let trace = read_back(&out.program);
     let run = &outline_contour_runs(&trace)[0];
     let raised = stretches(run, |m| (m.from[2] + DEPTH - 1.0).abs() < Z_TOL);
     assert!(raised.len() > 20, "{}", raised.len());
@@ -499,13 +503,8 @@ fn preview_and_report_show_every_tab() {
     let (p, out) = run("metric-mill", count(n), None);
     let d = tool_of(&p);
     let doc = roxmltree::Document::parse(&out.preview).expect("the preview is XML");
-    let class = |c: &str| -> Vec<roxmltree::Node> {
-        doc.descendants()
-            .filter(|e| e.attribute("class") == Some(c))
-            .collect()
-    };
-    let markers = class("tab-marker");
-    let spans = class("tab");
+    let markers = by_class(&doc, "tab-marker");
+    let spans = by_class(&doc, "tab");
     assert_eq!(markers.len(), n);
     assert_eq!(spans.len(), n);
     assert!(
@@ -521,7 +520,28 @@ fn preview_and_report_show_every_tab() {
         .find(|f| f.name == "outline")
         .expect("the outline in the report");
     assert_eq!(outline.tabs.len(), n);
-    for (t, (span, marker)) in outline.tabs.iter().zip(spans.iter().zip(&markers)) {
+    check_tab_drawings(&outline.tabs, &spans, &markers, d);
+    // The lead-in and lead-out are drawn too.
+    assert!(!by_class(&doc, "lead-in").is_empty());
+    check_tabs_rendered(&out.preview, &doc, &outline.tabs, d);
+    check_tabs_reported(&out, n);
+}
+
+/// The elements of the preview with class `c`.
+fn by_class<'a>(doc: &'a roxmltree::Document, c: &str) -> Vec<roxmltree::Node<'a, 'a>> {
+    doc.descendants()
+        .filter(|e| e.attribute("class") == Some(c))
+        .collect()
+}
+
+/// Each reported tab: its bridge, its span in the preview and its marker on its middle.
+fn check_tab_drawings(
+    tabs: &[conicut::report::TabReport],
+    spans: &[roxmltree::Node],
+    markers: &[roxmltree::Node],
+    d: f64,
+) {
+    for (t, (span, marker)) in tabs.iter().zip(spans.iter().zip(markers)) {
         // The report: the bridge is the stretch less the tool.
         assert!((t.to_mm - t.from_mm - (4.0 + d)).abs() < 1e-9);
         assert!((t.bridge_mm - 4.0).abs() < 1e-9);
@@ -547,11 +567,17 @@ fn preview_and_report_show_every_tab() {
         );
         assert!(piece_of(t.middle_mm, 0.5 * d, 1e-6).is_some());
     }
-    // The lead-in and lead-out are drawn too.
-    assert!(!class("lead-in").is_empty());
+}
+
+fn check_tabs_rendered(
+    preview: &str,
+    doc: &roxmltree::Document,
+    tabs: &[conicut::report::TabReport],
+    d: f64,
+) {
     // Rendered (resvg), each tab's middle shows the tab colour (amber, #e8a300: red and green
     // high, blue low), and a point of the outline's path away from the tabs does not.
-    let tree = resvg::usvg::Tree::from_str(&out.preview, &resvg::usvg::Options::default())
+    let tree = resvg::usvg::Tree::from_str(preview, &resvg::usvg::Options::default())
         .expect("usvg reads the preview");
     let vb: Vec<f64> = doc
         .root_element()
@@ -575,7 +601,7 @@ fn preview_and_report_show_every_tab() {
         let c = pixmap.pixel(px, py).expect("on the page");
         c.red() > 200 && c.green() > 120 && c.green() < 200 && c.blue() < 80
     };
-    for t in &outline.tabs {
+    for t in tabs {
         assert!(
             amber(t.middle_mm[0], t.middle_mm[1]),
             "tab at {:?}",
@@ -586,12 +612,15 @@ fn preview_and_report_show_every_tab() {
     let y = (20..=120)
         .map(f64::from)
         .find(|y| {
-            outline.tabs.iter().all(|t| {
+            tabs.iter().all(|t| {
                 (t.middle_mm[0] + 0.5 * d).abs() > 1e-6 || (t.middle_mm[1] - y).abs() >= 10.0
             })
         })
         .expect("a stretch of the left side without tabs");
     assert!(!amber(-0.5 * d, y), "no tab at (-3, {y})");
+}
+
+fn check_tabs_reported(out: &JobOutput, n: usize) {
     // The text and JSON reports list them.
     let text = out.report.to_text();
     assert!(text.contains(&format!("tabs on outline: {n}")), "{text}");
@@ -611,76 +640,7 @@ fn preview_and_report_show_every_tab() {
 fn bad_tab_requests_are_refused_with_the_reason() {
     let mill = profile("metric-mill");
     let laser = profile("laser");
-    let cases: [(&MachineProfile, TabRequest, &str); 10] = [
-        (&mill, count(0), "at least 1"),
-        (
-            &mill,
-            TabRequest {
-                count: Some(3),
-                spacing: Some(50.0),
-                ..TabRequest::default()
-            },
-            "not both",
-        ),
-        (&mill, TabRequest::default(), "give a count"),
-        (
-            &mill,
-            TabRequest {
-                spacing: Some(-5.0),
-                ..TabRequest::default()
-            },
-            "spacing must be a positive",
-        ),
-        (
-            &laser,
-            TabRequest {
-                spacing: Some(f64::NAN),
-                ..TabRequest::default()
-            },
-            "spacing must be a positive",
-        ),
-        (
-            &mill,
-            TabRequest {
-                width: Some(0.0),
-                ..count(2)
-            },
-            "width must be a positive",
-        ),
-        (
-            &mill,
-            TabRequest {
-                height: Some(0.0),
-                ..count(2)
-            },
-            "below the cut depth",
-        ),
-        (
-            &mill,
-            TabRequest {
-                height: Some(DEPTH),
-                ..count(2)
-            },
-            "below the cut depth",
-        ),
-        (
-            &mill,
-            TabRequest {
-                height: Some(-1.0),
-                ..count(2)
-            },
-            "below the cut depth",
-        ),
-        (
-            &laser,
-            TabRequest {
-                height: Some(1.0),
-                ..count(2)
-            },
-            "mills and routers only",
-        ),
-    ];
-    for (p, request, says) in cases {
+    for (p, request, says) in bad_tab_requests(&mill, &laser) {
         let err = run_job(&demo_dxf_bytes(), p, &settings(p, request, None))
             .expect_err("a bad tab request is refused");
         assert!(matches!(err, JobError::BadTabs { .. }), "{err}");
@@ -690,6 +650,82 @@ fn bad_tab_requests_are_refused_with_the_reason() {
             "{request:?}: {text}"
         );
     }
+}
+
+/// Bad tab requests on a mill and a laser, each with what its refusal must say.
+fn bad_tab_requests<'a>(
+    mill: &'a MachineProfile,
+    laser: &'a MachineProfile,
+) -> [(&'a MachineProfile, TabRequest, &'static str); 10] {
+    [
+        (mill, count(0), "at least 1"),
+        (
+            mill,
+            TabRequest {
+                count: Some(3),
+                spacing: Some(50.0),
+                ..TabRequest::default()
+            },
+            "not both",
+        ),
+        (mill, TabRequest::default(), "give a count"),
+        (
+            mill,
+            TabRequest {
+                spacing: Some(-5.0),
+                ..TabRequest::default()
+            },
+            "spacing must be a positive",
+        ),
+        (
+            laser,
+            TabRequest {
+                spacing: Some(f64::NAN),
+                ..TabRequest::default()
+            },
+            "spacing must be a positive",
+        ),
+        (
+            mill,
+            TabRequest {
+                width: Some(0.0),
+                ..count(2)
+            },
+            "width must be a positive",
+        ),
+        (
+            mill,
+            TabRequest {
+                height: Some(0.0),
+                ..count(2)
+            },
+            "below the cut depth",
+        ),
+        (
+            mill,
+            TabRequest {
+                height: Some(DEPTH),
+                ..count(2)
+            },
+            "below the cut depth",
+        ),
+        (
+            mill,
+            TabRequest {
+                height: Some(-1.0),
+                ..count(2)
+            },
+            "below the cut depth",
+        ),
+        (
+            laser,
+            TabRequest {
+                height: Some(1.0),
+                ..count(2)
+            },
+            "mills and routers only",
+        ),
+    ]
 }
 
 #[test]
