@@ -32,11 +32,20 @@ use conicut::check::scrap::{ScrapRules, check_scrap};
 use conicut::check::trace;
 use conicut::demo::{BOLT_HOLE_CENTRES, BOLT_HOLE_RADIUS, demo_dxf_bytes};
 use conicut::geom::{Ellipse, Point, Vec2};
-use conicut::job::{JobError, JobSettings, LeadRequest, run_job};
+use conicut::job::{JobError, JobOutput, JobSettings, LeadRequest, run_job};
 use conicut::plan::{CutSide, LeadKind, Opening, PlanError, PlanOptions, plan_cuts};
 use conicut::post::MachineProfile;
 use lead_checks::*;
 use machine::{profile, profile_text};
+
+/// The report's warning about feature `name`.
+fn warning_for<'a>(out: &'a JobOutput, name: &str) -> &'a str {
+    out.report
+        .warnings
+        .iter()
+        .find(|w| w.starts_with(&format!("{name}: ")))
+        .unwrap_or_else(|| panic!("a warning for {name}: {:?}", out.report.warnings))
+}
 
 #[test]
 fn small_holes_fall_back_to_a_straight_entry_from_the_centre_with_a_warning() {
@@ -44,13 +53,7 @@ fn small_holes_fall_back_to_a_straight_entry_from_the_centre_with_a_warning() {
     // wider than the tool (NISTIR 6556 App. B.3.1) fits inside it.
     let out = run_and_check("metric-mill", kind_only(LeadKind::Arc), false);
     for k in 1..=4 {
-        let name = format!("hole {k}");
-        let w = out
-            .report
-            .warnings
-            .iter()
-            .find(|w| w.starts_with(&format!("{name}: ")))
-            .unwrap_or_else(|| panic!("a warning for {name}: {:?}", out.report.warnings));
+        let w = warning_for(&out, &format!("hole {k}"));
         assert!(w.contains("no room for the arc lead"), "{w}");
         assert!(w.contains("straight move from"), "{w}");
     }
@@ -66,13 +69,7 @@ fn small_holes_fall_back_to_a_straight_entry_from_the_centre_with_a_warning() {
     // an arc radius under the hole radius" (docs/sources.md P4.3, common practice).
     let out = run_and_check("plasma", LeadRequest::default(), false);
     for k in 1..=4 {
-        let name = format!("hole {k}");
-        let w = out
-            .report
-            .warnings
-            .iter()
-            .find(|w| w.starts_with(&format!("{name}: ")))
-            .unwrap_or_else(|| panic!("a warning for {name}: {:?}", out.report.warnings));
+        let w = warning_for(&out, &format!("hole {k}"));
         assert!(w.contains("shrunk") && w.contains("lengthened"), "{w}");
     }
     for cut in read_cuts(&out.program)

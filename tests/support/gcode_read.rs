@@ -130,17 +130,20 @@ pub fn marked_moves(read: &ReadBack, name: &str, mark: &str) -> Vec<usize> {
         return Vec::new();
     };
     let range = feature_range_at(read, idx);
+    // Walk the moves with the comment in force before each (the last one written before it).
+    let mut marks = read.marks.iter().peekable();
+    let mut in_force: Option<&str> = None;
     let mut out = Vec::new();
-    for (k, (text, at)) in read.marks.iter().enumerate() {
-        if text != mark || !range.contains(at) {
-            continue;
+    for k in 0..range.end {
+        while let Some((text, at)) = marks.peek()
+            && *at <= k
+        {
+            in_force = Some(text.as_str());
+            marks.next();
         }
-        let end = read
-            .marks
-            .get(k + 1)
-            .map_or(read.moves.len(), |m| m.1)
-            .min(range.end);
-        out.extend(*at..end);
+        if k >= range.start && in_force == Some(mark) {
+            out.push(k);
+        }
     }
     out
 }
