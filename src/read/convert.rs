@@ -1,22 +1,22 @@
 //! Converting one loaded entity: LINE, ARC, CIRCLE, LWPOLYLINE, POLYLINE, ELLIPSE and POINT into
 //! an [`EntityKind`] in millimetres and WCS (OCS mirrored, see [`super::ocs`]).
 
-use super::ocs::{Ctx, EXTRUSION_TOLERANCE};
+use super::ocs::{Ctx, EXTRUSION_TILT_LIMIT};
 use super::{EntityKind, ReadError};
 use crate::geom::{ArcSegment, Ellipse, Point, Segment, Vec2};
 use dxf::entities::{self as de, EntityType};
 use std::f64::consts::{PI, TAU};
 
 /// Largest z difference (drawing units) between points of one LINE or 3-D POLYLINE.
-pub const Z_TOLERANCE: f64 = 1e-6;
+pub const FLAT_Z_LIMIT: f64 = 1e-6;
 
 /// An ELLIPSE whose end parameter is within this many radians of its start (modulo 2π) is a
 /// full ellipse.
-pub const FULL_ELLIPSE_TOLERANCE: f64 = 1e-9;
+pub const FULL_ELLIPSE_SLACK: f64 = 1e-9;
 
 /// An ARC whose end angle is a non-zero multiple of 360° from its start, within this many
 /// degrees, is a full circle.
-pub const FULL_ARC_TOLERANCE_DEG: f64 = 1e-9;
+pub const FULL_ARC_SLACK_DEG: f64 = 1e-9;
 
 pub(super) enum Converted {
     Kind(EntityKind),
@@ -44,7 +44,7 @@ pub(super) fn convert(e: &EntityType, ctx: &Ctx) -> Result<Converted, ReadError>
 
 fn line(l: &de::Line, ctx: &Ctx) -> Result<Converted, ReadError> {
     ctx.finite(&[l.p1.x, l.p1.y, l.p1.z, l.p2.x, l.p2.y, l.p2.z])?;
-    if (l.p1.z - l.p2.z).abs() > Z_TOLERANCE {
+    if (l.p1.z - l.p2.z).abs() > FLAT_Z_LIMIT {
         return Err(ctx.bad(format!(
             "its ends are at different heights (z = {} and {}), so it does not lie in \
              the XY plane; flatten the drawing in the CAD program",
@@ -93,8 +93,8 @@ fn arc(a: &de::Arc, ctx: &Ctx) -> Result<Converted, ReadError> {
     let radius = a.radius * ctx.scale;
     let diff = a.end_angle - a.start_angle;
     let sweep_deg = diff.rem_euclid(360.0);
-    if sweep_deg <= FULL_ARC_TOLERANCE_DEG || 360.0 - sweep_deg <= FULL_ARC_TOLERANCE_DEG {
-        if diff.abs() <= FULL_ARC_TOLERANCE_DEG {
+    if sweep_deg <= FULL_ARC_SLACK_DEG || 360.0 - sweep_deg <= FULL_ARC_SLACK_DEG {
+        if diff.abs() <= FULL_ARC_SLACK_DEG {
             return Err(ctx.bad(format!(
                 "its start and end angles are equal ({}°), so it has no length; delete \
                  it, or draw a CIRCLE if a full circle is meant",
@@ -162,7 +162,7 @@ fn dxf_polyline(p: &de::Polyline, ctx: &Ctx) -> Result<Converted, ReadError> {
             vertices.push((ctx.ocs(l.x, l.y, m), bulge));
         }
     }
-    if three_d && z_range.1 - z_range.0 > Z_TOLERANCE {
+    if three_d && z_range.1 - z_range.0 > FLAT_Z_LIMIT {
         return Err(ctx.bad(format!(
             "it is a 3-D polyline whose z runs from {} to {}, so it does not lie in the \
              XY plane; flatten the drawing in the CAD program",
@@ -197,7 +197,7 @@ fn ellipse(el: &dxf::entities::Ellipse, ctx: &Ctx) -> Result<Converted, ReadErro
         return Err(ctx
             .bad("its major axis has zero length; delete it or draw it again in the CAD program"));
     }
-    if mj.z.abs() > EXTRUSION_TOLERANCE * major_len {
+    if mj.z.abs() > EXTRUSION_TILT_LIMIT * major_len {
         return Err(
             ctx.bad("its major axis leaves the XY plane; flatten the drawing in the CAD program")
         );
@@ -218,7 +218,7 @@ fn ellipse(el: &dxf::entities::Ellipse, ctx: &Ctx) -> Result<Converted, ReadErro
 
     let diff = el.end_parameter - el.start_parameter;
     let sweep = diff.rem_euclid(TAU);
-    if sweep <= FULL_ELLIPSE_TOLERANCE || TAU - sweep <= FULL_ELLIPSE_TOLERANCE {
+    if sweep <= FULL_ELLIPSE_SLACK || TAU - sweep <= FULL_ELLIPSE_SLACK {
         return Ok(Converted::Kind(EntityKind::Ellipse {
             ellipse: e,
             start: 0.0,

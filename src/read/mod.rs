@@ -23,14 +23,14 @@
 //!
 //! ARC, CIRCLE, LWPOLYLINE and 2-D POLYLINE store points in the entity's object coordinate
 //! system (OCS), set by its extrusion direction N. Only N = ±Z is accepted: a unit normal whose
-//! x and y components are both at most [`EXTRUSION_TOLERANCE`] in size. For N = (0, 0, −1) the
+//! x and y components are both at most [`EXTRUSION_TILT_LIMIT`] in size. For N = (0, 0, −1) the
 //! Arbitrary Axis Algorithm (DXF reference) gives the OCS axes Ax = (−1, 0, 0), Ay = (0, 1, 0),
 //! so an OCS point (x, y) is the WCS point (−x, y); an arc that runs counter-clockwise about N
 //! runs clockwise seen from +Z, so its WCS start angle is π − start and its sweep changes sign;
 //! bulges change sign (docs/sources.md P2.3). LINE, ELLIPSE and POINT store WCS points;
 //! an ELLIPSE with N = −Z has its minor axis along N × M = −(Z × M), so its parameter runs
 //! clockwise seen from +Z. Any other N is refused, naming the entity. Elevations (z) are
-//! dropped; a LINE or 3-D POLYLINE whose z varies by more than [`Z_TOLERANCE`] drawing units
+//! dropped; a LINE or 3-D POLYLINE whose z varies by more than [`FLAT_Z_LIMIT`] drawing units
 //! is refused (it does not lie in a plane parallel to XY).
 //!
 //! # Trusting the DXF library
@@ -52,11 +52,11 @@ pub mod points;
 mod raw;
 mod units;
 
-pub use convert::{FULL_ARC_TOLERANCE_DEG, FULL_ELLIPSE_TOLERANCE, Z_TOLERANCE};
+pub use convert::{FLAT_Z_LIMIT, FULL_ARC_SLACK_DEG, FULL_ELLIPSE_SLACK};
 pub use entity::{Drawing, Entity, EntityKind};
 pub use error::ReadError;
 pub use load::read_dxf;
-pub use ocs::EXTRUSION_TOLERANCE;
+pub use ocs::EXTRUSION_TILT_LIMIT;
 pub use points::{PointsError, PointsProblem, parse_points_csv};
 pub use units::{Units, UnitsSource, UnknownUnits};
 

@@ -5,7 +5,7 @@ use super::ReadError;
 use crate::geom::Point;
 
 /// Largest |x| or |y| of a unit extrusion vector still taken as ±Z.
-pub const EXTRUSION_TOLERANCE: f64 = 1e-9;
+pub const EXTRUSION_TILT_LIMIT: f64 = 1e-9;
 
 /// Context for converting one entity.
 pub(super) struct Ctx<'a> {
@@ -37,7 +37,7 @@ impl Ctx<'_> {
         if !(len > 0.0 && len.is_finite()) {
             return Err(self.not_flat(n));
         }
-        if (n.x / len).abs() <= EXTRUSION_TOLERANCE && (n.y / len).abs() <= EXTRUSION_TOLERANCE {
+        if (n.x / len).abs() <= EXTRUSION_TILT_LIMIT && (n.y / len).abs() <= EXTRUSION_TILT_LIMIT {
             Ok(n.z < 0.0)
         } else {
             Err(self.not_flat(n))
