@@ -1115,7 +1115,7 @@ fn header(
             String::new()
         };
         text.push(format!(
-            "{} {}: {}, {}{pass}, {} feed moves{arcs}, measured deviation {} {u}",
+            "{} {}: {}, {}{pass}, {} feed moves{arcs}, fitted deviation {} {u}",
             i + 1,
             sanitize(&cut.name),
             kind_word(cut.kind),
