@@ -308,7 +308,7 @@ fn header_holds_the_job_the_safety_block_and_the_precedence_statement() {
         "tool diameter 6.0000 mm, cut depth 1.500 mm, tolerance 0.0100 mm"
     ));
     assert!(has(
-        "(1 bay 1: elliptical opening, tool inside, 4 feed moves, measured deviation 0.0061 mm)"
+        "(1 bay 1: elliptical opening, tool inside, 4 feed moves, fitted deviation 0.0061 mm)"
     ));
     let safety = header
         .iter()

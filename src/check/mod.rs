@@ -11,16 +11,18 @@
 //! Measuring: the program's cut comments `(cut N of M: NAME)` mark where each feature starts, and
 //! the comments `(contour)`, `(lead-in)`, … the parts of its cut; the feed moves after each
 //! `(contour)` comment, from the first one that reaches the exact tool-centre curve, are compared
-//! with that curve by dense sampling both ways ([`crate::fit::measure_deviation`], the
-//! measurement, not the writer).
+//! with that curve both ways by the checker's own measurement ([`deviation`], which shares no
+//! code with the fit's). [`verify`] is the one entry the job calls: it reads the program, measures
+//! every cut, holds it to the tolerance and the one-sided rule, and runs the scrap check.
 
-use crate::fit::{measure_deviation, measure_sides};
-use crate::geom::ExactPath;
-use crate::geom::Move;
-use crate::geom::Point;
+use crate::geom::{ExactPath, Move, Point};
 use serde::Serialize;
 
+pub mod deviation;
 pub mod scrap;
+mod verify;
+
+pub use verify::{CutDeviation, Finding, Findings, Verified, VerifyRules, verify};
 
 /// Why a program could not be read.
 #[derive(Debug, Clone, PartialEq, thiserror::Error)]
@@ -147,62 +149,83 @@ fn words(raw: &str, line: usize) -> Result<(Words, Vec<String>), CheckError> {
 
 /// Reads a program and follows it move by move.
 pub fn trace(program: &str) -> Result<Trace, CheckError> {
-    let mut st = State::default();
-    let mut moves = Vec::new();
-    let mut features = Vec::new();
-    let mut cut_numbers = Vec::new();
-    let mut marks = Vec::new();
-    let mut mismatch: f64 = 0.0;
+    let mut reader = Reader::default();
     for (i, raw) in program.lines().enumerate() {
-        let line = i + 1;
         let t = raw.trim();
-        if t.is_empty() || t == "%" {
-            continue;
+        if !(t.is_empty() || t == "%") {
+            reader.line(t, i + 1)?;
         }
-        let (ws, comments) = words(t, line)?;
-        for c in &comments {
-            marks.push((c.trim().to_string(), moves.len()));
-            if let Some((head, name)) = c
-                .trim()
-                .strip_prefix("cut ")
-                .and_then(|r| r.split_once(": "))
-            {
-                features.push((name.to_string(), moves.len()));
-                cut_numbers.push(cut_number(head).unwrap_or(0));
+    }
+    Ok(reader.finish())
+}
+
+/// What one line asks for: its motion word, target coordinates (as written) and arc offsets.
+#[derive(Default)]
+struct Block {
+    motion: Option<u8>,
+    target: [Option<f64>; 3],
+    i_off: Option<f64>,
+    j_off: Option<f64>,
+}
+
+/// The reader's modal state and everything read so far.
+#[derive(Default)]
+struct Reader {
+    st: State,
+    moves: Vec<TraceMove>,
+    features: Vec<(String, usize)>,
+    cut_numbers: Vec<usize>,
+    marks: Vec<(String, usize)>,
+    mismatch: f64,
+}
+
+impl Reader {
+    /// Step 1: one line's words and comments; step 2: the words into a block; step 3: the move.
+    fn line(&mut self, text: &str, line: usize) -> Result<(), CheckError> {
+        let (ws, comments) = words(text, line)?;
+        self.comments(&comments);
+        let block = self.block(&ws, line)?;
+        if let Some(m) = block.motion {
+            self.st.motion = Some(m);
+        }
+        if block.target.iter().any(Option::is_some) {
+            self.motion(&block, line)?;
+        }
+        Ok(())
+    }
+
+    /// Every comment is a mark; a cut comment `(cut K of N: NAME)` also starts a feature.
+    fn comments(&mut self, comments: &[String]) {
+        for c in comments {
+            let c = c.trim();
+            self.marks.push((c.to_string(), self.moves.len()));
+            if let Some((head, name)) = c.strip_prefix("cut ").and_then(|r| r.split_once(": ")) {
+                self.features.push((name.to_string(), self.moves.len()));
+                self.cut_numbers.push(cut_number(head).unwrap_or(0));
             }
         }
-        let mut target: [Option<f64>; 3] = [None; 3];
-        let (mut i_off, mut j_off) = (None, None);
-        let mut motion_here = None;
-        for (letter, value) in &ws {
+    }
+
+    /// The words of a line read into a block; units and feed words change the state at once.
+    fn block(&mut self, ws: &Words, line: usize) -> Result<Block, CheckError> {
+        let mut b = Block::default();
+        for (letter, value) in ws {
             match letter {
                 'N' | 'S' | 'P' | 'T' | 'M' | 'H' | 'D' => {
                     parse_number(value, line)?;
                 }
                 'G' => {
-                    let g = parse_number(value, line)?;
-                    let code = (g * 10.0).round() as i64;
-                    match code {
-                        0 | 10 | 20 | 30 => motion_here = Some((code / 10) as u8),
-                        40 => {} // dwell
-                        170 | 900 | 940 | 400 | 490 | 540..=590 | 610 | 640 => {}
-                        200 => st.inch = Some(true),
-                        210 => st.inch = Some(false),
-                        _ => {
-                            return Err(CheckError {
-                                line,
-                                problem: format!("G{value} is not followed by this reader"),
-                            });
-                        }
+                    if let Some(m) = self.g_word(value, line)? {
+                        b.motion = Some(m);
                     }
                 }
                 'X' | 'Y' | 'Z' => {
                     let k = (*letter as u8 - b'X') as usize;
-                    target[k] = Some(parse_number(value, line)?);
+                    b.target[k] = Some(parse_number(value, line)?);
                 }
-                'I' => i_off = Some(parse_number(value, line)?),
-                'J' => j_off = Some(parse_number(value, line)?),
-                'F' => st.feed = parse_number(value, line)?,
+                'I' => b.i_off = Some(parse_number(value, line)?),
+                'J' => b.j_off = Some(parse_number(value, line)?),
+                'F' => self.st.feed = parse_number(value, line)?,
                 'R' => {
                     return Err(CheckError {
                         line,
@@ -217,64 +240,104 @@ pub fn trace(program: &str) -> Result<Trace, CheckError> {
                 }
             }
         }
-        if let Some(m) = motion_here {
-            st.motion = Some(m);
+        Ok(b)
+    }
+
+    /// A G word: the motion mode it sets, if it is one (G0 G1 G2 G3).
+    fn g_word(&mut self, value: &str, line: usize) -> Result<Option<u8>, CheckError> {
+        let g = parse_number(value, line)?;
+        let code = (g * 10.0).round() as i64;
+        match code {
+            0 | 10 | 20 | 30 => return Ok(Some((code / 10) as u8)),
+            40 => {} // dwell
+            170 | 900 | 940 | 400 | 490 | 540..=590 | 610 | 640 => {}
+            200 => self.st.inch = Some(true),
+            210 => self.st.inch = Some(false),
+            _ => {
+                return Err(CheckError {
+                    line,
+                    problem: format!("G{value} is not followed by this reader"),
+                });
+            }
         }
-        if target.iter().all(Option::is_none) {
-            continue;
-        }
-        let Some(inch) = st.inch else {
+        Ok(None)
+    }
+
+    /// The move a block with coordinates makes, in mm, in the motion mode in force.
+    fn motion(&mut self, b: &Block, line: usize) -> Result<(), CheckError> {
+        let Some(inch) = self.st.inch else {
             return Err(CheckError {
                 line,
                 problem: "a move before the units word (G20 or G21)".into(),
             });
         };
         let scale = if inch { 25.4 } else { 1.0 };
-        let motion = st.motion.ok_or(CheckError {
+        let motion = self.st.motion.ok_or(CheckError {
             line,
             problem: "a move with no motion mode (G0, G1, G2 or G3) in force".into(),
         })?;
-        let from = st.pos;
+        let from = self.st.pos;
         let mut to = from;
-        for k in 0..3 {
-            if let Some(v) = target[k] {
-                to[k] = v * scale;
+        for (axis, target) in to.iter_mut().zip(b.target) {
+            if let Some(v) = target {
+                *axis = v * scale;
             }
         }
         let arc = if motion >= 2 {
-            let (Some(di), Some(dj)) = (i_off, j_off) else {
-                return Err(CheckError {
-                    line,
-                    problem: "an arc without both I and J".into(),
-                });
-            };
-            let c = [from[0] + di * scale, from[1] + dj * scale];
-            let r0 = (from[0] - c[0]).hypot(from[1] - c[1]);
-            let r1 = (to[0] - c[0]).hypot(to[1] - c[1]);
-            mismatch = mismatch.max((r0 - r1).abs());
-            Some((c, motion == 3))
+            Some((self.arc_centre(b, from, to, scale, line)?, motion == 3))
         } else {
             None
         };
-        moves.push(TraceMove {
+        self.moves.push(TraceMove {
             line,
             rapid: motion == 0,
             from,
             to,
             arc,
-            feed: if motion == 0 { 0.0 } else { st.feed * scale },
+            feed: if motion == 0 {
+                0.0
+            } else {
+                self.st.feed * scale
+            },
         });
-        st.pos = to;
+        self.st.pos = to;
+        Ok(())
     }
-    let bounds = bounds_of(&moves);
-    Ok(Trace {
-        moves,
-        features,
-        cut_numbers,
-        marks,
-        largest_arc_radius_mismatch: mismatch,
-        bounds,
-    })
+
+    /// An arc's centre from its I and J offsets (incremental from the start), noting how far its
+    /// start and end radius differ.
+    fn arc_centre(
+        &mut self,
+        b: &Block,
+        from: [f64; 3],
+        to: [f64; 3],
+        scale: f64,
+        line: usize,
+    ) -> Result<[f64; 2], CheckError> {
+        let (Some(di), Some(dj)) = (b.i_off, b.j_off) else {
+            return Err(CheckError {
+                line,
+                problem: "an arc without both I and J".into(),
+            });
+        };
+        let c = [from[0] + di * scale, from[1] + dj * scale];
+        let r0 = (from[0] - c[0]).hypot(from[1] - c[1]);
+        let r1 = (to[0] - c[0]).hypot(to[1] - c[1]);
+        self.mismatch = self.mismatch.max((r0 - r1).abs());
+        Ok(c)
+    }
+
+    fn finish(self) -> Trace {
+        let bounds = bounds_of(&self.moves);
+        Trace {
+            moves: self.moves,
+            features: self.features,
+            cut_numbers: self.cut_numbers,
+            marks: self.marks,
+            largest_arc_radius_mismatch: self.mismatch,
+            bounds,
+        }
+    }
 }
 
 fn bounds_of(moves: &[TraceMove]) -> Option<([f64; 3], [f64; 3])> {
@@ -404,20 +467,41 @@ fn contour_in(
     exact: &ExactPath,
     reach: f64,
 ) -> Option<(Point, Vec<Move>)> {
+    let at = contour_indices(trace, range, exact, reach)?;
+    Some(contour_of(trace, &at))
+}
+
+/// The trace indices of the contour moves in `range` (see [`feature_moves`]).
+fn contour_indices(
+    trace: &Trace,
+    range: std::ops::Range<usize>,
+    exact: &ExactPath,
+    reach: f64,
+) -> Option<Vec<usize>> {
     let start_exact = exact.start_point();
-    let feeds: Vec<&TraceMove> = marked_in(trace, range, "contour")
+    let feeds: Vec<usize> = marked_in(trace, range, "contour")
         .into_iter()
-        .map(|i| &trace.moves[i])
-        .filter(|m| m.from[0] != m.to[0] || m.from[1] != m.to[1])
-        .filter(|m| m.from[2] == m.to[2])
+        .filter(|&i| {
+            let m = &trace.moves[i];
+            (m.from[0] != m.to[0] || m.from[1] != m.to[1]) && m.from[2] == m.to[2]
+        })
         .collect();
-    let begin = feeds
+    let begin = feeds.iter().position(|&i| {
+        let m = &trace.moves[i];
+        Point::new(m.from[0], m.from[1]).distance(start_exact) <= reach
+    })?;
+    Some(feeds[begin..].to_vec())
+}
+
+/// The moves at trace indices `at` in the XY plane, from the first one's start.
+fn contour_of(trace: &Trace, at: &[usize]) -> (Point, Vec<Move>) {
+    let start = at.first().map_or(Point::ORIGIN, |&i| {
+        Point::new(trace.moves[i].from[0], trace.moves[i].from[1])
+    });
+    let moves = at
         .iter()
-        .position(|m| Point::new(m.from[0], m.from[1]).distance(start_exact) <= reach)?;
-    let start = Point::new(feeds[begin].from[0], feeds[begin].from[1]);
-    let moves = feeds[begin..]
-        .iter()
-        .map(|m| {
+        .map(|&i| {
+            let m = &trace.moves[i];
             let to = Point::new(m.to[0], m.to[1]);
             match m.arc {
                 Some((c, ccw)) => Move::Arc {
@@ -429,12 +513,25 @@ fn contour_in(
             }
         })
         .collect();
-    Some((start, moves))
+    (start, moves)
+}
+
+/// [`cut_contour`] with the program line of each move.
+fn cut_contour_lines(
+    trace: &Trace,
+    number: usize,
+    exact: &ExactPath,
+    reach: f64,
+) -> Option<(Point, Vec<Move>, Vec<usize>)> {
+    let at = contour_indices(trace, cut_range(trace, number)?, exact, reach)?;
+    let (start, moves) = contour_of(trace, &at);
+    let lines = at.iter().map(|&i| trace.moves[i].line).collect();
+    Some((start, moves, lines))
 }
 
 /// How feature `name` as the program would cut it strays from its exact tool-centre curve (mm):
-/// both ways, and on the part side (right of travel) alone. `None` when the program holds no
-/// such feature.
+/// both ways, and on the part side (right of travel) alone, by the checker's own measurement
+/// ([`deviation::measure`]). `None` when the program holds no such feature.
 pub fn measured_deviation(
     trace: &Trace,
     name: &str,
@@ -442,12 +539,7 @@ pub fn measured_deviation(
     reach: f64,
 ) -> Option<(f64, f64)> {
     let (start, moves) = feature_moves(trace, name, exact, reach)?;
-    (!moves.is_empty()).then(|| {
-        (
-            measure_deviation(start, &moves, exact),
-            measure_sides(start, &moves, exact).part_side,
-        )
-    })
+    deviation::measure(start, &moves, exact, true).map(|d| (d.both_ways, d.part_side))
 }
 
 #[cfg(test)]

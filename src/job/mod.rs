@@ -8,7 +8,7 @@ pub mod listing;
 use crate::chain::{self, ChainError, ChainOptions, InnerShape};
 use crate::check;
 use crate::fit::{self, FitError};
-use crate::geom::{Ellipse, Point};
+use crate::geom::Ellipse;
 use crate::plan::{self, PlanError};
 use crate::post::{self, MachineProfile, PostError};
 use crate::preview::{self, PreviewInput};
@@ -323,44 +323,14 @@ pub fn run_resolved(
     // The tolerance budget (`settings::ToleranceBudget`): the fit gets the tolerance less what
     // rounding may take; the deviation is then measured again on the program as written, read
     // back by the checker.
-    let units = profile.units();
     let rounding = resolved.budget.rounding;
     let fit_options = resolved.fit;
     let mut cuts = fit::fit_plan(&plan, &fit_options).map_err(|error| JobError::Fit {
         file: file(),
         error,
     })?;
-    let snap = |v: f64| {
-        let written = post::format_number(units.from_mm(v), profile.xy_decimals());
-        written.parse::<f64>().map(|w| units.to_mm(w)).unwrap_or(v)
-    };
-    for (cut, planned) in cuts.iter_mut().zip(&plan.cuts) {
-        let snap_point = |p: Point| Point::new(snap(p.x), snap(p.y));
-        let start = snap_point(cut.start);
-        let moves: Vec<crate::geom::Move> = cut
-            .moves
-            .iter()
-            .map(|m| match *m {
-                crate::geom::Move::Line { to } => crate::geom::Move::Line { to: snap_point(to) },
-                crate::geom::Move::Arc { to, center, ccw } => crate::geom::Move::Arc {
-                    to: snap_point(to),
-                    center,
-                    ccw,
-                },
-            })
-            .collect();
-        cut.measured_deviation = fit::measure_deviation(start, &moves, &planned.path);
+    for cut in &mut cuts {
         cut.tolerance = s.tolerance;
-        if cut.measured_deviation > s.tolerance {
-            return Err(JobError::Fit {
-                file: file(),
-                error: FitError::ToleranceExceeded {
-                    feature: cut.name.clone(),
-                    measured: cut.measured_deviation,
-                    tolerance: s.tolerance,
-                },
-            });
-        }
     }
     let cuts_through = resolved.cuts_through;
     let depth = resolved.depth;
@@ -370,92 +340,59 @@ pub fn run_resolved(
         error,
     };
     let program = post::write_program(&cuts, profile, &program_settings).map_err(post_error)?;
-    // Read the program back with the independent checker and measure what it would cut.
-    let trace = check::trace(&program).map_err(|error| JobError::ReadBack {
-        file: file(),
-        problem: error.to_string(),
-    })?;
-    for (k, (cut, planned)) in cuts.iter_mut().zip(&plan.cuts).enumerate() {
-        // The cut is found by its number in the writer's index comment `(cut K of N: NAME)`.
-        // The fitted start may sit up to the tolerance off the exact start (a band vertex), and
-        // rounding moves it a little more: look for it within twice the tolerance.
-        // The part side is measured against the cut's own scrap side (the right of travel for a
-        // conventional cut).
-        let (read_back, part_side) =
-            check::cut_contour(&trace, k + 1, &planned.path, 2.0 * s.tolerance)
-                .filter(|(_, moves)| !moves.is_empty())
-                .map(|(start, moves)| {
-                    let (both, sides) =
-                        fit::measure_with_sides(start, &moves, &planned.path, planned.scrap_left);
-                    (both, sides.part_side)
-                })
-                .ok_or_else(|| JobError::ReadBack {
-                    file: file(),
-                    problem: format!("the cut of \"{}\" was not found in the program", cut.name),
-                })?;
-        if read_back > s.tolerance {
-            return Err(JobError::Fit {
+    // Read the program back with the independent checker: every cut found by its number in the
+    // writer's index comment, measured against its exact path, held to the tolerance (and the
+    // scrap side), and every move off the contour kept off the finished part (`check::verify`).
+    let rules = check::VerifyRules {
+        tolerance: s.tolerance,
+        rounding,
+        scrap_side_only: s.scrap_side_only,
+        tool_radius: resolved.tool_diameter / 2.0,
+        pierce_clearance: profile.pierce_clearance(),
+        skip_above_stock: profile.spindle().is_some(),
+    };
+    let verified = check::verify(&program, &plan.cuts, &rules).map_err(|found| {
+        let read_back = |problem: String| JobError::ReadBack {
+            file: file(),
+            problem,
+        };
+        match found.0.into_iter().next() {
+            Some(check::Finding::ToleranceExceeded {
+                feature,
+                measured,
+                tolerance,
+                ..
+            }) => JobError::Fit {
                 file: file(),
                 error: FitError::ToleranceExceeded {
-                    feature: cut.name.clone(),
-                    measured: read_back,
-                    tolerance: s.tolerance,
+                    feature,
+                    measured,
+                    tolerance,
                 },
-            });
-        }
-        // A one-sided fit keeps to the scrap side up to the output rounding, which can move a
-        // written point onto the part side by at most the rounding allowance.
-        if s.scrap_side_only && part_side > rounding {
-            return Err(JobError::ReadBack {
+            },
+            Some(check::Finding::OffScrap {
+                feature,
+                part,
+                line,
+                x,
+                y,
+                problem,
+            }) => JobError::OffScrap {
                 file: file(),
-                problem: format!(
-                    "\"{}\" reaches {part_side:.6} mm onto the part side, more than the rounding \
-                     allowance {rounding:.6} mm",
-                    cut.name
-                ),
-            });
+                feature,
+                part,
+                line,
+                x,
+                y,
+                problem,
+            },
+            Some(other) => read_back(other.to_string()),
+            None => read_back("the checker found nothing and failed".into()),
         }
-        cut.measured_deviation = read_back;
-        cut.part_side_deviation = part_side;
-    }
-    // Every move off the contour (entries, clearing, leads, overcut, lead-out) keeps the tool
-    // off the finished part, read back from the program (see `check::scrap`).
-    check::scrap::check_scrap(
-        &trace,
-        &plan.cuts,
-        &check::scrap::ScrapRules {
-            tool_radius: resolved.tool_diameter / 2.0,
-            tolerance: s.tolerance,
-            rounding,
-            pierce_clearance: profile.pierce_clearance(),
-            skip_above_stock: profile.spindle().is_some(),
-        },
-    )
-    .map_err(|v| JobError::OffScrap {
-        file: file(),
-        feature: v.feature,
-        part: v.part,
-        line: v.line,
-        x: v.at.x,
-        y: v.at.y,
-        problem: v.problem,
     })?;
-    // Write the program again so that its header states the figures read back; only header
-    // comments change (the moves depend on nothing that was updated).
-    let program = post::write_program(&cuts, profile, &program_settings).map_err(post_error)?;
-    let same_moves = check::trace(&program).is_ok_and(|again| {
-        again.moves.len() == trace.moves.len()
-            && again
-                .moves
-                .iter()
-                .zip(&trace.moves)
-                .all(|(x, y)| (x.from, x.to, x.arc, x.feed) == (y.from, y.to, y.arc, y.feed))
-    });
-    if !same_moves {
-        return Err(JobError::ReadBack {
-            file: file(),
-            problem: "the program changed its moves when written again".into(),
-        });
+    for (cut, read_back) in cuts.iter_mut().zip(&verified.cuts) {
+        cut.measured_deviation = read_back.both_ways;
+        cut.part_side_deviation = read_back.part_side;
     }
     let mut ellipses: Vec<(String, Ellipse)> =
         to_cut.iter().map(|o| (o.name.clone(), o.ellipse)).collect();
@@ -492,8 +429,8 @@ pub fn run_resolved(
         cuts: &cuts,
         warnings,
         notes: solved.drawing.notes.clone(),
-        program_bounds: trace.bounds,
-        largest_arc_radius_mismatch: trace.largest_arc_radius_mismatch,
+        program_bounds: verified.bounds,
+        largest_arc_radius_mismatch: verified.largest_arc_radius_mismatch,
         tab_height: resolved
             .plan
             .tabs

@@ -54,7 +54,7 @@ pub(super) fn header(
             String::new()
         };
         text.push(format!(
-            "{} {}: {}, {}{pass}, {} feed moves{arcs}, measured deviation {} {u}",
+            "{} {}: {}, {}{pass}, {} feed moves{arcs}, fitted deviation {} {u}",
             i + 1,
             sanitize(&cut.name),
             kind_word(cut.kind),

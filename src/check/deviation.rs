@@ -1,0 +1,439 @@
+//! The checker's own measurement of how far the written contour of a cut strays from its exact
+//! tool-centre path, both ways and on the part side.
+//!
+//! It shares no code with the fit's measurement (`fit::measure`) and uses another method, so
+//! that the two figures can disagree when one of them is wrong:
+//!
+//! * **Written moves → exact path.** Along each written line or arc (as the controller runs it,
+//!   [`Move::point_at`]) the signed distance to the exact path is sampled at [`LINE_SAMPLES`] or
+//!   [`ARC_SAMPLES`] evenly spaced points, and every sample that is a local maximum of the
+//!   distance is refined by a golden-section search in the bracket between its neighbours,
+//!   stopped when the bracket is [`PARAMETER_TOLERANCE`] of the move long. Brackets that cannot
+//!   beat the largest sample (the distance changes by at most the move's length times the step,
+//!   being 1-Lipschitz) are skipped.
+//! * **Exact path → written moves.** The exact path is sampled ([`PATH_SAMPLES_PER_MOVE`] per
+//!   written move, at least [`MIN_PATH_SAMPLES`]) and each sample projected onto every written
+//!   move exactly (a line by clamped projection, an arc along the ray from its centre), the
+//!   nearest taken; local maxima are refined the same way.
+//!
+//! The distance to an ellipse's parallel curve at inset `d` is `|s(p) − d|`, where `s` is the
+//! signed distance to the ellipse itself (positive inside; [`Ellipse::distance_to`], Eberly's
+//! bisection): `s` is 1-Lipschitz, so no point of the level set `s = d` is nearer, and the point
+//! on `p`'s normal reaches it. This is exact while `d` and `s(p)` stay below the smallest radius
+//! of curvature `b²/a` (the planner refuses a cut that would gouge there) and a lower bound
+//! otherwise. A contour's distance is the least over its lines and arcs; its side is taken from
+//! whether the point lies inside the contour (winding number) and which way the contour runs.
+//!
+//! # Accuracy
+//!
+//! Every figure is a distance actually reached by a point of the moves or of the exact path, so
+//! it is never above the true largest deviation (beyond floating-point error, about 1e-12 mm).
+//! It is below it by no more than the golden-section tolerance (a parameter error of 1e-9 of a
+//! move changes a smooth peak's value by about 1e-18 of the move's length squared times the
+//! curvature of the distance) when each lobe of the distance spans at least two sample steps;
+//! a narrower lobe can hide at most the move's length times the step (1/12 of a line, 1/40 of an
+//! arc). Arcs are projected onto their circle at the radius interpolated between start and end
+//! radius; the written radius mismatch (reported separately, at most 0.002 mm by the writer's
+//! rule) changes a projection by a second-order amount only.
+
+use crate::geom::{Contour, Element, Ellipse, ExactPath, Move, Point};
+use serde::Serialize;
+use std::f64::consts::{FRAC_PI_2, TAU};
+
+/// Samples along each written line before refinement.
+pub const LINE_SAMPLES: usize = 12;
+
+/// Samples along each written arc before refinement (an arc of a spline spans several lobes).
+pub const ARC_SAMPLES: usize = 40;
+
+/// Samples of the exact path per written move.
+pub const PATH_SAMPLES_PER_MOVE: usize = 8;
+
+/// The fewest samples of the exact path.
+pub const MIN_PATH_SAMPLES: usize = 256;
+
+/// A golden-section search stops when its bracket is this fraction of the parameter range.
+pub const PARAMETER_TOLERANCE: f64 = 1e-9;
+
+/// How a written contour strays from its exact tool-centre path (mm).
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+pub struct Deviation {
+    /// The largest distance either way: from a point of the moves to the path, or from a point
+    /// of the path to the moves.
+    pub both_ways: f64,
+    /// The largest distance of a point of the moves from the path on the part side (the right
+    /// of travel when the scrap is on the left); 0 when no point lies there.
+    pub part_side: f64,
+    /// The index (into the moves) of the move at the largest distance either way.
+    pub worst_move: usize,
+    /// The index of the move reaching farthest onto the part side.
+    pub worst_part_move: usize,
+}
+
+/// Measures the run of `moves` from `start` against `exact` (see the module docs), with the
+/// scrap on the left of travel when `scrap_left`. `None` when there are no moves.
+pub fn measure(
+    start: Point,
+    moves: &[Move],
+    exact: &ExactPath,
+    scrap_left: bool,
+) -> Option<Deviation> {
+    if moves.is_empty() {
+        return None;
+    }
+    let written = Written::new(start, moves);
+    let target = Target::of(exact);
+    let (moves_to_path, worst_move) = written_to_exact(&written, &target, |sd| sd.abs());
+    // The part side is the right of travel for a climb cut (scrap on the left).
+    let side = if scrap_left { -1.0 } else { 1.0 };
+    let (part_side, worst_part_move) = written_to_exact(&written, &target, |sd| side * sd);
+    let (path_to_moves, nearest) = exact_to_written(&written, exact);
+    let (both_ways, worst_move) = if path_to_moves > moves_to_path {
+        (path_to_moves, nearest)
+    } else {
+        (moves_to_path, worst_move)
+    };
+    Some(Deviation {
+        both_ways,
+        part_side: part_side.max(0.0),
+        worst_move,
+        worst_part_move,
+    })
+}
+
+/// The exact path as a signed distance: positive on the left of travel.
+enum Target<'a> {
+    Parallel {
+        ellipse: &'a Ellipse,
+        inset: f64,
+        ccw: bool,
+    },
+    Contour {
+        contour: &'a Contour,
+        ccw: bool,
+    },
+}
+
+impl<'a> Target<'a> {
+    fn of(exact: &'a ExactPath) -> Self {
+        match exact {
+            ExactPath::EllipseParallel {
+                ellipse,
+                inset,
+                clockwise,
+                ..
+            } => Target::Parallel {
+                ellipse,
+                inset: *inset,
+                ccw: !clockwise,
+            },
+            ExactPath::Contour(contour) => Target::Contour {
+                contour,
+                ccw: contour.is_ccw(),
+            },
+        }
+    }
+
+    /// Signed distance from `p` to the path: positive on the left of travel.
+    fn signed_left(&self, p: Point) -> f64 {
+        match *self {
+            Target::Parallel {
+                ellipse,
+                inset,
+                ccw,
+            } => {
+                let (d, _) = ellipse.distance_to(p);
+                let inside = if ellipse.contains(p) { d } else { -d };
+                // Positive: farther inside than the path; the inside is the left of a
+                // counter-clockwise run.
+                let v = inside - inset;
+                if ccw { v } else { -v }
+            }
+            Target::Contour { contour, ccw } => {
+                let d = contour
+                    .elements
+                    .iter()
+                    .map(|e| match e {
+                        Element::Line(s) => s.distance_to(p),
+                        Element::Arc(a) => a.distance_to(p),
+                    })
+                    .fold(f64::INFINITY, f64::min);
+                if contour.contains(p) == ccw { d } else { -d }
+            }
+        }
+    }
+}
+
+/// The written moves with their start points and bounding boxes.
+struct Written<'a> {
+    moves: &'a [Move],
+    from: Vec<Point>,
+    boxes: Vec<(Point, Point)>,
+}
+
+impl<'a> Written<'a> {
+    fn new(start: Point, moves: &'a [Move]) -> Self {
+        let mut from = Vec::with_capacity(moves.len());
+        let mut at = start;
+        for m in moves {
+            from.push(at);
+            at = m.end();
+        }
+        let boxes = moves
+            .iter()
+            .zip(&from)
+            .map(|(m, &f)| box_of(f, m))
+            .collect();
+        Written { moves, from, boxes }
+    }
+
+    fn length(&self, i: usize) -> f64 {
+        self.moves[i].length(self.from[i])
+    }
+
+    /// The exact distance from `p` to move `i`.
+    fn distance(&self, i: usize, p: Point) -> f64 {
+        let from = self.from[i];
+        match self.moves[i] {
+            Move::Line { to } => {
+                let v = to - from;
+                let len2 = v.length_squared();
+                let t = if len2 > 0.0 {
+                    ((p - from).dot(v) / len2).clamp(0.0, 1.0)
+                } else {
+                    0.0
+                };
+                p.distance(from.lerp(to, t))
+            }
+            m @ Move::Arc { to, center, .. } => {
+                let sweep = m.sweep(from);
+                let a0 = (from - center).angle();
+                let rel = if sweep >= 0.0 {
+                    ((p - center).angle() - a0).rem_euclid(TAU)
+                } else {
+                    (a0 - (p - center).angle()).rem_euclid(TAU)
+                };
+                if p != center && rel <= sweep.abs() {
+                    p.distance(m.point_at(from, rel / sweep.abs()))
+                } else {
+                    p.distance(from).min(p.distance(to))
+                }
+            }
+        }
+    }
+
+    /// The nearest move to `p` and its distance, starting from move `hint`.
+    fn nearest(&self, p: Point, hint: usize) -> (f64, usize) {
+        let mut best = (self.distance(hint, p), hint);
+        for (i, (lo, hi)) in self.boxes.iter().enumerate() {
+            let dx = (lo.x - p.x).max(p.x - hi.x).max(0.0);
+            let dy = (lo.y - p.y).max(p.y - hi.y).max(0.0);
+            if dx.hypot(dy) < best.0 {
+                let d = self.distance(i, p);
+                if d < best.0 {
+                    best = (d, i);
+                }
+            }
+        }
+        best
+    }
+}
+
+/// The bounding box of move `m` from `from`: its ends and, for an arc, the axis extremes it
+/// sweeps through (at the larger of its two radii).
+fn box_of(from: Point, m: &Move) -> (Point, Point) {
+    let mut pts = vec![from, m.end()];
+    if let Move::Arc { to, center, .. } = *m {
+        let r = from.distance(center).max(to.distance(center));
+        let sweep = m.sweep(from);
+        let a0 = (from - center).angle();
+        for k in 0..4 {
+            let axis = k as f64 * FRAC_PI_2;
+            let rel = if sweep >= 0.0 {
+                (axis - a0).rem_euclid(TAU)
+            } else {
+                (a0 - axis).rem_euclid(TAU)
+            };
+            if rel <= sweep.abs() {
+                let (s, c) = axis.sin_cos();
+                pts.push(Point::new(center.x + r * c, center.y + r * s));
+            }
+        }
+    }
+    let lo = pts
+        .iter()
+        .fold(pts[0], |a, p| Point::new(a.x.min(p.x), a.y.min(p.y)));
+    let hi = pts
+        .iter()
+        .fold(pts[0], |a, p| Point::new(a.x.max(p.x), a.y.max(p.y)));
+    (lo, hi)
+}
+
+/// The largest `value(signed distance)` over the written moves, and the move reaching it.
+fn written_to_exact(
+    written: &Written,
+    target: &Target,
+    value: impl Fn(f64) -> f64,
+) -> (f64, usize) {
+    let samples: Vec<Vec<f64>> = (0..written.moves.len())
+        .map(|i| {
+            let n = samples_on(&written.moves[i]);
+            (0..=n)
+                .map(|k| value(target.signed_left(point_on(written, i, k as f64 / n as f64))))
+                .collect()
+        })
+        .collect();
+    let mut best = samples
+        .iter()
+        .enumerate()
+        .flat_map(|(i, s)| s.iter().map(move |&v| (v, i)))
+        .fold((f64::NEG_INFINITY, 0), |a, b| if b.0 > a.0 { b } else { a });
+    for (i, s) in samples.iter().enumerate() {
+        let f = |u: f64| value(target.signed_left(point_on(written, i, u)));
+        let found = refine_peaks(&f, s, written.length(i), best.0);
+        if found > best.0 {
+            best = (found, i);
+        }
+    }
+    best
+}
+
+fn samples_on(m: &Move) -> usize {
+    match m {
+        Move::Line { .. } => LINE_SAMPLES,
+        Move::Arc { .. } => ARC_SAMPLES,
+    }
+}
+
+fn point_on(written: &Written, i: usize, u: f64) -> Point {
+    written.moves[i].point_at(written.from[i], u)
+}
+
+/// The largest distance from a point of `exact` to the written moves, and the move nearest to
+/// that point.
+fn exact_to_written(written: &Written, exact: &ExactPath) -> (f64, usize) {
+    let count = (PATH_SAMPLES_PER_MOVE * written.moves.len()).max(MIN_PATH_SAMPLES);
+    let pieces = path_pieces(exact, count);
+    let mut hint = 0;
+    let mut sampled = Vec::with_capacity(pieces.len());
+    for (piece, n, _) in &pieces {
+        let values: Vec<f64> = (0..=*n)
+            .map(|k| {
+                let (d, i) = written.nearest(piece(k as f64 / *n as f64), hint);
+                hint = i;
+                d
+            })
+            .collect();
+        sampled.push(values);
+    }
+    let mut best = sampled.iter().flatten().copied().fold(0.0, f64::max);
+    for ((piece, _, speed), values) in pieces.iter().zip(&sampled) {
+        let f = |u: f64| written.nearest(piece(u), hint).0;
+        best = best.max(refine_peaks(&f, values, *speed, best));
+    }
+    // The move nearest the worst point, found again for the message.
+    let worst = pieces
+        .iter()
+        .zip(&sampled)
+        .flat_map(|((piece, n, _), values)| {
+            values
+                .iter()
+                .enumerate()
+                .map(move |(k, &v)| (v, piece(k as f64 / *n as f64)))
+        })
+        .fold((f64::NEG_INFINITY, Point::ORIGIN), |a, b| {
+            if b.0 > a.0 { b } else { a }
+        });
+    (best, written.nearest(worst.1, 0).1)
+}
+
+/// A piece of the exact path as a point function on [0, 1].
+type PathPiece<'a> = Box<dyn Fn(f64) -> Point + 'a>;
+
+/// The exact path as pieces on [0, 1], each with its sample count and a bound on its speed
+/// (length per unit parameter) for the refinement's pruning.
+fn path_pieces(exact: &ExactPath, count: usize) -> Vec<(PathPiece<'_>, usize, f64)> {
+    match exact {
+        ExactPath::EllipseParallel {
+            ellipse,
+            inset,
+            start,
+            ..
+        } => {
+            // |O_d′(t)| = |P′(t)| |1 − d κ(t)| ≤ a (1 + |d| a / b²).
+            let (a, b) = (ellipse.a(), ellipse.b());
+            let speed = TAU * a * (1.0 + inset.abs() * a / (b * b));
+            let piece: PathPiece =
+                Box::new(move |u: f64| ellipse.inward_offset_point(start + TAU * u, *inset));
+            vec![(piece, count, speed)]
+        }
+        ExactPath::Contour(c) => {
+            let total: f64 = c.elements.iter().map(Element::length).sum();
+            c.elements
+                .iter()
+                .map(|e| {
+                    let n = ((count as f64 * e.length() / total).ceil() as usize).max(8);
+                    let piece: PathPiece = match e {
+                        Element::Line(s) => Box::new(move |u| s.point_at(u)),
+                        Element::Arc(a) => Box::new(move |u| a.point_at(u)),
+                    };
+                    (piece, n, e.length())
+                })
+                .collect()
+        }
+    }
+}
+
+/// The largest value of `f` on [0, 1] near the local maxima among `samples` (taken at `k / n`),
+/// each refined by golden-section search between its neighbours; a bracket is skipped when `f`,
+/// changing by at most `speed` per unit parameter, cannot reach above `floor` in it.
+fn refine_peaks(f: &dyn Fn(f64) -> f64, samples: &[f64], speed: f64, floor: f64) -> f64 {
+    let n = samples.len() - 1;
+    let h = 1.0 / n as f64;
+    let mut best = f64::NEG_INFINITY;
+    for k in 0..=n {
+        let v = samples[k];
+        let left = if k > 0 {
+            samples[k - 1]
+        } else {
+            f64::NEG_INFINITY
+        };
+        let right = if k < n {
+            samples[k + 1]
+        } else {
+            f64::NEG_INFINITY
+        };
+        if v < left || v < right || v + speed * h < floor.max(best) {
+            continue;
+        }
+        let lo = (k as f64 - 1.0).max(0.0) * h;
+        let hi = (k as f64 + 1.0).min(n as f64) * h;
+        best = best.max(golden_max(f, lo, hi)).max(v);
+    }
+    best
+}
+
+/// The largest value golden-section search finds of `f` on `[lo, hi]` (the peak when `f` is
+/// unimodal there), to a bracket of [`PARAMETER_TOLERANCE`].
+fn golden_max(f: &dyn Fn(f64) -> f64, mut lo: f64, mut hi: f64) -> f64 {
+    let ratio = (5f64.sqrt() - 1.0) / 2.0;
+    let mut x1 = hi - ratio * (hi - lo);
+    let mut x2 = lo + ratio * (hi - lo);
+    let (mut f1, mut f2) = (f(x1), f(x2));
+    while hi - lo > PARAMETER_TOLERANCE {
+        if f1 < f2 {
+            lo = x1;
+            x1 = x2;
+            f1 = f2;
+            x2 = lo + ratio * (hi - lo);
+            f2 = f(x2);
+        } else {
+            hi = x2;
+            x2 = x1;
+            f2 = f1;
+            x1 = hi - ratio * (hi - lo);
+            f1 = f(x1);
+        }
+    }
+    f1.max(f2)
+}
