@@ -250,7 +250,8 @@ pub fn resolve(s: &JobSettings, profile: &MachineProfile) -> Result<ResolvedJob,
     settings::resolve(s, profile).map_err(|e| settings_error(s.file_name.clone(), e))
 }
 
-/// Runs the whole job with settings already resolved (`resolved` from [`resolve`] of `s`).
+/// Runs the whole job with settings already resolved (`resolved` from [`resolve`] of `s`): read
+/// and solve, plan, fit, write, read back, then the preview and the report.
 pub fn run_resolved(
     dxf: &[u8],
     profile: &MachineProfile,
@@ -259,6 +260,79 @@ pub fn run_resolved(
 ) -> Result<JobOutput, JobError> {
     let file = || s.file_name.clone();
     let solved = read_and_solve(dxf, s)?;
+    refuse_unsolved(&solved, profile, &s.file_name)?;
+    let (to_cut, infos) = openings(&solved.features);
+    let plan =
+        plan::plan_cuts(&solved.part, &to_cut, &resolved.plan).map_err(|error| JobError::Plan {
+            file: file(),
+            error,
+        })?;
+    // The fit gets the tolerance less what rounding may take (`settings::ToleranceBudget`);
+    // the checker then measures the program as written against the whole tolerance.
+    let mut cuts = fit::fit_plan(&plan, &resolved.fit).map_err(|error| JobError::Fit {
+        file: file(),
+        error,
+    })?;
+    for cut in &mut cuts {
+        cut.tolerance = s.tolerance;
+    }
+    let program =
+        post::write_program(&cuts, profile, &resolved.program).map_err(|error| JobError::Post {
+            file: file(),
+            error,
+        })?;
+    let verified = read_back(&program, &plan.cuts, s, resolved, profile)?;
+    for (cut, read_back) in cuts.iter_mut().zip(&verified.cuts) {
+        cut.measured_deviation = read_back.both_ways;
+        cut.part_side_deviation = read_back.part_side;
+    }
+    let ellipse_holes = ellipse_holes(&solved.part);
+    let mut ellipses: Vec<(String, Ellipse)> =
+        to_cut.iter().map(|o| (o.name.clone(), o.ellipse)).collect();
+    ellipses.extend(ellipse_holes.iter().cloned());
+    let preview = preview::preview_svg(&PreviewInput {
+        title: &s.file_name,
+        part: &solved.part,
+        ellipses: &ellipses,
+        cuts: &cuts,
+        tool_diameter: resolved.tool_diameter,
+    });
+    let mut warnings = solved.part.warnings.clone();
+    warnings.extend(unused_warnings(&solved.unused_bays));
+    warnings.extend(plan.warnings.iter().cloned());
+    warnings.extend(resolved.direction_warning.clone());
+    let report = report::build_report(ReportInput {
+        drawing: &s.file_name,
+        drawing_units: solved.drawing.units.symbol(),
+        machine: profile.name(),
+        machine_kind: profile.kind().as_str(),
+        tool_diameter: resolved.tool_diameter,
+        cut_depth: resolved.depth,
+        tolerance: s.tolerance,
+        solved: &infos,
+        ellipse_holes: &ellipse_holes,
+        cuts: &cuts,
+        warnings,
+        notes: solved.drawing.notes.clone(),
+        program_bounds: verified.bounds,
+        largest_arc_radius_mismatch: verified.largest_arc_radius_mismatch,
+        tab_height: resolved
+            .plan
+            .tabs
+            .filter(|t| t.height > 0.0 && !resolved.cuts_through)
+            .map(|t| t.height),
+    });
+    Ok(JobOutput {
+        program,
+        preview,
+        report,
+    })
+}
+
+/// Refuses a pocket on a kind that cuts through, and a job with features that could not be
+/// solved (all of them listed).
+fn refuse_unsolved(solved: &Solved, profile: &MachineProfile, file: &str) -> Result<(), JobError> {
+    let file = || file.to_string();
     // Laser, plasma and waterjet cut through the sheet: a pocket cannot be cleared to a depth.
     if profile.kerf_width().is_some()
         && let Some(f) = solved.features.iter().find(|f| f.cut == CutKind::Pocket)
@@ -286,10 +360,14 @@ pub fn run_resolved(
             list: failures.join("\n"),
         });
     }
-    let part = &solved.part;
+    Ok(())
+}
+
+/// The openings to cut and what the report says of each, from the solved features.
+fn openings(features: &[SolvedFeature]) -> (Vec<plan::Opening>, Vec<SolvedInfo>) {
     let mut to_cut = Vec::new();
     let mut infos = Vec::new();
-    for f in &solved.features {
+    for f in features {
         let Ok(sol) = &f.outcome else { continue };
         to_cut.push(plan::Opening {
             name: f.name.clone(),
@@ -316,42 +394,30 @@ pub fn run_resolved(
             }),
         });
     }
-    let plan = plan::plan_cuts(part, &to_cut, &resolved.plan).map_err(|error| JobError::Plan {
-        file: file(),
-        error,
-    })?;
-    // The tolerance budget (`settings::ToleranceBudget`): the fit gets the tolerance less what
-    // rounding may take; the deviation is then measured again on the program as written, read
-    // back by the checker.
-    let rounding = resolved.budget.rounding;
-    let fit_options = resolved.fit;
-    let mut cuts = fit::fit_plan(&plan, &fit_options).map_err(|error| JobError::Fit {
-        file: file(),
-        error,
-    })?;
-    for cut in &mut cuts {
-        cut.tolerance = s.tolerance;
-    }
-    let cuts_through = resolved.cuts_through;
-    let depth = resolved.depth;
-    let program_settings = resolved.program.clone();
-    let post_error = |error| JobError::Post {
-        file: file(),
-        error,
-    };
-    let program = post::write_program(&cuts, profile, &program_settings).map_err(post_error)?;
-    // Read the program back with the independent checker: every cut found by its number in the
-    // writer's index comment, measured against its exact path, held to the tolerance (and the
-    // scrap side), and every move off the contour kept off the finished part (`check::verify`).
+    (to_cut, infos)
+}
+
+/// The program read back by the independent checker: every cut found by its number in the
+/// writer's index comment, measured against its exact path, held to the tolerance (and the
+/// scrap side), and every move off the contour kept off the finished part (`check::verify`).
+/// The first finding becomes the job's error.
+fn read_back(
+    program: &str,
+    cuts: &[plan::PlannedCut],
+    s: &JobSettings,
+    resolved: &ResolvedJob,
+    profile: &MachineProfile,
+) -> Result<check::Verified, JobError> {
+    let file = || s.file_name.clone();
     let rules = check::VerifyRules {
         tolerance: s.tolerance,
-        rounding,
+        rounding: resolved.budget.rounding,
         scrap_side_only: s.scrap_side_only,
         tool_radius: resolved.tool_diameter / 2.0,
         pierce_clearance: profile.pierce_clearance(),
         skip_above_stock: profile.spindle().is_some(),
     };
-    let verified = check::verify(&program, &plan.cuts, &rules).map_err(|found| {
+    check::verify(program, cuts, &rules).map_err(|found| {
         let read_back = |problem: String| JobError::ReadBack {
             file: file(),
             problem,
@@ -389,57 +455,16 @@ pub fn run_resolved(
             Some(other) => read_back(other.to_string()),
             None => read_back("the checker found nothing and failed".into()),
         }
-    })?;
-    for (cut, read_back) in cuts.iter_mut().zip(&verified.cuts) {
-        cut.measured_deviation = read_back.both_ways;
-        cut.part_side_deviation = read_back.part_side;
-    }
-    let mut ellipses: Vec<(String, Ellipse)> =
-        to_cut.iter().map(|o| (o.name.clone(), o.ellipse)).collect();
-    let ellipse_holes: Vec<(String, Ellipse)> = part
-        .holes
+    })
+}
+
+/// The drawn elliptical inner boundaries, by name, for the preview and the report.
+fn ellipse_holes(part: &crate::chain::Part) -> Vec<(String, Ellipse)> {
+    part.holes
         .iter()
         .filter_map(|h| match &h.shape {
             InnerShape::Ellipse(e) => Some((h.name.clone(), *e)),
             InnerShape::Contour(_) => None,
         })
-        .collect();
-    ellipses.extend(ellipse_holes.iter().cloned());
-    let preview = preview::preview_svg(&PreviewInput {
-        title: &s.file_name,
-        part,
-        ellipses: &ellipses,
-        cuts: &cuts,
-        tool_diameter: resolved.tool_diameter,
-    });
-    let mut warnings = part.warnings.clone();
-    warnings.extend(unused_warnings(&solved.unused_bays));
-    warnings.extend(plan.warnings.iter().cloned());
-    warnings.extend(resolved.direction_warning.clone());
-    let report = report::build_report(ReportInput {
-        drawing: &s.file_name,
-        drawing_units: solved.drawing.units.symbol(),
-        machine: profile.name(),
-        machine_kind: profile.kind().as_str(),
-        tool_diameter: resolved.tool_diameter,
-        cut_depth: depth,
-        tolerance: s.tolerance,
-        solved: &infos,
-        ellipse_holes: &ellipse_holes,
-        cuts: &cuts,
-        warnings,
-        notes: solved.drawing.notes.clone(),
-        program_bounds: verified.bounds,
-        largest_arc_radius_mismatch: verified.largest_arc_radius_mismatch,
-        tab_height: resolved
-            .plan
-            .tabs
-            .filter(|t| t.height > 0.0 && !cuts_through)
-            .map(|t| t.height),
-    });
-    Ok(JobOutput {
-        program,
-        preview,
-        report,
-    })
+        .collect()
 }
