@@ -20,7 +20,7 @@ pub mod check;
 pub mod demo;
 pub mod fit;
 pub mod geom;
-pub mod job;
+pub mod pipeline;
 pub mod plan;
 pub mod post;
 pub mod preview;

@@ -4,7 +4,7 @@ use anyhow::{Context, Result, bail};
 use clap::{Args, Parser, Subcommand};
 use conicut::chain::{DEFAULT_BAY_LAYER, DEFAULT_MAX_GAP};
 use conicut::geom::Point;
-use conicut::job::{JobOutput, resolve, run_resolved, solve_job};
+use conicut::pipeline::{JobOutput, resolve, run_resolved, solve_job};
 use conicut::plan::{Direction, LeadKind};
 use conicut::post::MachineProfile;
 use conicut::read::Units;

@@ -31,7 +31,7 @@ mod machine;
 use conicut::chain::Part;
 use conicut::geom::ExactPath;
 use conicut::geom::{Ellipse, Point};
-use conicut::job::JobSettings;
+use conicut::pipeline::JobSettings;
 use conicut::plan::{CutSide, Direction, Opening, PlanOptions, plan_cuts};
 use entry_checks::*;
 use gcode_read::read_back;

@@ -33,7 +33,7 @@ mod machine;
 use conicut::fit::FittedCut;
 use conicut::geom::Move;
 use conicut::geom::Point;
-use conicut::job::JobSettings;
+use conicut::pipeline::JobSettings;
 use conicut::plan::{CutSide, FeatureKind};
 use conicut::post::{ProgramSettings, write_program};
 use entry_checks::*;

@@ -32,7 +32,7 @@ use conicut::chain::Part;
 use conicut::geom::Element;
 use conicut::geom::ExactPath;
 use conicut::geom::{Ellipse, Point};
-use conicut::job::{JobError, JobSettings, run_job};
+use conicut::pipeline::{JobError, JobSettings, run_job};
 use conicut::plan::{CutSide, Direction, Opening, PlanError, PlanOptions, plan_cuts};
 use entry_checks::*;
 use gcode_read::{ReadMove, read_back};
@@ -129,7 +129,7 @@ fn both_cuts_of_the_outline_keep_the_same_tabs() {
     let out = run(
         &JobSettings {
             finish_allowance: Some(s),
-            tabs: Some(conicut::job::TabRequest {
+            tabs: Some(conicut::pipeline::TabRequest {
                 count: Some(4),
                 ..Default::default()
             }),

@@ -1,4 +1,4 @@
-//! Lead settings (issue 4) on the demo part through `conicut::job::run_job`: small-hole
+//! Lead settings (issue 4) on the demo part through `conicut::pipeline::run_job`: small-hole
 //! fallbacks, sizes from the request, the job file and the profile, refusals, and the scrap check
 //! refusing a tampered program.
 //!
@@ -32,7 +32,7 @@ use conicut::check::scrap::{ScrapRules, check_scrap};
 use conicut::check::trace;
 use conicut::demo::{BOLT_HOLE_CENTRES, BOLT_HOLE_RADIUS, demo_dxf_bytes};
 use conicut::geom::{Ellipse, Point, Vec2};
-use conicut::job::{JobError, JobOutput, JobSettings, LeadRequest, run_job};
+use conicut::pipeline::{JobError, JobOutput, JobSettings, LeadRequest, run_job};
 use conicut::plan::{CutSide, LeadKind, Opening, PlanError, PlanOptions, plan_cuts};
 use conicut::post::MachineProfile;
 use lead_checks::*;

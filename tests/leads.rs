@@ -1,5 +1,5 @@
 //! Leads, overcut, lead-out and pierce points (issue 4), on the demo part through
-//! `conicut::job::run_job`, for every bundled profile and every lead shape.
+//! `conicut::pipeline::run_job`, for every bundled profile and every lead shape.
 //!
 //! The programs are read back with an outside RS274 reader (the `gcode` crate, values as `f32`,
 //! read back within 1e-4 mm) and a small interpreter of our own in `support/gcode_read.rs` and
@@ -27,7 +27,7 @@ mod gcode_read;
 mod lead_checks;
 #[path = "support/machine.rs"]
 mod machine;
-use conicut::job::LeadRequest;
+use conicut::pipeline::LeadRequest;
 use conicut::plan::{Direction, LeadKind};
 use lead_checks::*;
 use machine::profile;

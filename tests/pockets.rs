@@ -42,7 +42,7 @@ use conicut::geom::Element;
 use conicut::geom::ExactPath;
 use conicut::geom::Move;
 use conicut::geom::{Ellipse, Point, Vec2};
-use conicut::job::{JobError, JobSettings, LeadRequest, run_job};
+use conicut::pipeline::{JobError, JobSettings, LeadRequest, run_job};
 use conicut::plan::pocket::{self, RING_CHORD_TOLERANCE};
 use conicut::plan::{
     CutSide, FeatureKind, LeadKind, Opening, Plan, PlanError, PlanOptions, PlannedCut, plan_cuts,

@@ -19,7 +19,7 @@ mod gcode_read;
 #[path = "support/machine.rs"]
 mod machine;
 use conicut::demo::{CORNER_RADIUS, PLATE_HEIGHT, PLATE_WIDTH, demo_dxf_bytes};
-use conicut::job::{JobError, JobOutput, JobSettings, LeadRequest, TabRequest, run_job};
+use conicut::pipeline::{JobError, JobOutput, JobSettings, LeadRequest, TabRequest, run_job};
 use conicut::plan::LeadKind;
 use conicut::post::MachineProfile;
 use gcode_read::{ReadBack, ReadMove, marked_moves, read_back};

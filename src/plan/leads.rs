@@ -44,7 +44,7 @@
 //! Between two samples the distance to an edge can dip by at most half the spacing (it changes
 //! no faster than the point moves); that can happen only where a lead runs along an edge, which
 //! happens only where it joins the path (there it moves away from the edge). The program is
-//! checked again after it is written (`job::scrap`), within the job's tolerance.
+//! checked again after it is written (`check::scrap`), within the job's tolerance.
 //!
 //! # Finding room
 //!

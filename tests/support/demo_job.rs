@@ -4,7 +4,7 @@
 #![allow(dead_code)]
 
 use conicut::chain::{ChainOptions, Part, build_part};
-use conicut::job::JobSettings;
+use conicut::pipeline::JobSettings;
 use conicut::read::{Drawing, ReadOptions, read_dxf};
 
 /// The settings of `conicut demo` for the demo drawing with a tool (or kerf) of `tool_diameter`

@@ -10,7 +10,7 @@ use crate::gcode_read::{ReadBack, ReadMove, read_back};
 use crate::machine::profile;
 use conicut::geom::{Contour, Element};
 use conicut::geom::{Point, Segment};
-use conicut::job::{JobOutput, JobSettings, LeadRequest, run_job};
+use conicut::pipeline::{JobOutput, JobSettings, LeadRequest, run_job};
 use conicut::plan::LeadKind;
 use std::f64::consts::{SQRT_2, TAU};
 

@@ -12,7 +12,7 @@ use conicut::demo::{
     BOLT_HOLE_CENTRES, BOLT_HOLE_RADIUS, CORNER_RADIUS, PLATE_HEIGHT, PLATE_WIDTH, demo_dxf_bytes,
 };
 use conicut::geom::{Ellipse, Point, Vec2};
-use conicut::job::{JobOutput, JobSettings, LeadRequest, run_job};
+use conicut::pipeline::{JobOutput, JobSettings, LeadRequest, run_job};
 use conicut::plan::LeadKind;
 use conicut::post::MachineProfile;
 use conicut::report::Report;
