@@ -80,7 +80,7 @@ fn rounded_rectangle(w: f64, h: f64, r: f64) -> Contour {
     };
     let arc = |cx: f64, cy: f64, start: f64| {
         Element::Arc(ArcSegment {
-            center: Point::new(cx, cy),
+            centre: Point::new(cx, cy),
             radius: r,
             start_angle: start,
             sweep: std::f64::consts::FRAC_PI_2,

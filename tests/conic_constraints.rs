@@ -55,7 +55,7 @@ fn apollonius_from_a_known_ellipse() {
     let c = Conic::from_ellipse(&e);
     for i in 0..16 {
         let t = i as f64 * TAU / 16.0;
-        let x = e.center() + pv * t.cos() + qv * t.sin();
+        let x = e.centre() + pv * t.cos() + qv * t.sin();
         assert!(c.point_residual(x) < 1e-14);
     }
 }
@@ -93,7 +93,7 @@ proptest! {
         let c = Conic::from_ellipse(&e);
         for i in 0..8 {
             let t = i as f64 * TAU / 8.0;
-            prop_assert!(c.point_residual(e.center() + pv * t.cos() + qv * t.sin()) < 1e-12);
+            prop_assert!(c.point_residual(e.centre() + pv * t.cos() + qv * t.sin()) < 1e-12);
         }
     }
 }
@@ -197,7 +197,7 @@ fn five_point_check() {
     let s = &sols[0];
     assert_eq!(s.kind, ConicKind::Ellipse);
     let f = s.ellipse.unwrap();
-    assert!(f.center().distance(p(2.0, 1.0)) < 1e-12, "{f:?}");
+    assert!(f.centre().distance(p(2.0, 1.0)) < 1e-12, "{f:?}");
     assert_close(f.a(), 4.0, 1e-12, "a");
     assert_close(f.b(), 2.0, 1e-12, "b");
     assert_close(f.angle(), deg(20.0), 1e-12, "angle");
@@ -207,7 +207,7 @@ fn five_point_check() {
     let f = conics_through_and_tangent(&pts, &[]).unwrap()[0]
         .ellipse
         .unwrap();
-    assert!(f.center().distance(p(2.0, 1.0)) < 1e-11 && (f.a() - 4.0).abs() < 1e-11);
+    assert!(f.centre().distance(p(2.0, 1.0)) < 1e-11 && (f.a() - 4.0).abs() < 1e-11);
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -278,13 +278,13 @@ const WORKED: [Row; 4] = [
 fn touch_point(e: &Ellipse, l: &Line) -> Point {
     let (sxx, sxy, syy) = e.shape_matrix();
     let n = l.normal();
-    let n = if n.dot(e.center().to_vec()) > l.offset() {
+    let n = if n.dot(e.centre().to_vec()) > l.offset() {
         -n
     } else {
         n
     };
     let sn = Vec2::new(sxx * n.x + sxy * n.y, sxy * n.x + syy * n.y);
-    e.center() + sn / n.dot(sn).sqrt()
+    e.centre() + sn / n.dot(sn).sqrt()
 }
 
 #[test]
@@ -299,7 +299,7 @@ fn three_points_two_lines_worked_example_local_frame() {
     for (s, row) in sols.iter().zip(WORKED.iter()) {
         assert_eq!(s.kind, ConicKind::Ellipse);
         let e = s.ellipse.unwrap();
-        let c = e.center();
+        let c = e.centre();
         assert_close(c.x, row.local_centre.0, 1e-9, "local centre x");
         assert_close(c.y, row.local_centre.1, 1e-9, "local centre y");
         assert_close(e.a(), row.a, 1e-9, "a");
@@ -342,7 +342,7 @@ fn three_points_two_lines_worked_example_world_frame() {
     for (s, row) in sols.iter().zip(WORKED.iter()) {
         let e = s.ellipse.unwrap();
         assert!(
-            e.center()
+            e.centre()
                 .distance(p(row.world_centre.0, row.world_centre.1))
                 < 2e-9,
             "{e:?}"
@@ -483,7 +483,7 @@ fn generic_configuration_counts_and_values() {
             let i = want
                 .iter()
                 .position(|&(cx, cy, a, b, ang)| {
-                    e.center().distance(p(cx, cy)) < 2e-8
+                    e.centre().distance(p(cx, cy)) < 2e-8
                         && (e.a() - a).abs() < 1e-8
                         && (e.b() - b).abs() < 1e-8
                         && (e.angle().to_degrees() - ang).abs() < 1e-6

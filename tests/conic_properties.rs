@@ -110,7 +110,7 @@ fn check_solution(s: &ConicSolution, case: &Case, geometric: f64) -> Result<(), 
         // Independent of the conic code: distance to the ellipse and the support function. A
         // thin ellipse is ill-conditioned (a relative error in its coefficients moves its
         // narrow ends by about a/b times as much), so the allowance grows with a/b.
-        let size = (e.a() + e.center().to_vec().length()) * (e.a() / e.b()).max(1.0);
+        let size = (e.a() + e.centre().to_vec().length()) * (e.a() / e.b()).max(1.0);
         for &q in &case.points {
             prop_assert!(
                 e.distance_to(q).0 <= geometric * size,
@@ -158,7 +158,7 @@ proptest! {
         // Work in the ellipse's own scale (centre at the origin, a = 1) so that the test's own
         // matrix arithmetic is well conditioned.
         let e0 = &case.ellipse;
-        let (c0, s0) = (e0.center(), e0.a());
+        let (c0, s0) = (e0.centre(), e0.a());
         let to_local = |q: Point| p((q.x - c0.x) / s0, (q.y - c0.y) / s0);
         let case = Case {
             ellipse: Ellipse::new(p(0.0, 0.0), 1.0, e0.b() / s0, e0.angle()).unwrap(),
@@ -173,7 +173,7 @@ proptest! {
                 .collect(),
         };
         let e = &case.ellipse;
-        let j = circle_matrix(e.center(), (e.a() * e.b()).sqrt());
+        let j = circle_matrix(e.centre(), (e.a() * e.b()).sqrt());
         let j_inv = j.try_inverse().unwrap();
         // Points become their polar lines, lines their poles.
         let new_lines: Vec<Line> = case

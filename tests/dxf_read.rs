@@ -88,7 +88,7 @@ fn demo_round_trip_keeps_contours_holes_and_bays() {
             InnerShape::Contour(c) => match c.elements[..] {
                 [Element::Arc(a)] => {
                     assert!((a.radius - BOLT_HOLE_RADIUS).abs() < 1e-12);
-                    (a.center.x, a.center.y)
+                    (a.centre.x, a.centre.y)
                 }
                 _ => panic!("{} is not a circle", h.name),
             },
@@ -224,7 +224,7 @@ fn mirrored_arc_lands_where_the_arbitrary_axis_algorithm_puts_it() {
     let EntityKind::Arc(arc) = r.entities[0].kind else {
         panic!("not an arc")
     };
-    assert_eq!(arc.center, Point::new(-10.0, 5.0));
+    assert_eq!(arc.centre, Point::new(-10.0, 5.0));
     assert!(arc.sweep < 0.0, "runs clockwise");
     assert!((arc.sweep + std::f64::consts::FRAC_PI_2).abs() < 1e-12);
     // OCS start (14, 5) → WCS (−14, 5); OCS end (10, 9) → WCS (−10, 9).

@@ -69,8 +69,8 @@ struct Reference {
 }
 
 fn assert_matches(e: &Ellipse, r: &Reference, rel: f64) {
-    assert_rel(e.center().x, r.cx, rel, "centre x");
-    assert_rel(e.center().y, r.cy, rel, "centre y");
+    assert_rel(e.centre().x, r.cx, rel, "centre x");
+    assert_rel(e.centre().y, r.cy, rel, "centre y");
     assert_rel(e.a(), r.a, rel, "semi-major axis");
     assert_rel(e.b(), r.b, rel, "semi-minor axis");
     assert_rel(e.angle().to_degrees(), r.angle_deg, rel, "angle (degrees)");
@@ -115,8 +115,8 @@ fn exact_points_give_the_true_ellipse() {
     // 1e-10 in the reference; checked here to 1e-9 absolute.
     let fit = least_squares_ellipse(&sample(&full_ts(), 0.0)).unwrap();
     let e = fit.ellipse;
-    assert_abs(e.center().x, 30.0, 1e-9, "centre x");
-    assert_abs(e.center().y, -12.0, 1e-9, "centre y");
+    assert_abs(e.centre().x, 30.0, 1e-9, "centre x");
+    assert_abs(e.centre().y, -12.0, 1e-9, "centre y");
     assert_abs(e.a(), 40.0, 1e-9, "a");
     assert_abs(e.b(), 15.0, 1e-9, "b");
     assert_abs(e.angle().to_degrees(), 25.0, 1e-9, "angle (degrees)");
@@ -132,8 +132,8 @@ fn five_exact_points_fix_the_ellipse() {
     let ts = [0.3, 1.1, 2.9, 4.0, 5.5];
     let fit = least_squares_ellipse(&sample(&ts, 0.0)).unwrap();
     let e = fit.ellipse;
-    assert_abs(e.center().x, 30.0, 1e-9, "centre x");
-    assert_abs(e.center().y, -12.0, 1e-9, "centre y");
+    assert_abs(e.centre().x, 30.0, 1e-9, "centre x");
+    assert_abs(e.centre().y, -12.0, 1e-9, "centre y");
     assert_abs(e.a(), 40.0, 1e-9, "a");
     assert_abs(e.b(), 15.0, 1e-9, "b");
     assert_abs(e.angle().to_degrees(), 25.0, 1e-9, "angle (degrees)");
@@ -216,8 +216,8 @@ fn small_far_rotated_copy_reproduces_the_mapped_reference() {
         let e = fit.ellipse;
         // The centre is compared relative to the ellipse's size (0.01 · a): 1e-9 of it.
         let size = 0.01 * r.a;
-        assert_abs(e.center().x, want_c.x, 1e-9 * size, "centre x");
-        assert_abs(e.center().y, want_c.y, 1e-9 * size, "centre y");
+        assert_abs(e.centre().x, want_c.x, 1e-9 * size, "centre x");
+        assert_abs(e.centre().y, want_c.y, 1e-9 * size, "centre y");
         assert_rel(e.a(), 0.01 * r.a, 1e-9, "a");
         assert_rel(e.b(), 0.01 * r.b, 1e-9, "b");
         assert_rel(

@@ -196,12 +196,12 @@ fn circle_cut(name: &str, c: Point, radius: f64, ccw: bool, room: f64) -> Fitted
     cut.moves = vec![
         Move::Arc {
             to: Point::new(c.x - radius, c.y),
-            center: c,
+            centre: c,
             ccw,
         },
         Move::Arc {
             to: start,
-            center: c,
+            centre: c,
             ccw,
         },
     ];

@@ -224,7 +224,7 @@ fn a_finishing_pass_keeps_pocket_clearing_on_the_roughing_cut() {
             ExactPath::Contour(c) => c.elements.iter().map(Element::start).collect(),
         };
         for p in pts {
-            let dist = ellipse_distance(e.center(), e.a(), e.b(), e.angle(), p);
+            let dist = ellipse_distance(e.centre(), e.a(), e.b(), e.angle(), p);
             assert!(dist >= 3.0 + s - 1e-6, "a ring at {dist} mm cuts the stock");
         }
     }

@@ -73,17 +73,17 @@ fn pieces(cut: &FittedCut) -> Vec<Element> {
         .map(|m| {
             let piece = match *m {
                 Move::Line { to } => Element::Line(Segment::new(from, to)),
-                Move::Arc { to, center, ccw } => {
-                    let a0 = (from - center).angle();
-                    let a1 = (to - center).angle();
+                Move::Arc { to, centre, ccw } => {
+                    let a0 = (from - centre).angle();
+                    let a1 = (to - centre).angle();
                     let sweep = if ccw {
                         (a1 - a0).rem_euclid(TAU)
                     } else {
                         -(a0 - a1).rem_euclid(TAU)
                     };
                     Element::Arc(ArcSegment {
-                        center,
-                        radius: from.distance(center),
+                        centre,
+                        radius: from.distance(centre),
                         start_angle: a0,
                         sweep,
                     })
@@ -262,12 +262,12 @@ fn arcs_have_consistent_geometry() {
                     .unwrap();
                     let mut from = fitted.start;
                     for m in &fitted.moves {
-                        let Move::Arc { to, center, ccw } = *m else {
+                        let Move::Arc { to, centre, ccw } = *m else {
                             panic!("not an arc")
                         };
                         // Start and end on one circle (to 1e-9 mm), sweep below 180°, turning
                         // the way the cut runs.
-                        let (r0, r1) = (from.distance(center), to.distance(center));
+                        let (r0, r1) = (from.distance(centre), to.distance(centre));
                         assert!((r0 - r1).abs() <= 1e-9, "radii {r0} {r1}");
                         assert!(m.sweep(from).abs() < PI, "sweep {}", m.sweep(from));
                         assert_eq!(ccw, inset >= 0.0);
@@ -287,11 +287,11 @@ fn joint_kinks(cut: &FittedCut) -> Vec<f64> {
     let points = cut.end_points();
     let n = cut.moves.len();
     let tangent = |i: usize, at_end: bool| {
-        let Move::Arc { center, ccw, .. } = cut.moves[i] else {
+        let Move::Arc { centre, ccw, .. } = cut.moves[i] else {
             panic!("not an arc")
         };
         let p = if at_end { points[i + 1] } else { points[i] };
-        let r = p - center;
+        let r = p - centre;
         let t = conicut::geom::Vec2::new(-r.y, r.x) / r.length();
         if ccw { t } else { -t }
     };
@@ -490,7 +490,7 @@ fn ellipse_cut_from(e: Ellipse, inset: f64, start: f64) -> PlannedCut {
             start,
             clockwise,
         },
-        e.center(),
+        e.centre(),
         Edge::Ellipse(e),
     )
 }
@@ -559,7 +559,7 @@ fn axis_starts_give_quadrant_symmetric_splines() {
     for e in shapes() {
         let axis = conicut::geom::Vec2::new(e.angle().cos(), e.angle().sin());
         let local = |p: Point| {
-            let d = p - e.center();
+            let d = p - e.centre();
             (d.dot(axis), axis.cross(d))
         };
         let mirrored_in = |set: &[(f64, f64)], (x, y): (f64, f64)| {
@@ -577,7 +577,7 @@ fn axis_starts_give_quadrant_symmetric_splines() {
                         .moves
                         .iter()
                         .map(|m| match *m {
-                            Move::Arc { center, .. } => local(center),
+                            Move::Arc { centre, .. } => local(centre),
                             Move::Line { .. } => panic!("{case}: not an arc"),
                         })
                         .collect();
@@ -621,7 +621,7 @@ fn rounded_rectangle(w: f64, h: f64, r: f64) -> Vec<Element> {
     let line = |x0, y0, x1, y1| Element::Line(Segment::new(Point::new(x0, y0), Point::new(x1, y1)));
     let corner = |cx, cy, a0: f64| {
         Element::Arc(ArcSegment {
-            center: Point::new(cx, cy),
+            centre: Point::new(cx, cy),
             radius: r,
             start_angle: a0,
             sweep: PI / 2.0,
@@ -702,9 +702,9 @@ fn contour_arcs_stay_exact_and_polygons_stay_in_the_band() {
         assert!(both < 1e-9, "{}: arcs not exact, {both}", cut.name);
         let mut from = fitted.start;
         for m in &fitted.moves {
-            if let Move::Arc { to, center, .. } = *m {
+            if let Move::Arc { to, centre, .. } = *m {
                 assert!(m.sweep(from).abs() < PI);
-                assert!((from.distance(center) - to.distance(center)).abs() < 1e-9);
+                assert!((from.distance(centre) - to.distance(centre)).abs() < 1e-9);
             }
             from = m.end();
         }

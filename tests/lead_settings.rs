@@ -271,7 +271,7 @@ fn the_scrap_check_refuses_a_program_whose_lead_enters_the_part() {
             Some(Opening {
                 name: f.name.clone(),
                 ellipse: Ellipse::new(
-                    Point::new(e.center_mm[0], e.center_mm[1]),
+                    Point::new(e.centre_mm[0], e.centre_mm[1]),
                     e.semi_major_mm,
                     e.semi_minor_mm,
                     e.angle_deg.to_radians(),
@@ -300,7 +300,7 @@ fn the_scrap_check_refuses_a_program_whose_lead_enters_the_part() {
     // Tamper: after bay 1's "(lead-in)" comment, a detour to a point 1 mm outside its ellipse
     // (in the part) and back.
     let bay = &openings.iter().find(|o| o.name == "bay 1").unwrap().ellipse;
-    let bad = bay.center() + Vec2::from_angle(bay.angle()) * (bay.a() + 1.0);
+    let bad = bay.centre() + Vec2::from_angle(bay.angle()) * (bay.a() + 1.0);
     let mut lines: Vec<String> = out.program.lines().map(str::to_string).collect();
     let at = lines
         .iter()

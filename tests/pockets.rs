@@ -82,10 +82,10 @@ fn sample_line(from: Point, to: Point, out: &mut Vec<Point>) {
 /// Points along the arc `from → to` about `center` (counter-clockwise when `ccw`), at most
 /// [`STEP`] apart, `to` included; the radius runs linearly from the start's to the end's (a
 /// written arc's two radii differ by rounding). A closed arc (`from == to`) is a full turn.
-fn sample_arc(from: Point, to: Point, center: Point, ccw: bool, out: &mut Vec<Point>) {
-    let (r0, r1) = (from.distance(center), to.distance(center));
-    let a0 = (from.y - center.y).atan2(from.x - center.x);
-    let a1 = (to.y - center.y).atan2(to.x - center.x);
+fn sample_arc(from: Point, to: Point, centre: Point, ccw: bool, out: &mut Vec<Point>) {
+    let (r0, r1) = (from.distance(centre), to.distance(centre));
+    let a0 = (from.y - centre.y).atan2(from.x - centre.x);
+    let a1 = (to.y - centre.y).atan2(to.x - centre.x);
     let mut sweep = if ccw {
         (a1 - a0).rem_euclid(TAU)
     } else {
@@ -99,7 +99,7 @@ fn sample_arc(from: Point, to: Point, center: Point, ccw: bool, out: &mut Vec<Po
         let t = k as f64 / n as f64;
         let (s, c) = (a0 + t * sweep).sin_cos();
         let rr = r0 + t * (r1 - r0);
-        out.push(Point::new(center.x + rr * c, center.y + rr * s));
+        out.push(Point::new(centre.x + rr * c, centre.y + rr * s));
     }
 }
 
@@ -110,7 +110,7 @@ fn sample_moves(start: Point, moves: &[Move]) -> Vec<Point> {
     for m in moves {
         match *m {
             Move::Line { to } => sample_line(at, to, &mut out),
-            Move::Arc { to, center, ccw } => sample_arc(at, to, center, ccw, &mut out),
+            Move::Arc { to, centre, ccw } => sample_arc(at, to, centre, ccw, &mut out),
         }
         at = m.end();
     }
@@ -152,7 +152,7 @@ fn sample_exact(path: &ExactPath) -> Vec<Point> {
                     Element::Arc(a) => {
                         let (from, to) = (a.start_point(), a.end_point());
                         out.push(from);
-                        sample_arc(from, to, a.center, a.sweep > 0.0, &mut out);
+                        sample_arc(from, to, a.centre, a.sweep > 0.0, &mut out);
                     }
                 }
             }
@@ -173,7 +173,7 @@ fn islands(e: &Ellipse, samples: &[Point], reach: f64) -> Vec<Point> {
         e.support(Vec2::new(1.0, 0.0)),
         e.support(Vec2::new(0.0, 1.0)),
     );
-    let c = e.center();
+    let c = e.centre();
     let (x0, y0) = (c.x - hx, c.y - hy);
     let nx = (2.0 * hx / GRID).ceil() as usize + 1;
     let ny = (2.0 * hy / GRID).ceil() as usize + 1;
@@ -321,7 +321,7 @@ fn check_hand_made(e: Ellipse, d: f64, stepover: f64) -> PlannedCut {
     }
     starts.push(cut.path.start_point());
     for s in &starts {
-        let v = *s - e.center();
+        let v = *s - e.centre();
         assert!(
             v.cross(axis).abs() < 1e-9,
             "a ring starts off the major axis"
@@ -496,8 +496,8 @@ fn trimmed_ring_vertices_and_chords_lie_on_and_inside_the_level_set() {
         // Counter-clockwise from the +major-axis side; the corners of a trimmed ring on the
         // major axis (b²/a = 2.4 here).
         let axis = Vec2::from_angle(e.angle());
-        assert!((poly[0] - e.center()).cross(axis).abs() < 1e-9);
-        assert!((poly[0] - e.center()).dot(axis) > 0.0);
+        assert!((poly[0] - e.centre()).cross(axis).abs() < 1e-9);
+        assert!((poly[0] - e.centre()).dot(axis) > 0.0);
         let area: f64 = poly
             .windows(2)
             .map(|w| w[0].to_vec().cross(w[1].to_vec()))
@@ -549,7 +549,7 @@ fn the_coverage_check_finds_islands() {
     // … and they lie near the major axis.
     let axis = Vec2::from_angle(e.angle());
     assert!(
-        left.iter().all(|p| (*p - e.center()).cross(axis).abs() < r),
+        left.iter().all(|p| (*p - e.centre()).cross(axis).abs() < r),
         "islands away from the major axis"
     );
 }
@@ -647,7 +647,7 @@ fn demo_pockets(scrap_side_only: bool) {
             .as_ref()
             .expect("the pocket's ellipse in the report");
         let e = Ellipse::new(
-            Point::new(sum.center_mm[0], sum.center_mm[1]),
+            Point::new(sum.centre_mm[0], sum.centre_mm[1]),
             sum.semi_major_mm,
             sum.semi_minor_mm,
             sum.angle_deg.to_radians(),

@@ -162,7 +162,7 @@ fn nist_centre_format_example_reads_back() {
     let profile = profile("metric-mill");
     let arc = Move::Arc {
         to: Point::new(10.0, 16.0),
-        center: Point::new(10.0, 11.0),
+        centre: Point::new(10.0, 11.0),
         ccw: false,
     };
     let program = write_program(
@@ -224,7 +224,7 @@ fn half_turns_and_more_are_split_and_directions_kept() {
     for (a0, a1, ccw, expected) in cases {
         let moves = vec![Move::Arc {
             to: on(a1),
-            center: c,
+            centre: c,
             ccw,
         }];
         let program =
@@ -245,12 +245,12 @@ fn half_turns_and_more_are_split_and_directions_kept() {
     let moves = vec![
         Move::Arc {
             to: on(180.0),
-            center: c,
+            centre: c,
             ccw: false,
         },
         Move::Arc {
             to: on(0.0),
-            center: c,
+            centre: c,
             ccw: false,
         },
     ];
@@ -270,7 +270,7 @@ fn lines_only_profiles_refuse_arcs() {
     let c = Point::new(50.0, 50.0);
     let moves = vec![Move::Arc {
         to: Point::new(50.0, 60.0),
-        center: c,
+        centre: c,
         ccw: true,
     }];
     let err = write_program(
@@ -304,7 +304,7 @@ fn envelope_check_includes_the_bulge_of_arcs() {
     let arc = |ccw| {
         vec![Move::Arc {
             to: Point::new(390.0, 85.0),
-            center: c,
+            centre: c,
             ccw,
         }]
     };
@@ -362,7 +362,7 @@ fn check_random_arc(profile: &MachineProfile, (c, r, a0, sweep): (Point, f64, f6
     let ccw = sweep > 0.0;
     let moves = vec![Move::Arc {
         to: end,
-        center: c,
+        centre: c,
         ccw,
     }];
     let plunge = c + Vec2::from_angle(a0) * (r + 1.0);
@@ -380,7 +380,7 @@ fn check_random_arc(profile: &MachineProfile, (c, r, a0, sweep): (Point, f64, f6
     let path = &reads[1..];
     let exact_sweep = Move::Arc {
         to: end,
-        center: c,
+        centre: c,
         ccw,
     }
     .sweep(start);

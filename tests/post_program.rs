@@ -179,7 +179,7 @@ fn points_outside_the_travel_envelope_are_refused() {
     let mut cut = square_cut("hole 5", 10.0, 10.0, 5.0);
     cut.lead_out = vec![conicut::geom::Move::Arc {
         to: Point::new(5.0, 28.0),
-        center: Point::new(5.0, 12.0),
+        centre: Point::new(5.0, 12.0),
         ccw: false,
     }];
     cut.overcut = vec![conicut::geom::Move::Line {

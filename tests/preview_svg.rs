@@ -22,7 +22,7 @@ fn line(a: Point, b: Point) -> Element {
 /// (counter-clockwise), with a circular hole of radius 8 at (170, 25).
 fn plate() -> Part {
     let corner = ArcSegment {
-        center: Point::new(180.0, 100.0),
+        centre: Point::new(180.0, 100.0),
         radius: 20.0,
         start_angle: 0.0,
         sweep: FRAC_PI_2,
@@ -83,7 +83,7 @@ fn cut_for(name: &str, e: &Ellipse) -> FittedCut {
         name,
         FeatureKind::Opening,
         CutSide::Inside,
-        e.center(),
+        e.centre(),
         &path,
         0.05,
         0.03,
@@ -257,8 +257,8 @@ fn ellipse_arcs_end_on_the_major_axis_ends() {
     );
     // Major-axis ends: centre ± a (cos θ, sin θ) (definition of the ellipse's axes).
     let (s, c) = e.angle().sin_cos();
-    let end_plus = Point::new(e.center().x + e.a() * c, e.center().y + e.a() * s);
-    let end_minus = Point::new(e.center().x - e.a() * c, e.center().y - e.a() * s);
+    let end_plus = Point::new(e.centre().x + e.a() * c, e.centre().y + e.a() * s);
+    let end_minus = Point::new(e.centre().x - e.a() * c, e.centre().y - e.a() * s);
     assert!(start.distance(end_plus) < 1e-4, "{start:?} vs {end_plus:?}");
     assert!(mid.distance(end_minus) < 1e-4, "{mid:?} vs {end_minus:?}");
     assert!(end.distance(end_plus) < 1e-4);
@@ -280,7 +280,7 @@ fn ellipse_arcs_end_on_the_major_axis_ends() {
             y2,
         );
         assert!(
-            (cx - e.center().x).abs() < 1e-3 && (cy + e.center().y).abs() < 1e-3,
+            (cx - e.centre().x).abs() < 1e-3 && (cy + e.centre().y).abs() < 1e-3,
             "{cx} {cy}"
         );
     }
@@ -506,7 +506,7 @@ fn stadium_and_hook() -> [FittedCut; 2] {
         },
         Move::Arc {
             to: Point::new(60.0, 40.0),
-            center: Point::new(60.0, 30.0),
+            centre: Point::new(60.0, 30.0),
             ccw: true,
         },
         Move::Line {
@@ -514,7 +514,7 @@ fn stadium_and_hook() -> [FittedCut; 2] {
         },
         Move::Arc {
             to: Point::new(40.0, 20.0),
-            center: Point::new(40.0, 30.0),
+            centre: Point::new(40.0, 30.0),
             ccw: true,
         },
     ];
@@ -529,7 +529,7 @@ fn stadium_and_hook() -> [FittedCut; 2] {
     );
     hook.moves = vec![Move::Arc {
         to: Point::new(120.0, 40.0),
-        center: Point::new(120.0, 30.0),
+        centre: Point::new(120.0, 30.0),
         ccw: false,
     }];
     [stadium, hook]

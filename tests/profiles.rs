@@ -34,9 +34,9 @@ use std::path::Path;
 fn oval_cut() -> FittedCut {
     let (cx, cy) = (60.0, 40.0);
     let p = |x: f64, y: f64| Point::new(cx + x, cy + y);
-    let arc = |to: Point, center: Point| Move::Arc {
+    let arc = |to: Point, centre: Point| Move::Arc {
         to,
-        center,
+        centre,
         ccw: true,
     };
     let moves = vec![

@@ -26,12 +26,12 @@ fn rel(a: f64, b: f64) -> f64 {
 }
 
 /// Asserts centre, semi-axes and area to 1e-9 relative, and the angle (degrees) when given.
-fn assert_ellipse(e: &Ellipse, center: (f64, f64), a: f64, b: f64, angle_deg: Option<f64>) {
-    let c = e.center();
+fn assert_ellipse(e: &Ellipse, centre: (f64, f64), a: f64, b: f64, angle_deg: Option<f64>) {
+    let c = e.centre();
     assert!(
-        (c.x - center.0).abs() <= 1e-9 * (1.0 + center.0.abs())
-            && (c.y - center.1).abs() <= 1e-9 * (1.0 + center.1.abs()),
-        "centre {c:?} vs {center:?}"
+        (c.x - centre.0).abs() <= 1e-9 * (1.0 + centre.0.abs())
+            && (c.y - centre.1).abs() <= 1e-9 * (1.0 + centre.1.abs()),
+        "centre {c:?} vs {centre:?}"
     );
     assert!(rel(e.a(), a) < 1e-9, "a = {} vs {a}", e.a());
     assert!(rel(e.b(), b) < 1e-9, "b = {} vs {b}", e.b());
@@ -157,11 +157,11 @@ fn newton_line_for_the_tabled_quadrilaterals() {
     // x + y = 5 (irregular_2).
     let c = solve(&[(0.0, 0.0), (5.0, 0.0), (4.0, 3.0), (1.0, 4.0)])
         .ellipse
-        .center();
+        .centre();
     assert!((c.x - 2.0 * c.y + 1.0).abs() < 1e-12);
     let c = solve(&[(0.0, 0.0), (7.0, 1.0), (5.0, 5.0), (-1.0, 3.0)])
         .ellipse
-        .center();
+        .centre();
     assert!((c.x + c.y - 5.0).abs() < 1e-12);
 }
 
@@ -176,7 +176,7 @@ fn relative_discriminant(e: &Ellipse, p: Point, q: Point) -> f64 {
         u.0 * (qxx * v.0 + qxy * v.1) + u.1 * (qxy * v.0 + qyy * v.1)
     };
     let d = (q.x - p.x, q.y - p.y);
-    let r = (p.x - e.center().x, p.y - e.center().y);
+    let r = (p.x - e.centre().x, p.y - e.centre().y);
     let (a, b, c1) = (quad(d, d), quad(d, r), quad(r, r));
     let disc = b * b - a * (c1 - 1.0);
     disc.abs() / (a * c1)
@@ -236,7 +236,7 @@ proptest! {
         }
         let m1 = p[0].midpoint(p[2]);
         let m2 = p[1].midpoint(p[3]);
-        let c = e.center();
+        let c = e.centre();
         let scale = (m2 - m1).length() * (c - m1).length() + 1e-12 * (p[0] - p[2]).length_squared();
         prop_assert!(((c - m1).cross(m2 - m1)).abs() <= 1e-9 * scale.max(1e-300));
         let area_q: f64 = (0..4).map(|i| 0.5 * p[i].to_vec().cross(p[(i + 1) % 4].to_vec())).sum::<f64>().abs();

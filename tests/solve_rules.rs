@@ -109,7 +109,7 @@ fn centre_nearest_a_point() {
     let off = Point::new(on.x + 0.5, on.y - 1.0); // along the normal (1, −2)
     let s = solve_bay(&bay(&IRREGULAR_1), &Rule::CentreNear(off), 0.0).unwrap();
     let e = s.solution.ellipse;
-    assert!(e.center().distance(on) < 1e-12);
+    assert!(e.centre().distance(on) < 1e-12);
     assert!(close(e.a(), 2.37058059551, 1e-10) && close(e.b(), 1.26208067895, 1e-10));
     assert!((e.angle().to_degrees() + 42.38185235).abs() < 1e-7);
     // A point beyond the segment's end is refused with the segment named.
@@ -167,7 +167,7 @@ fn parallelogram_special_cases() {
     for c in s.solution.candidates.iter().filter(|c| c.cuttable) {
         let e = c.ellipse.unwrap();
         assert!(close(e.a(), 2.39292321353, 1e-9));
-        assert!(e.center().distance(Point::new(2.5, 1.0)) < 1e-12);
+        assert!(e.centre().distance(Point::new(2.5, 1.0)) < 1e-12);
     }
 }
 
@@ -183,7 +183,7 @@ fn three_sided_bays() {
     assert!(close(s.solution.ellipse.area(), 7.25519745693687, 1e-12));
     let c = Point::new(2.7, 1.2);
     let s = solve_bay(&bay(&t), &Rule::CentreNear(c), 0.0).unwrap();
-    assert!(s.solution.ellipse.center().distance(c) < 1e-12);
+    assert!(s.solution.ellipse.centre().distance(c) < 1e-12);
     assert!(s.solution.candidates[0].residual < 1e-12);
     assert!(solve_bay(&bay(&t), &Rule::Area(3.0), 0.0).is_err());
 }

@@ -47,7 +47,7 @@ impl D {
         self.push(
             layer,
             EntityKind::Circle {
-                center: Point::new(x, y),
+                centre: Point::new(x, y),
                 radius: r,
             },
         )
@@ -98,7 +98,7 @@ fn outline_holes_and_bays_are_sorted_and_named() {
     let Element::Arc(a) = c.elements[0] else {
         panic!("a circle is one arc")
     };
-    assert_eq!(a.center, Point::new(10.0, 10.0), "hole 1 is the left one");
+    assert_eq!(a.centre, Point::new(10.0, 10.0), "hole 1 is the left one");
     assert!(a.is_full_circle());
     // Layer names match case-insensitively; bay 1 is the left one.
     assert_eq!(part.bays.len(), 2);

@@ -62,8 +62,8 @@ fn add_entity(
             elements: vec![Element::Arc(*a)],
             handles: vec![h],
         }),
-        EntityKind::Circle { center, radius } => layer.loops.push(Piece {
-            elements: vec![Element::Arc(ArcSegment::circle(*center, *radius))],
+        EntityKind::Circle { centre, radius } => layer.loops.push(Piece {
+            elements: vec![Element::Arc(ArcSegment::circle(*centre, *radius))],
             handles: vec![h],
         }),
         EntityKind::Polyline { vertices, closed } => {
@@ -81,7 +81,7 @@ fn add_entity(
                 return Err(ChainError::EllipseOnBayLayer {
                     layer: e.layer.clone(),
                     handle: h,
-                    at: ellipse.center(),
+                    at: ellipse.centre(),
                 });
             }
             layer.ellipses.push((*ellipse, h));

@@ -205,15 +205,15 @@ impl<'a> Written<'a> {
                 };
                 p.distance(from.lerp(to, t))
             }
-            m @ Move::Arc { to, center, .. } => {
+            m @ Move::Arc { to, centre, .. } => {
                 let sweep = m.sweep(from);
-                let a0 = (from - center).angle();
+                let a0 = (from - centre).angle();
                 let rel = if sweep >= 0.0 {
-                    ((p - center).angle() - a0).rem_euclid(TAU)
+                    ((p - centre).angle() - a0).rem_euclid(TAU)
                 } else {
-                    (a0 - (p - center).angle()).rem_euclid(TAU)
+                    (a0 - (p - centre).angle()).rem_euclid(TAU)
                 };
-                if p != center && rel <= sweep.abs() {
+                if p != centre && rel <= sweep.abs() {
                     p.distance(m.point_at(from, rel / sweep.abs()))
                 } else {
                     p.distance(from).min(p.distance(to))
@@ -243,10 +243,10 @@ impl<'a> Written<'a> {
 /// sweeps through (at the larger of its two radii).
 fn box_of(from: Point, m: &Move) -> (Point, Point) {
     let mut pts = vec![from, m.end()];
-    if let Move::Arc { to, center, .. } = *m {
-        let r = from.distance(center).max(to.distance(center));
+    if let Move::Arc { to, centre, .. } = *m {
+        let r = from.distance(centre).max(to.distance(centre));
         let sweep = m.sweep(from);
-        let a0 = (from - center).angle();
+        let a0 = (from - centre).angle();
         for k in 0..4 {
             let axis = k as f64 * FRAC_PI_2;
             let rel = if sweep >= 0.0 {
@@ -256,7 +256,7 @@ fn box_of(from: Point, m: &Move) -> (Point, Point) {
             };
             if rel <= sweep.abs() {
                 let (s, c) = axis.sin_cos();
-                pts.push(Point::new(center.x + r * c, center.y + r * s));
+                pts.push(Point::new(centre.x + r * c, centre.y + r * s));
             }
         }
     }

@@ -348,7 +348,7 @@ fn bounds_of(moves: &[TraceMove]) -> Option<([f64; 3], [f64; 3])> {
         if let Some((c, ccw)) = m.arc {
             let mv = Move::Arc {
                 to: Point::new(m.to[0], m.to[1]),
-                center: Point::new(c[0], c[1]),
+                centre: Point::new(c[0], c[1]),
                 ccw,
             };
             let from = Point::new(m.from[0], m.from[1]);
@@ -506,7 +506,7 @@ fn contour_of(trace: &Trace, at: &[usize]) -> (Point, Vec<Move>) {
             match m.arc {
                 Some((c, ccw)) => Move::Arc {
                     to,
-                    center: Point::new(c[0], c[1]),
+                    centre: Point::new(c[0], c[1]),
                     ccw,
                 },
                 None => Move::Line { to },

@@ -192,7 +192,7 @@ enum Reach {
 impl Reach {
     fn of(edge: &Edge) -> Reach {
         match edge {
-            Edge::Ellipse(e) => Reach::Disc(e.center(), e.a()),
+            Edge::Ellipse(e) => Reach::Disc(e.centre(), e.a()),
             Edge::Contour(c) => c
                 .bounds()
                 .map_or(Reach::Unknown, |(lo, hi)| Reach::Box(lo, hi)),
@@ -231,7 +231,7 @@ fn sample_move(m: &TraceMove) -> Vec<(Point, f64)> {
     let mv = match m.arc {
         Some((c, ccw)) => Move::Arc {
             to,
-            center: Point::new(c[0], c[1]),
+            centre: Point::new(c[0], c[1]),
             ccw,
         },
         None => Move::Line { to },

@@ -45,13 +45,13 @@ impl ConvexCurve for EllipseCurve {
 
 /// A circle about `center` of radius `radius`, counter-clockwise in the polar angle `t`.
 pub(crate) struct CircleCurve {
-    pub center: Point,
+    pub centre: Point,
     pub radius: f64,
 }
 
 impl ConvexCurve for CircleCurve {
     fn point(&self, t: f64, s: f64) -> Point {
-        self.center + Vec2::from_angle(t) * (self.radius + s)
+        self.centre + Vec2::from_angle(t) * (self.radius + s)
     }
 }
 

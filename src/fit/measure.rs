@@ -73,10 +73,10 @@ fn pieces_of(start: Point, moves: &[Move]) -> Vec<Element> {
     for m in moves {
         out.push(match *m {
             Move::Line { to } => Element::Line(Segment::new(from, to)),
-            Move::Arc { center, .. } => Element::Arc(ArcSegment {
-                center,
-                radius: from.distance(center),
-                start_angle: (from - center).angle(),
+            Move::Arc { centre, .. } => Element::Arc(ArcSegment {
+                centre,
+                radius: from.distance(centre),
+                start_angle: (from - centre).angle(),
                 sweep: m.sweep(from),
             }),
         });
@@ -154,7 +154,7 @@ fn signed_distance_to_exact(exact: &ExactPath, p: Point) -> f64 {
                 if d < best.0 {
                     let left = match e {
                         Element::Line(s) => (s.end - s.start).cross(p - s.start) > 0.0,
-                        Element::Arc(a) => (p.distance(a.center) < a.radius) == (a.sweep > 0.0),
+                        Element::Arc(a) => (p.distance(a.centre) < a.radius) == (a.sweep > 0.0),
                     };
                     best = (d, left);
                 }

@@ -475,7 +475,7 @@ fn exact_arc(a: &ArcSegment, end: Point) -> Vec<Move> {
             } else {
                 a.point_at(k as f64 / pieces as f64)
             },
-            center: a.center,
+            centre: a.centre,
             ccw: a.sweep > 0.0,
         })
         .collect()
@@ -493,7 +493,7 @@ fn arc_polygon(
     options: &FitOptions,
 ) -> Vec<Point> {
     let curve = CircleCurve {
-        center: a.center,
+        centre: a.centre,
         radius: a.radius,
     };
     let ccw = a.sweep > 0.0;

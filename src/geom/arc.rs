@@ -8,7 +8,8 @@ use std::f64::consts::TAU;
 /// counter-clockwise). A sweep of ±2π is a full circle that starts and ends at the same point.
 #[derive(Debug, Clone, Copy, PartialEq, Serialize)]
 pub struct ArcSegment {
-    pub center: Point,
+    #[serde(rename = "center")]
+    pub centre: Point,
     pub radius: f64,
     pub start_angle: f64,
     pub sweep: f64,
@@ -16,9 +17,9 @@ pub struct ArcSegment {
 
 impl ArcSegment {
     /// A full circle, counter-clockwise from angle 0.
-    pub fn circle(center: Point, radius: f64) -> Self {
+    pub fn circle(centre: Point, radius: f64) -> Self {
         ArcSegment {
-            center,
+            centre,
             radius,
             start_angle: 0.0,
             sweep: TAU,
@@ -36,11 +37,11 @@ impl ArcSegment {
         let sweep = 4.0 * bulge.atan();
         // Distance from the chord midpoint to the centre, signed towards the chord's left.
         let h = c / 2.0 / (sweep / 2.0).tan();
-        let center = start.midpoint(end) + chord.perp() / c * h;
-        let radius = center.distance(start);
-        let start_angle = (start - center).angle();
+        let centre = start.midpoint(end) + chord.perp() / c * h;
+        let radius = centre.distance(start);
+        let start_angle = (start - centre).angle();
         Some(ArcSegment {
-            center,
+            centre,
             radius,
             start_angle,
             sweep,
@@ -61,7 +62,7 @@ impl ArcSegment {
 
     /// The point at angle `angle` on the circle.
     pub fn point_at_angle(&self, angle: f64) -> Point {
-        self.center + Vec2::from_angle(angle) * self.radius
+        self.centre + Vec2::from_angle(angle) * self.radius
     }
 
     /// The point at fraction `t` of the sweep (0 at the start, 1 at the end).
@@ -90,7 +91,7 @@ impl ArcSegment {
     /// The same arc travelled the other way.
     pub fn reversed(&self) -> Self {
         ArcSegment {
-            center: self.center,
+            centre: self.centre,
             radius: self.radius,
             start_angle: self.end_angle(),
             sweep: -self.sweep,
@@ -112,7 +113,7 @@ impl ArcSegment {
 
     /// The shortest distance from `p` to any point of the arc.
     pub fn distance_to(&self, p: Point) -> f64 {
-        let v = p - self.center;
+        let v = p - self.centre;
         if v.length() > 0.0 && self.contains_angle(v.angle()) {
             (v.length() - self.radius).abs()
         } else {
@@ -132,7 +133,7 @@ mod tests {
         // right of the chord (DXF reference, VERTEX group 42).
         let a = ArcSegment::from_bulge(Point::new(0.0, 0.0), Point::new(2.0, 0.0), 1.0).unwrap();
         assert!((a.radius - 1.0).abs() < 1e-15);
-        assert!((a.center.x - 1.0).abs() < 1e-15 && a.center.y.abs() < 1e-15);
+        assert!((a.centre.x - 1.0).abs() < 1e-15 && a.centre.y.abs() < 1e-15);
         assert!(a.point_at(0.5).y < 0.0);
         assert!(a.end_point().distance(Point::new(2.0, 0.0)) < 1e-15);
     }
@@ -140,7 +141,7 @@ mod tests {
     #[test]
     fn distance_to_arc_uses_ends_outside_the_sweep() {
         let a = ArcSegment {
-            center: Point::ORIGIN,
+            centre: Point::ORIGIN,
             radius: 1.0,
             start_angle: 0.0,
             sweep: std::f64::consts::FRAC_PI_2,

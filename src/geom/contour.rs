@@ -77,7 +77,7 @@ impl Element {
             Element::Line(s) => 0.5 * s.start.to_vec().cross(s.end.to_vec()),
             Element::Arc(a) => {
                 // ½ ∫ (x dy − y dx) over the arc = ½ [c × (p1 − p0) + r² Δθ].
-                let c = a.center.to_vec();
+                let c = a.centre.to_vec();
                 let chord = a.end_point() - a.start_point();
                 0.5 * (c.cross(chord) + a.radius * a.radius * a.sweep)
             }
@@ -146,7 +146,7 @@ impl Contour {
                     if !full {
                         total += angle_between(s - p, t - p);
                     }
-                    if p.distance(a.center) < a.radius {
+                    if p.distance(a.centre) < a.radius {
                         let side = |q: Point| (t - s).cross(q - s);
                         if full || side(p) * side(a.point_at(0.5)) > 0.0 {
                             total += std::f64::consts::TAU * a.sweep.signum();

@@ -22,7 +22,8 @@ pub enum EllipseError {
 /// An ellipse: centre, semi-axes `a ≥ b > 0` and major-axis angle in (−π/2, π/2].
 #[derive(Debug, Clone, Copy, PartialEq, Serialize)]
 pub struct Ellipse {
-    center: Point,
+    #[serde(rename = "center")]
+    centre: Point,
     a: f64,
     b: f64,
     angle: f64,
@@ -31,11 +32,11 @@ pub struct Ellipse {
 impl Ellipse {
     /// An ellipse with semi-axes `r1` along the direction `angle` and `r2` across it. The axes are
     /// swapped and the angle normalised so that `a ≥ b` and the angle lies in (−π/2, π/2].
-    pub fn new(center: Point, r1: f64, r2: f64, angle: f64) -> Result<Self, EllipseError> {
+    pub fn new(centre: Point, r1: f64, r2: f64, angle: f64) -> Result<Self, EllipseError> {
         if !(r1 > 0.0 && r2 > 0.0 && r1.is_finite() && r2.is_finite()) {
             return Err(EllipseError::BadAxes(r1, r2));
         }
-        if !(center.is_finite() && angle.is_finite()) {
+        if !(centre.is_finite() && angle.is_finite()) {
             return Err(EllipseError::NotFinite);
         }
         let (a, b, angle) = if r1 >= r2 {
@@ -44,7 +45,7 @@ impl Ellipse {
             (r2, r1, angle + FRAC_PI_2)
         };
         Ok(Ellipse {
-            center,
+            centre,
             a,
             b,
             angle: normalize_axis_angle(angle),
@@ -58,7 +59,7 @@ impl Ellipse {
     /// `m = (sxx+syy)/2`, `d = hypot((sxx−syy)/2, sxy)`, the eigenvalues are `m ± d` and the major
     /// axis makes the angle `½ atan2(2 sxy, sxx − syy)` with +x.
     pub fn from_shape_matrix(
-        center: Point,
+        centre: Point,
         sxx: f64,
         sxy: f64,
         syy: f64,
@@ -73,11 +74,11 @@ impl Ellipse {
         }
         let small = det / big;
         let angle = 0.5 * (2.0 * sxy).atan2(sxx - syy);
-        Ellipse::new(center, big.sqrt(), small.sqrt(), angle)
+        Ellipse::new(centre, big.sqrt(), small.sqrt(), angle)
     }
 
-    pub fn center(&self) -> Point {
-        self.center
+    pub fn centre(&self) -> Point {
+        self.centre
     }
 
     /// Semi-major axis.
@@ -123,11 +124,11 @@ impl Ellipse {
     }
 
     fn world_from_local(&self, local: Vec2) -> Point {
-        self.center + local.rotated(self.angle)
+        self.centre + local.rotated(self.angle)
     }
 
     fn local_from_world(&self, p: Point) -> Vec2 {
-        (p - self.center).rotated(-self.angle)
+        (p - self.centre).rotated(-self.angle)
     }
 
     /// The point at eccentric anomaly `t`.
@@ -266,7 +267,7 @@ mod tests {
     fn shape_matrix_round_trip() {
         let e = Ellipse::new(Point::new(1.0, 2.0), 5.0, 3.0, 30f64.to_radians()).unwrap();
         let (sxx, sxy, syy) = e.shape_matrix();
-        let f = Ellipse::from_shape_matrix(e.center(), sxx, sxy, syy).unwrap();
+        let f = Ellipse::from_shape_matrix(e.centre(), sxx, sxy, syy).unwrap();
         assert!((f.a() - 5.0).abs() < 1e-13 && (f.b() - 3.0).abs() < 1e-13);
         assert!((f.angle() - e.angle()).abs() < 1e-13);
         assert!(Ellipse::from_shape_matrix(Point::ORIGIN, 1.0, 2.0, 1.0).is_err());
@@ -319,7 +320,7 @@ mod tests {
             Point::new(10.0, 2.0),
             e.point(1.0),
             // On the major axis up to rounding: the nearest point leaves the axis.
-            e.center() + crate::geom::Vec2::from_angle(e.angle()) * 0.7,
+            e.centre() + crate::geom::Vec2::from_angle(e.angle()) * 0.7,
         ];
         for p in probes {
             let (d, _) = e.distance_to(p);

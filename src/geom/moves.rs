@@ -13,7 +13,12 @@ pub enum Move {
     /// A circular arc (G2 clockwise, G3 counter-clockwise, seen from +Z) about `center`, ending
     /// at `to`. Its radius is the distance from `center` to the start; the end lies on the same
     /// circle (to rounding). A sweep of a full turn is never used: split it first.
-    Arc { to: Point, center: Point, ccw: bool },
+    Arc {
+        to: Point,
+        #[serde(rename = "center")]
+        centre: Point,
+        ccw: bool,
+    },
 }
 
 impl Move {
@@ -28,9 +33,9 @@ impl Move {
     pub fn sweep(&self, from: Point) -> f64 {
         match *self {
             Move::Line { .. } => 0.0,
-            Move::Arc { to, center, ccw } => {
-                let a0 = (from - center).angle();
-                let a1 = (to - center).angle();
+            Move::Arc { to, centre, ccw } => {
+                let a0 = (from - centre).angle();
+                let a1 = (to - centre).angle();
                 if ccw {
                     (a1 - a0).rem_euclid(TAU)
                 } else {
@@ -46,12 +51,12 @@ impl Move {
     pub fn point_at(&self, from: Point, t: f64) -> Point {
         match *self {
             Move::Line { to } => from.lerp(to, t),
-            Move::Arc { to, center, .. } => {
-                let r0 = from.distance(center);
-                let r1 = to.distance(center);
-                let a0 = (from - center).angle();
+            Move::Arc { to, centre, .. } => {
+                let r0 = from.distance(centre);
+                let r1 = to.distance(centre);
+                let a0 = (from - centre).angle();
                 let sweep = self.sweep(from);
-                center + Vec2::from_angle(a0 + t * sweep) * (r0 + t * (r1 - r0))
+                centre + Vec2::from_angle(a0 + t * sweep) * (r0 + t * (r1 - r0))
             }
         }
     }
@@ -60,7 +65,7 @@ impl Move {
     pub fn length(&self, from: Point) -> f64 {
         match *self {
             Move::Line { to } => from.distance(to),
-            Move::Arc { center, .. } => from.distance(center) * self.sweep(from).abs(),
+            Move::Arc { centre, .. } => from.distance(centre) * self.sweep(from).abs(),
         }
     }
 
@@ -68,8 +73,8 @@ impl Move {
     pub fn start_tangent(&self, from: Point) -> Option<Vec2> {
         match *self {
             Move::Line { to } => (to - from).normalized(),
-            Move::Arc { center, ccw, .. } => {
-                let r = (from - center).normalized()?.perp();
+            Move::Arc { centre, ccw, .. } => {
+                let r = (from - centre).normalized()?.perp();
                 Some(if ccw { r } else { -r })
             }
         }
@@ -79,8 +84,8 @@ impl Move {
     pub fn end_tangent(&self, from: Point) -> Option<Vec2> {
         match *self {
             Move::Line { to } => (to - from).normalized(),
-            Move::Arc { to, center, ccw } => {
-                let r = (to - center).normalized()?.perp();
+            Move::Arc { to, centre, ccw } => {
+                let r = (to - centre).normalized()?.perp();
                 Some(if ccw { r } else { -r })
             }
         }
@@ -117,9 +122,9 @@ pub fn reversed(start: Point, moves: &[Move]) -> (Point, Vec<Move>) {
         .zip(ends.iter().rev())
         .map(|(m, &to)| match *m {
             Move::Line { .. } => Move::Line { to },
-            Move::Arc { center, ccw, .. } => Move::Arc {
+            Move::Arc { centre, ccw, .. } => Move::Arc {
                 to,
-                center,
+                centre,
                 ccw: !ccw,
             },
         })
@@ -149,7 +154,7 @@ fn ending_at(m: &Move, from: Point, t: f64) -> Move {
     };
     match *m {
         Move::Line { .. } => Move::Line { to },
-        Move::Arc { center, ccw, .. } => Move::Arc { to, center, ccw },
+        Move::Arc { centre, ccw, .. } => Move::Arc { to, centre, ccw },
     }
 }
 
@@ -236,7 +241,7 @@ mod tests {
         let from = Point::new(1.0, 0.0);
         let ccw = Move::Arc {
             to: Point::new(0.0, 1.0),
-            center: Point::ORIGIN,
+            centre: Point::ORIGIN,
             ccw: true,
         };
         assert!((ccw.sweep(from) - std::f64::consts::FRAC_PI_2).abs() < 1e-15);
@@ -245,7 +250,7 @@ mod tests {
         assert!((mid.x - mid.y).abs() < 1e-15 && mid.x > 0.0);
         let cw = Move::Arc {
             to: Point::new(0.0, 1.0),
-            center: Point::ORIGIN,
+            centre: Point::ORIGIN,
             ccw: false,
         };
         assert!((cw.sweep(from) + 3.0 * std::f64::consts::FRAC_PI_2).abs() < 1e-15);
@@ -274,7 +279,7 @@ mod tests {
             },
             Move::Arc {
                 to: Point::new(0.0, 1.0),
-                center: Point::new(1.0, 1.0),
+                centre: Point::new(1.0, 1.0),
                 ccw: true,
             },
             Move::Line { to: start },
@@ -285,12 +290,12 @@ mod tests {
         let circle = [
             Move::Arc {
                 to: Point::new(2.0, 0.0),
-                center: Point::new(1.0, 0.0),
+                centre: Point::new(1.0, 0.0),
                 ccw: true,
             },
             Move::Arc {
                 to: start,
-                center: Point::new(1.0, 0.0),
+                centre: Point::new(1.0, 0.0),
                 ccw: true,
             },
         ];
@@ -302,7 +307,7 @@ mod tests {
             },
             Move::Arc {
                 to: Point::new(2.0, 1.0),
-                center: Point::new(1.0, 1.0),
+                centre: Point::new(1.0, 1.0),
                 ccw: true,
             },
         ];
@@ -320,7 +325,7 @@ mod tests {
             },
             Move::Arc {
                 to: Point::new(2.0, 1.0),
-                center: Point::new(1.0, 1.0),
+                centre: Point::new(1.0, 1.0),
                 ccw: true,
             },
         ];
@@ -331,7 +336,7 @@ mod tests {
             vec![
                 Move::Arc {
                     to: Point::new(1.0, 0.0),
-                    center: Point::new(1.0, 1.0),
+                    centre: Point::new(1.0, 1.0),
                     ccw: false,
                 },
                 Move::Line { to: start },

@@ -105,6 +105,6 @@ mod tests {
         assert!(ParallelCurve::new(e, -50.0, 0.0).is_ok());
         assert!(!ParallelCurve::any(e, 1.5).is_regular());
         let p = ParallelCurve::any(e, 0.5).point(0.0);
-        assert!((p.distance(e.center()) - 3.5).abs() < 1e-12);
+        assert!((p.distance(e.centre()) - 3.5).abs() < 1e-12);
     }
 }

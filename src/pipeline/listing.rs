@@ -15,7 +15,8 @@ pub struct CandidateListing {
     /// 1-based, the number a job file's `choose` refers to.
     pub number: usize,
     pub kind: String,
-    pub center_mm: Option<[f64; 2]>,
+    #[serde(rename = "center_mm")]
+    pub centre_mm: Option<[f64; 2]>,
     pub semi_major_mm: Option<f64>,
     pub semi_minor_mm: Option<f64>,
     pub angle_deg: Option<f64>,
@@ -62,7 +63,7 @@ fn candidate(i: usize, c: &Candidate, chosen: bool) -> CandidateListing {
     CandidateListing {
         number: i + 1,
         kind: c.kind.to_string(),
-        center_mm: c.ellipse.map(|e| [e.center().x, e.center().y]),
+        centre_mm: c.ellipse.map(|e| [e.centre().x, e.centre().y]),
         semi_major_mm: c.ellipse.map(|e| e.a()),
         semi_minor_mm: c.ellipse.map(|e| e.b()),
         // A circle has no axis direction.
@@ -185,7 +186,7 @@ impl SolveListing {
             }
             for c in &f.candidates {
                 let centre = c
-                    .center_mm
+                    .centre_mm
                     .map(|p| format!("({:.3}, {:.3})", p[0], p[1]))
                     .unwrap_or_else(|| "-".into());
                 let _ = writeln!(

@@ -80,9 +80,9 @@ impl PlannedCut {
                 clockwise: outside,
             },
             if outside {
-                ellipse.center() + axis * (ellipse.a() - 2.0 * inset)
+                ellipse.centre() + axis * (ellipse.a() - 2.0 * inset)
             } else {
-                ellipse.center()
+                ellipse.centre()
             },
             Edge::Ellipse(ellipse),
         )

@@ -176,7 +176,7 @@ fn share_nearest(c: &Contour, p: Point) -> f64 {
             }
             Element::Arc(a) => {
                 let sweep = a.sweep.abs();
-                let angle = (p - a.center).angle();
+                let angle = (p - a.centre).angle();
                 let rel = if a.sweep >= 0.0 {
                     (angle - a.start_angle).rem_euclid(std::f64::consts::TAU)
                 } else {

@@ -24,7 +24,7 @@ pub(super) enum Reach {
 impl Obstacle {
     pub(super) fn of(cut: &PlannedCut) -> Obstacle {
         let reach = match &cut.edge {
-            Edge::Ellipse(e) => Reach::Disc(e.center(), e.a()),
+            Edge::Ellipse(e) => Reach::Disc(e.centre(), e.a()),
             Edge::Contour(c) => match c.bounding_box() {
                 Some(b) => Reach::Box(b),
                 None => Reach::Unknown,

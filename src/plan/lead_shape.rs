@@ -136,11 +136,11 @@ pub(super) fn path_length(path: &ExactPath) -> f64 {
 }
 
 /// The quarter circle of radius `radius` about `center` from `from`, turning in `sense` (±1).
-pub(super) fn quarter(center: Point, radius: f64, from: Point, sense: f64) -> ArcSegment {
+pub(super) fn quarter(centre: Point, radius: f64, from: Point, sense: f64) -> ArcSegment {
     ArcSegment {
-        center,
+        centre,
         radius,
-        start_angle: (from - center).angle(),
+        start_angle: (from - centre).angle(),
         sweep: sense * FRAC_PI_2,
     }
 }

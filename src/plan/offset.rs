@@ -61,7 +61,7 @@ pub fn offset_left(contour: &Contour, distance: f64) -> Result<Offset, OffsetErr
             let n2 = t2.perp();
             let sweep = n1.cross(n2).atan2(n1.dot(n2));
             joins[i] = Some(Element::Arc(ArcSegment {
-                center: corner,
+                centre: corner,
                 radius: distance,
                 start_angle: n1.angle(),
                 sweep,
@@ -129,9 +129,9 @@ fn crossing(a: &Element, b: &Element, near: Point) -> Option<Point> {
             .into_iter()
             .collect(),
         (Element::Line(s), Element::Arc(c)) | (Element::Arc(c), Element::Line(s)) => {
-            line_circle(&s.line()?, c.center, c.radius)
+            line_circle(&s.line()?, c.centre, c.radius)
         }
-        (Element::Arc(c), Element::Arc(d)) => circle_circle(c.center, c.radius, d.center, d.radius),
+        (Element::Arc(c), Element::Arc(d)) => circle_circle(c.centre, c.radius, d.centre, d.radius),
     };
     candidates
         .into_iter()
@@ -166,7 +166,7 @@ fn with_end(e: &Element, p: Point) -> Element {
     match e {
         Element::Line(s) => Element::Line(Segment::new(s.start, p)),
         Element::Arc(a) => {
-            let ang = (p - a.center).angle();
+            let ang = (p - a.centre).angle();
             Element::Arc(ArcSegment {
                 sweep: same_sense_sweep(a.start_angle, ang, a.sweep),
                 ..*a
@@ -179,7 +179,7 @@ fn with_start(e: &Element, p: Point) -> Element {
     match e {
         Element::Line(s) => Element::Line(Segment::new(p, s.end)),
         Element::Arc(a) => {
-            let ang = (p - a.center).angle();
+            let ang = (p - a.centre).angle();
             let end = a.end_angle();
             Element::Arc(ArcSegment {
                 start_angle: ang,

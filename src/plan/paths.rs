@@ -79,7 +79,7 @@ pub(super) fn plan_contour(
     let path = offset.contour;
     let start = path.start_point().unwrap_or(Point::ORIGIN);
     let plunge = match circle_of(contour) {
-        Some((center, _)) if side == CutSide::Inside => center,
+        Some((centre, _)) if side == CutSide::Inside => centre,
         _ => {
             // One tool radius further into the scrap, along the normal at the start, if the tool
             // clears the drawn edge there; otherwise on the path itself.
@@ -115,7 +115,7 @@ pub(super) fn plan_contour(
 /// The centre and radius when the contour is one full circle.
 fn circle_of(c: &Contour) -> Option<(Point, f64)> {
     match c.elements.as_slice() {
-        [Element::Arc(a)] if a.is_full_circle() => Some((a.center, a.radius)),
+        [Element::Arc(a)] if a.is_full_circle() => Some((a.centre, a.radius)),
         _ => None,
     }
 }

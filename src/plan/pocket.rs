@@ -254,7 +254,7 @@ pub fn clearing_rings(
 pub fn level_set_polygon(e: &Ellipse, inset: f64, chord_tolerance: f64) -> Vec<Point> {
     let (a, b) = (e.a(), e.b());
     let axis = Vec2::from_angle(e.angle());
-    let on_axis = |x: f64| e.center() + axis * x;
+    let on_axis = |x: f64| e.centre() + axis * x;
     // t* and the corner's abscissa; t* = 0 for a regular level (no corners, the arcs meet at
     // O_δ(0) and O_δ(π)).
     let (t_star, corner) = if ParallelCurve::any(*e, inset).is_regular() {

@@ -294,7 +294,7 @@ mod tests {
     fn rounded_rectangle(w: f64, h: f64, r: f64) -> Contour {
         let arc = |cx: f64, cy: f64, from: f64| {
             Element::Arc(ArcSegment {
-                center: Point::new(cx, cy),
+                centre: Point::new(cx, cy),
                 radius: r,
                 start_angle: from,
                 sweep: -FRAC_PI_2,

@@ -86,7 +86,7 @@ fn written(value: f64, decimals: usize) -> (String, f64) {
 pub(crate) fn sweep(start: Point, end: Point, centre: Point, ccw: bool) -> f64 {
     Move::Arc {
         to: end,
-        center: centre,
+        centre: centre,
         ccw,
     }
     .sweep(start)
@@ -236,7 +236,7 @@ impl ArcJob {
 fn mid_point(s: Point, e: Point, c: Point, ccw: bool) -> Point {
     Move::Arc {
         to: e,
-        center: c,
+        centre: c,
         ccw,
     }
     .point_at(s, 0.5)

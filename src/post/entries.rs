@@ -131,14 +131,14 @@ impl Writer<'_> {
             let to = if at == east { west } else { east };
             let z0 = z_from - drop * k as f64 / halves as f64;
             let z1 = z_from - drop * (k + 1) as f64 / halves as f64;
-            let arc = Move::Arc { to, center: c, ccw };
+            let arc = Move::Arc { to, centre: c, ccw };
             self.run(&cut.name, at, &[arc], feed, Some((z0, z1)))?;
             at = to;
         }
         // Once round at the floor to clear the helix's bottom, then back to the centre.
         for _ in 0..2 {
             let to = if at == east { west } else { east };
-            let arc = Move::Arc { to, center: c, ccw };
+            let arc = Move::Arc { to, centre: c, ccw };
             self.run(&cut.name, at, &[arc], feed, None)?;
             at = to;
         }

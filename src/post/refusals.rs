@@ -166,7 +166,7 @@ fn check_finite(cut: &FittedCut, runs: &[(Point, &[Move])]) -> Result<(), PostEr
     let all_finite = runs.iter().all(|(from, run)| {
         from.is_finite()
             && run.iter().all(|m| match m {
-                Move::Arc { to, center, .. } => to.is_finite() && center.is_finite(),
+                Move::Arc { to, centre, .. } => to.is_finite() && centre.is_finite(),
                 Move::Line { to } => to.is_finite(),
             })
     });
@@ -245,12 +245,12 @@ impl Envelope<'_> {
         for m in run {
             let (what, points) = match *m {
                 Move::Line { to } => ("the tool path", vec![units_point(units, to)]),
-                Move::Arc { to, center, ccw } => (
+                Move::Arc { to, centre, ccw } => (
                     "an arc of the tool path",
                     arc_extremes(
                         from,
                         units_point(units, to),
-                        units_point(units, center),
+                        units_point(units, centre),
                         ccw,
                     ),
                 ),

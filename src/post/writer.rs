@@ -152,8 +152,8 @@ impl<'p> Writer<'p> {
                         done.lines += 1;
                     }
                 }
-                Move::Arc { center, ccw, .. } => {
-                    let centre = units_point(units, center);
+                Move::Arc { centre, ccw, .. } => {
+                    let centre = units_point(units, centre);
                     let written_start = self.position().unwrap_or(from);
                     let d = self.profile.xy_decimals();
                     let rule = radius_rule(units);

@@ -279,7 +279,7 @@ fn ellipse_group(ellipses: &[(String, Ellipse)], frame: &Frame) -> Group {
         let half_width = e.a() * e.b() / ((e.b() * c).powi(2) + (e.a() * s).powi(2)).sqrt();
         let widest = lines.iter().map(|l| l.chars().count()).max().unwrap_or(1) as f64;
         let font = frame.font.min(0.85 * 2.0 * half_width / (0.6 * widest));
-        let (x, y) = frame.svg_xy(e.center());
+        let (x, y) = frame.svg_xy(e.centre());
         let mut text = Text::new("")
             .set("class", "ellipse-label")
             .set("data-name", name.as_str())

@@ -101,12 +101,12 @@ pub fn moves_d(lead_from: Option<Point>, start: Point, moves: &[Move]) -> String
             continue;
         }
         match *m {
-            Move::Arc { center, ccw, .. } if center.is_finite() && !skipped => {
+            Move::Arc { centre, ccw, .. } if centre.is_finite() && !skipped => {
                 let sweep = m.sweep(from);
                 // Half a turn or more in two pieces or more, as the program writes it.
                 let pieces = (sweep.abs() / (PI - 1e-9)).floor() as usize + 1;
                 let flag = if ccw { 0 } else { 1 };
-                let (r0, r1) = (from.distance(center), end.distance(center));
+                let (r0, r1) = (from.distance(centre), end.distance(centre));
                 for k in 1..=pieces {
                     let t = k as f64 / pieces as f64;
                     let to = if k == pieces {
@@ -191,7 +191,7 @@ pub fn arrow_d(at: Point, dir: Vec2, length: f64) -> String {
 pub fn ellipse_bounds(e: &Ellipse) -> [Point; 2] {
     let hx = e.support(Vec2::new(1.0, 0.0));
     let hy = e.support(Vec2::new(0.0, 1.0));
-    let c = e.center();
+    let c = e.centre();
     [
         Point::new(c.x - hx, c.y - hy),
         Point::new(c.x + hx, c.y + hy),

@@ -78,7 +78,7 @@ fn circle(c: &de::Circle, ctx: &Ctx) -> Result<Converted, ReadError> {
         return Ok(degenerate);
     }
     Ok(Converted::Kind(EntityKind::Circle {
-        center: ctx.ocs(c.center.x, c.center.y, m),
+        centre: ctx.ocs(c.center.x, c.center.y, m),
         radius: c.radius * ctx.scale,
     }))
 }
@@ -89,7 +89,7 @@ fn arc(a: &de::Arc, ctx: &Ctx) -> Result<Converted, ReadError> {
     if let Some(degenerate) = check_radius(a.radius, ctx)? {
         return Ok(degenerate);
     }
-    let center = ctx.ocs(a.center.x, a.center.y, m);
+    let centre = ctx.ocs(a.center.x, a.center.y, m);
     let radius = a.radius * ctx.scale;
     let diff = a.end_angle - a.start_angle;
     let sweep_deg = diff.rem_euclid(360.0);
@@ -101,21 +101,21 @@ fn arc(a: &de::Arc, ctx: &Ctx) -> Result<Converted, ReadError> {
                 a.start_angle
             )));
         }
-        return Ok(Converted::Kind(EntityKind::Circle { center, radius }));
+        return Ok(Converted::Kind(EntityKind::Circle { centre, radius }));
     }
     // DXF angles are degrees, counter-clockwise about the extrusion direction.
     let start = a.start_angle.to_radians();
     let sweep = sweep_deg.to_radians();
     let arc = if m {
         ArcSegment {
-            center,
+            centre,
             radius,
             start_angle: PI - start,
             sweep: -sweep,
         }
     } else {
         ArcSegment {
-            center,
+            centre,
             radius,
             start_angle: start,
             sweep,
@@ -209,12 +209,12 @@ fn ellipse(el: &dxf::entities::Ellipse, ctx: &Ctx) -> Result<Converted, ReadErro
             el.minor_axis_ratio
         )));
     }
-    let center = ctx.wcs(c);
+    let centre = ctx.wcs(c);
     let u = Vec2::new(mj.x, mj.y) * ctx.scale;
     let a = u.length();
     let b = el.minor_axis_ratio * a;
     let phi = u.angle();
-    let e = Ellipse::new(center, a, b, phi).map_err(|err| ctx.bad(err.to_string()))?;
+    let e = Ellipse::new(centre, a, b, phi).map_err(|err| ctx.bad(err.to_string()))?;
 
     let diff = el.end_parameter - el.start_parameter;
     let sweep = diff.rem_euclid(TAU);
@@ -228,10 +228,10 @@ fn ellipse(el: &dxf::entities::Ellipse, ctx: &Ctx) -> Result<Converted, ReadErro
     // The DXF point at parameter t: C + M cos t + r (N × M) sin t (DXF reference, ELLIPSE);
     // N × M is M turned a quarter turn counter-clockwise for N = +Z, clockwise for N = −Z.
     let minor_dir = if mirrored { -u.perp() } else { u.perp() } * el.minor_axis_ratio;
-    let dxf_point = |t: f64| center + u * t.cos() + minor_dir * t.sin();
+    let dxf_point = |t: f64| centre + u * t.cos() + minor_dir * t.sin();
     // The eccentric anomaly of a point of `e` in `e`'s own frame.
     let anomaly = |p: Point| {
-        let q = (p - e.center()).rotated(-e.angle());
+        let q = (p - e.centre()).rotated(-e.angle());
         let t = (q.y / e.b()).atan2(q.x / e.a()).rem_euclid(TAU);
         // rem_euclid can round a tiny negative angle up to exactly 2π.
         if t >= TAU { 0.0 } else { t }

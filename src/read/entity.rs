@@ -37,7 +37,8 @@ pub enum EntityKind {
     /// A circular arc that is not a full circle.
     Arc(ArcSegment),
     Circle {
-        center: Point,
+        #[serde(rename = "center")]
+        centre: Point,
         radius: f64,
     },
     /// An LWPOLYLINE or POLYLINE: each vertex with the bulge of the piece that starts there

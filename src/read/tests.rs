@@ -64,7 +64,7 @@ fn mirrored_circle_and_lwpolyline_follow_the_arbitrary_axis_algorithm() {
     assert_eq!(
         d.entities[0].kind,
         EntityKind::Circle {
-            center: Point::new(-5.0, 7.0),
+            centre: Point::new(-5.0, 7.0),
             radius: 2.0
         }
     );

@@ -10,7 +10,8 @@ use std::fmt::Write as _;
 /// The ellipse of a feature, in report units (mm, degrees).
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct EllipseSummary {
-    pub center_mm: [f64; 2],
+    #[serde(rename = "center_mm")]
+    pub centre_mm: [f64; 2],
     pub semi_major_mm: f64,
     pub semi_minor_mm: f64,
     /// Direction of the major axis, degrees counter-clockwise from +X, in (−90, 90].
@@ -160,7 +161,7 @@ pub struct ReportInput<'a> {
 
 fn summary(e: &crate::geom::Ellipse) -> EllipseSummary {
     EllipseSummary {
-        center_mm: [e.center().x, e.center().y],
+        centre_mm: [e.centre().x, e.centre().y],
         semi_major_mm: e.a(),
         semi_minor_mm: e.b(),
         angle_deg: e.angle().to_degrees(),
@@ -338,7 +339,7 @@ impl Report {
             };
             let (centre, a, b, ang) = match &f.ellipse {
                 Some(e) => (
-                    format!("({:.3}, {:.3})", e.center_mm[0], e.center_mm[1]),
+                    format!("({:.3}, {:.3})", e.centre_mm[0], e.centre_mm[1]),
                     format!("{:.3}", e.semi_major_mm),
                     format!("{:.3}", e.semi_minor_mm),
                     format!("{:.2}", e.angle_deg),

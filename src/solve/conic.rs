@@ -167,7 +167,7 @@ impl Conic {
     pub fn from_ellipse(e: &Ellipse) -> Conic {
         let (sxx, sxy, syy) = e.shape_matrix();
         let det = (e.a() * e.b()).powi(2);
-        let c = e.center();
+        let c = e.centre();
         // A = adj Σ, g = −A c, f = cᵀ A c − det Σ.
         let (a, h, cc) = (syy, -sxy, sxx);
         let (g1, g2) = (-(a * c.x + h * c.y), -(h * c.x + cc * c.y));
@@ -243,10 +243,10 @@ impl Conic {
         let (g1, g2, f) = (m[(0, 2)], m[(1, 2)], m[(2, 2)]);
         let delta = a * c - h * h;
         // A⁻¹ = [[c, −h], [−h, a]] / δ.
-        let center = Point::new(-(c * g1 - h * g2) / delta, -(a * g2 - h * g1) / delta);
+        let centre = Point::new(-(c * g1 - h * g2) / delta, -(a * g2 - h * g1) / delta);
         let q = (c * g1 * g1 - 2.0 * h * g1 * g2 + a * g2 * g2) / delta;
         let s = -(f - q) / delta;
-        Ellipse::from_shape_matrix(center, s * c, -s * h, s * a).map_err(|_| NotAnEllipse {
+        Ellipse::from_shape_matrix(centre, s * c, -s * h, s * a).map_err(|_| NotAnEllipse {
             kind: ConicKind::Imaginary,
         })
     }
@@ -275,7 +275,7 @@ impl DualConic {
     /// `C* ∝ [[Σ − c cᵀ, −c], [−cᵀ, −1]]` for `l = (n, −β)`.
     pub fn from_ellipse(e: &Ellipse) -> DualConic {
         let (sxx, sxy, syy) = e.shape_matrix();
-        let c = e.center();
+        let c = e.centre();
         let m = Matrix3::new(
             sxx - c.x * c.x,
             sxy - c.x * c.y,
@@ -393,15 +393,15 @@ impl Serialize for Conic {
     }
 }
 
-/// The ellipse with centre `center` and conjugate semi-diameters `p`, `q`, i.e. the curve
-/// `center + p cos t + q sin t` (Apollonius; docs/sources.md M4).
+/// The ellipse with centre `centre` and conjugate semi-diameters `p`, `q`, i.e. the curve
+/// `centre + p cos t + q sin t` (Apollonius; docs/sources.md M4).
 ///
 /// Its shape matrix is `Σ = p pᵀ + q qᵀ = [p q][p q]ᵀ`, so the semi-axes are the singular values of
 /// the 2×2 matrix `[p q]` and the major axis is its leading left singular vector (SVD with
 /// nalgebra). Refused when `|p × q| ≤ CLASSIFY_RELATIVE · (|p|² + |q|²)` (parallel or zero
 /// semi-diameters span no ellipse).
 pub fn ellipse_from_conjugate_semi_diameters(
-    center: Point,
+    centre: Point,
     p: Vec2,
     q: Vec2,
 ) -> Result<Ellipse, ConicError> {
@@ -412,7 +412,7 @@ pub fn ellipse_from_conjugate_semi_diameters(
         qy: q.y,
     };
     let finite = [p.x, p.y, q.x, q.y].iter().all(|v| v.is_finite());
-    if !(center.is_finite() && finite) {
+    if !(centre.is_finite() && finite) {
         return Err(ConicError::NotFinite);
     }
     let scale = p.length_squared() + q.length_squared();
@@ -426,7 +426,7 @@ pub fn ellipse_from_conjugate_semi_diameters(
     let sv = svd.singular_values;
     let (major, minor) = if sv[0] >= sv[1] { (0, 1) } else { (1, 0) };
     let angle = u[(1, major)].atan2(u[(0, major)]);
-    Ellipse::new(center, sv[major], sv[minor], angle).map_err(|_| dependent)
+    Ellipse::new(centre, sv[major], sv[minor], angle).map_err(|_| dependent)
 }
 
 /// The adjugate (transposed cofactor matrix) of a 3×3 matrix.
@@ -635,7 +635,7 @@ mod tests {
         assert_eq!(c.classify(), ConicKind::Circle);
         let e = c.to_ellipse().unwrap();
         assert!((e.a() - 1.0).abs() < 1e-6 && (e.b() - 1.0).abs() < 1e-6);
-        assert!(e.center().distance(Point::new(1000.0, 1000.0)) < 1e-9);
+        assert!(e.centre().distance(Point::new(1000.0, 1000.0)) < 1e-9);
         // Two crossing lines far away stay a line pair: (x − 1000)(y − 1000) = 0.
         let lp = conic([0.0, 1.0, 0.0, -1000.0, -1000.0, 1e6]);
         assert_eq!(lp.classify(), ConicKind::LinePair);
@@ -659,7 +659,7 @@ mod tests {
             assert_eq!(c.classify(), kind);
             let r = c.to_ellipse().unwrap();
             let tol = 1e-9 * (a + cx.abs() + cy.abs());
-            assert!(r.center().distance(e.center()) < tol, "{r:?} vs {e:?}");
+            assert!(r.centre().distance(e.centre()) < tol, "{r:?} vs {e:?}");
             assert!((r.a() - a).abs() < tol && (r.b() - b).abs() < tol, "{r:?}");
             if a != b {
                 assert!((r.angle() - e.angle()).abs() < 1e-9, "{r:?}");
@@ -710,7 +710,7 @@ mod tests {
             let e = Ellipse::new(Point::new(3.0, -1.0), a, b, 0.7).unwrap();
             let d = DualConic::from_ellipse(&e);
             let f = d.to_ellipse().unwrap();
-            assert!(f.center().distance(e.center()) < 1e-13 * a, "{f:?}");
+            assert!(f.centre().distance(e.centre()) < 1e-13 * a, "{f:?}");
             // b² comes out with an absolute error of a few ε (|c|² + a²), so b to ε·a²/b.
             assert!(
                 (f.a() - a).abs() < 1e-13 * a && (f.b() - b).abs() < 1e-11 * a,
@@ -719,7 +719,7 @@ mod tests {
             // Its support lines are tangent: lᵀ C* l = 0 (docs/sources.md M0).
             for i in 0..12 {
                 let n = Vec2::from_angle(i as f64 * PI / 6.0);
-                let q = e.center() + n * e.support(n);
+                let q = e.centre() + n * e.support(n);
                 let l = Line::through(q, q + n.perp()).unwrap();
                 assert!(d.line_value(&l).abs() < 1e-14, "{}", d.line_value(&l));
             }
@@ -753,8 +753,8 @@ mod tests {
         let c = Conic::from_ellipse(&e);
         for i in 0..24 {
             let n = Vec2::from_angle(i as f64 * PI / 12.0);
-            let beta = n.dot(e.center().to_vec()) + e.support(n);
-            let on = e.center() + n * (beta - n.dot(e.center().to_vec()));
+            let beta = n.dot(e.centre().to_vec()) + e.support(n);
+            let on = e.centre() + n * (beta - n.dot(e.centre().to_vec()));
             let line = Line::through(on, on + n.perp()).unwrap();
             assert!(c.tangency_residual(&line) < 1e-14, "{i}");
             assert!(c.tangency_residual(&line.shifted(0.1)) > 1e-4, "{i}");

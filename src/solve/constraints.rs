@@ -649,12 +649,12 @@ impl Frame {
     }
 
     fn ellipse_to_world(&self, e: &Ellipse) -> Ellipse {
-        let c = e.center();
-        let center = Point::new(
+        let c = e.centre();
+        let centre = Point::new(
             self.origin.x + self.scale * c.x,
             self.origin.y + self.scale * c.y,
         );
-        Ellipse::new(center, e.a() * self.scale, e.b() * self.scale, e.angle())
+        Ellipse::new(centre, e.a() * self.scale, e.b() * self.scale, e.angle())
             .expect("a scaled ellipse is an ellipse")
     }
 }
@@ -761,7 +761,7 @@ mod tests {
         let world = Conic::from_matrix(f.conic_to_world(&local.matrix())).unwrap();
         let w = f.ellipse_to_world(&e);
         assert!(world.projective_distance(&Conic::from_ellipse(&w)) < 1e-13);
-        assert!(w.center().distance(p(110.0, -45.0)) < 1e-12);
+        assert!(w.centre().distance(p(110.0, -45.0)) < 1e-12);
         assert!((w.a() - 30.0).abs() < 1e-12 && (w.b() - 10.0).abs() < 1e-12);
     }
 

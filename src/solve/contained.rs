@@ -78,7 +78,7 @@ pub fn largest_contained(corners: &[Point]) -> Option<Contained> {
 /// How far the ellipse stays inside the line's half-plane (the line's normal points in):
 /// `n_in·c − h(n_in)`, ≥ 0 when inside.
 fn slack(e: &Ellipse, line: &Line) -> f64 {
-    line.signed_distance(e.center()) - e.support(line.normal())
+    line.signed_distance(e.centre()) - e.support(line.normal())
 }
 
 /// Whether `e` lies inside the counter-clockwise convex polygon `corners` (up to

@@ -253,7 +253,7 @@ impl Normalised {
         coeffs_u: [f64; 6],
     ) -> Result<(Ellipse, [f64; 6]), LeastSquaresError> {
         let (mx, my, s) = (self.mx, self.my, self.s);
-        let cu = ellipse_u.center();
+        let cu = ellipse_u.centre();
         let ellipse = Ellipse::new(
             Point::new(mx + s * cu.x, my + s * cu.y),
             s * ellipse_u.a(),

@@ -124,7 +124,7 @@ pub fn largest_tangent_ellipse(bay: &Bay, margin: f64) -> Result<BayOpening, Sol
 /// `n·x = β` (|n| = 1, n outward) iff `n·c + sqrt(nᵀΣn) = β`, at `c + Σn / sqrt(nᵀΣn)`.
 pub fn touch_points(ellipse: &Ellipse, corners: &[Point]) -> (Vec<Point>, f64) {
     let (sxx, sxy, syy) = ellipse.shape_matrix();
-    let c = ellipse.center();
+    let c = ellipse.centre();
     let mut worst: f64 = 0.0;
     let mut points = Vec::with_capacity(corners.len());
     for i in 0..corners.len() {

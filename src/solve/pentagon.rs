@@ -74,7 +74,7 @@ mod tests {
         let e = tangent_conic(&p).unwrap();
         let r = 3.0 * 36f64.to_radians().cos();
         assert!((e.a() - r).abs() < 1e-10 && (e.b() - r).abs() < 1e-10);
-        assert!(e.center().distance(Point::new(10.0, -4.0)) < 1e-10);
+        assert!(e.centre().distance(Point::new(10.0, -4.0)) < 1e-10);
     }
 
     #[test]

@@ -52,7 +52,7 @@ impl TangentFamily {
     }
 
     /// Centre of the member at `t`: `M1 + t w` (on the Newton line).
-    pub fn center(&self, t: f64) -> Point {
+    pub fn centre(&self, t: f64) -> Point {
         self.m1 + self.w * t
     }
 
@@ -119,7 +119,7 @@ impl TangentFamily {
     /// The member at `t` as an ellipse.
     pub fn ellipse(&self, t: f64) -> Result<Ellipse, EllipseError> {
         let (sxx, sxy, syy) = self.shape(t);
-        Ellipse::from_shape_matrix(self.center(t), sxx, sxy, syy)
+        Ellipse::from_shape_matrix(self.centre(t), sxx, sxy, syy)
     }
 
     /// The parameter of the largest-area member inside the quadrilateral: the root in (0, 1) of

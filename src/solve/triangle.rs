@@ -96,11 +96,11 @@ mod tests {
         // (Kalman, Amer. Math. Monthly 115 (2008)); values from docs/sources.md M3.
         let c = (e.a() * e.a() - e.b() * e.b()).sqrt();
         let d = crate::geom::Vec2::from_angle(e.angle()) * c;
-        let (f1, f2) = (e.center() + d, e.center() - d);
+        let (f1, f2) = (e.centre() + d, e.centre() - d);
         assert!(f1.distance(Point::new(3.87823601401598, 0.966499651533108)) < 1e-12);
         assert!(f2.distance(Point::new(1.45509731931735, 1.70016701513356)) < 1e-12);
         // The tangent ellipse centred at the centroid is the Steiner inellipse.
-        let g = tangent_ellipse_with_centre(tri(), e.center()).unwrap();
+        let g = tangent_ellipse_with_centre(tri(), e.centre()).unwrap();
         assert!((g.a() - e.a()).abs() < 1e-12 && (g.b() - e.b()).abs() < 1e-12);
     }
 

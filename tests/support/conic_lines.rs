@@ -32,7 +32,7 @@ pub fn deg(x: f64) -> f64 {
 /// distance from the line to the nearer of the two tangents of `e` with the same normal.
 pub fn support_gap(e: &Ellipse, l: &Line) -> f64 {
     let n = l.normal();
-    let c = n.dot(e.center().to_vec());
+    let c = n.dot(e.centre().to_vec());
     let h = e.support(n);
     (c + h - l.offset()).abs().min((c - h - l.offset()).abs())
 }

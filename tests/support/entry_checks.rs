@@ -132,7 +132,7 @@ pub fn edge_of(out: &JobOutput, name: &str) -> Edge {
         .unwrap_or_else(|| panic!("{base} in the report"));
     if let Some(e) = &f.ellipse {
         return Edge::Ellipse(
-            Point::new(e.center_mm[0], e.center_mm[1]),
+            Point::new(e.centre_mm[0], e.centre_mm[1]),
             e.semi_major_mm,
             e.semi_minor_mm,
             e.angle_deg.to_radians(),

@@ -241,7 +241,7 @@ impl Finished {
         match &self.shape {
             Shape::Plate => false,
             Shape::Circle(c, r) => p.distance(*c) > r + d,
-            Shape::Ellipse(e) => p.distance(e.center()) > e.a() + d,
+            Shape::Ellipse(e) => p.distance(e.centre()) > e.a() + d,
         }
     }
 
@@ -273,7 +273,7 @@ pub fn finished_edges(report: &Report) -> Vec<Finished> {
                 name: f.name.clone(),
                 shape: Shape::Ellipse(
                     Ellipse::new(
-                        Point::new(e.center_mm[0], e.center_mm[1]),
+                        Point::new(e.centre_mm[0], e.centre_mm[1]),
                         e.semi_major_mm,
                         e.semi_minor_mm,
                         e.angle_deg.to_radians(),

@@ -146,7 +146,7 @@ impl Chord {
 
     /// The centre of the arc with curvature `k ≠ 0`: on the chord's perpendicular bisector, at
     /// `(h/2) cot(half sweep)` to the left for `k > 0`, so both ends lie on the circle to rounding.
-    fn center(&self, k: f64) -> Point {
+    fn centre(&self, k: f64) -> Point {
         self.a.midpoint(self.b) + self.dir.perp() * (0.5 * self.length / self.half_sweep(k).tan())
     }
 }

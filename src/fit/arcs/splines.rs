@@ -607,7 +607,7 @@ pub(crate) fn spans_to_moves(
         match Chord::new(a, b) {
             Some(chord) if span.k.abs() * chord.length > 1e-12 => moves.push(Move::Arc {
                 to,
-                center: chord.center(span.k),
+                centre: chord.centre(span.k),
                 ccw: span.k > 0.0,
             }),
             _ => moves.push(Move::Line { to }),

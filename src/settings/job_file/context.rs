@@ -380,7 +380,7 @@ pub(super) fn plural(n: usize, word: &str) -> String {
 /// American spelling of `centre`).
 pub(super) fn suggestion<'k>(key: &str, allowed: &[&'k str]) -> Option<&'k str> {
     let key = key.to_lowercase().replace('-', "_");
-    if key == "center" && allowed.contains(&"centre") {
+    if key == "centre" && allowed.contains(&"centre") {
         return Some("centre");
     }
     allowed
