@@ -34,6 +34,7 @@ use conicut::geom::ExactPath;
 use conicut::geom::{Ellipse, Point};
 use conicut::pipeline::{JobError, JobSettings, run_job};
 use conicut::plan::{CutSide, Direction, Opening, PlanError, PlanOptions, plan_cuts};
+use conicut::settings::SettingsError;
 use entry_checks::*;
 use gcode_read::{ReadMove, read_back};
 use machine::profile;
@@ -326,7 +327,16 @@ fn lasers_refuse_a_finishing_pass_and_keep_the_usual_direction() {
         ..demo_settings(kerf)
     };
     let err = run_job(&conicut::demo::demo_dxf_bytes(), &laser, &settings).expect_err("refused");
-    assert!(matches!(err, JobError::FinishCutsThrough { .. }), "{err:?}");
+    assert!(
+        matches!(
+            err,
+            JobError::Settings {
+                error: SettingsError::FinishCutsThrough { .. },
+                ..
+            }
+        ),
+        "{err:?}"
+    );
     assert!(err.to_string().contains("mills and routers only"), "{err}");
 
     let asked = JobSettings {

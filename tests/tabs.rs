@@ -22,6 +22,7 @@ use conicut::demo::{CORNER_RADIUS, PLATE_HEIGHT, PLATE_WIDTH, demo_dxf_bytes};
 use conicut::pipeline::{JobError, JobOutput, JobSettings, LeadRequest, TabRequest, run_job};
 use conicut::plan::LeadKind;
 use conicut::post::MachineProfile;
+use conicut::settings::SettingsError;
 use gcode_read::{ReadBack, ReadMove, marked_moves, read_back};
 use machine::profile;
 use resvg::usvg::roxmltree;
@@ -643,7 +644,16 @@ fn bad_tab_requests_are_refused_with_the_reason() {
     for (p, request, says) in bad_tab_requests(&mill, &laser) {
         let err = run_job(&demo_dxf_bytes(), p, &settings(p, request, None))
             .expect_err("a bad tab request is refused");
-        assert!(matches!(err, JobError::BadTabs { .. }), "{err}");
+        assert!(
+            matches!(
+                err,
+                JobError::Settings {
+                    error: SettingsError::BadTabs { .. },
+                    ..
+                }
+            ),
+            "{err}"
+        );
         let text = err.to_string();
         assert!(
             text.starts_with("truss-bracket.dxf: tabs on the outline:") && text.contains(says),

@@ -15,6 +15,7 @@
 //! code with the fit's). [`verify`] is the one entry the job calls: it reads the program, measures
 //! every cut, holds it to the tolerance and the one-sided rule, and runs the scrap check.
 
+use crate::geom::units::MM_PER_INCH;
 use crate::geom::{ExactPath, Move, Point};
 use serde::Serialize;
 
@@ -271,7 +272,7 @@ impl Reader {
                 problem: "a move before the units word (G20 or G21)".into(),
             });
         };
-        let scale = if inch { 25.4 } else { 1.0 };
+        let scale = if inch { MM_PER_INCH } else { 1.0 };
         let motion = self.st.motion.ok_or(CheckError {
             line,
             problem: "a move with no motion mode (G0, G1, G2 or G3) in force".into(),

@@ -31,6 +31,9 @@ pub struct JobOutput {
 /// Why the job stopped; every message names the drawing.
 #[derive(Debug, Clone, PartialEq, thiserror::Error)]
 pub enum JobError {
+    /// The settings cannot run on this machine (see [`SettingsError`]).
+    #[error("{file}: {error}")]
+    Settings { file: String, error: SettingsError },
     #[error(transparent)]
     Read(#[from] ReadError),
     #[error("{file}: {error}")]
@@ -41,17 +44,6 @@ pub enum JobError {
     Fit { file: String, error: FitError },
     #[error("{file}: {error}")]
     Post { file: String, error: PostError },
-    #[error(
-        "{file}: a tolerance of {tolerance} mm is too fine for the machine profile's {decimals} \
-         decimals: rounding alone moves a point by up to {rounding:.6} mm. Use a tolerance of at \
-         least twice that, or a profile with more decimals"
-    )]
-    ToleranceTooFine {
-        file: String,
-        tolerance: f64,
-        rounding: f64,
-        decimals: usize,
-    },
     #[error("{file}: the edge margin must be zero or a positive number of mm (got {margin})")]
     BadMargin { file: String, margin: f64 },
     #[error(
@@ -86,15 +78,6 @@ pub enum JobError {
         problem: String,
     },
     #[error(
-        "{file}: a finishing allowance ({allowance} mm) applies to mills and routers only: a \
-         {machine} cuts through in one pass. Leave out --finish-allowance"
-    )]
-    FinishCutsThrough {
-        file: String,
-        allowance: f64,
-        machine: String,
-    },
-    #[error(
         "{file}: feature \"{feature}\" is a pocket, but a {machine} cuts through the sheet and \
          cannot clear a pocket to a depth. Cut it as a hole (cut = \"hole\") on this machine, or \
          use a mill or router profile for the pocket"
@@ -104,10 +87,6 @@ pub enum JobError {
         feature: String,
         machine: String,
     },
-    #[error("{file}: tabs on the outline: {problem}")]
-    BadTabs { file: String, problem: String },
-    #[error("{file}: {problem}")]
-    Settings { file: String, problem: String },
 }
 
 /// The drawing read and sorted, and every feature solved.
@@ -208,32 +187,6 @@ fn unused_warnings(bays: &[String]) -> Vec<String> {
         .collect()
 }
 
-/// The pipeline's error for a request the settings layer refused, naming the drawing.
-fn settings_error(file: String, e: SettingsError) -> JobError {
-    match e {
-        SettingsError::NoToolDiameter { .. } => JobError::Settings {
-            file,
-            problem: e.to_string(),
-        },
-        SettingsError::ToleranceTooFine {
-            tolerance,
-            rounding,
-            decimals,
-        } => JobError::ToleranceTooFine {
-            file,
-            tolerance,
-            rounding,
-            decimals,
-        },
-        SettingsError::FinishCutsThrough { allowance, machine } => JobError::FinishCutsThrough {
-            file,
-            allowance,
-            machine,
-        },
-        SettingsError::BadTabs { problem } => JobError::BadTabs { file, problem },
-    }
-}
-
 /// Runs the whole job: resolves `s` against `profile` ([`settings::resolve`]), then
 /// [`run_resolved`].
 pub fn run_job(
@@ -247,7 +200,10 @@ pub fn run_job(
 
 /// The request resolved against the profile, or the refusal naming the drawing.
 pub fn resolve(s: &JobSettings, profile: &MachineProfile) -> Result<ResolvedJob, JobError> {
-    settings::resolve(s, profile).map_err(|e| settings_error(s.file_name.clone(), e))
+    settings::resolve(s, profile).map_err(|error| JobError::Settings {
+        file: s.file_name.clone(),
+        error,
+    })
 }
 
 /// Runs the whole job with settings already resolved (`resolved` from [`resolve`] of `s`): read

@@ -86,7 +86,7 @@ fn written(value: f64, decimals: usize) -> (String, f64) {
 pub(crate) fn sweep(start: Point, end: Point, centre: Point, ccw: bool) -> f64 {
     Move::Arc {
         to: end,
-        centre: centre,
+        centre,
         ccw,
     }
     .sweep(start)
