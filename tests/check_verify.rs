@@ -19,6 +19,10 @@ use conicut::fit::{self, FitOptions, FittedCut, MoveKind};
 use conicut::geom::{ArcSegment, Contour, Edge, Element, Ellipse, ExactPath, Point, Segment};
 use conicut::plan::{CutSide, FeatureKind, PlannedCut};
 use conicut::post::{MachineProfile, ProgramSettings, write_program};
+use conicut::settings::{JobSettings, resolve};
+
+#[path = "support/machine.rs"]
+mod machine;
 
 /// The largest disagreement allowed between the two measurements, as a fraction of the
 /// tolerance. The fit's sampling (16 points per line, 64 per arc) can fall short of a chord's
@@ -169,25 +173,18 @@ const TOLERANCE: f64 = 0.01;
 /// allowance as the job computes it.
 fn written(kind: MoveKind, one_sided: bool) -> (PlannedCut, String, f64) {
     let profile = MachineProfile::metric_mill().expect("shipped profile loads");
-    let step = 10f64.powi(-(profile.xy_decimals() as i32));
-    let per_step = if kind == MoveKind::Lines { 0.5 } else { 2.0 };
-    let rounding = per_step * step * std::f64::consts::SQRT_2;
+    let mut request = JobSettings::new("oval.dxf", 6.0);
+    request.lines_only = kind == MoveKind::Lines;
+    let rounding = resolve(&request, &profile)
+        .expect("the settings resolve")
+        .budget
+        .rounding;
     let e = Ellipse::new(Point::new(60.0, 40.0), 30.0, 18.0, 0.0).unwrap();
     let cut = PlannedCut::around_ellipse("oval", FeatureKind::Opening, e, 3.0);
     let f = fitted(&cut, TOLERANCE - rounding, kind, one_sided);
     let settings = ProgramSettings {
-        title: "verify".into(),
-        source: "oval.dxf".into(),
-        tool_diameter: 6.0,
-        depth: 2.0,
         tolerance: TOLERANCE,
-        cut_feed: None,
-        plunge_feed: None,
-        spindle_speed: None,
-        stepdown: None,
-        ramp_angle_deg: None,
-        helical_entry: false,
-        tab_height: 0.0,
+        ..machine::program_settings("verify", "oval.dxf", 6.0, 2.0)
     };
     let program = write_program(&[f], &profile, &settings).expect("written");
     (cut, program, rounding)

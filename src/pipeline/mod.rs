@@ -63,19 +63,14 @@ pub enum JobError {
          bug, please report it with the drawing"
     )]
     ReadBack { file: String, problem: String },
+    /// A move off the contour brings the tool onto the finished part, as the checker read it
+    /// back (`check::Finding::OffScrap`).
     #[error(
-        "{file}: program line {line} ({part} of \"{feature}\") brings the tool centre to \
-         ({x:.4}, {y:.4}) mm: {problem}. This is a bug, please report it with the drawing; \
-         nothing was written"
+        "{file}: {finding}. This is a bug, please report it with the drawing; nothing was written"
     )]
     OffScrap {
         file: String,
-        feature: String,
-        part: String,
-        line: usize,
-        x: f64,
-        y: f64,
-        problem: String,
+        finding: check::Finding,
     },
     #[error(
         "{file}: feature \"{feature}\" is a pocket, but a {machine} cuts through the sheet and \
@@ -392,21 +387,9 @@ fn read_back(
                     tolerance,
                 },
             },
-            Some(check::Finding::OffScrap {
-                feature,
-                part,
-                line,
-                x,
-                y,
-                problem,
-            }) => JobError::OffScrap {
+            Some(finding @ check::Finding::OffScrap { .. }) => JobError::OffScrap {
                 file: file(),
-                feature,
-                part,
-                line,
-                x,
-                y,
-                problem,
+                finding,
             },
             Some(other) => read_back(other.to_string()),
             None => read_back("the checker found nothing and failed".into()),
