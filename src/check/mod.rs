@@ -386,12 +386,6 @@ fn range_at(trace: &Trace, idx: usize) -> std::ops::Range<usize> {
     first..last
 }
 
-/// The moves of feature `name`, by index: from its cut comment to the next feature's.
-fn feature_range(trace: &Trace, name: &str) -> Option<std::ops::Range<usize>> {
-    let idx = trace.features.iter().position(|(n, _)| n == name)?;
-    Some(range_at(trace, idx))
-}
-
 /// The moves of cut number `number` (the K of `(cut K of N: NAME)`, 1-based), by index.
 /// `None` when the program holds no such cut.
 pub fn cut_range(trace: &Trace, number: usize) -> Option<std::ops::Range<usize>> {
@@ -416,22 +410,10 @@ fn marked_in(trace: &Trace, range: std::ops::Range<usize>, mark: &str) -> Vec<us
     out
 }
 
-/// The indices of feature `name`'s moves that follow a comment `mark` (up to the next comment),
-/// in order.
-pub fn marked_moves(trace: &Trace, name: &str, mark: &str) -> Vec<usize> {
-    feature_range(trace, name).map_or_else(Vec::new, |r| marked_in(trace, r, mark))
-}
-
 /// The moves in `range` that are not its contour.
 fn off_contour_in(trace: &Trace, range: std::ops::Range<usize>) -> Vec<usize> {
     let contour = marked_in(trace, range.clone(), "contour");
     range.filter(|i| !contour.contains(i)).collect()
-}
-
-/// The moves of `name` that are not its contour: clearing, leads, overcut, entries (ramps and
-/// helices) and rapids, by index.
-pub fn moves_off_contour(trace: &Trace, name: &str) -> Vec<usize> {
-    feature_range(trace, name).map_or_else(Vec::new, |r| off_contour_in(trace, r))
 }
 
 /// [`moves_off_contour`] of cut number `number` (1-based K of its cut comment).
@@ -439,40 +421,9 @@ pub fn cut_moves_off_contour(trace: &Trace, number: usize) -> Vec<usize> {
     cut_range(trace, number).map_or_else(Vec::new, |r| off_contour_in(trace, r))
 }
 
-/// The contour of feature `name` in the XY plane, as a start point and moves: the feed moves
-/// after each `contour` comment of the feature (one run per pass), from the first that starts on
-/// its exact curve (within `reach`, mm). Moves that change Z (the rise over a tab and back) are
-/// left out; the moves over a tab are kept, since they follow the contour in XY.
-pub fn feature_moves(
-    trace: &Trace,
-    name: &str,
-    exact: &ExactPath,
-    reach: f64,
-) -> Option<(Point, Vec<Move>)> {
-    contour_in(trace, feature_range(trace, name)?, exact, reach)
-}
-
-/// [`feature_moves`] of cut number `number` (1-based K of its cut comment `(cut K of N: NAME)`).
-pub fn cut_contour(
-    trace: &Trace,
-    number: usize,
-    exact: &ExactPath,
-    reach: f64,
-) -> Option<(Point, Vec<Move>)> {
-    contour_in(trace, cut_range(trace, number)?, exact, reach)
-}
-
-fn contour_in(
-    trace: &Trace,
-    range: std::ops::Range<usize>,
-    exact: &ExactPath,
-    reach: f64,
-) -> Option<(Point, Vec<Move>)> {
-    let at = contour_indices(trace, range, exact, reach)?;
-    Some(contour_of(trace, &at))
-}
-
-/// The trace indices of the contour moves in `range` (see [`feature_moves`]).
+/// The trace indices of the contour moves in `range`: the constant-depth feed moves after the
+/// `(contour)` comments, from the one that starts within `reach` of the exact path's start (the
+/// moves over a tab are kept, since they follow the contour in XY).
 fn contour_indices(
     trace: &Trace,
     range: std::ops::Range<usize>,
@@ -528,19 +479,6 @@ fn cut_contour_lines(
     let (start, moves) = contour_of(trace, &at);
     let lines = at.iter().map(|&i| trace.moves[i].line).collect();
     Some((start, moves, lines))
-}
-
-/// How feature `name` as the program would cut it strays from its exact tool-centre curve (mm):
-/// both ways, and on the part side (right of travel) alone, by the checker's own measurement
-/// ([`deviation::measure`]). `None` when the program holds no such feature.
-pub fn measured_deviation(
-    trace: &Trace,
-    name: &str,
-    exact: &ExactPath,
-    reach: f64,
-) -> Option<(f64, f64)> {
-    let (start, moves) = feature_moves(trace, name, exact, reach)?;
-    deviation::measure(start, &moves, exact, true).map(|d| (d.both_ways, d.part_side))
 }
 
 #[cfg(test)]
