@@ -44,7 +44,10 @@ fn demo() -> (Part, Vec<Opening>) {
         .iter()
         .map(|b| Opening {
             name: b.name.clone(),
-            ellipse: solve_bay(b, &Rule::Largest, 4.0).unwrap().solution.ellipse,
+            ellipse: solve_bay(b, &Rule::Largest, 4.0)
+                .unwrap()
+                .solution
+                .ellipse(),
             side: CutSide::Inside,
             pocket: false,
         })

@@ -94,11 +94,11 @@ pub fn build(
             let (status, reason, candidates) = match &f.outcome {
                 Ok(s) => (
                     "solved",
-                    s.reason.clone(),
-                    s.candidates
+                    s.reason().to_string(),
+                    s.candidates()
                         .iter()
                         .enumerate()
-                        .map(|(i, c)| candidate(i, c, i == s.chosen))
+                        .map(|(i, c)| candidate(i, c, i == s.chosen()))
                         .collect(),
                 ),
                 Err(e) => (

@@ -322,7 +322,7 @@ fn openings(features: &[SolvedFeature]) -> (Vec<plan::Opening>, Vec<SolvedInfo>)
         let Ok(sol) = &f.outcome else { continue };
         to_cut.push(plan::Opening {
             name: f.name.clone(),
-            ellipse: sol.ellipse,
+            ellipse: sol.ellipse(),
             side: match f.cut {
                 CutKind::Boss => plan::CutSide::Outside,
                 CutKind::Hole | CutKind::Pocket => plan::CutSide::Inside,
@@ -331,13 +331,13 @@ fn openings(features: &[SolvedFeature]) -> (Vec<plan::Opening>, Vec<SolvedInfo>)
         });
         infos.push(SolvedInfo {
             name: f.name.clone(),
-            ellipse: sol.ellipse,
+            ellipse: sol.ellipse(),
             source: f.source.clone(),
             rule: f.rule.clone(),
-            chosen_because: sol.reason.clone(),
-            candidates: sol.candidates.len(),
+            chosen_because: sol.reason().to_string(),
+            candidates: sol.candidates().len(),
             margin_mm: f.margin_mm,
-            residual: sol.candidates[sol.chosen].residual,
+            residual: sol.candidates()[sol.chosen()].residual,
             fit: f.fit.map(|q| FitSummary {
                 points: q.points,
                 rms_residual_mm: q.rms_residual_mm,

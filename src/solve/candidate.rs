@@ -32,16 +32,36 @@ impl Candidate {
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct Solution {
     /// Every candidate found, in a stable order.
-    pub candidates: Vec<Candidate>,
+    candidates: Vec<Candidate>,
     /// Index into `candidates` of the one to cut.
-    pub chosen: usize,
+    chosen: usize,
     /// The chosen candidate's ellipse.
-    pub ellipse: Ellipse,
+    ellipse: Ellipse,
     /// Why that one, in words.
-    pub reason: String,
+    reason: String,
 }
 
 impl Solution {
+    /// Every candidate found, in a stable order.
+    pub fn candidates(&self) -> &[Candidate] {
+        &self.candidates
+    }
+
+    /// Index into [`Self::candidates`] of the one to cut.
+    pub fn chosen(&self) -> usize {
+        self.chosen
+    }
+
+    /// The chosen candidate's ellipse (always a cuttable ellipse).
+    pub fn ellipse(&self) -> Ellipse {
+        self.ellipse
+    }
+
+    /// Why that one, in words.
+    pub fn reason(&self) -> &str {
+        &self.reason
+    }
+
     /// A solution choosing `candidates[chosen]`; `None` unless that candidate is a cuttable
     /// ellipse.
     pub fn new(candidates: Vec<Candidate>, chosen: usize, reason: String) -> Option<Solution> {
