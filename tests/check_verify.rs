@@ -92,8 +92,8 @@ fn rounded_rectangle(w: f64, h: f64, r: f64) -> Contour {
     };
     let (x1, y1) = (x0 + w, y0 + h);
     let q = std::f64::consts::FRAC_PI_2;
-    Contour {
-        elements: vec![
+    Contour::new(
+        vec![
             line(x0 + r, y0, x1 - r, y0),
             arc(x1 - r, y0 + r, -q),
             line(x1, y0 + r, x1, y1 - r),
@@ -103,9 +103,10 @@ fn rounded_rectangle(w: f64, h: f64, r: f64) -> Contour {
             line(x0, y1 - r, x0, y0 + r),
             arc(x0 + r, y0 + r, 2.0 * q),
         ],
-        layer: "0".into(),
-        handles: Vec::new(),
-    }
+        "0",
+        Vec::new(),
+    )
+    .unwrap()
 }
 
 fn contour_cut() -> PlannedCut {

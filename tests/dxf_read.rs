@@ -69,9 +69,9 @@ fn demo_round_trip_keeps_contours_holes_and_bays() {
         })
         .unwrap();
     let outline = part.outline.as_ref().unwrap();
-    assert_eq!(outline.elements.len(), outline_vertices);
+    assert_eq!(outline.elements().len(), outline_vertices);
     let arcs = outline
-        .elements
+        .elements()
         .iter()
         .filter(|e| matches!(e, Element::Arc(_)))
         .count();
@@ -85,7 +85,7 @@ fn demo_round_trip_keeps_contours_holes_and_bays() {
         .holes
         .iter()
         .map(|h| match &h.shape {
-            InnerShape::Contour(c) => match c.elements[..] {
+            InnerShape::Contour(c) => match c.elements()[..] {
                 [Element::Arc(a)] => {
                     assert!((a.radius - BOLT_HOLE_RADIUS).abs() < 1e-12);
                     (a.centre.x, a.centre.y)

@@ -222,7 +222,7 @@ fn a_finishing_pass_keeps_pocket_clearing_on_the_roughing_cut() {
             ExactPath::EllipseParallel { ellipse, inset, .. } => (0..720)
                 .map(|k| ellipse.inward_offset_point(TAU * k as f64 / 720.0, *inset))
                 .collect(),
-            ExactPath::Contour(c) => c.elements.iter().map(Element::start).collect(),
+            ExactPath::Contour(c) => c.elements().iter().map(Element::start).collect(),
         };
         for p in pts {
             let dist = ellipse_distance(e.centre(), e.a(), e.b(), e.angle(), p);

@@ -600,11 +600,7 @@ fn axis_starts_give_quadrant_symmetric_splines() {
 
 fn contour_cut(elements: Vec<Element>, kind: FeatureKind, side: CutSide) -> PlannedCut {
     let n = elements.len();
-    let contour = Contour {
-        elements,
-        layer: "0".into(),
-        handles: vec![String::new(); n],
-    };
+    let contour = Contour::new(elements, "0", vec![String::new(); n]).unwrap();
     PlannedCut::new(
         "contour",
         kind,
@@ -654,7 +650,7 @@ fn contour_sides(c: &Contour, sdf: impl Fn(Point) -> f64, cut: &FittedCut) -> (f
         }
     }
     let curve: Vec<Point> = c
-        .elements
+        .elements()
         .iter()
         .flat_map(|e| {
             (0..=400).map(move |k| match e {

@@ -143,7 +143,7 @@ fn sample_exact(path: &ExactPath) -> Vec<Point> {
         }
         ExactPath::Contour(c) => {
             let mut out = Vec::new();
-            for e in &c.elements {
+            for e in c.elements() {
                 match e {
                     Element::Line(s) => {
                         out.push(s.start);
@@ -555,14 +555,15 @@ fn the_coverage_check_finds_islands() {
 }
 
 fn contour_of(points: &[Point]) -> conicut::geom::Contour {
-    conicut::geom::Contour {
-        elements: points
+    conicut::geom::Contour::new(
+        points
             .windows(2)
             .map(|w| Element::Line(conicut::geom::Segment::new(w[0], w[1])))
             .collect(),
-        layer: String::new(),
-        handles: Vec::new(),
-    }
+        String::new(),
+        Vec::new(),
+    )
+    .unwrap()
 }
 
 #[test]

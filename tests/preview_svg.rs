@@ -27,28 +27,32 @@ fn plate() -> Part {
         start_angle: 0.0,
         sweep: FRAC_PI_2,
     };
-    let outline = Contour {
-        elements: vec![
+    let outline = Contour::new(
+        vec![
             line(Point::new(0.0, 0.0), Point::new(200.0, 0.0)),
             line(Point::new(200.0, 0.0), Point::new(200.0, 100.0)),
             Element::Arc(corner),
             line(Point::new(180.0, 120.0), Point::new(0.0, 120.0)),
             line(Point::new(0.0, 120.0), Point::new(0.0, 0.0)),
         ],
-        layer: "CUT".into(),
-        handles: vec![],
-    };
+        "CUT",
+        vec![],
+    )
+    .unwrap();
     let hole = InnerBoundary {
         name: "hole 1".into(),
         layer: "CUT".into(),
-        shape: InnerShape::Contour(Contour {
-            elements: vec![Element::Arc(ArcSegment::circle(
-                Point::new(170.0, 25.0),
-                8.0,
-            ))],
-            layer: "CUT".into(),
-            handles: vec![],
-        }),
+        shape: InnerShape::Contour(
+            Contour::new(
+                vec![Element::Arc(ArcSegment::circle(
+                    Point::new(170.0, 25.0),
+                    8.0,
+                ))],
+                "CUT",
+                vec![],
+            )
+            .unwrap(),
+        ),
     };
     let bay = Bay {
         name: "bay 1".into(),

@@ -7,7 +7,7 @@ use super::error::{ChainError, OpenContour, fmt_point};
 use super::gather::{LayerStuff, gather};
 use super::join::{Piece, join};
 use super::{Bay, Part};
-use crate::geom::{Contour, Element, Point};
+use crate::geom::{Contour, Element, Point, bounds_of_elements};
 use crate::read::Drawing;
 
 /// The layer that holds bays unless the user names another. Matched case-insensitively, as DXF
@@ -174,17 +174,19 @@ fn sort_loops(
 
 /// A loop on a cut layer as a counter-clockwise contour; refused when it encloses no area.
 fn cut_shape(piece: Piece, layer: &str, max_gap: f64) -> Result<Shape, ChainError> {
-    let contour = Contour {
-        elements: piece.elements,
-        layer: layer.to_string(),
-        handles: piece.handles,
-    };
+    let contour = Contour::new(piece.elements, layer, piece.handles.clone()).map_err(|error| {
+        ChainError::Unclosed {
+            layer: layer.to_string(),
+            handles: piece.handles,
+            error,
+        }
+    })?;
     let area = contour.signed_area();
-    let perimeter: f64 = contour.elements.iter().map(Element::length).sum();
+    let perimeter = contour.length();
     if area.abs() <= max_gap.max(1e-9) * perimeter {
         return Err(ChainError::NoArea {
-            layer: contour.layer.clone(),
-            handles: contour.handles.clone(),
+            layer: contour.layer().to_string(),
+            handles: contour.handles().to_vec(),
             at: contour.start_point().unwrap_or(Point::ORIGIN),
         });
     }
@@ -240,14 +242,7 @@ fn bays_outside(outline: &Contour, bays: &[Bay]) -> Vec<String> {
 
 /// Order by the lower-left corner of the bounding box (x, then y), then by first handle.
 fn order_key(a: &[Element], ha: &[String], b: &[Element], hb: &[String]) -> std::cmp::Ordering {
-    let lo = |els: &[Element]| {
-        let c = Contour {
-            elements: els.to_vec(),
-            layer: String::new(),
-            handles: Vec::new(),
-        };
-        c.bounds().map(|(lo, _)| lo).unwrap_or(Point::ORIGIN)
-    };
+    let lo = |els: &[Element]| bounds_of_elements(els).map_or(Point::ORIGIN, |b| b.min);
     let (pa, pb) = (lo(a), lo(b));
     pa.x.total_cmp(&pb.x)
         .then(pa.y.total_cmp(&pb.y))

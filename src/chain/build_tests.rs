@@ -88,14 +88,14 @@ fn outline_holes_and_bays_are_sorted_and_named() {
         );
     let part = d.build().unwrap();
     let outline = part.outline.unwrap();
-    assert_eq!(outline.layer, "Plate");
+    assert_eq!(outline.layer(), "Plate");
     assert!(outline.is_ccw());
     assert_eq!(part.holes.len(), 2);
     assert_eq!(part.holes[0].name, "hole 1");
     let InnerShape::Contour(c) = &part.holes[0].shape else {
         panic!("circle hole should be a contour")
     };
-    let Element::Arc(a) = c.elements[0] else {
+    let Element::Arc(a) = c.elements()[0] else {
         panic!("a circle is one arc")
     };
     assert_eq!(a.centre, Point::new(10.0, 10.0), "hole 1 is the left one");
@@ -160,10 +160,10 @@ fn raising_the_max_gap_closes_the_gap_and_snaps_it() {
     };
     let part = build_part(&drawing, &opts).unwrap();
     let c = part.outline.unwrap();
-    for i in 0..c.elements.len() {
+    for i in 0..c.elements().len() {
         assert_eq!(
-            c.elements[i].end(),
-            c.elements[(i + 1) % c.elements.len()].start()
+            c.elements()[i].end(),
+            c.elements()[(i + 1) % c.elements().len()].start()
         );
     }
 }
@@ -322,7 +322,7 @@ fn rounded_polyline_outline_keeps_its_arcs() {
     let c = part.outline.unwrap();
     let area = 20.0 * 20.0 + std::f64::consts::PI * 100.0;
     assert!((c.signed_area() - area).abs() < 1e-9);
-    assert_eq!(c.elements.len(), 4);
+    assert_eq!(c.elements().len(), 4);
 }
 
 #[test]

@@ -29,30 +29,30 @@ impl Shape {
         let polygon = flatten_contour(&c);
         let (low, high) = c.bounds().unwrap_or((Point::ORIGIN, Point::ORIGIN));
         let kinds: Vec<&str> = c
-            .elements
+            .elements()
             .iter()
             .map(|e| match e {
                 Element::Line(_) => "line",
                 Element::Arc(_) => "arc",
             })
             .collect();
-        let description = if c.elements.len() == 1 && kinds[0] == "arc" {
+        let description = if c.elements().len() == 1 && kinds[0] == "arc" {
             format!(
                 "the circle on layer {} (handle {})",
-                c.layer,
-                fmt_handles(&c.handles)
+                c.layer(),
+                fmt_handles(&c.handles())
             )
         } else {
             format!(
                 "the contour on layer {} (handles {})",
-                c.layer,
-                fmt_handles(&c.handles)
+                c.layer(),
+                fmt_handles(&c.handles())
             )
         };
         Shape {
             area: c.signed_area().abs(),
-            sample: c.elements[0].start(),
-            first_handle: c.handles.first().cloned().unwrap_or_default(),
+            sample: c.elements()[0].start(),
+            first_handle: c.handles().first().cloned().unwrap_or_default(),
             polygon,
             low,
             high,
@@ -233,7 +233,7 @@ fn name_holes(mut shapes: Vec<Shape>) -> Vec<InnerBoundary> {
             match s.kind {
                 ShapeKind::Contour(c) => InnerBoundary {
                     name,
-                    layer: c.layer.clone(),
+                    layer: c.layer().to_string(),
                     shape: InnerShape::Contour(c),
                 },
                 ShapeKind::Ellipse(e, layer) => InnerBoundary {

@@ -19,7 +19,7 @@ fn chord_count(r: f64, sweep: f64) -> usize {
 
 pub(super) fn flatten_contour(c: &Contour) -> Vec<Point> {
     let mut pts = Vec::new();
-    for e in &c.elements {
+    for e in c.elements() {
         match e {
             Element::Line(s) => pts.push(s.start),
             Element::Arc(a) => {

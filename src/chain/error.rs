@@ -102,6 +102,16 @@ pub enum ChainError {
         at: Point,
     },
     #[error(
+        "layer {layer}: the loop through handles {} did not close after its gaps were snapped \
+         ({error}); this is a fault in conicut: please report it with the drawing",
+        fmt_handles(handles)
+    )]
+    Unclosed {
+        layer: String,
+        handles: Vec<String>,
+        error: crate::geom::ContourError,
+    },
+    #[error(
         "{first} and {second} cross or touch near {}. Outline and holes must not meet; correct \
          the drawing",
         fmt_point(*at)

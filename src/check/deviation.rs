@@ -151,7 +151,7 @@ impl<'a> Target<'a> {
             }
             Target::Contour { contour, ccw } => {
                 let d = contour
-                    .elements
+                    .elements()
                     .iter()
                     .map(|e| match e {
                         Element::Line(s) => s.distance_to(p),
@@ -368,8 +368,8 @@ fn path_pieces(exact: &ExactPath, count: usize) -> Vec<(PathPiece<'_>, usize, f6
             vec![(piece, count, speed)]
         }
         ExactPath::Contour(c) => {
-            let total: f64 = c.elements.iter().map(Element::length).sum();
-            c.elements
+            let total: f64 = c.elements().iter().map(Element::length).sum();
+            c.elements()
                 .iter()
                 .map(|e| {
                     let n = ((count as f64 * e.length() / total).ceil() as usize).max(8);

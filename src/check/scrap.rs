@@ -261,16 +261,10 @@ mod tests {
     /// A Ø20 mm hole about (50, 50), cut with a 6 mm tool: the path is the circle of radius 7.
     fn hole() -> PlannedCut {
         let c = Point::new(50.0, 50.0);
-        let drawn = Contour {
-            elements: vec![Element::Arc(ArcSegment::circle(c, 10.0))],
-            layer: "0".into(),
-            handles: vec![],
-        };
-        let path = Contour {
-            elements: vec![Element::Arc(ArcSegment::circle(c, 7.0))],
-            layer: "0".into(),
-            handles: vec![],
-        };
+        let drawn =
+            Contour::new(vec![Element::Arc(ArcSegment::circle(c, 10.0))], "0", vec![]).unwrap();
+        let path =
+            Contour::new(vec![Element::Arc(ArcSegment::circle(c, 7.0))], "0", vec![]).unwrap();
         PlannedCut::new(
             "hole 1",
             FeatureKind::Hole,
@@ -333,22 +327,23 @@ mod tests {
         // 0.1 mm inside a Ø9 mm circle: within the sagitta of a 0.5 rad chord (0.14 mm), where a
         // polygon of the circle would put it outside. Independent: |p − c| < 4.5.
         let c = Point::new(15.0, 15.0);
-        let circle = Edge::Contour(Contour {
-            elements: vec![Element::Arc(ArcSegment::circle(c, 4.5))],
-            layer: "0".into(),
-            handles: vec![],
-        });
+        let circle = Edge::Contour(
+            Contour::new(vec![Element::Arc(ArcSegment::circle(c, 4.5))], "0", vec![]).unwrap(),
+        );
         for k in 0..360 {
             let dir = Vec2::from_angle((k as f64).to_radians());
             assert!(Edge::contains(&circle, c + dir * 4.4), "{k}°");
             assert!(!Edge::contains(&circle, c + dir * 4.6), "{k}°");
         }
         // Clockwise too.
-        let cw = Edge::Contour(Contour {
-            elements: vec![Element::Arc(ArcSegment::circle(c, 4.5).reversed())],
-            layer: "0".into(),
-            handles: vec![],
-        });
+        let cw = Edge::Contour(
+            Contour::new(
+                vec![Element::Arc(ArcSegment::circle(c, 4.5).reversed())],
+                "0",
+                vec![],
+            )
+            .unwrap(),
+        );
         assert!(Edge::contains(&cw, c + Vec2::new(4.4, 0.1)));
         assert!(!Edge::contains(&cw, c + Vec2::new(4.6, 0.1)));
     }

@@ -97,9 +97,9 @@ fn curve_samples(exact: &ExactPath, count: usize) -> Vec<Point> {
             .map(|k| ellipse.inward_offset_point(start + TAU * k as f64 / count as f64, *inset))
             .collect(),
         ExactPath::Contour(c) => {
-            let total: f64 = c.elements.iter().map(Element::length).sum();
+            let total: f64 = c.elements().iter().map(Element::length).sum();
             let mut out = Vec::new();
-            for e in &c.elements {
+            for e in c.elements() {
                 let n = ((count as f64 * e.length() / total).ceil() as usize).max(2);
                 for k in 0..=n {
                     let t = k as f64 / n as f64;
@@ -149,7 +149,7 @@ fn signed_distance_to_exact(exact: &ExactPath, p: Point) -> f64 {
             // The side of the nearest piece: left of a line's direction; inside the circle of a
             // counter-clockwise arc, outside that of a clockwise one.
             let mut best = (f64::INFINITY, true);
-            for e in &c.elements {
+            for e in c.elements() {
                 let d = e.distance_to(p);
                 if d < best.0 {
                     let left = match e {

@@ -447,8 +447,8 @@ fn fit_contour(c: &Contour, scrap_left: bool, options: &FitOptions) -> (Point, V
     };
     let mut moves = Vec::new();
     let mut at = first;
-    let count = c.elements.len();
-    for (i, element) in c.elements.iter().enumerate() {
+    let count = c.elements().len();
+    for (i, element) in c.elements().iter().enumerate() {
         // The contour closes exactly on its first point.
         let end = if i + 1 == count { first } else { element.end() };
         match element {

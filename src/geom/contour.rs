@@ -85,19 +85,94 @@ impl Element {
     }
 }
 
+/// Consecutive pieces of a [`Contour`] must meet to within this distance (mm).
+///
+/// 1e-6 mm: the chainer snaps shared points together, after which a line's end agrees bit for bit
+/// and an arc's computed end to about 1e-13 of its radius, so this passes arcs of radius up to
+/// 10 km; yet it is four orders below the smallest gap the chainer is ever told to close.
+pub const JOIN_LIMIT: f64 = 1e-6;
+
+/// Why pieces do not make a [`Contour`].
+#[derive(Debug, Clone, PartialEq, thiserror::Error)]
+pub enum ContourError {
+    #[error("a contour needs at least one piece")]
+    Empty,
+    #[error(
+        "piece {index} ends {gap:.3e} mm from where the next one starts, near ({x:.4}, {y:.4}); \
+         the pieces must meet to within {JOIN_LIMIT:e} mm",
+        x = at.x,
+        y = at.y
+    )]
+    Open { index: usize, gap: f64, at: Point },
+}
+
 /// A closed chain of pieces: each piece ends where the next one starts, and the last ends where
-/// the first starts (to within the chaining gap tolerance; the stored end points are snapped
-/// together).
+/// the first starts, to within [`JOIN_LIMIT`]. Built only through [`Contour::new`], which checks
+/// that.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct Contour {
-    pub elements: Vec<Element>,
+    elements: Vec<Element>,
     /// The DXF layer the pieces came from.
-    pub layer: String,
+    layer: String,
     /// DXF entity handles of the pieces, for messages.
-    pub handles: Vec<String>,
+    handles: Vec<String>,
 }
 
 impl Contour {
+    /// The closed chain of `elements`, refused when empty or when a piece does not end where the
+    /// next one starts (the last one where the first starts).
+    pub fn new(
+        elements: Vec<Element>,
+        layer: impl Into<String>,
+        handles: Vec<String>,
+    ) -> Result<Contour, ContourError> {
+        if elements.is_empty() {
+            return Err(ContourError::Empty);
+        }
+        let n = elements.len();
+        for (index, e) in elements.iter().enumerate() {
+            let (end, next) = (e.end(), elements[(index + 1) % n].start());
+            let gap = end.distance(next);
+            if !(gap <= JOIN_LIMIT) {
+                return Err(ContourError::Open {
+                    index,
+                    gap,
+                    at: end,
+                });
+            }
+        }
+        Ok(Contour {
+            elements,
+            layer: layer.into(),
+            handles,
+        })
+    }
+
+    /// The pieces in order of travel.
+    pub fn elements(&self) -> &[Element] {
+        &self.elements
+    }
+
+    /// The DXF layer the pieces came from.
+    pub fn layer(&self) -> &str {
+        &self.layer
+    }
+
+    /// DXF entity handles of the pieces, for messages.
+    pub fn handles(&self) -> &[String] {
+        &self.handles
+    }
+
+    /// The pieces, giving the contour up.
+    pub fn into_elements(self) -> Vec<Element> {
+        self.elements
+    }
+
+    /// Total length of the pieces (mm).
+    pub fn length(&self) -> f64 {
+        self.elements.iter().map(Element::length).sum()
+    }
+
     /// Signed enclosed area: positive when the contour runs counter-clockwise.
     pub fn signed_area(&self) -> f64 {
         self.elements.iter().map(Element::area_term).sum()
@@ -165,21 +240,26 @@ impl Contour {
 
     /// The axis-aligned box of the contour, arcs included exactly.
     pub fn bounding_box(&self) -> Option<Bounds> {
-        let mut pts = Vec::new();
-        for e in &self.elements {
-            pts.push(e.start());
-            pts.push(e.end());
-            if let Element::Arc(a) = e {
-                for k in 0..4 {
-                    let ang = k as f64 * std::f64::consts::FRAC_PI_2;
-                    if a.contains_angle(ang) {
-                        pts.push(a.point_at_angle(ang));
-                    }
+        bounds_of_elements(&self.elements)
+    }
+}
+
+/// The axis-aligned box of some pieces, arcs included exactly; `None` when there are none.
+pub fn bounds_of_elements(elements: &[Element]) -> Option<Bounds> {
+    let mut pts = Vec::new();
+    for e in elements {
+        pts.push(e.start());
+        pts.push(e.end());
+        if let Element::Arc(a) = e {
+            for k in 0..4 {
+                let ang = k as f64 * std::f64::consts::FRAC_PI_2;
+                if a.contains_angle(ang) {
+                    pts.push(a.point_at_angle(ang));
                 }
             }
         }
-        Bounds::of_points(&pts)
     }
+    Bounds::of_points(&pts)
 }
 
 /// The signed angle from `u` to `v` in (−π, π].
@@ -233,5 +313,30 @@ mod tests {
         assert!(!c.contains(Point::new(8.0, 1.0)));
         let (lo, hi) = c.bounds().unwrap();
         assert!((lo.x - 3.0).abs() < 1e-12 && (hi.y - 3.0).abs() < 1e-12);
+    }
+
+    #[test]
+    fn new_refuses_empty_and_open_chains() {
+        assert_eq!(Contour::new(vec![], "0", vec![]), Err(ContourError::Empty));
+        let (a, b, c) = (
+            Point::new(0.0, 0.0),
+            Point::new(4.0, 0.0),
+            Point::new(4.0, 3.0),
+        );
+        let open = vec![
+            Element::Line(Segment::new(a, b)),
+            Element::Line(Segment::new(b, c)),
+        ];
+        let Err(ContourError::Open { index, gap, at }) = Contour::new(open.clone(), "0", vec![])
+        else {
+            panic!("an open chain was accepted");
+        };
+        assert_eq!((index, at), (1, c));
+        assert!((gap - 5.0).abs() < 1e-12);
+        let mut closed = open;
+        closed.push(Element::Line(Segment::new(c, a + Vec2::new(0.5 * JOIN_LIMIT, 0.0))));
+        let contour = Contour::new(closed, "L", vec!["1F".into()]).unwrap();
+        assert_eq!((contour.layer(), contour.handles()), ("L", &["1F".to_string()][..]));
+        assert!((contour.length() - 12.0).abs() < JOIN_LIMIT);
     }
 }

@@ -27,7 +27,7 @@ mod vector;
 
 pub use arc::ArcSegment;
 pub use bounds::Bounds;
-pub use contour::{Contour, Element, bounds_of};
+pub use contour::{Contour, ContourError, Element, JOIN_LIMIT, bounds_of, bounds_of_elements};
 pub use ellipse::{Ellipse, EllipseError};
 pub use line::{Line, Segment};
 pub use moves::Move;

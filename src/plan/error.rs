@@ -11,6 +11,14 @@ pub enum PlanError {
         value: f64,
         hint: &'static str,
     },
+    #[error(
+        "{feature}: the planned tool path came out broken ({error}); this is a fault in \
+         conicut: please report it with the drawing"
+    )]
+    BrokenPath {
+        feature: String,
+        error: crate::geom::ContourError,
+    },
     #[error("{feature}: no room for a lead-in: {detail}")]
     NoRoomForLead { feature: String, detail: String },
     #[error(

@@ -118,7 +118,7 @@ fn ring_distance(ring: &ExactPath, edge: &Edge) -> f64 {
     match ring {
         ExactPath::EllipseParallel { inset, .. } => inset.abs(),
         ExactPath::Contour(c) => c
-            .elements
+            .elements()
             .iter()
             .map(|e| edge.distance_to(e.start()))
             .fold(f64::INFINITY, f64::min),
@@ -142,9 +142,9 @@ fn tabs_moved(tabs: &[Tab], from: &ExactPath, to: &ExactPath) -> Vec<Tab> {
 
 /// The point at `share` of the contour's length from its start.
 fn point_at_share(c: &Contour, share: f64) -> Point {
-    let total: f64 = c.elements.iter().map(Element::length).sum();
+    let total: f64 = c.elements().iter().map(Element::length).sum();
     let mut left = share.rem_euclid(1.0) * total;
-    for e in &c.elements {
+    for e in c.elements() {
         let len = e.length();
         if left <= len && len > 0.0 {
             return e.point_at(left / len);
@@ -156,13 +156,13 @@ fn point_at_share(c: &Contour, share: f64) -> Point {
 
 /// The share of the contour's length from its start to the point of the contour nearest `p`.
 fn share_nearest(c: &Contour, p: Point) -> f64 {
-    let total: f64 = c.elements.iter().map(Element::length).sum();
+    let total: f64 = c.elements().iter().map(Element::length).sum();
     if total <= 0.0 {
         return 0.0;
     }
     let mut walked = 0.0;
     let mut best = (f64::INFINITY, 0.0);
-    for e in &c.elements {
+    for e in c.elements() {
         let len = e.length();
         let t = match e {
             Element::Line(s) => {

@@ -50,8 +50,8 @@ pub(super) fn frame_at(path: &ExactPath, side: CutSide, along: f64) -> Option<Fr
             // an outside path clockwise.
             let scrap_left = (side == CutSide::Inside) == c.is_ccw();
             let mut left = along.max(0.0);
-            let count = c.elements.len();
-            for (k, e) in c.elements.iter().enumerate() {
+            let count = c.elements().len();
+            for (k, e) in c.elements().iter().enumerate() {
                 let len = e.length();
                 if left <= len || k + 1 == count {
                     let t = if len > 0.0 {
@@ -131,7 +131,7 @@ pub(super) fn path_length(path: &ExactPath) -> f64 {
                 .map(|k| simpson(&speed, k as f64 * h, h))
                 .sum()
         }
-        ExactPath::Contour(c) => c.elements.iter().map(Element::length).sum(),
+        ExactPath::Contour(c) => c.elements().iter().map(Element::length).sum(),
     }
 }
 

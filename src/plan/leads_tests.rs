@@ -19,11 +19,12 @@ fn options(d: f64, kind: LeadKind, length: f64, radius: f64) -> PlanOptions {
 }
 
 fn circle_hole(cx: f64, cy: f64, radius: f64) -> Contour {
-    Contour {
-        elements: vec![Element::Arc(ArcSegment::circle(Point::new(cx, cy), radius))],
-        layer: "0".into(),
-        handles: vec![],
-    }
+    Contour::new(
+        vec![Element::Arc(ArcSegment::circle(Point::new(cx, cy), radius))],
+        "0",
+        vec![],
+    )
+    .unwrap()
 }
 
 /// The plan of one elliptical opening `e` named `bay`, cut inside.

@@ -19,6 +19,8 @@ pub enum OffsetError {
     ArcTooTight { at: Point, radius: f64 },
     /// A piece vanished or turned round after trimming: the tool does not fit.
     PieceVanishes { at: Point },
+    /// The trimmed and joined pieces do not close (a fault in the offset).
+    Unclosed(crate::geom::ContourError),
 }
 
 /// The result of an offset: the tool-centre contour and the sharp corners it keeps.
@@ -32,9 +34,9 @@ pub struct Offset {
 
 /// Offsets `contour` by `distance` (> 0) to the left of its direction of travel.
 pub fn offset_left(contour: &Contour, distance: f64) -> Result<Offset, OffsetError> {
-    let n = contour.elements.len();
+    let n = contour.elements().len();
     let mut moved: Vec<Element> = Vec::with_capacity(n);
-    for e in &contour.elements {
+    for e in contour.elements() {
         moved.push(move_left(e, distance)?);
     }
     let mut out: Vec<Element> = Vec::with_capacity(2 * n);
@@ -44,8 +46,8 @@ pub fn offset_left(contour: &Contour, distance: f64) -> Result<Offset, OffsetErr
     let mut joins: Vec<Option<Element>> = vec![None; n];
     for i in 0..n {
         let j = (i + 1) % n;
-        let a = &contour.elements[i];
-        let b = &contour.elements[j];
+        let a = &contour.elements()[i];
+        let b = &contour.elements()[j];
         let corner = a.end();
         let (Some(t1), Some(t2)) = (a.end_tangent(), b.start_tangent()) else {
             return Err(OffsetError::PieceVanishes { at: corner });
@@ -76,18 +78,15 @@ pub fn offset_left(contour: &Contour, distance: f64) -> Result<Offset, OffsetErr
         }
     }
     for i in 0..n {
-        check_same_sense(&moved[i], &pieces[i], contour.elements[i].start())?;
+        check_same_sense(&moved[i], &pieces[i], contour.elements()[i].start())?;
         out.push(pieces[i]);
         if let Some(join) = joins[i] {
             out.push(join);
         }
     }
     Ok(Offset {
-        contour: Contour {
-            elements: out,
-            layer: contour.layer.clone(),
-            handles: contour.handles.clone(),
-        },
+        contour: Contour::new(out, contour.layer(), contour.handles().to_vec())
+            .map_err(OffsetError::Unclosed)?,
         inside_corners,
     })
 }
@@ -229,13 +228,14 @@ mod tests {
 
     fn polygon(pts: &[(f64, f64)]) -> Contour {
         let p: Vec<Point> = pts.iter().map(|&(x, y)| Point::new(x, y)).collect();
-        Contour {
-            elements: (0..p.len())
+        Contour::new(
+            (0..p.len())
                 .map(|i| Element::Line(Segment::new(p[i], p[(i + 1) % p.len()])))
                 .collect(),
-            layer: "0".into(),
-            handles: vec![],
-        }
+            "0",
+            vec![],
+        )
+        .unwrap()
     }
 
     #[test]
@@ -245,7 +245,7 @@ mod tests {
         // bodies of a convex set).
         let sq = polygon(&[(0.0, 0.0), (0.0, 10.0), (10.0, 10.0), (10.0, 0.0)]);
         let o = offset_left(&sq, 1.0).unwrap();
-        assert_eq!(o.contour.elements.len(), 8);
+        assert_eq!(o.contour.elements().len(), 8);
         let area = -o.contour.signed_area();
         assert!(
             (area - (140.0 + std::f64::consts::PI)).abs() < 1e-12,
@@ -258,20 +258,21 @@ mod tests {
     fn counter_clockwise_square_shrinks_with_sharp_corners() {
         let sq = polygon(&[(0.0, 0.0), (10.0, 0.0), (10.0, 10.0), (0.0, 10.0)]);
         let o = offset_left(&sq, 1.0).unwrap();
-        assert_eq!(o.contour.elements.len(), 4);
+        assert_eq!(o.contour.elements().len(), 4);
         assert!((o.contour.signed_area() - 64.0).abs() < 1e-12);
         assert_eq!(o.inside_corners.len(), 4);
     }
 
     #[test]
     fn circle_hole_shrinks_and_too_small_hole_is_refused() {
-        let c = Contour {
-            elements: vec![Element::Arc(ArcSegment::circle(Point::new(1.0, 2.0), 5.0))],
-            layer: "0".into(),
-            handles: vec![],
-        };
+        let c = Contour::new(
+            vec![Element::Arc(ArcSegment::circle(Point::new(1.0, 2.0), 5.0))],
+            "0",
+            vec![],
+        )
+        .unwrap();
         let o = offset_left(&c, 2.0).unwrap();
-        match o.contour.elements[0] {
+        match o.contour.elements()[0] {
             Element::Arc(a) => assert_eq!(a.radius, 3.0),
             _ => panic!("arc expected"),
         }

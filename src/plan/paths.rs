@@ -62,6 +62,10 @@ pub(super) fn plan_contour(
             x: at.x,
             y: at.y,
         },
+        offset::OffsetError::Unclosed(error) => PlanError::BrokenPath {
+            feature: name.to_string(),
+            error,
+        },
     })?;
     if !offset.inside_corners.is_empty() {
         let list: Vec<String> = offset
@@ -84,7 +88,7 @@ pub(super) fn plan_contour(
             // One tool radius further into the scrap, along the normal at the start, if the tool
             // clears the drawn edge there; otherwise on the path itself.
             let normal = path
-                .elements
+                .elements()
                 .first()
                 .and_then(offset::start_left_normal)
                 .unwrap_or_default();
@@ -114,7 +118,7 @@ pub(super) fn plan_contour(
 
 /// The centre and radius when the contour is one full circle.
 fn circle_of(c: &Contour) -> Option<(Point, f64)> {
-    match c.elements.as_slice() {
+    match c.elements() {
         [Element::Arc(a)] if a.is_full_circle() => Some((a.centre, a.radius)),
         _ => None,
     }
@@ -129,7 +133,7 @@ fn check_clearance(
     r: f64,
     d: f64,
 ) -> Result<(), PlanError> {
-    for e in &path.elements {
+    for e in path.elements() {
         for k in 0..64 {
             let p = e.point_at(k as f64 / 64.0);
             if drawn.distance_to(p) < r * (1.0 - GOUGE_MARGIN) {

@@ -74,7 +74,7 @@
 //! edge than the ring it reaches.
 
 use super::{PlanError, PlanOptions};
-use crate::geom::{Contour, Element, ExactPath, ParallelCurve};
+use crate::geom::{Contour, ContourError, Element, ExactPath, ParallelCurve};
 use crate::geom::{Ellipse, Point, Segment, Vec2};
 use std::f64::consts::PI;
 
@@ -213,26 +213,27 @@ pub fn clearing_rings(
         ));
     }
     let threshold = REGULAR_SHARE * limit;
-    Ok(levels
+    levels
         .insets
         .iter()
         .map(|&inset| {
             if inset < threshold {
-                ExactPath::EllipseParallel {
+                Ok(ExactPath::EllipseParallel {
                     ellipse: *e,
                     inset,
                     start: 0.0,
                     clockwise: false,
-                }
+                })
             } else {
-                ExactPath::Contour(polygon_contour(&level_set_polygon(
-                    e,
-                    inset,
-                    levels.chord_tolerance,
-                )))
+                polygon_contour(&level_set_polygon(e, inset, levels.chord_tolerance))
+                    .map(ExactPath::Contour)
+                    .map_err(|error| PlanError::BrokenPath {
+                        feature: name.to_string(),
+                        error,
+                    })
             }
         })
-        .collect())
+        .collect()
 }
 
 /// The level set `L(δ)` (`0 < δ < b`) as a closed polygon, counter-clockwise from its point on
@@ -320,15 +321,12 @@ fn chords(e: &Ellipse, inset: f64, t0: f64, t1: f64, tol: f64, out: &mut Vec<Poi
 }
 
 /// A closed polygon (last vertex = first) as a contour of lines.
-fn polygon_contour(points: &[Point]) -> Contour {
-    Contour {
-        elements: points
-            .windows(2)
-            .map(|w| Element::Line(Segment::new(w[0], w[1])))
-            .collect(),
-        layer: String::new(),
-        handles: Vec::new(),
-    }
+fn polygon_contour(points: &[Point]) -> Result<Contour, ContourError> {
+    let sides = points
+        .windows(2)
+        .map(|w| Element::Line(Segment::new(w[0], w[1])))
+        .collect();
+    Contour::new(sides, "", Vec::new())
 }
 
 #[cfg(test)]

@@ -135,7 +135,7 @@ pub fn place_tabs(
         ));
         return Ok(Vec::new());
     }
-    let total: f64 = contour.elements.iter().map(Element::length).sum();
+    let total: f64 = contour.elements().iter().map(Element::length).sum();
     let Some(wanted) = requested_count(tabs, total).filter(|_| total > 0.0 && total.is_finite())
     else {
         warnings.push(format!(
@@ -184,7 +184,7 @@ pub fn place_tabs(
 fn gentle_stretches(contour: &Contour, gentle_radius: f64, end_margin: f64) -> Vec<(f64, f64)> {
     let mut allowed = Vec::new();
     let mut at = 0.0;
-    for e in &contour.elements {
+    for e in contour.elements() {
         let l = e.length();
         let gentle = match e {
             Element::Line(_) => true,
@@ -303,8 +303,8 @@ mod tests {
         let line = |a: (f64, f64), b: (f64, f64)| {
             Element::Line(Segment::new(Point::new(a.0, a.1), Point::new(b.0, b.1)))
         };
-        Contour {
-            elements: vec![
+        Contour::new(
+            vec![
                 arc(r, r, -FRAC_PI_2),
                 line((0.0, r), (0.0, h - r)),
                 arc(r, h - r, std::f64::consts::PI),
@@ -314,9 +314,10 @@ mod tests {
                 arc(w - r, r, 0.0),
                 line((w - r, 0.0), (r, 0.0)),
             ],
-            layer: "0".into(),
-            handles: vec![],
-        }
+            "0",
+            vec![],
+        )
+        .unwrap()
     }
 
     fn cut_on(c: Contour) -> PlannedCut {
@@ -346,7 +347,7 @@ mod tests {
     #[test]
     fn tabs_sit_on_the_straight_sides_apart_and_clear_of_the_start() {
         let c = rounded_rectangle(100.0, 60.0, 8.0);
-        let total: f64 = c.elements.iter().map(Element::length).sum();
+        let total: f64 = c.elements().iter().map(Element::length).sum();
         let cut = cut_on(c);
         let (tabs, opts) = options(Some(4), 0.0);
         let mut warnings = Vec::new();
@@ -384,7 +385,7 @@ mod tests {
     #[test]
     fn spacing_gives_the_rounded_count_and_too_many_tabs_give_a_warning() {
         let c = rounded_rectangle(100.0, 60.0, 8.0);
-        let total: f64 = c.elements.iter().map(Element::length).sum();
+        let total: f64 = c.elements().iter().map(Element::length).sum();
         let cut = cut_on(c);
         // 4 quarter arcs of radius 8 and 256 mm of sides: 306.3 mm / 70 mm = 4.38, rounded to 4.
         let (tabs, opts) = options(None, 70.0);
@@ -404,7 +405,7 @@ mod tests {
     fn large_gentle_arcs_take_tabs_and_leads_push_them_away() {
         // Corner radius 40 ≥ 30 (5 tool diameters): the corner arcs are gentle too.
         let c = rounded_rectangle(200.0, 120.0, 40.0);
-        let total: f64 = c.elements.iter().map(Element::length).sum();
+        let total: f64 = c.elements().iter().map(Element::length).sum();
         let cut = cut_on(c);
         let (tabs, mut opts) = options(Some(8), 0.0);
         opts.leads = LeadOptions {

@@ -50,11 +50,11 @@ fn push_arc(d: &mut String, arc: &ArcSegment) {
 
 /// `d` for a closed contour of lines and circular arcs.
 pub fn contour_d(contour: &Contour) -> String {
-    let Some(first) = contour.elements.first() else {
+    let Some(first) = contour.elements().first() else {
         return String::new();
     };
     let mut d = format!("M {}", xy(first.start()));
-    for element in &contour.elements {
+    for element in contour.elements() {
         match element {
             Element::Line(s) => {
                 let _ = write!(d, " L {}", xy(s.end));
@@ -217,23 +217,26 @@ mod tests {
 
     #[test]
     fn full_circle_and_long_arcs_are_split() {
-        let c = Contour {
-            elements: vec![Element::Arc(ArcSegment::circle(Point::new(0.0, 0.0), 5.0))],
-            layer: "0".into(),
-            handles: vec![],
-        };
+        let c = Contour::new(
+            vec![Element::Arc(ArcSegment::circle(Point::new(0.0, 0.0), 5.0))],
+            "0",
+            vec![],
+        )
+        .unwrap();
         let d = contour_d(&c);
         assert_eq!(d.matches(" A ").count(), 2, "{d}");
         assert_eq!(d, "M 5 0 A 5 5 0 0 0 -5 0 A 5 5 0 0 0 5 0 Z");
-        let line = Contour {
-            elements: vec![Element::Line(Segment::new(
-                Point::new(0.0, 0.0),
-                Point::new(1.0, 2.0),
-            ))],
-            layer: "0".into(),
-            handles: vec![],
-        };
-        assert_eq!(contour_d(&line), "M 0 0 L 1 -2 Z");
+        let (p, q) = (Point::new(0.0, 0.0), Point::new(1.0, 2.0));
+        let there_and_back = Contour::new(
+            vec![
+                Element::Line(Segment::new(p, q)),
+                Element::Line(Segment::new(q, p)),
+            ],
+            "0",
+            vec![],
+        )
+        .unwrap();
+        assert_eq!(contour_d(&there_and_back), "M 0 0 L 1 -2 L 0 0 Z");
     }
 
     #[test]

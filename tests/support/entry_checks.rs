@@ -379,13 +379,14 @@ pub fn square(x0: f64, y0: f64, side: f64, ccw: bool) -> Contour {
     if !ccw {
         p.reverse();
     }
-    Contour {
-        elements: (0..4)
+    Contour::new(
+        (0..4)
             .map(|i| Element::Line(Segment::new(p[i], p[(i + 1) % 4])))
             .collect(),
-        layer: "0".into(),
-        handles: vec![],
-    }
+        "0",
+        vec![],
+    )
+    .unwrap()
 }
 
 /// Per feature: the plunge point, the contour's start, and the contour's samples (last pass).
