@@ -13,17 +13,18 @@ use criterion::{Criterion, criterion_group, criterion_main};
 use std::hint::black_box;
 
 fn four_sided_largest(c: &mut Criterion) {
-    let bay = Bay {
-        name: "bay 1".into(),
-        layer: "BAYS".into(),
-        corners: vec![
+    let bay = Bay::new(
+        "bay 1",
+        "BAYS",
+        &[
             Point::new(0.0, 0.0),
             Point::new(5.0, 0.0),
             Point::new(4.0, 3.0),
             Point::new(1.0, 4.0),
         ],
-        handles: vec![],
-    };
+        &[],
+    )
+    .unwrap();
     c.bench_function("four_sided_largest", |b| {
         b.iter(|| largest_tangent_ellipse(black_box(&bay), black_box(0.0)).unwrap())
     });

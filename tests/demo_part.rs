@@ -48,7 +48,7 @@ fn demo_reads_back_as_the_scenario() {
     assert_eq!(part.holes.len(), 4);
     assert_eq!(part.bays.len(), 4);
     for (bay, expected) in part.bays.iter().zip(BAYS) {
-        let got: Vec<(f64, f64)> = bay.corners.iter().map(|p| (p.x, p.y)).collect();
-        assert_eq!(got, expected, "{}", bay.name);
+        let got: Vec<(f64, f64)> = bay.corners().iter().map(|p| (p.x, p.y)).collect();
+        assert_eq!(got, expected, "{}", bay.name());
     }
 }

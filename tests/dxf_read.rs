@@ -102,12 +102,12 @@ fn demo_round_trip_keeps_contours_holes_and_bays() {
 
     assert_eq!(part.bays.len(), BAYS.len());
     for (bay, want) in part.bays.iter().zip(BAYS) {
-        assert_eq!(bay.corners.len(), 4, "{}", bay.name);
-        for (got, want) in bay.corners.iter().zip(want) {
+        assert_eq!(bay.corners().len(), 4, "{}", bay.name());
+        for (got, want) in bay.corners().iter().zip(want) {
             assert!(
                 (got.x - want.0).abs() <= 1e-9 && (got.y - want.1).abs() <= 1e-9,
                 "{}: {got:?} vs {want:?}",
-                bay.name
+                bay.name()
             );
         }
     }
@@ -332,7 +332,7 @@ fn five_lines_with_two_collinear_make_a_four_sided_bay() {
     let part = build_part(&r, &ChainOptions::default()).unwrap();
     assert_eq!(part.bays.len(), 1);
     assert_eq!(
-        part.bays[0].corners,
+        part.bays[0].corners(),
         [
             Point::new(0.0, 0.0),
             Point::new(60.0, 0.0),
@@ -340,7 +340,7 @@ fn five_lines_with_two_collinear_make_a_four_sided_bay() {
             Point::new(10.0, 30.0)
         ]
     );
-    assert_eq!(part.bays[0].handles.len(), 5);
+    assert_eq!(part.bays[0].handles().len(), 5);
 }
 
 #[test]
@@ -350,7 +350,7 @@ fn bay_drawn_clockwise_comes_back_counter_clockwise() {
     add_lines(&mut d, DEFAULT_BAY_LAYER, &cw);
     let r = read_dxf(&save(&d), &opts(None)).unwrap();
     let part = build_part(&r, &ChainOptions::default()).unwrap();
-    let c = &part.bays[0].corners;
+    let c = &part.bays[0].corners();
     let area: f64 = (0..c.len())
         .map(|i| {
             let (p, q) = (c[i], c[(i + 1) % c.len()]);

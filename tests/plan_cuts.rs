@@ -43,7 +43,7 @@ fn demo() -> (Part, Vec<Opening>) {
         .bays
         .iter()
         .map(|b| Opening {
-            name: b.name.clone(),
+            name: b.name().to_string(),
             ellipse: solve_bay(b, &Rule::Largest, 4.0)
                 .unwrap()
                 .solution

@@ -54,17 +54,18 @@ fn plate() -> Part {
             .unwrap(),
         ),
     };
-    let bay = Bay {
-        name: "bay 1".into(),
-        layer: "BAY".into(),
-        corners: vec![
+    let bay = Bay::new(
+        "bay 1",
+        "BAY",
+        &[
             Point::new(10.0, 10.0),
             Point::new(150.0, 10.0),
             Point::new(140.0, 110.0),
             Point::new(20.0, 105.0),
         ],
-        handles: vec![],
-    };
+        &[],
+    )
+    .unwrap();
     Part {
         outline: Some(outline),
         holes: vec![hole],

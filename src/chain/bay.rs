@@ -1,8 +1,8 @@
 //! Checking a closed loop on the bay layer and turning it into a [`Bay`].
 
-use super::{Bay, BayError, BayProblem, ChainError, fmt_handles};
-use crate::geom::Element;
-use crate::geom::Point;
+use super::{BayError, BayProblem, ChainError, fmt_handles};
+use crate::geom::{Element, Point, Segment};
+use serde::Serialize;
 
 /// Consecutive sides whose directions differ by at most this angle (radians) are one side.
 ///
@@ -10,6 +10,56 @@ use crate::geom::Point;
 /// dropped corner at most L·δ/4 off the merged side, 5 µm for a 200 mm side; yet it is far above
 /// the bend left by coordinates rounded to 1e-12 mm or by inch-to-mm conversion.
 pub const COLLINEAR_ANGLE_LIMIT: f64 = 1e-4;
+
+/// A bay: a convex polygon of straight edges on the bay layer, construction geometry that an
+/// elliptical opening must fit. Corners run counter-clockwise from the lowest corner (the
+/// leftmost of equally low ones), collinear pieces merged; built only by the checks below.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Bay {
+    /// A name for messages and reports, e.g. `bay 2`.
+    name: String,
+    layer: String,
+    corners: Vec<Point>,
+    handles: Vec<String>,
+}
+
+impl Bay {
+    /// The bay with these corners (in either order), checked as a loop on the bay layer is: at
+    /// least three sides, each longer than 1e-9 mm, strictly convex. Collinear corners are
+    /// merged and the corners come back counter-clockwise from the lowest one.
+    pub fn new(
+        name: &str,
+        layer: &str,
+        corners: &[Point],
+        handles: &[String],
+    ) -> Result<Bay, ChainError> {
+        let n = corners.len();
+        let sides: Vec<Element> = (0..n)
+            .map(|i| Element::Line(Segment::new(corners[i], corners[(i + 1) % n])))
+            .collect();
+        make_bay(name, layer, &sides, handles, 0.0)
+    }
+
+    /// A name for messages and reports, e.g. `bay 2`.
+    pub fn name(&self) -> &str {
+        &self.name
+    }
+
+    /// The DXF layer the bay was drawn on.
+    pub fn layer(&self) -> &str {
+        &self.layer
+    }
+
+    /// The corners, counter-clockwise from the lowest.
+    pub fn corners(&self) -> &[Point] {
+        &self.corners
+    }
+
+    /// DXF entity handles of the bay's pieces, for messages.
+    pub fn handles(&self) -> &[String] {
+        &self.handles
+    }
+}
 
 /// Checks a closed loop from the bay layer and returns the bay: straight sides only, each
 /// longer than `max_gap`, collinear neighbours merged, at least three sides, enclosing

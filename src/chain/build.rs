@@ -219,20 +219,20 @@ fn bays_outside(outline: &Contour, bays: &[Bay]) -> Vec<String> {
     let poly = flatten_contour(outline);
     let mut warnings = Vec::new();
     for bay in bays {
-        let outside = bay.corners.iter().find(|&&c| !outline.contains(c));
-        let crossing = polygons_cross(&bay.corners, &poly);
+        let outside = bay.corners().iter().find(|&&c| !outline.contains(c));
+        let crossing = polygons_cross(&bay.corners(), &poly);
         if let Some(c) = outside {
             warnings.push(format!(
                 "{} (layer {}) is not inside the outline: its corner {} lies outside it",
-                bay.name,
-                bay.layer,
+                bay.name(),
+                bay.layer(),
                 fmt_point(*c)
             ));
         } else if let Some(p) = crossing {
             warnings.push(format!(
                 "{} (layer {}) is not inside the outline: the outline crosses it near {}",
-                bay.name,
-                bay.layer,
+                bay.name(),
+                bay.layer(),
                 fmt_point(p)
             ));
         }

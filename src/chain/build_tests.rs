@@ -102,8 +102,8 @@ fn outline_holes_and_bays_are_sorted_and_named() {
     assert!(a.is_full_circle());
     // Layer names match case-insensitively; bay 1 is the left one.
     assert_eq!(part.bays.len(), 2);
-    assert_eq!(part.bays[0].name, "bay 1");
-    assert_eq!(part.bays[0].corners[0], Point::new(20.0, 10.0));
+    assert_eq!(part.bays[0].name(), "bay 1");
+    assert_eq!(part.bays[0].corners()[0], Point::new(20.0, 10.0));
     assert!(part.warnings.is_empty(), "{:?}", part.warnings);
 }
 

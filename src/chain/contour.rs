@@ -1,18 +1,9 @@
-//! The part a drawing describes: its outline, holes and bays.
+//! The part a drawing describes: its outline, holes and bays (the [`Bay`] type lives in `bay.rs`
+//! beside the checks that make one).
 
-use crate::geom::{Contour, Ellipse, Point};
+use super::Bay;
+use crate::geom::{Contour, Ellipse};
 use serde::Serialize;
-
-/// A bay: a convex polygon of straight edges on the bay layer, construction geometry that an
-/// elliptical opening must fit. Corners run counter-clockwise, collinear pieces merged.
-#[derive(Debug, Clone, PartialEq, Serialize)]
-pub struct Bay {
-    /// A name for messages and reports, e.g. `bay 2`.
-    pub name: String,
-    pub layer: String,
-    pub corners: Vec<Point>,
-    pub handles: Vec<String>,
-}
 
 /// The shape of an inner boundary of the part.
 #[derive(Debug, Clone, PartialEq, Serialize)]

@@ -21,11 +21,11 @@ mod error;
 mod gather;
 mod join;
 
-pub use bay::COLLINEAR_ANGLE_LIMIT;
+pub use bay::{Bay, COLLINEAR_ANGLE_LIMIT};
 pub use build::{
     CROSSING_CHECK_SAGITTA, ChainOptions, DEFAULT_BAY_LAYER, DEFAULT_MAX_GAP, build_part,
 };
-pub use contour::{Bay, InnerBoundary, InnerShape, Part};
+pub use contour::{InnerBoundary, InnerShape, Part};
 
 pub use error::{BayError, BayProblem, ChainError, OpenContour};
 

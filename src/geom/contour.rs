@@ -334,9 +334,15 @@ mod tests {
         assert_eq!((index, at), (1, c));
         assert!((gap - 5.0).abs() < 1e-12);
         let mut closed = open;
-        closed.push(Element::Line(Segment::new(c, a + Vec2::new(0.5 * JOIN_LIMIT, 0.0))));
+        closed.push(Element::Line(Segment::new(
+            c,
+            a + Vec2::new(0.5 * JOIN_LIMIT, 0.0),
+        )));
         let contour = Contour::new(closed, "L", vec!["1F".into()]).unwrap();
-        assert_eq!((contour.layer(), contour.handles()), ("L", &["1F".to_string()][..]));
+        assert_eq!(
+            (contour.layer(), contour.handles()),
+            ("L", &["1F".to_string()][..])
+        );
         assert!((contour.length() - 12.0).abs() < JOIN_LIMIT);
     }
 }

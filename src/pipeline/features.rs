@@ -50,10 +50,10 @@ pub fn default_specs(part: &Part) -> Vec<FeatureSpec> {
     part.bays
         .iter()
         .map(|b| FeatureSpec {
-            name: b.name.clone(),
+            name: b.name().to_string(),
             line: 0,
             source: FeatureSource::Bay {
-                select: BaySelect::Name(b.name.clone()),
+                select: BaySelect::Name(b.name().to_string()),
                 rule: Rule::Largest,
             },
             cut: CutKind::Hole,
@@ -123,8 +123,8 @@ fn bay_feature(
     out.rule = Some(rule.describe());
     out.margin_mm = Some(margin);
     out.outcome = find_bay(inputs.part, select).and_then(|bay| {
-        out.source = format!("{} ({} sides)", bay.name, bay.corners.len());
-        out.bay = Some(bay.name.clone());
+        out.source = format!("{} ({} sides)", bay.name(), bay.corners().len());
+        out.bay = Some(bay.name().to_string());
         solve_bay(bay, rule, margin).map(|s| {
             out.solved_corners = Some(s.solved_corners);
             s.solution
@@ -233,7 +233,7 @@ fn describe_select(select: &BaySelect) -> String {
 
 fn find_bay<'a>(part: &'a Part, select: &BaySelect) -> Result<&'a Bay, Failure> {
     let names = || {
-        let all: Vec<&str> = part.bays.iter().map(|b| b.name.as_str()).collect();
+        let all: Vec<&str> = part.bays.iter().map(|b| b.name()).collect();
         if all.is_empty() {
             "the drawing has no bays".to_string()
         } else {
@@ -244,13 +244,13 @@ fn find_bay<'a>(part: &'a Part, select: &BaySelect) -> Result<&'a Bay, Failure> 
         BaySelect::Name(n) => part
             .bays
             .iter()
-            .find(|b| b.name.eq_ignore_ascii_case(n))
+            .find(|b| b.name().eq_ignore_ascii_case(n))
             .ok_or_else(|| failure(format!("there is no bay named \"{n}\"; {}", names()))),
         BaySelect::Inside(p) => {
             let hits: Vec<&Bay> = part
                 .bays
                 .iter()
-                .filter(|b| inside(&b.corners, *p))
+                .filter(|b| inside(&b.corners(), *p))
                 .collect();
             match hits.as_slice() {
                 [one] => Ok(one),

@@ -148,11 +148,13 @@ fn read_and_solve(dxf: &[u8], s: &JobSettings) -> Result<Solved, JobError> {
             default_margin,
         },
     );
+    let used: std::collections::HashSet<&str> =
+        features.iter().filter_map(|f| f.bay.as_deref()).collect();
     let unused_bays = part
         .bays
         .iter()
-        .filter(|b| !features.iter().any(|f| f.bay.as_ref() == Some(&b.name)))
-        .map(|b| b.name.clone())
+        .filter(|b| !used.contains(b.name()))
+        .map(|b| b.name().to_string())
         .collect();
     Ok(Solved {
         drawing,

@@ -184,7 +184,7 @@ fn content_bounds(input: &PreviewInput) -> Option<Bounds> {
         }
     }
     for bay in &input.part.bays {
-        pts.extend(&bay.corners);
+        pts.extend(bay.corners());
     }
     for (_, e) in input.ellipses {
         pts.extend(ellipse_bounds(e));
@@ -213,8 +213,8 @@ fn part_group(part: &Part, u: f64) -> Group {
         g = g.add(
             Path::new()
                 .set("class", "bay")
-                .set("data-name", bay.name.as_str())
-                .set("d", polyline_d(&bay.corners, true))
+                .set("data-name", bay.name())
+                .set("d", polyline_d(&bay.corners(), true))
                 .set("fill", "none")
                 .set("stroke", palette::BAY)
                 .set("stroke-width", num(1.2 * u))

@@ -50,15 +50,15 @@ pub fn solve_bay(bay: &Bay, rule: &Rule, margin: f64) -> Result<BaySolution, Fai
             candidates: vec![],
         });
     }
-    let corners = ccw_convex_corners(&bay.name, &bay.corners)?;
+    let corners = ccw_convex_corners(&bay.name(), &bay.corners())?;
     let corners = if margin > 0.0 {
-        inset_convex_polygon(&bay.name, &corners, margin)?
+        inset_convex_polygon(&bay.name(), &corners, margin)?
     } else {
         corners
     };
     let n = corners.len();
     let unsupported = |what: &str| Failure {
-        reason: format!("{}: rule \"{}\" {what}", bay.name, rule.describe()),
+        reason: format!("{}: rule \"{}\" {what}", bay.name(), rule.describe()),
         candidates: vec![],
     };
     let solution = match (n, rule) {
@@ -78,7 +78,7 @@ pub fn solve_bay(bay: &Bay, rule: &Rule, margin: f64) -> Result<BaySolution, Fai
         (3, Rule::CentreNear(c)) => {
             let t = [corners[0], corners[1], corners[2]];
             let e = tangent_ellipse_with_centre(t, *c).map_err(|e| Failure {
-                reason: format!("{}: {e}", bay.name),
+                reason: format!("{}: {e}", bay.name()),
                 candidates: vec![],
             })?;
             single(
@@ -96,12 +96,12 @@ pub fn solve_bay(bay: &Bay, rule: &Rule, margin: f64) -> Result<BaySolution, Fai
             let family = TangentFamily::new(q);
             quad_rules::choose(&family, &corners, rule).map_err(
                 |RuleFailure { reason, candidates }| Failure {
-                    reason: format!("{}: {reason}", bay.name),
+                    reason: format!("{}: {reason}", bay.name()),
                     candidates,
                 },
             )?
         }
-        (5, Rule::Largest) => five_sided(&bay.name, &corners)?,
+        (5, Rule::Largest) => five_sided(&bay.name(), &corners)?,
         (5, _) => {
             return Err(unsupported(
                 "needs a four-sided bay; in a five-sided bay use largest (the one ellipse touching all five sides) or largest-inside",

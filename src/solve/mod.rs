@@ -82,16 +82,16 @@ pub struct BayOpening {
 /// The largest ellipse tangent to all four sides of `bay` after moving each side inward by
 /// `margin` (mm, ≥ 0).
 pub fn largest_tangent_ellipse(bay: &Bay, margin: f64) -> Result<BayOpening, SolveError> {
-    let name = || bay.name.clone();
-    if bay.corners.len() != 4 {
+    let name = || bay.name().to_string();
+    if bay.corners().len() != 4 {
         return Err(SolveError::UnsupportedSideCount {
             bay: name(),
-            sides: bay.corners.len(),
+            sides: bay.corners().len(),
         });
     }
-    let corners = ccw_convex_corners(&bay.name, &bay.corners)?;
+    let corners = ccw_convex_corners(&bay.name(), &bay.corners())?;
     let corners = if margin > 0.0 {
-        inset_convex_polygon(&bay.name, &corners, margin)?
+        inset_convex_polygon(&bay.name(), &corners, margin)?
     } else {
         corners
     };
@@ -260,12 +260,16 @@ mod tests {
     use super::*;
 
     fn bay(corners: &[(f64, f64)]) -> Bay {
-        Bay {
-            name: "bay 1".into(),
-            layer: "B".into(),
-            corners: corners.iter().map(|&(x, y)| Point::new(x, y)).collect(),
-            handles: vec![],
-        }
+        Bay::new(
+            "bay 1",
+            "B",
+            &corners
+                .iter()
+                .map(|&(x, y)| Point::new(x, y))
+                .collect::<Vec<_>>(),
+            &[],
+        )
+        .unwrap()
     }
 
     #[test]
@@ -285,16 +289,28 @@ mod tests {
 
     #[test]
     fn bad_bays_get_reasons() {
-        let dart = bay(&[(0.0, 0.0), (4.0, 0.0), (1.0, 1.0), (0.0, 4.0)]);
-        assert!(matches!(
-            largest_tangent_ellipse(&dart, 0.0),
-            Err(SolveError::NotConvex { .. })
-        ));
-        let flat = bay(&[(0.0, 0.0), (1.0, 0.0), (2.0, 0.0), (3.0, 0.0)]);
-        assert!(matches!(
-            largest_tangent_ellipse(&flat, 0.0),
-            Err(SolveError::Degenerate { .. })
-        ));
+        // A dart or a flat loop never becomes a bay: `Bay::new` refuses it with the reason, as
+        // the chainer does for a drawn loop.
+        let corners =
+            |c: &[(f64, f64)]| -> Vec<Point> { c.iter().map(|&(x, y)| Point::new(x, y)).collect() };
+        let problem = |c: &[(f64, f64)]| match Bay::new("bay 1", "B", &corners(c), &[]) {
+            Err(crate::chain::ChainError::Bay(e)) => Some(e.problem.clone()),
+            _ => None,
+        };
+        let dart = [(0.0, 0.0), (4.0, 0.0), (1.0, 1.0), (0.0, 4.0)];
+        assert_eq!(problem(&dart), Some(crate::chain::BayProblem::NotConvex));
+        let flat = [(0.0, 0.0), (1.0, 0.0), (2.0, 0.0), (3.0, 0.0)];
+        assert!(
+            matches!(
+                problem(&flat),
+                Some(
+                    crate::chain::BayProblem::TooFewSides { .. }
+                        | crate::chain::BayProblem::Degenerate { .. }
+                )
+            ),
+            "{:?}",
+            problem(&flat)
+        );
         let tri = bay(&[(0.0, 0.0), (1.0, 0.0), (0.0, 1.0)]);
         assert!(matches!(
             largest_tangent_ellipse(&tri, 0.0),

@@ -6,10 +6,14 @@ use conicut::geom::Point;
 
 /// The bay with these corners (mm), in order.
 pub fn bay(corners: &[(f64, f64)]) -> Bay {
-    Bay {
-        name: "bay 1".into(),
-        layer: "test".into(),
-        corners: corners.iter().map(|&(x, y)| Point::new(x, y)).collect(),
-        handles: vec![],
-    }
+    Bay::new(
+        "bay 1",
+        "test",
+        &corners
+            .iter()
+            .map(|&(x, y)| Point::new(x, y))
+            .collect::<Vec<_>>(),
+        &[],
+    )
+    .unwrap()
 }
