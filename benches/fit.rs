@@ -214,7 +214,7 @@ fn measure_arcs(c: &mut Criterion) {
         for tol in TOLERANCES {
             let fitted = fit_cut(&planned, &options(tol, MoveKind::Arcs, false)).unwrap();
             group.bench_with_input(BenchmarkId::new(name, tol), &fitted, |b, f| {
-                b.iter(|| measure_deviation(f.start, black_box(&f.moves), &planned.path))
+                b.iter(|| measure_deviation(f.start, black_box(&f.moves), planned.path()))
             });
         }
     }

@@ -46,8 +46,8 @@ fn fitted(cut: &PlannedCut, tolerance: f64, moves: MoveKind, one_sided: bool) ->
 /// Both measurements of `f` against `cut`'s path: (checker both ways, fit both ways, checker
 /// part side, fit part side).
 fn both_measurements(cut: &PlannedCut, f: &FittedCut) -> (f64, f64, f64, f64) {
-    let mine = deviation::measure(f.start, &f.moves, &cut.path, cut.scrap_left).expect("moves");
-    let (theirs, sides) = fit::measure_with_sides(f.start, &f.moves, &cut.path, cut.scrap_left);
+    let mine = deviation::measure(f.start, &f.moves, cut.path(), cut.scrap_left()).expect("moves");
+    let (theirs, sides) = fit::measure_with_sides(f.start, &f.moves, cut.path(), cut.scrap_left());
     (mine.both_ways, theirs, mine.part_side, sides.part_side)
 }
 
@@ -67,9 +67,10 @@ fn ellipse_cuts() -> Vec<PlannedCut> {
             e,
             -4.0,
         ));
-        let mut reversed = PlannedCut::around_ellipse("conventional", FeatureKind::Opening, e, 2.0);
-        reversed.path = reversed.path.reversed();
-        reversed.scrap_left = false;
+        // A conventional cut: the same path the other way, the scrap on the right.
+        let reversed =
+            PlannedCut::around_ellipse("conventional", FeatureKind::Opening, e, 2.0).reversed();
+        assert!(!reversed.scrap_left());
         out.push(reversed);
     }
     out
@@ -135,7 +136,7 @@ fn the_two_measurements_agree_on_ellipses_and_contours() {
             ] {
                 let f = fitted(cut, tol, kind, one_sided);
                 let (mine, theirs, my_part, their_part) = both_measurements(cut, &f);
-                let case = format!("{} {kind:?} one-sided {one_sided} tol {tol}", cut.name);
+                let case = format!("{} {kind:?} one-sided {one_sided} tol {tol}", cut.name());
                 assert!(mine <= tol * (1.0 + 1e-9), "{case}: checker {mine}");
                 assert!(
                     (mine - theirs).abs() <= AGREEMENT * tol,
@@ -163,7 +164,7 @@ fn a_stretch_of_the_path_left_out_is_measured_from_the_path_side() {
     let cut = &ellipse_cuts()[0];
     let f = fitted(cut, 0.01, MoveKind::Lines, false);
     let kept = &f.moves[..2 * f.moves.len() / 3];
-    let d = deviation::measure(f.start, kept, &cut.path, true).unwrap();
+    let d = deviation::measure(f.start, kept, cut.path(), true).unwrap();
     assert!(d.both_ways > 5.0, "{d:?}");
     assert!(d.worst_move < kept.len());
 }

@@ -190,29 +190,34 @@ fn conventional_plans_are_the_climb_plans_reversed_exactly() {
     let conv = plan_cuts(&part, &openings, &opts(Direction::Conventional)).expect("plans");
     assert_eq!(climb.cuts.len(), conv.cuts.len());
     for (a, b) in climb.cuts.iter().zip(&conv.cuts) {
-        assert!(a.scrap_left && !b.scrap_left, "{}", a.name);
-        assert_eq!(b.path, a.path.reversed(), "{}", a.name);
-        assert_eq!(b.path.reversed(), a.path, "{}: reversing twice", a.name);
-        assert_eq!(a.plunge, b.plunge, "{}", a.name);
+        assert!(a.scrap_left() && !b.scrap_left(), "{}", a.name());
+        assert_eq!(b.path(), &a.path().reversed(), "{}", a.name());
+        assert_eq!(
+            &b.path().reversed(),
+            a.path(),
+            "{}: reversing twice",
+            a.name()
+        );
+        assert_eq!(a.plunge(), b.plunge(), "{}", a.name());
         // The same start (a reversed contour's first point is its last piece's end, computed
         // again from the arc's angle: equal to rounding).
         assert!(
-            a.path.start_point().distance(b.path.start_point()) < 1e-12,
+            a.path().start_point().distance(b.path().start_point()) < 1e-12,
             "{}",
-            a.name
+            a.name()
         );
-        assert_eq!(a.clearing.len(), b.clearing.len());
-        for (p, q) in a.clearing.iter().zip(&b.clearing) {
+        assert_eq!(a.clearing().len(), b.clearing().len());
+        for (p, q) in a.clearing().iter().zip(b.clearing()) {
             assert_eq!(*q, p.reversed());
         }
-        match (&a.path, &b.path) {
+        match (&a.path(), &b.path()) {
             (
                 ExactPath::EllipseParallel { clockwise: x, .. },
                 ExactPath::EllipseParallel { clockwise: y, .. },
             ) => assert!(
                 !x && *y,
                 "{}: inside cuts counter-clockwise when climbing",
-                a.name
+                a.name()
             ),
             (ExactPath::Contour(x), ExactPath::Contour(y)) => {
                 assert!(
@@ -221,7 +226,7 @@ fn conventional_plans_are_the_climb_plans_reversed_exactly() {
                 );
                 assert!((x.signed_area() + y.signed_area()).abs() < 1e-9);
             }
-            _ => panic!("{}: the same kind of path both ways", a.name),
+            _ => panic!("{}: the same kind of path both ways", a.name()),
         }
     }
 }

@@ -205,19 +205,19 @@ fn a_finishing_pass_keeps_pocket_clearing_on_the_roughing_cut() {
     .expect("plans");
     assert_eq!(plan.cuts.len(), 2);
     let (rough, finish) = (&plan.cuts[0], &plan.cuts[1]);
-    assert_eq!(rough.name, "pocket roughing");
-    assert!(!rough.full_depth_only && finish.full_depth_only);
-    assert!(finish.clearing.is_empty());
-    assert_eq!(rough.allowance, s);
+    assert_eq!(rough.name(), "pocket roughing");
+    assert!(!rough.full_depth_only() && finish.full_depth_only());
+    assert!(finish.clearing().is_empty());
+    assert_eq!(rough.allowance(), s);
     assert!(matches!(
-        rough.path,
-        ExactPath::EllipseParallel { inset, .. } if inset == 3.0 + s
+        rough.path(),
+        ExactPath::EllipseParallel { inset, .. } if *inset == 3.0 + s
     ));
-    assert_eq!(finish.path, plain.cuts[0].path);
-    assert!(!plain.cuts[0].clearing.is_empty(), "the pocket has rings");
+    assert_eq!(finish.path(), plain.cuts[0].path());
+    assert!(!plain.cuts[0].clearing().is_empty(), "the pocket has rings");
     // Every ring the roughing cut keeps lies at least r + s from the edge: sampled densely, the
     // distance measured by this file's own ellipse distance.
-    for ring in &rough.clearing {
+    for ring in rough.clearing() {
         let pts: Vec<Point> = match ring {
             ExactPath::EllipseParallel { ellipse, inset, .. } => (0..720)
                 .map(|k| ellipse.inward_offset_point(TAU * k as f64 / 720.0, *inset))
@@ -231,14 +231,14 @@ fn a_finishing_pass_keeps_pocket_clearing_on_the_roughing_cut() {
     }
     // Rings inside the roughing contour are all kept.
     let kept = plain.cuts[0]
-        .clearing
+        .clearing()
         .iter()
         .filter(|ring| match ring {
             ExactPath::EllipseParallel { inset, .. } => *inset >= 3.0 + s,
             ExactPath::Contour(_) => true,
         })
         .count();
-    assert_eq!(rough.clearing.len(), kept);
+    assert_eq!(rough.clearing().len(), kept);
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -295,7 +295,7 @@ fn bad_allowances_are_refused_with_what_to_do() {
     assert!(plan_cuts(&Part::default(), &openings, &with(2.0)).is_err());
     let plan = plan_cuts(&Part::default(), &openings, &with(1.9999)).expect("fits");
     assert!(matches!(
-        plan.cuts[0].path,
+        plan.cuts[0].path(),
         ExactPath::EllipseParallel { inset, .. } if (inset - 4.9999).abs() < 1e-12
     ));
 

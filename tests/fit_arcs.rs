@@ -688,14 +688,14 @@ fn contour_arcs_stay_exact_and_polygons_stay_in_the_band() {
     let cases: [(&PlannedCut, &dyn Fn(Point) -> f64); 2] =
         [(&hole, &hole_sdf), (&outline, &outline_sdf)];
     for (cut, sdf) in cases {
-        let ExactPath::Contour(c) = &cut.path else {
+        let ExactPath::Contour(c) = &cut.path() else {
             unreachable!()
         };
         // Arcs: every contour arc becomes arcs about its own centre, below 180° each, lines stay
         // lines; the path is the contour (to rounding).
         let fitted = fit_cut(cut, &options(0.01, MoveKind::Arcs, true)).unwrap();
         let (_, _, both) = contour_sides(c, sdf, &fitted);
-        assert!(both < 1e-9, "{}: arcs not exact, {both}", cut.name);
+        assert!(both < 1e-9, "{}: arcs not exact, {both}", cut.name());
         let mut from = fitted.start;
         for m in &fitted.moves {
             if let Move::Arc { to, centre, .. } = *m {
@@ -708,7 +708,7 @@ fn contour_arcs_stay_exact_and_polygons_stay_in_the_band() {
             for one_sided in [false, true] {
                 let fitted = fit_cut(cut, &options(tol, MoveKind::Lines, one_sided)).unwrap();
                 let (scrap, part, both) = contour_sides(c, sdf, &fitted);
-                let case = format!("{} tol {tol} one-sided {one_sided}", cut.name);
+                let case = format!("{} tol {tol} one-sided {one_sided}", cut.name());
                 assert!(both <= tol, "{case}: {both}");
                 if one_sided {
                     assert!(scrap <= tol && part <= PART_SIDE_SLACK, "{case}: {part}");

@@ -62,16 +62,16 @@ fn plunges_and_moves_in_stay_in_the_scrap() {
     let plan = plan_cuts(&part, &openings, &PlanOptions::plain(2.0 * r)).unwrap();
     let outline = part.outline.as_ref().unwrap();
     for cut in &plan.cuts {
-        let start = cut.path.start_point();
-        let lead = Segment::new(cut.plunge, start);
+        let start = cut.path().start_point();
+        let lead = Segment::new(cut.plunge(), start);
         // Sample the move in: the tool circle around every sample must stay clear of the
         // finished part (common practice: pierce and plunge in the scrap, STANDARDS §4.3).
         for k in 0..=50 {
             let p = lead.point_at(k as f64 / 50.0);
-            match cut.side {
+            match cut.side() {
                 CutSide::Inside => {
                     // Inside its own hole, at least the tool radius from the hole's edge.
-                    let clear = match &cut.path {
+                    let clear = match &cut.path() {
                         ExactPath::EllipseParallel { ellipse, .. } => {
                             ellipse.contains(p) && ellipse.distance_to(p).0 >= r - 1e-9
                         }
@@ -79,7 +79,7 @@ fn plunges_and_moves_in_stay_in_the_scrap() {
                             let hole = part
                                 .holes
                                 .iter()
-                                .find(|h| h.name == cut.name)
+                                .find(|h| h.name == cut.name())
                                 .expect("a drawn hole");
                             match &hole.shape {
                                 InnerShape::Contour(c) => {
@@ -91,24 +91,28 @@ fn plunges_and_moves_in_stay_in_the_scrap() {
                             }
                         }
                     };
-                    assert!(clear, "{}: move in at {p:?} cuts the part", cut.name);
+                    assert!(clear, "{}: move in at {p:?} cuts the part", cut.name());
                 }
                 CutSide::Outside => {
-                    assert!(!outline.contains(p), "{}: {p:?} inside the part", cut.name);
-                    assert!(outline.distance_to(p) >= r - 1e-9, "{}: {p:?}", cut.name);
+                    assert!(
+                        !outline.contains(p),
+                        "{}: {p:?} inside the part",
+                        cut.name()
+                    );
+                    assert!(outline.distance_to(p) >= r - 1e-9, "{}: {p:?}", cut.name());
                 }
             }
             // Never inside another feature's opening either (it would cut a neighbour).
-            for o in openings.iter().filter(|o| o.name != cut.name) {
+            for o in openings.iter().filter(|o| o.name != cut.name()) {
                 assert!(
                     !o.ellipse.contains(p),
                     "{}: {p:?} inside {}",
-                    cut.name,
+                    cut.name(),
                     o.name
                 );
             }
         }
     }
     // Inner features first, the outline last.
-    assert_eq!(plan.cuts.last().unwrap().name, "outline");
+    assert_eq!(plan.cuts.last().unwrap().name(), "outline");
 }

@@ -311,15 +311,15 @@ fn check_hand_made(e: Ellipse, d: f64, stepover: f64) -> PlannedCut {
     // every link runs outwards along the major axis.
     let axis = Vec2::from_angle(e.angle());
     let mut last_out = 0.0;
-    let mut starts: Vec<Point> = vec![cut.plunge];
-    for ring in &cut.clearing {
+    let mut starts: Vec<Point> = vec![cut.plunge()];
+    for ring in cut.clearing() {
         match ring {
             ExactPath::EllipseParallel { clockwise, .. } => assert!(!clockwise),
             ExactPath::Contour(c) => assert!(c.is_ccw()),
         }
         starts.push(ring.start_point());
     }
-    starts.push(cut.path.start_point());
+    starts.push(cut.path().start_point());
     for s in &starts {
         let v = *s - e.centre();
         assert!(
@@ -355,14 +355,14 @@ fn check_hand_made(e: Ellipse, d: f64, stepover: f64) -> PlannedCut {
 }
 
 fn insets(cut: &PlannedCut) -> Vec<f64> {
-    cut.clearing
+    cut.clearing()
         .iter()
         .map(|p| match p {
             ExactPath::EllipseParallel { inset, .. } => *inset,
             ExactPath::Contour(c) => {
                 // Every vertex of a trimmed ring lies on its level set: read the level back.
                 let p = c.start_point().expect("a ring has vertices");
-                match &cut.edge {
+                match &cut.edge() {
                     conicut::geom::Edge::Ellipse(e) => e.distance_to(p).0,
                     conicut::geom::Edge::Contour(_) => f64::NAN,
                 }
@@ -387,7 +387,7 @@ fn round_pocket_worked_example_and_coverage() {
         assert!((g - w).abs() < 1e-12, "{got:?} vs {want:?}");
     }
     assert!(
-        cut.clearing
+        cut.clearing()
             .iter()
             .all(|p| matches!(p, ExactPath::EllipseParallel { .. }))
     );
@@ -426,7 +426,7 @@ fn slender_pocket_is_covered_with_trimmed_rings() {
     let span = e.b() - r + h - r;
     assert!(span / (got.len() - 1) as f64 > stepover.min(r - h));
     assert!(
-        cut.clearing
+        cut.clearing()
             .iter()
             .any(|p| matches!(p, ExactPath::Contour(_)))
     );
@@ -452,12 +452,12 @@ fn tilted_pocket_and_narrow_pocket() {
     let e = Ellipse::new(Point::new(-40.0, 25.0), 30.0, 14.0, -0.7).unwrap();
     let cut = check_hand_made(e, 6.0, 2.4);
     assert!(
-        cut.clearing
+        cut.clearing()
             .iter()
             .any(|p| matches!(p, ExactPath::EllipseParallel { .. }))
     );
     assert!(
-        cut.clearing
+        cut.clearing()
             .iter()
             .any(|p| matches!(p, ExactPath::Contour(_)))
     );
@@ -465,7 +465,7 @@ fn tilted_pocket_and_narrow_pocket() {
     // it alone leaves no island. b²/a = 3.125 > r = 2.6, so the tool fits.
     let e = Ellipse::new(Point::new(1.0, 1.0), 8.0, 5.0, 0.2).unwrap();
     let cut = check_hand_made(e, 5.2, 2.08);
-    assert!(cut.clearing.is_empty());
+    assert!(cut.clearing().is_empty());
 }
 
 #[test]
@@ -513,10 +513,10 @@ fn the_coverage_check_finds_islands() {
     let (d, r) = (3.0, 1.5);
     let cut = plan_pocket(e, d, 1.2).unwrap();
     let reach = r + TOLERANCE + STEP / 2.0;
-    let finish = sample_exact(&cut.path);
+    let finish = sample_exact(cut.path());
     // The exact planned rings and the finish contour: no island.
     let mut all = finish.clone();
-    for ring in &cut.clearing {
+    for ring in cut.clearing() {
         all.extend(sample_exact(ring));
     }
     assert!(islands(&e, &all, reach).is_empty());
@@ -524,7 +524,7 @@ fn the_coverage_check_finds_islands() {
     assert!(islands(&e, &finish, reach).len() > 10_000);
     // One ring left out (the third from the inside): a band of islands.
     let mut some = finish.clone();
-    for (k, ring) in cut.clearing.iter().enumerate() {
+    for (k, ring) in cut.clearing().iter().enumerate() {
         if k != 2 {
             some.extend(sample_exact(ring));
         }

@@ -220,7 +220,7 @@ fn bays_outside(outline: &Contour, bays: &[Bay]) -> Vec<String> {
     let mut warnings = Vec::new();
     for bay in bays {
         let outside = bay.corners().iter().find(|&&c| !outline.contains(c));
-        let crossing = polygons_cross(&bay.corners(), &poly);
+        let crossing = polygons_cross(bay.corners(), &poly);
         if let Some(c) = outside {
             warnings.push(format!(
                 "{} (layer {}) is not inside the outline: its corner {} lies outside it",

@@ -40,13 +40,13 @@ impl Shape {
             format!(
                 "the circle on layer {} (handle {})",
                 c.layer(),
-                fmt_handles(&c.handles())
+                fmt_handles(c.handles())
             )
         } else {
             format!(
                 "the contour on layer {} (handles {})",
                 c.layer(),
-                fmt_handles(&c.handles())
+                fmt_handles(c.handles())
             )
         };
         Shape {

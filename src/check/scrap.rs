@@ -86,16 +86,16 @@ pub fn check_scrap(
     rules: &ScrapRules,
 ) -> Result<(), ScrapViolation> {
     let limit = rules.tool_radius * (1.0 - GOUGE_MARGIN) - rules.tolerance;
-    let reach: Vec<Reach> = cuts.iter().map(|c| Reach::of(&c.edge)).collect();
+    let reach: Vec<Reach> = cuts.iter().map(|c| Reach::of(c.edge())).collect();
     for (own, cut) in cuts.iter().enumerate() {
         // Found by its number K in the writer's index comment `(cut K of N: NAME)`.
         let number = own + 1;
         if check::cut_range(trace, number).is_none() {
             return Err(ScrapViolation {
-                feature: cut.name.clone(),
+                feature: cut.name().to_string(),
                 part: String::new(),
                 line: 0,
-                at: cut.plunge,
+                at: cut.plunge(),
                 problem: "the cut is not in the program".into(),
             });
         }
@@ -106,7 +106,7 @@ pub fn check_scrap(
                 continue;
             }
             let fail = |at: Point, problem: String| ScrapViolation {
-                feature: cut.name.clone(),
+                feature: cut.name().to_string(),
                 part: part_of(trace, i),
                 line: m.line,
                 at,
@@ -117,14 +117,14 @@ pub fn check_scrap(
                 if let Some(c) = rules.pierce_clearance {
                     let p = Point::new(m.from[0], m.from[1]);
                     for other in cuts {
-                        let d = other.edge.distance_to(p);
+                        let d = other.edge().distance_to(p);
                         if d < c - rules.rounding {
                             return Err(fail(
                                 p,
                                 format!(
                                     "the pierce point is {d:.4} mm from the edge of \"{}\", less \
                                      than the pierce clearance {c} mm",
-                                    other.name
+                                    other.name()
                                 ),
                             ));
                         }
@@ -157,24 +157,27 @@ fn point_problem(
     let tol = rules.tolerance;
     for (k, c) in cuts.iter().enumerate() {
         if k == own {
-            let scrap_side = match c.side {
-                CutSide::Inside => Edge::contains(&c.edge, p),
-                CutSide::Outside => !Edge::contains(&c.edge, p),
+            let scrap_side = match c.side() {
+                CutSide::Inside => Edge::contains(c.edge(), p),
+                CutSide::Outside => !Edge::contains(c.edge(), p),
             };
             if !scrap_side {
                 return Some("the tool centre is on the part side of the cut's own edge".into());
             }
-        } else if c.kind == FeatureKind::Boss && Edge::contains(&c.edge, p) {
-            return Some(format!("the tool centre is inside the boss \"{}\"", c.name));
+        } else if c.kind() == FeatureKind::Boss && Edge::contains(c.edge(), p) {
+            return Some(format!(
+                "the tool centre is inside the boss \"{}\"",
+                c.name()
+            ));
         } else if reach.get(k).is_some_and(|r| r.lower_bound(p) >= limit) {
             continue;
         }
-        let d = c.edge.distance_to(p);
+        let d = c.edge().distance_to(p);
         if d < limit {
             return Some(format!(
                 "the tool centre is {d:.4} mm from the finished edge of \"{}\": the {r} mm tool \
                  radius less the {tol} mm tolerance would be the least",
-                c.name
+                c.name()
             ));
         }
     }

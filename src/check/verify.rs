@@ -150,18 +150,18 @@ fn measure_cut(
 ) -> Result<CutDeviation, Vec<Finding>> {
     let not_found = || {
         vec![Finding::NotFound {
-            feature: cut.name.clone(),
+            feature: cut.name().to_string(),
         }]
     };
-    let (start, moves, lines) =
-        cut_contour_lines(trace, number, &cut.path, 2.0 * rules.tolerance).ok_or_else(not_found)?;
+    let (start, moves, lines) = cut_contour_lines(trace, number, cut.path(), 2.0 * rules.tolerance)
+        .ok_or_else(not_found)?;
     let d: Deviation =
-        deviation::measure(start, &moves, &cut.path, cut.scrap_left).ok_or_else(not_found)?;
+        deviation::measure(start, &moves, cut.path(), cut.scrap_left()).ok_or_else(not_found)?;
     let line_of = |i: usize| lines[i];
     let mut found = Vec::new();
     if d.both_ways > rules.tolerance {
         found.push(Finding::ToleranceExceeded {
-            feature: cut.name.clone(),
+            feature: cut.name().to_string(),
             line: line_of(d.worst_move),
             measured: d.both_ways,
             tolerance: rules.tolerance,
@@ -169,7 +169,7 @@ fn measure_cut(
     }
     if rules.scrap_side_only && d.part_side > rules.rounding {
         found.push(Finding::OntoPartSide {
-            feature: cut.name.clone(),
+            feature: cut.name().to_string(),
             line: line_of(d.worst_part_move),
             part_side: d.part_side,
             rounding: rules.rounding,

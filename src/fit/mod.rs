@@ -252,59 +252,60 @@ pub fn fit_cut(cut: &PlannedCut, options: &FitOptions) -> Result<FittedCut, FitE
         return Err(FitError::BadTolerance(tolerance));
     }
     let (start, moves) = fit_path(cut, options)?;
-    let (measured, sides) = measure::measure_with_sides(start, &moves, &cut.path, cut.scrap_left);
+    let (measured, sides) =
+        measure::measure_with_sides(start, &moves, cut.path(), cut.scrap_left());
     if measured.is_nan() || measured > tolerance {
         return Err(FitError::ToleranceExceeded {
-            feature: cut.name.clone(),
+            feature: cut.name().to_string(),
             measured,
             tolerance,
         });
     }
     if options.scrap_side_only && (sides.part_side.is_nan() || sides.part_side > PART_SIDE_SLACK) {
         return Err(FitError::PartSideCrossed {
-            feature: cut.name.clone(),
+            feature: cut.name().to_string(),
             measured: sides.part_side,
         });
     }
     let clearing = fit_clearing(cut, options)?;
-    let lead_in_from = clearing.last().map_or(cut.plunge, Move::end);
-    let lead_in = if cut.lead_in.is_empty() {
+    let lead_in_from = clearing.last().map_or(cut.plunge(), Move::end);
+    let lead_in = if cut.lead_in().is_empty() {
         vec![Move::Line { to: start }]
     } else {
-        elements_to_moves(&cut.lead_in, lead_in_from, Some(start), options)
+        elements_to_moves(cut.lead_in(), lead_in_from, Some(start), options)
     };
-    let overcut = moves::leading_stretch(start, &moves, cut.overcut);
+    let overcut = moves::leading_stretch(start, &moves, cut.overcut());
     let lead_out_from = overcut.last().map_or(start, Move::end);
-    let lead_out = elements_to_moves(&cut.lead_out, lead_out_from, None, options);
+    let lead_out = elements_to_moves(cut.lead_out(), lead_out_from, None, options);
     let length = moves::total_length(start, &moves);
     let tabs = tab_spans(cut, length);
     Ok(FittedCut {
-        name: cut.name.clone(),
-        kind: cut.kind,
-        side: cut.side,
-        plunge: cut.plunge,
+        name: cut.name().to_string(),
+        kind: cut.kind(),
+        side: cut.side(),
+        plunge: cut.plunge(),
         clearing,
         lead_in,
         overcut,
         lead_out,
         tabs,
-        full_depth_only: cut.full_depth_only,
-        entry_room: cut.entry_room,
+        full_depth_only: cut.full_depth_only(),
+        entry_room: cut.entry_room(),
         start,
         largest_kink_deg: moves::largest_kink_deg(start, &moves),
         moves,
         tolerance,
         measured_deviation: measured,
         part_side_deviation: sides.part_side,
-        scrap_left: cut.scrap_left,
-        allowance: cut.allowance,
+        scrap_left: cut.scrap_left(),
+        allowance: cut.allowance(),
     })
 }
 
 /// The cut's tool-centre path as a start point and moves within the tolerance band; refuses an
 /// irregular parallel curve (inset at or past b²/a).
 fn fit_path(cut: &PlannedCut, options: &FitOptions) -> Result<(Point, Vec<Move>), FitError> {
-    Ok(match &cut.path {
+    Ok(match &cut.path() {
         ExactPath::EllipseParallel {
             ellipse,
             inset,
@@ -313,24 +314,31 @@ fn fit_path(cut: &PlannedCut, options: &FitOptions) -> Result<(Point, Vec<Move>)
         } => {
             ParallelCurve::new(*ellipse, *inset, 0.0).map_err(|too_deep| {
                 FitError::IrregularPath {
-                    feature: cut.name.clone(),
+                    feature: cut.name().to_string(),
                     inset: *inset,
                     limit: too_deep.limit,
                 }
             })?;
-            fit_ellipse_parallel(ellipse, *inset, *start, *clockwise, cut.scrap_left, options)
-                .ok_or_else(|| FitError::NoArcSpline {
-                    feature: cut.name.clone(),
-                    tolerance: options.tolerance,
-                })?
+            fit_ellipse_parallel(
+                ellipse,
+                *inset,
+                *start,
+                *clockwise,
+                cut.scrap_left(),
+                options,
+            )
+            .ok_or_else(|| FitError::NoArcSpline {
+                feature: cut.name().to_string(),
+                tolerance: options.tolerance,
+            })?
         }
-        ExactPath::Contour(c) => fit_contour(c, cut.scrap_left, options),
+        ExactPath::Contour(c) => fit_contour(c, cut.scrap_left(), options),
     })
 }
 
 /// The tabs as stretches `(from, to)` of the fitted contour's length (mm), clipped to it.
 fn tab_spans(cut: &PlannedCut, length: f64) -> Vec<(f64, f64)> {
-    cut.tabs
+    cut.tabs()
         .iter()
         .map(|t| {
             let mid = t.at.rem_euclid(1.0) * length;
@@ -388,7 +396,7 @@ fn fit_ellipse_parallel(
 /// start, then the ring fitted like any path (within the tolerance of its exact curve).
 fn fit_clearing(cut: &PlannedCut, options: &FitOptions) -> Result<Vec<Move>, FitError> {
     let mut out = Vec::new();
-    for ring in &cut.clearing {
+    for ring in cut.clearing() {
         let (first, ring_moves) = match ring {
             ExactPath::EllipseParallel {
                 ellipse,
@@ -397,7 +405,7 @@ fn fit_clearing(cut: &PlannedCut, options: &FitOptions) -> Result<Vec<Move>, Fit
                 clockwise,
             } => fit_ellipse_parallel(ellipse, *inset, *start, *clockwise, true, options)
                 .ok_or_else(|| FitError::NoArcSpline {
-                    feature: cut.name.clone(),
+                    feature: cut.name().to_string(),
                     tolerance: options.tolerance,
                 })?,
             ExactPath::Contour(c) => fit_contour(c, true, options),

@@ -133,7 +133,7 @@ impl Contour {
         for (index, e) in elements.iter().enumerate() {
             let (end, next) = (e.end(), elements[(index + 1) % n].start());
             let gap = end.distance(next);
-            if !(gap <= JOIN_LIMIT) {
+            if gap.is_nan() || gap > JOIN_LIMIT {
                 return Err(ContourError::Open {
                     index,
                     gap,

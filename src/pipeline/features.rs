@@ -250,7 +250,7 @@ fn find_bay<'a>(part: &'a Part, select: &BaySelect) -> Result<&'a Bay, Failure> 
             let hits: Vec<&Bay> = part
                 .bays
                 .iter()
-                .filter(|b| inside(&b.corners(), *p))
+                .filter(|b| inside(b.corners(), *p))
                 .collect();
             match hits.as_slice() {
                 [one] => Ok(one),

@@ -16,43 +16,46 @@ pub struct Tab {
 }
 
 /// One feature's planned cut.
+///
+/// The fields are the plan stage's own (`pub(super)`): other stages read them through the
+/// accessors below and build cuts only through the constructors.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct PlannedCut {
-    pub name: String,
-    pub kind: FeatureKind,
-    pub side: CutSide,
+    pub(super) name: String,
+    pub(super) kind: FeatureKind,
+    pub(super) side: CutSide,
     /// The tool-centre path.
-    pub path: ExactPath,
+    pub(super) path: ExactPath,
     /// Where the tool enters the material (in the scrap).
-    pub plunge: Point,
+    pub(super) plunge: Point,
     /// Pockets: the clearing rings, innermost first, cut before the lead-in. The tool feeds
     /// straight from the plunge point to the first ring's start and from each ring's end to the
     /// next ring's start.
-    pub clearing: Vec<ExactPath>,
+    pub(super) clearing: Vec<ExactPath>,
     /// Exact moves from the plunge point (or the last clearing ring's end) to the path's start;
     /// empty for a straight move.
-    pub lead_in: Vec<Element>,
+    pub(super) lead_in: Vec<Element>,
     /// How far past the start the path is cut again after closing (mm).
-    pub overcut: f64,
+    pub(super) overcut: f64,
     /// Exact moves from the end of the overcut into the scrap; empty for none.
-    pub lead_out: Vec<Element>,
+    pub(super) lead_out: Vec<Element>,
     /// Stretches left uncut.
-    pub tabs: Vec<Tab>,
+    pub(super) tabs: Vec<Tab>,
     /// A finishing cut: made once, at the full depth, after the roughing passes.
-    pub full_depth_only: bool,
+    pub(super) full_depth_only: bool,
     /// The finished edge this cut makes.
-    pub edge: Edge,
+    pub(super) edge: Edge,
     /// How far the tool centre may wander from the plunge point in every direction without
     /// touching the finished edge (mm): room for a helical entry. Zero when there is none.
-    pub entry_room: f64,
+    pub(super) entry_room: f64,
     /// Whether the scrap lies on the left of travel (climb milling with a clockwise spindle,
     /// and the usual thermal direction: holes counter-clockwise, outline and bosses clockwise);
     /// `false` for a conventional cut, which runs the other way with the scrap on the right.
     /// Leads, one-sided fits and side measurements follow it.
-    pub scrap_left: bool,
+    pub(super) scrap_left: bool,
     /// Radial stock (mm) this cut leaves on the finished edge for a finishing cut that follows
     /// it: the finishing allowance on a roughing cut, 0 on a cut that makes the edge.
-    pub allowance: f64,
+    pub(super) allowance: f64,
 }
 
 impl PlannedCut {
@@ -116,6 +119,79 @@ impl PlannedCut {
             scrap_left: true,
             allowance: 0.0,
         }
+    }
+
+    /// The feature's name, for messages and the program's comments.
+    pub fn name(&self) -> &str {
+        &self.name
+    }
+
+    pub fn kind(&self) -> FeatureKind {
+        self.kind
+    }
+
+    pub fn side(&self) -> CutSide {
+        self.side
+    }
+
+    /// The tool-centre path.
+    pub fn path(&self) -> &ExactPath {
+        &self.path
+    }
+
+    /// Where the tool enters the material (in the scrap).
+    pub fn plunge(&self) -> Point {
+        self.plunge
+    }
+
+    /// Pockets: the clearing rings, innermost first, cut before the lead-in.
+    pub fn clearing(&self) -> &[ExactPath] {
+        &self.clearing
+    }
+
+    /// Exact moves from the plunge point (or the last clearing ring's end) to the path's start.
+    pub fn lead_in(&self) -> &[Element] {
+        &self.lead_in
+    }
+
+    /// How far past the start the path is cut again after closing (mm).
+    pub fn overcut(&self) -> f64 {
+        self.overcut
+    }
+
+    /// Exact moves from the end of the overcut into the scrap.
+    pub fn lead_out(&self) -> &[Element] {
+        &self.lead_out
+    }
+
+    /// Stretches left uncut.
+    pub fn tabs(&self) -> &[Tab] {
+        &self.tabs
+    }
+
+    /// Whether this is a finishing cut, made once at the full depth.
+    pub fn full_depth_only(&self) -> bool {
+        self.full_depth_only
+    }
+
+    /// The finished edge this cut makes.
+    pub fn edge(&self) -> &Edge {
+        &self.edge
+    }
+
+    /// Room for a helical entry round the plunge point (mm); zero when there is none.
+    pub fn entry_room(&self) -> f64 {
+        self.entry_room
+    }
+
+    /// Whether the scrap lies on the left of travel.
+    pub fn scrap_left(&self) -> bool {
+        self.scrap_left
+    }
+
+    /// Radial stock (mm) left on the finished edge for a finishing cut that follows.
+    pub fn allowance(&self) -> f64 {
+        self.allowance
     }
 
     /// Sets `entry_room` from the edge and the tool radius `r`: the plunge point's distance from

@@ -214,7 +214,7 @@ fn part_group(part: &Part, u: f64) -> Group {
             Path::new()
                 .set("class", "bay")
                 .set("data-name", bay.name())
-                .set("d", polyline_d(&bay.corners(), true))
+                .set("d", polyline_d(bay.corners(), true))
                 .set("fill", "none")
                 .set("stroke", palette::BAY)
                 .set("stroke-width", num(1.2 * u))

@@ -50,9 +50,9 @@ pub fn solve_bay(bay: &Bay, rule: &Rule, margin: f64) -> Result<BaySolution, Fai
             candidates: vec![],
         });
     }
-    let corners = ccw_convex_corners(&bay.name(), &bay.corners())?;
+    let corners = ccw_convex_corners(bay.name(), bay.corners())?;
     let corners = if margin > 0.0 {
-        inset_convex_polygon(&bay.name(), &corners, margin)?
+        inset_convex_polygon(bay.name(), &corners, margin)?
     } else {
         corners
     };
@@ -101,7 +101,7 @@ pub fn solve_bay(bay: &Bay, rule: &Rule, margin: f64) -> Result<BaySolution, Fai
                 },
             )?
         }
-        (5, Rule::Largest) => five_sided(&bay.name(), &corners)?,
+        (5, Rule::Largest) => five_sided(bay.name(), &corners)?,
         (5, _) => {
             return Err(unsupported(
                 "needs a four-sided bay; in a five-sided bay use largest (the one ellipse touching all five sides) or largest-inside",

@@ -89,9 +89,9 @@ pub fn largest_tangent_ellipse(bay: &Bay, margin: f64) -> Result<BayOpening, Sol
             sides: bay.corners().len(),
         });
     }
-    let corners = ccw_convex_corners(&bay.name(), &bay.corners())?;
+    let corners = ccw_convex_corners(bay.name(), bay.corners())?;
     let corners = if margin > 0.0 {
-        inset_convex_polygon(&bay.name(), &corners, margin)?
+        inset_convex_polygon(bay.name(), &corners, margin)?
     } else {
         corners
     };
