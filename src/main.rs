@@ -6,13 +6,12 @@ use conicut::chain::{DEFAULT_BAY_LAYER, DEFAULT_MAX_GAP};
 use conicut::geom::Point;
 use conicut::pipeline::{JobOutput, resolve, run_resolved, solve_job};
 use conicut::plan::{Direction, LeadKind};
-use conicut::post::MachineProfile;
 use conicut::read::Units;
 use conicut::read::parse_points_csv;
 use conicut::report::OutputFile;
 use conicut::settings::defaults;
 use conicut::settings::job_file::{FeatureSource, FitPoints, JobFile, parse_job_file};
-use conicut::settings::{BUNDLED_PROFILES, JobSettings, LeadRequest, TabRequest};
+use conicut::settings::{BUNDLED_PROFILES, JobSettings, LeadRequest, Machine, TabRequest};
 use std::collections::BTreeMap;
 use std::fs;
 use std::path::{Path, PathBuf};
@@ -309,7 +308,7 @@ fn run(cli: Cli) -> Result<()> {
             tool_diameter,
             job,
         } => {
-            let profile = bundled_profile(&machine)?;
+            let machine_read = bundled_profile(&machine)?;
             let input = DrawingArgs {
                 job,
                 units: None,
@@ -322,9 +321,9 @@ fn run(cli: Cli) -> Result<()> {
             request.tool_diameter = tool_diameter;
             request.fallback_tool_diameter = Some(defaults::DEMO_TOOL_DIAMETER_MM);
             request.depth = Some(cut.depth.unwrap_or(conicut::demo::CUT_DEPTH));
-            let resolved = resolve(&request, &profile)?;
+            let resolved = resolve(&request, &machine_read)?;
             let bytes = conicut::demo::demo_dxf_bytes();
-            let output = run_resolved(&bytes, &profile, &request, &resolved)?;
+            let output = run_resolved(&bytes, &machine_read.profile, &request, &resolved)?;
             finish(output, &out, &demo_stem(&machine))
         }
         Command::Solve {
@@ -350,12 +349,12 @@ fn run(cli: Cli) -> Result<()> {
             input,
             cut,
         } => {
-            let profile = read_profile(&machine)?;
+            let machine = read_profile(&machine)?;
             let (bytes, file_name, stem) = read_drawing(&drawing)?;
             let mut request = request(file_name, &input, Some(&cut))?;
             request.tool_diameter = tool_diameter;
-            let resolved = resolve(&request, &profile)?;
-            let output = run_resolved(&bytes, &profile, &request, &resolved)?;
+            let resolved = resolve(&request, &machine)?;
+            let output = run_resolved(&bytes, &machine.profile, &request, &resolved)?;
             let out = out.unwrap_or_else(|| PathBuf::from(format!("{stem}-conicut")));
             finish(output, &out, &stem)
         }
@@ -363,7 +362,7 @@ fn run(cli: Cli) -> Result<()> {
 }
 
 /// A bundled profile by its stem (`metric-mill`, `laser`, …).
-fn bundled_profile(machine: &str) -> Result<MachineProfile> {
+fn bundled_profile(machine: &str) -> Result<Machine> {
     let wanted = format!("machine-profiles/{machine}.toml");
     let Some((file, text)) = BUNDLED_PROFILES.iter().find(|(f, _)| *f == wanted) else {
         let names: Vec<&str> = BUNDLED_PROFILES
@@ -376,15 +375,14 @@ fn bundled_profile(machine: &str) -> Result<MachineProfile> {
             names.join(", ")
         );
     };
-    MachineProfile::from_toml(text, file).map_err(|e| anyhow::anyhow!("{e}"))
+    Machine::from_toml(text, file).map_err(|e| anyhow::anyhow!("{e}"))
 }
 
 /// A machine profile read from a file.
-fn read_profile(path: &Path) -> Result<MachineProfile> {
+fn read_profile(path: &Path) -> Result<Machine> {
     let text = fs::read_to_string(path)
         .with_context(|| format!("cannot read the machine profile {}", path.display()))?;
-    MachineProfile::from_toml(&text, &path.display().to_string())
-        .map_err(|e| anyhow::anyhow!("{e}"))
+    Machine::from_toml(&text, &path.display().to_string()).map_err(|e| anyhow::anyhow!("{e}"))
 }
 
 /// The demo's output stem: `truss-bracket` on the metric mill, else with the profile's name.

@@ -18,7 +18,7 @@ use conicut::check::{self, Finding, VerifyRules, deviation};
 use conicut::fit::{self, FitOptions, FittedCut, MoveKind};
 use conicut::geom::{ArcSegment, Contour, Edge, Element, Ellipse, ExactPath, Point, Segment};
 use conicut::plan::{CutSide, FeatureKind, PlannedCut};
-use conicut::post::{MachineProfile, ProgramSettings, write_program};
+use conicut::post::{ProgramSettings, write_program};
 use conicut::settings::{JobSettings, resolve};
 
 #[path = "support/machine.rs"]
@@ -174,10 +174,11 @@ const TOLERANCE: f64 = 0.01;
 /// A hole cut around a 30 × 18 mm ellipse, written for the metric mill profile; the rounding
 /// allowance as the job computes it.
 fn written(kind: MoveKind, one_sided: bool) -> (PlannedCut, String, f64) {
-    let profile = MachineProfile::metric_mill().expect("shipped profile loads");
+    let mill = machine::machine("metric-mill");
+    let profile = &mill.profile;
     let mut request = JobSettings::new("oval.dxf", 6.0);
     request.lines_only = kind == MoveKind::Lines;
-    let rounding = resolve(&request, &profile)
+    let rounding = resolve(&request, &mill)
         .expect("the settings resolve")
         .budget
         .rounding;
@@ -188,7 +189,7 @@ fn written(kind: MoveKind, one_sided: bool) -> (PlannedCut, String, f64) {
         tolerance: TOLERANCE,
         ..machine::program_settings("verify", "oval.dxf", 6.0, 2.0)
     };
-    let program = write_program(&[f], &profile, &settings).expect("written");
+    let program = write_program(&[f], profile, &settings).expect("written");
     (cut, program, rounding)
 }
 

@@ -37,7 +37,7 @@ use conicut::plan::{CutSide, Direction, Opening, PlanError, PlanOptions, plan_cu
 use conicut::settings::SettingsError;
 use entry_checks::*;
 use gcode_read::{ReadMove, read_back};
-use machine::profile;
+use machine::machine;
 use std::f64::consts::TAU;
 
 // ---------------------------------------------------------------------------------------------
@@ -249,7 +249,7 @@ fn bad_allowances_are_refused_with_what_to_do() {
     for bad in [0.0, -0.2, f64::NAN] {
         let err = run_job(
             &conicut::demo::demo_dxf_bytes(),
-            &profile("metric-mill"),
+            &machine("metric-mill"),
             &JobSettings {
                 finish_allowance: Some(bad),
                 ..demo_settings(6.0)
@@ -303,7 +303,7 @@ fn bad_allowances_are_refused_with_what_to_do() {
     // in from a 4.5 mm circle does not exist. The error names the hole and what to do.
     let err = run_job(
         &conicut::demo::demo_dxf_bytes(),
-        &profile("metric-mill"),
+        &machine("metric-mill"),
         &JobSettings {
             finish_allowance: Some(2.0),
             ..demo_settings(6.0)
@@ -320,8 +320,8 @@ fn bad_allowances_are_refused_with_what_to_do() {
 
 #[test]
 fn lasers_refuse_a_finishing_pass_and_keep_the_usual_direction() {
-    let laser = profile("laser");
-    let kerf = laser.kerf_width().expect("a kerf");
+    let laser = machine("laser");
+    let kerf = laser.profile.kerf_width().expect("a kerf");
     let settings = JobSettings {
         finish_allowance: Some(0.3),
         ..demo_settings(kerf)

@@ -35,8 +35,9 @@ use conicut::geom::{Ellipse, Point, Vec2};
 use conicut::pipeline::{JobError, JobOutput, JobSettings, LeadRequest, run_job};
 use conicut::plan::{CutSide, LeadKind, Opening, PlanError, PlanOptions, plan_cuts};
 use conicut::post::MachineProfile;
+use conicut::settings::Machine;
 use lead_checks::*;
-use machine::{profile, profile_text};
+use machine::{machine, profile_text};
 
 /// The report's warning about feature `name`.
 fn warning_for<'a>(out: &'a JobOutput, name: &str) -> &'a str {
@@ -140,14 +141,14 @@ fn job_file_lead_keys_apply_and_the_command_line_overrides_them() {
     );
     let job = conicut::settings::job_file::parse_job_file(&text, "job.toml")
         .expect("the job file parses");
-    let p = profile("laser");
+    let m = machine("laser");
     let with_job = |leads: LeadRequest| JobSettings {
         job: Some(job.clone()),
-        ..settings(&p, leads)
+        ..settings(&m.profile, leads)
     };
     let out = run_job(
         &conicut::demo::demo_dxf_bytes(),
-        &p,
+        &m,
         &with_job(LeadRequest::default()),
     )
     .expect("the job runs");
@@ -161,7 +162,7 @@ fn job_file_lead_keys_apply_and_the_command_line_overrides_them() {
     // An arc lead asked for on the command line wins over the file's line.
     let out = run_job(
         &conicut::demo::demo_dxf_bytes(),
-        &p,
+        &m,
         &with_job(kind_only(LeadKind::Arc)),
     )
     .expect("the job runs");
@@ -172,7 +173,7 @@ fn job_file_lead_keys_apply_and_the_command_line_overrides_them() {
 
 #[test]
 fn bad_lead_settings_are_refused() {
-    let p = profile("metric-mill");
+    let m = machine("metric-mill");
     for request in [
         LeadRequest {
             length: Some(-1.0),
@@ -188,7 +189,7 @@ fn bad_lead_settings_are_refused() {
             ..LeadRequest::default()
         },
     ] {
-        let err = run_job(&demo_dxf_bytes(), &p, &settings(&p, request)).unwrap_err();
+        let err = run_job(&demo_dxf_bytes(), &m, &settings(&m.profile, request)).unwrap_err();
         assert!(
             matches!(
                 err,
@@ -208,8 +209,13 @@ fn a_pierce_clearance_no_hole_can_give_is_refused_clearly() {
     // No point of a Ø9 mm hole is 5 mm from its edge.
     let (file, text) = profile_text("plasma");
     let text = text.replace("pierce_clearance = 3.5", "pierce_clearance = 5.0");
-    let p = MachineProfile::from_toml(&text, file).unwrap();
-    let err = run_job(&demo_dxf_bytes(), &p, &settings(&p, LeadRequest::default())).unwrap_err();
+    let m = Machine::from_toml(&text, file).unwrap();
+    let err = run_job(
+        &demo_dxf_bytes(),
+        &m,
+        &settings(&m.profile, LeadRequest::default()),
+    )
+    .unwrap_err();
     let message = err.to_string();
     assert!(message.contains("hole"), "{message}");
     assert!(message.contains("pierce_clearance"), "{message}");
@@ -244,19 +250,18 @@ fn profile_lead_keys_are_checked() {
         })
         .collect::<Vec<_>>()
         .join("\n");
-    let p = MachineProfile::from_toml(&text, file).unwrap();
-    let leads = p.lead_options();
+    let leads = Machine::from_toml(&text, file).unwrap().defaults.leads;
     assert_eq!(leads.kind, LeadKind::Straight);
     assert!(!leads.lead_out && leads.overcut == 0.0);
 }
 
 #[test]
 fn the_scrap_check_refuses_a_program_whose_lead_enters_the_part() {
-    let p = profile("metric-mill");
+    let m = machine("metric-mill");
     let out = run_job(
         &demo_dxf_bytes(),
-        &p,
-        &settings(&p, kind_only(LeadKind::Arc)),
+        &m,
+        &settings(&m.profile, kind_only(LeadKind::Arc)),
     )
     .unwrap();
     // The finished edges for the check, from the drawing and the report (not the job's plan):

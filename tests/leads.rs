@@ -29,8 +29,9 @@ mod lead_checks;
 mod machine;
 use conicut::pipeline::LeadRequest;
 use conicut::plan::{Direction, LeadKind};
+use conicut::settings::Machine;
 use lead_checks::*;
-use machine::profile;
+use machine::machine;
 
 const KINDS: [LeadKind; 4] = [
     LeadKind::Straight,
@@ -140,20 +141,23 @@ fn profile_defaults_give_arc_leads_on_mills_and_line_arc_on_thermal_tables() {
         ("plasma", LeadKind::LineArc),
         ("waterjet", LeadKind::LineArc),
     ] {
-        let p = profile(stem);
-        let leads = p.lead_options();
+        let Machine {
+            profile: p,
+            defaults,
+        } = machine(stem);
+        let leads = defaults.leads;
         assert_eq!(leads.kind, kind, "{stem}");
         assert!(leads.lead_out && leads.overcut > 0.0, "{stem}");
         if p.spindle().is_some() {
             assert!(leads.radius > 3.0, "{stem}: above the demo tool's radius");
-            assert_eq!(p.pierce_clearance(), None);
+            assert_eq!(defaults.pierce_clearance, None);
         } else {
             // At least one kerf from the edge (§4.3).
             let kerf = p.kerf_width().unwrap();
-            assert!(p.pierce_clearance().unwrap() >= kerf, "{stem}");
+            assert!(defaults.pierce_clearance.unwrap() >= kerf, "{stem}");
         }
         run_and_check(stem, LeadRequest::default(), false);
     }
     // The inch router's values are in inches: 0.16 in = 4.064 mm.
-    assert!((profile("inch-router").lead_options().radius - 4.064).abs() < 1e-12);
+    assert!((machine("inch-router").defaults.leads.radius - 4.064).abs() < 1e-12);
 }

@@ -49,7 +49,7 @@ use conicut::plan::{
 };
 use conicut::settings::job_file::parse_job_file;
 use gcode_read::{ReadBack, ReadMove, marked_moves, read_back};
-use machine::profile;
+use machine::machine;
 use std::collections::HashMap;
 use std::f64::consts::{PI, TAU};
 
@@ -633,7 +633,7 @@ fn demo_pockets_cut_scrap_side_only_never_touch_the_edge() {
 fn demo_pockets(scrap_side_only: bool) {
     let d = 6.0;
     let r = d / 2.0;
-    let mill = profile("metric-mill");
+    let mill = machine("metric-mill");
     let s = pocket_job_settings(d, scrap_side_only);
     let out = run_job(&conicut::demo::demo_dxf_bytes(), &mill, &s).expect("the job runs");
     let trace = read_back(&out.program);
@@ -722,10 +722,13 @@ fn check_demo_pocket(trace: &ReadBack, name: &str, e: &Ellipse, r: f64, scrap_si
 #[test]
 fn cut_through_profiles_refuse_pockets() {
     for kind in ["laser", "plasma", "waterjet"] {
-        let p = profile(kind);
-        let kerf = p.kerf_width().expect("a cut-through profile has a kerf");
+        let m = machine(kind);
+        let kerf = m
+            .profile
+            .kerf_width()
+            .expect("a cut-through profile has a kerf");
         let s = pocket_job_settings(kerf, false);
-        let err = run_job(&conicut::demo::demo_dxf_bytes(), &p, &s).unwrap_err();
+        let err = run_job(&conicut::demo::demo_dxf_bytes(), &m, &s).unwrap_err();
         match &err {
             JobError::PocketCutsThrough {
                 feature, machine, ..

@@ -22,9 +22,10 @@ use conicut::demo::{CORNER_RADIUS, PLATE_HEIGHT, PLATE_WIDTH, demo_dxf_bytes};
 use conicut::pipeline::{JobError, JobOutput, JobSettings, LeadRequest, TabRequest, run_job};
 use conicut::plan::LeadKind;
 use conicut::post::MachineProfile;
+use conicut::settings::Machine;
 use conicut::settings::SettingsError;
 use gcode_read::{ReadBack, ReadMove, marked_moves, read_back};
-use machine::profile;
+use machine::{machine, profile};
 use resvg::usvg::roxmltree;
 use std::f64::consts::TAU;
 
@@ -70,10 +71,10 @@ fn count(n: usize) -> TabRequest {
 }
 
 fn run(stem: &str, tabs: TabRequest, stepdown: Option<f64>) -> (MachineProfile, JobOutput) {
-    let p = profile(stem);
-    let out = run_job(&demo_dxf_bytes(), &p, &settings(&p, tabs, stepdown))
+    let m = machine(stem);
+    let out = run_job(&demo_dxf_bytes(), &m, &settings(&m.profile, tabs, stepdown))
         .unwrap_or_else(|e| panic!("{stem}: {e}"));
-    (p, out)
+    (m.profile, out)
 }
 
 /// The moves of the outline after each of its `(contour)` comments, one run per pass.
@@ -477,9 +478,10 @@ fn tight_corners_never_take_tabs() {
     // A 3 mm tool and 1 mm tabs: the corner arcs of the tool-centre path (radius 10 + 1.5 mm,
     // 18 mm long) have room for a 4 mm tab between their end margins, but are tighter than
     // 5 tool diameters (15 mm): crowded with tabs, the outline still gets none on its corners.
-    let p = profile("metric-mill");
+    let m = machine("metric-mill");
+    let p = &m.profile;
     let mut s = settings(
-        &p,
+        p,
         TabRequest {
             width: Some(1.0),
             ..count(60)
@@ -487,7 +489,7 @@ fn tight_corners_never_take_tabs() {
         None,
     );
     s.tool_diameter = Some(3.0);
-    let out = run_job(&demo_dxf_bytes(), &p, &s).expect("the job runs");
+    let out = run_job(&demo_dxf_bytes(), &m, &s).expect("the job runs");
     let trace = read_back(&out.program);
     let run = &outline_contour_runs(&trace)[0];
     let raised = stretches(run, |m| (m.from[2] + DEPTH - 1.0).abs() < Z_TOL);
@@ -639,10 +641,10 @@ fn check_tabs_reported(out: &JobOutput, n: usize) {
 
 #[test]
 fn bad_tab_requests_are_refused_with_the_reason() {
-    let mill = profile("metric-mill");
-    let laser = profile("laser");
-    for (p, request, says) in bad_tab_requests(&mill, &laser) {
-        let err = run_job(&demo_dxf_bytes(), p, &settings(p, request, None))
+    let mill = machine("metric-mill");
+    let laser = machine("laser");
+    for (m, request, says) in bad_tab_requests(&mill, &laser) {
+        let err = run_job(&demo_dxf_bytes(), m, &settings(&m.profile, request, None))
             .expect_err("a bad tab request is refused");
         assert!(
             matches!(
@@ -664,9 +666,9 @@ fn bad_tab_requests_are_refused_with_the_reason() {
 
 /// Bad tab requests on a mill and a laser, each with what its refusal must say.
 fn bad_tab_requests<'a>(
-    mill: &'a MachineProfile,
-    laser: &'a MachineProfile,
-) -> [(&'a MachineProfile, TabRequest, &'static str); 10] {
+    mill: &'a Machine,
+    laser: &'a Machine,
+) -> [(&'a Machine, TabRequest, &'static str); 10] {
     [
         (mill, count(0), "at least 1"),
         (

@@ -15,7 +15,7 @@ use crate::preview::{self, PreviewInput};
 use crate::read::{self, ReadError, ReadOptions};
 use crate::report::{self, FitSummary, Report, ReportInput, SolvedInfo};
 use crate::settings::job_file::{CutKind, JobFile};
-use crate::settings::{self, ResolvedJob, SettingsError};
+use crate::settings::{self, Machine, ResolvedJob, SettingsError};
 pub use crate::settings::{JobSettings, LeadRequest, TabRequest};
 use features::{FeatureInputs, SolvedFeature};
 use listing::SolveListing;
@@ -184,20 +184,16 @@ fn unused_warnings(bays: &[String]) -> Vec<String> {
         .collect()
 }
 
-/// Runs the whole job: resolves `s` against `profile` ([`settings::resolve`]), then
+/// Runs the whole job: resolves `s` against `machine` ([`settings::resolve`]), then
 /// [`run_resolved`].
-pub fn run_job(
-    dxf: &[u8],
-    profile: &MachineProfile,
-    s: &JobSettings,
-) -> Result<JobOutput, JobError> {
-    let resolved = resolve(s, profile)?;
-    run_resolved(dxf, profile, s, &resolved)
+pub fn run_job(dxf: &[u8], machine: &Machine, s: &JobSettings) -> Result<JobOutput, JobError> {
+    let resolved = resolve(s, machine)?;
+    run_resolved(dxf, &machine.profile, s, &resolved)
 }
 
 /// The request resolved against the profile, or the refusal naming the drawing.
-pub fn resolve(s: &JobSettings, profile: &MachineProfile) -> Result<ResolvedJob, JobError> {
-    settings::resolve(s, profile).map_err(|error| JobError::Settings {
+pub fn resolve(s: &JobSettings, machine: &Machine) -> Result<ResolvedJob, JobError> {
+    settings::resolve(s, machine).map_err(|error| JobError::Settings {
         file: s.file_name.clone(),
         error,
     })
@@ -367,7 +363,7 @@ fn read_back(
         rounding: resolved.budget.rounding,
         scrap_side_only: s.scrap_side_only,
         tool_radius: resolved.tool_diameter / 2.0,
-        pierce_clearance: profile.pierce_clearance(),
+        pierce_clearance: resolved.plan.pierce_clearance,
         skip_above_stock: profile.spindle().is_some(),
     };
     check::verify(program, cuts, &rules).map_err(|found| {

@@ -11,7 +11,6 @@
 //! the reader converts to millimetres. conicut works in millimetres inside and converts to the
 //! profile's units only when it writes the program.
 
-use crate::plan::LeadOptions;
 use serde::Deserialize;
 use std::fmt;
 
@@ -213,7 +212,9 @@ pub enum Cutter {
     Process(Process),
 }
 
-/// A checked machine profile. Build one with [`MachineProfile::from_toml`]; every value has been
+/// A checked machine profile: the words and limits the program is written with (the planner's
+/// defaults a profile file also gives go to `settings::MachineDefaults`). Build one with
+/// [`MachineProfile::from_toml`] or `settings::Machine::from_toml`; every value has been
 /// validated (positive feeds, ordered heights and limits, sensible decimals, clean blocks, the
 /// keys of its kind of machine and no others).
 #[derive(Debug, Clone, PartialEq)]
@@ -238,10 +239,6 @@ pub struct MachineProfile {
     pub(crate) acceleration: f64,
     pub(crate) safe_height: f64,
     pub(crate) travel: TravelEnvelope,
-    /// Lead defaults, in mm.
-    pub(crate) leads: LeadOptions,
-    /// Cut-through kinds: the pierce point's least distance from the finished edges, in mm.
-    pub(crate) pierce_clearance: Option<f64>,
 }
 
 /// The most decimals a profile may ask for.
@@ -352,16 +349,6 @@ impl MachineProfile {
     /// The travel envelope, profile units relative to the work zero.
     pub fn travel(&self) -> &TravelEnvelope {
         &self.travel
-    }
-    /// The lead-in, overcut and lead-out used when the user gives none, in **millimetres**
-    /// (converted from the profile's units).
-    pub fn lead_options(&self) -> LeadOptions {
-        self.leads
-    }
-    /// Laser, plasma and waterjet: the pierce point's least distance from every finished edge,
-    /// in **millimetres** (0 when the profile gives none); `None` for mills and routers.
-    pub fn pierce_clearance(&self) -> Option<f64> {
-        self.pierce_clearance
     }
 }
 

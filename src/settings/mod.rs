@@ -19,6 +19,6 @@ pub mod resolve;
 mod toml_text;
 pub mod words;
 
-pub use profile::{BUNDLED_PROFILES, METRIC_MILL_TOML, ProfileError};
+pub use profile::{BUNDLED_PROFILES, METRIC_MILL_TOML, Machine, MachineDefaults, ProfileError};
 pub use request::{JobSettings, LeadRequest, TabRequest};
 pub use resolve::{ResolvedJob, SettingsError, ToleranceBudget, resolve};

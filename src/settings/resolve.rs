@@ -5,6 +5,7 @@
 
 use super::defaults;
 use super::job_file::JobFile;
+use super::profile::Machine;
 use super::request::{JobSettings, LeadRequest, TabRequest};
 use crate::fit::{FitOptions, MoveKind};
 use crate::plan::{Direction, LeadOptions, PlanOptions, TabOptions};
@@ -83,7 +84,8 @@ pub enum SettingsError {
 }
 
 /// Resolves `s` against `profile`.
-pub fn resolve(s: &JobSettings, profile: &MachineProfile) -> Result<ResolvedJob, SettingsError> {
+pub fn resolve(s: &JobSettings, machine: &Machine) -> Result<ResolvedJob, SettingsError> {
+    let profile = &machine.profile;
     let tool_diameter = tool_diameter(s, profile)?;
     let cuts_through = profile.kerf_width().is_some();
     let depth = if cuts_through {
@@ -100,14 +102,14 @@ pub fn resolve(s: &JobSettings, profile: &MachineProfile) -> Result<ResolvedJob,
     let (direction, direction_warning) = mill_only_settings(s, profile)?;
     let plan = PlanOptions {
         tool_diameter,
-        leads: resolve_leads(&s.leads, s.job.as_ref(), profile),
+        leads: resolve_leads(&s.leads, s.job.as_ref(), machine.defaults.leads),
         direction,
         tabs,
         finish_allowance: s.finish_allowance,
         pocket_stepover: s
             .pocket_stepover
             .unwrap_or_else(|| defaults::pocket_stepover(tool_diameter)),
-        pierce_clearance: profile.pierce_clearance(),
+        pierce_clearance: machine.defaults.pierce_clearance,
     };
     let fit = FitOptions {
         tolerance: budget.fit(),
@@ -190,8 +192,7 @@ fn tolerance_budget(
 
 /// The leads to use: the command line first, then the job file's lead keys, the rest from the
 /// profile.
-fn resolve_leads(r: &LeadRequest, job: Option<&JobFile>, profile: &MachineProfile) -> LeadOptions {
-    let base = profile.lead_options();
+fn resolve_leads(r: &LeadRequest, job: Option<&JobFile>, base: LeadOptions) -> LeadOptions {
     let file = job.map(|j| j.leads).unwrap_or_default();
     LeadOptions {
         kind: r.kind.or(file.shape).unwrap_or(base.kind),
@@ -313,12 +314,12 @@ mod tests {
     use crate::plan::LeadKind;
     use crate::settings::BUNDLED_PROFILES;
 
-    fn profile(stem: &str) -> MachineProfile {
+    fn profile(stem: &str) -> Machine {
         let (file, text) = BUNDLED_PROFILES
             .iter()
             .find(|(f, _)| f.contains(stem))
             .expect("a bundled profile");
-        MachineProfile::from_toml(text, file).expect("the bundled profile loads")
+        Machine::from_toml(text, file).expect("the bundled profile loads")
     }
 
     #[test]
@@ -363,7 +364,7 @@ mod tests {
         let mill = profile("metric-mill");
         let mut s = JobSettings::new("part.dxf", 6.0);
         let base = resolve(&s, &mill).unwrap().plan.leads;
-        assert_eq!(base, mill.lead_options());
+        assert_eq!(base, mill.defaults.leads);
         let mut job = crate::settings::job_file::parse_job_file(
             "units = \"mm\"\nlead = \"line\"\nlead_length = 7\n[[feature]]\nname = \"a\"\nbay = \"b\"\n",
             "job.toml",

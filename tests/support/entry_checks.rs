@@ -7,7 +7,7 @@
 
 use crate::demo_job;
 use crate::gcode_read::{ReadBack, ReadMove, read_back};
-use crate::machine::profile;
+use crate::machine::machine;
 use conicut::geom::{Contour, Element};
 use conicut::geom::{Point, Segment};
 use conicut::pipeline::{JobOutput, JobSettings, LeadRequest, run_job};
@@ -167,7 +167,7 @@ pub fn demo_settings(d: f64) -> JobSettings {
 }
 
 pub fn run(settings: &JobSettings, stem: &str) -> JobOutput {
-    run_job(&conicut::demo::demo_dxf_bytes(), &profile(stem), settings)
+    run_job(&conicut::demo::demo_dxf_bytes(), &machine(stem), settings)
         .unwrap_or_else(|e| panic!("the demo job runs: {e}"))
 }
 
@@ -321,7 +321,7 @@ pub fn signed_area2(points: &[Point]) -> f64 {
 /// Half a step of the profile's Z output (mm): a written height is at most this far from the
 /// exact one.
 pub fn z_half_step(stem: &str) -> f64 {
-    0.5 * 10f64.powi(-(profile(stem).z_decimals() as i32))
+    0.5 * 10f64.powi(-(machine(stem).profile.z_decimals() as i32))
 }
 
 /// Checks one pass's entry: every descending move with XY travel descends no steeper than

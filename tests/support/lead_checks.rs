@@ -7,7 +7,7 @@
 
 use crate::demo_job;
 use crate::gcode_read::read_back;
-use crate::machine::profile;
+use crate::machine::machine;
 use conicut::demo::{
     BOLT_HOLE_CENTRES, BOLT_HOLE_RADIUS, CORNER_RADIUS, PLATE_HEIGHT, PLATE_WIDTH, demo_dxf_bytes,
 };
@@ -16,6 +16,7 @@ use conicut::pipeline::{JobOutput, JobSettings, LeadRequest, run_job};
 use conicut::plan::LeadKind;
 use conicut::post::MachineProfile;
 use conicut::report::Report;
+use conicut::settings::Machine;
 use std::f64::consts::TAU;
 
 /// The gcode crate reads values as `f32`: about 1e-5 mm at the demo's coordinates; we allow
@@ -341,7 +342,7 @@ pub fn angle_deg(a: Vec2, b: Vec2) -> f64 {
 
 /// What one run is checked against.
 pub struct Expect<'a> {
-    pub profile: &'a MachineProfile,
+    pub machine: &'a Machine,
     pub kind: LeadKind,
     pub lines_only: bool,
 }
@@ -357,17 +358,17 @@ pub fn run_and_check_with(
     request: LeadRequest,
     adjust: impl Fn(&mut JobSettings),
 ) -> JobOutput {
-    let p = profile(stem);
-    let mut s = settings(&p, request);
+    let m = machine(stem);
+    let mut s = settings(&m.profile, request);
     adjust(&mut s);
     let lines_only = s.lines_only;
-    let kind = request.kind.unwrap_or(p.lead_options().kind);
-    let out = run_job(&demo_dxf_bytes(), &p, &s).unwrap_or_else(|e| panic!("{stem}: {e}"));
+    let kind = request.kind.unwrap_or(m.defaults.leads.kind);
+    let out = run_job(&demo_dxf_bytes(), &m, &s).unwrap_or_else(|e| panic!("{stem}: {e}"));
     check_leads(
         stem,
         &out,
         &Expect {
-            profile: &p,
+            machine: &m,
             kind,
             lines_only,
         },
@@ -413,14 +414,14 @@ pub fn check_leads(stem: &str, out: &JobOutput, x: &Expect, request: LeadRequest
     let cuts = read_cuts(&out.program);
     assert_eq!(cuts.len(), report.features.len(), "{stem}: every cut");
     assert!(cuts.len() >= 9, "{stem}: nine features at least");
-    let defaults = x.profile.lead_options();
+    let defaults = x.machine.defaults.leads;
     let run = LeadRun {
         x,
         edges: finished_edges(report),
         report,
         r: report.tool_diameter_mm / 2.0,
         tol: report.tolerance_mm,
-        mill: x.profile.spindle().is_some(),
+        mill: x.machine.profile.spindle().is_some(),
         overcut: request.overcut.unwrap_or(defaults.overcut),
         lead_out_asked: request.lead_out.unwrap_or(defaults.lead_out)
             && x.kind != LeadKind::Straight,
@@ -487,7 +488,7 @@ pub fn check_moves_off_contour(run: &LeadRun, one: &OneCut) -> Option<Point> {
 
 /// The pierce point of cut-through kinds: one kerf plus the crater from every edge.
 pub fn check_pierce(run: &LeadRun, one: &OneCut, first_feed: Option<Point>) {
-    let Some(c) = run.x.profile.pierce_clearance() else {
+    let Some(c) = run.x.machine.defaults.pierce_clearance else {
         return;
     };
     let ctx = &one.ctx;

@@ -4,7 +4,7 @@
 #![allow(dead_code)]
 
 use conicut::post::{MachineProfile, ProgramSettings};
-use conicut::settings::BUNDLED_PROFILES;
+use conicut::settings::{BUNDLED_PROFILES, Machine};
 
 /// The file name and text of the bundled profile `machine-profiles/{stem}.toml`.
 pub fn profile_text(stem: &str) -> (&'static str, &'static str) {
@@ -20,6 +20,12 @@ pub fn profile_text(stem: &str) -> (&'static str, &'static str) {
 pub fn profile(stem: &str) -> MachineProfile {
     let (file, text) = profile_text(stem);
     MachineProfile::from_toml(text, file).expect("the bundled profile loads")
+}
+
+/// The bundled machine `machine-profiles/{stem}.toml`: its profile and its planner defaults.
+pub fn machine(stem: &str) -> Machine {
+    let (file, text) = profile_text(stem);
+    Machine::from_toml(text, file).expect("the bundled profile loads")
 }
 
 /// Program settings titled `title` from drawing `source`: a tool (or kerf) of `tool_diameter` mm,

@@ -41,6 +41,7 @@
 mod checks;
 mod raw;
 
+use crate::plan::LeadOptions;
 use crate::post::{Cutter, MachineProfile};
 use crate::settings::toml_text::{key_on_line, line_of_offset, qualify_key, table_of_line};
 use checks::{
@@ -75,7 +76,27 @@ pub const BUNDLED_PROFILES: [(&str, &str); 5] = [
     ),
 ];
 
-impl MachineProfile {
+/// A machine profile as read: the words and limits the post stage writes with, and the defaults
+/// the resolver gives the planner when the job does not say.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Machine {
+    pub profile: MachineProfile,
+    pub defaults: MachineDefaults,
+}
+
+/// The profile's defaults for the planner, in **millimetres** (converted from the profile's
+/// units); the resolver is their only reader.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct MachineDefaults {
+    /// The lead-in, overcut and lead-out used when neither the command line nor the job file
+    /// gives one.
+    pub leads: LeadOptions,
+    /// Laser, plasma and waterjet: the pierce point's least distance from every finished edge
+    /// (0 when the profile gives none); `None` for mills and routers.
+    pub pierce_clearance: Option<f64>,
+}
+
+impl Machine {
     /// Reads and checks a profile. `file_name` is used only in messages.
     ///
     /// Errors name the file, the line and the key, say what is wrong and what to do.
@@ -93,18 +114,9 @@ impl MachineProfile {
         check_travel(&raw, &c)?;
         let cutter = check_cutter(&raw, &c)?;
         let leads = check_leads(&raw, &c)?;
-        let pierce_clearance = match cutter {
-            Cutter::Process(_) => Some(raw.units.to_mm(c.not_negative(
-                "pierce_clearance",
-                raw.pierce_clearance.unwrap_or(0.0),
-                "give the pierce point's least distance from the finished edge: one kerf plus \
-                 the pierce crater, or 0",
-            )?)),
-            Cutter::Spindle(_) => None,
-        };
+        let pierce_clearance = check_pierce_clearance(&raw, &c, &cutter)?;
         check_blocks(&raw, &c)?;
-
-        Ok(MachineProfile {
+        let profile = MachineProfile {
             name: raw.name.trim().to_string(),
             kind: raw.kind,
             units: raw.units,
@@ -129,8 +141,13 @@ impl MachineProfile {
             acceleration: raw.acceleration,
             safe_height: raw.safe_height,
             travel: raw.travel,
-            leads,
-            pierce_clearance,
+        };
+        Ok(Machine {
+            profile,
+            defaults: MachineDefaults {
+                leads,
+                pierce_clearance,
+            },
         })
     }
 
@@ -140,10 +157,40 @@ impl MachineProfile {
     }
 }
 
+impl MachineProfile {
+    /// Reads and checks a profile ([`Machine::from_toml`]) and keeps what the post stage uses.
+    pub fn from_toml(text: &str, file_name: &str) -> Result<Self, ProfileError> {
+        Machine::from_toml(text, file_name).map(|m| m.profile)
+    }
+
+    /// The generic metric mill's words and limits ([`Machine::metric_mill`]).
+    pub fn metric_mill() -> Result<Self, ProfileError> {
+        Machine::metric_mill().map(|m| m.profile)
+    }
+}
+
+/// Cut-through kinds: the pierce point's least distance from the finished edges in mm
+/// (default 0); `None` for a spindle.
+fn check_pierce_clearance(
+    raw: &RawProfile,
+    c: &Checker,
+    cutter: &Cutter,
+) -> Result<Option<f64>, ProfileError> {
+    Ok(match cutter {
+        Cutter::Process(_) => Some(raw.units.to_mm(c.not_negative(
+            "pierce_clearance",
+            raw.pierce_clearance.unwrap_or(0.0),
+            "give the pierce point's least distance from the finished edge: one kerf plus the \
+             pierce crater, or 0",
+        )?)),
+        Cutter::Spindle(_) => None,
+    })
+}
+
 /// What is wrong with a profile, and where.
 #[derive(Debug, Clone, PartialEq)]
 pub struct ProfileError {
-    /// The file name given to [`MachineProfile::from_toml`].
+    /// The file name given to [`Machine::from_toml`].
     pub file: String,
     /// 1-based line of the problem, when known.
     pub line: Option<usize>,
