@@ -34,9 +34,7 @@
 //! spacing, and only where a move runs along an edge.
 
 use crate::check::{self, Trace, TraceMove};
-use crate::geom::Edge;
-use crate::geom::Move;
-use crate::geom::Point;
+use crate::geom::{Bounds, BoxGrid, Edge, Move, Point};
 use crate::plan::{CutSide, FeatureKind, GOUGE_MARGIN, PlannedCut};
 
 /// Spacing (mm) of the points checked along each move; at most [`MAX_SAMPLES`] per move.
@@ -86,7 +84,8 @@ pub fn check_scrap(
     rules: &ScrapRules,
 ) -> Result<(), ScrapViolation> {
     let limit = rules.tool_radius * (1.0 - GOUGE_MARGIN) - rules.tolerance;
-    let reach: Vec<Reach> = cuts.iter().map(|c| Reach::of(c.edge())).collect();
+    let edges = Edges::of(cuts);
+    let mut near = Vec::new();
     for (own, cut) in cuts.iter().enumerate() {
         // Found by its number K in the writer's index comment `(cut K of N: NAME)`.
         let number = own + 1;
@@ -116,7 +115,8 @@ pub fn check_scrap(
                 pierce_seen = true;
                 if let Some(c) = rules.pierce_clearance {
                     let p = Point::new(m.from[0], m.from[1]);
-                    for other in cuts {
+                    edges.grid.near(p, c - rules.rounding, &mut near);
+                    for other in near.iter().map(|&k| &cuts[k]) {
                         let d = other.edge().distance_to(p);
                         if d < c - rules.rounding {
                             return Err(fail(
@@ -135,7 +135,7 @@ pub fn check_scrap(
                 if rules.skip_above_stock && z > 0.0 {
                     continue;
                 }
-                if let Some(problem) = point_problem(p, own, cuts, &reach, limit, rules) {
+                if let Some(problem) = point_problem(p, own, &edges, &mut near, limit, rules) {
                     return Err(fail(p, problem));
                 }
             }
@@ -144,18 +144,52 @@ pub fn check_scrap(
     Ok(())
 }
 
-/// What is wrong with the tool centre at `p` in the cut `own`, if anything.
+/// The finished edges of every cut, on a grid (see [`BoxGrid`]) so that a point is measured
+/// only against the edges that may be near it.
+struct Edges<'a> {
+    cuts: &'a [PlannedCut],
+    grid: BoxGrid,
+}
+
+impl<'a> Edges<'a> {
+    fn of(cuts: &'a [PlannedCut]) -> Self {
+        let boxes = cuts
+            .iter()
+            .map(|c| c.edge().bounding_box().unwrap_or(UNKNOWN_BOX))
+            .collect();
+        Edges {
+            cuts,
+            grid: BoxGrid::new(boxes),
+        }
+    }
+}
+
+/// A box that is not finite: the grid names such an item in every query.
+const UNKNOWN_BOX: Bounds = Bounds {
+    min: Point::new(f64::NAN, f64::NAN),
+    max: Point::new(f64::NAN, f64::NAN),
+};
+
+/// What is wrong with the tool centre at `p` in the cut `own`, if anything. Other cuts are
+/// measured only when the grid says their edge's box is within `limit` of `p` (a box holds its
+/// edge and, for a boss, everything inside it, so the cuts left out are clear).
 fn point_problem(
     p: Point,
     own: usize,
-    cuts: &[PlannedCut],
-    reach: &[Reach],
+    edges: &Edges,
+    near: &mut Vec<usize>,
     limit: f64,
     rules: &ScrapRules,
 ) -> Option<String> {
     let r = rules.tool_radius;
     let tol = rules.tolerance;
-    for (k, c) in cuts.iter().enumerate() {
+    let cuts = edges.cuts;
+    edges.grid.near(p, limit, near);
+    if near.binary_search(&own).is_err() {
+        near.push(own);
+    }
+    for &k in near.iter() {
+        let c = &cuts[k];
         if k == own {
             let scrap_side = match c.side() {
                 CutSide::Inside => Edge::contains(c.edge(), p),
@@ -169,8 +203,6 @@ fn point_problem(
                 "the tool centre is inside the boss \"{}\"",
                 c.name()
             ));
-        } else if reach.get(k).is_some_and(|r| r.lower_bound(p) >= limit) {
-            continue;
         }
         let d = c.edge().distance_to(p);
         if d < limit {
@@ -182,38 +214,6 @@ fn point_problem(
         }
     }
     None
-}
-
-/// A cheap region holding an edge, to skip far edges: an ellipse lies within its semi-major axis
-/// of its centre, a contour within its bounds.
-enum Reach {
-    Disc(Point, f64),
-    Box(Point, Point),
-    Unknown,
-}
-
-impl Reach {
-    fn of(edge: &Edge) -> Reach {
-        match edge {
-            Edge::Ellipse(e) => Reach::Disc(e.centre(), e.a()),
-            Edge::Contour(c) => c
-                .bounds()
-                .map_or(Reach::Unknown, |(lo, hi)| Reach::Box(lo, hi)),
-        }
-    }
-
-    /// A lower bound of the distance from `p` to the edge.
-    fn lower_bound(&self, p: Point) -> f64 {
-        match *self {
-            Reach::Disc(c, a) => (p.distance(c) - a).max(0.0),
-            Reach::Box(lo, hi) => {
-                let dx = (lo.x - p.x).max(p.x - hi.x).max(0.0);
-                let dy = (lo.y - p.y).max(p.y - hi.y).max(0.0);
-                dx.hypot(dy)
-            }
-            Reach::Unknown => 0.0,
-        }
-    }
 }
 
 /// The comment move `i` follows: the last mark at or before it.

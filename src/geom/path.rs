@@ -1,6 +1,6 @@
 //! Exact tool-centre paths and the finished edges they make.
 
-use super::{Contour, Ellipse, Point};
+use super::{Bounds, Contour, Ellipse, Point};
 use serde::Serialize;
 
 /// The finished edge a cut makes: what leads, pierces and clearing moves must keep away from.
@@ -16,6 +16,15 @@ impl Edge {
         match self {
             Edge::Ellipse(e) => e.distance_to(p).0,
             Edge::Contour(c) => c.distance_to(p),
+        }
+    }
+
+    /// The axis-aligned box holding the edge and everything inside it; `None` for an empty
+    /// contour.
+    pub fn bounding_box(&self) -> Option<Bounds> {
+        match self {
+            Edge::Ellipse(e) => Some(e.bounding_box()),
+            Edge::Contour(c) => c.bounding_box(),
         }
     }
 

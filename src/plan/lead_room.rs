@@ -3,53 +3,27 @@
 
 use super::leads::{MAX_SAMPLES, SAMPLE_SPACING};
 use super::{CutSide, FeatureKind, GOUGE_MARGIN, PlannedCut};
-use crate::geom::{Bounds, Edge, Element, Point};
+use crate::geom::{Bounds, BoxGrid, Edge, Element, Point};
 
 /// What a lead must keep away from: one cut's finished edge.
 pub(super) struct Obstacle {
     edge: Edge,
     side: CutSide,
     boss: bool,
-    /// A cheap region holding the edge, for skipping far edges: a disc (centre, radius) or a
-    /// box (min, max).
-    reach: Reach,
-}
-
-pub(super) enum Reach {
-    Disc(Point, f64),
-    Box(Bounds),
-    Unknown,
 }
 
 impl Obstacle {
     pub(super) fn of(cut: &PlannedCut) -> Obstacle {
-        let reach = match &cut.edge {
-            Edge::Ellipse(e) => Reach::Disc(e.centre(), e.a()),
-            Edge::Contour(c) => match c.bounding_box() {
-                Some(b) => Reach::Box(b),
-                None => Reach::Unknown,
-            },
-        };
         Obstacle {
             edge: cut.edge.clone(),
             side: cut.side,
             boss: cut.kind == FeatureKind::Boss,
-            reach,
-        }
-    }
-
-    /// A lower bound of the distance from `p` to the edge (0 when unknown).
-    pub(super) fn lower_bound(&self, p: Point) -> f64 {
-        match self.reach {
-            Reach::Disc(c, a) => (p.distance(c) - a).max(0.0),
-            Reach::Box(b) => b.distance_to(p),
-            Reach::Unknown => 0.0,
         }
     }
 
     /// Whether `p` is at least `limit` from the edge.
     pub(super) fn clear_by(&self, p: Point, limit: f64) -> bool {
-        self.lower_bound(p) >= limit || self.edge.distance_to(p) >= limit
+        self.edge.distance_to(p) >= limit
     }
 
     /// Whether `p` lies on this cut's scrap side of its edge.
@@ -61,10 +35,37 @@ impl Obstacle {
     }
 }
 
+/// Every cut's finished edge, and a grid over their boxes (each holds its edge and, for a boss,
+/// all inside it), so that a point is measured only against the edges that may be near it.
+pub(super) struct Obstacles {
+    list: Vec<Obstacle>,
+    grid: BoxGrid,
+}
+
+impl Obstacles {
+    pub(super) fn of(cuts: &[PlannedCut]) -> Obstacles {
+        let list: Vec<Obstacle> = cuts.iter().map(Obstacle::of).collect();
+        let boxes = list
+            .iter()
+            .map(|o| o.edge.bounding_box().unwrap_or(UNKNOWN_BOX))
+            .collect();
+        Obstacles {
+            list,
+            grid: BoxGrid::new(boxes),
+        }
+    }
+}
+
+/// A box that is not finite: the grid names such an item in every query.
+const UNKNOWN_BOX: Bounds = Bounds {
+    min: Point::new(f64::NAN, f64::NAN),
+    max: Point::new(f64::NAN, f64::NAN),
+};
+
 /// The rules for the leads of one cut (module docs).
 pub(super) struct Room<'a> {
     pub(super) r: f64,
-    pub(super) obstacles: &'a [Obstacle],
+    pub(super) obstacles: &'a Obstacles,
     pub(super) own: usize,
     /// Distance kept from the own edge on top of the tool radius (a roughing cut's allowance).
     pub(super) own_extra: f64,
@@ -78,23 +79,32 @@ impl Room<'_> {
         self.r * (1.0 - GOUGE_MARGIN)
     }
 
+    fn own(&self) -> Option<&Obstacle> {
+        self.obstacles.list.get(self.own)
+    }
+
+    /// On the own cut's scrap side and clear of its edge, outside every boss, and clear of every
+    /// other edge by the limit.
     pub(super) fn point_ok(&self, p: Point) -> bool {
         let limit = self.limit();
-        self.obstacles.iter().enumerate().all(|(k, o)| {
-            if k == self.own {
-                o.on_scrap_side(p) && o.clear_by(p, limit + self.own_extra)
-            } else {
-                !(o.boss && Edge::contains(&o.edge, p)) && o.clear_by(p, limit)
-            }
-        })
+        let own_ok = self
+            .own()
+            .is_none_or(|o| o.on_scrap_side(p) && o.clear_by(p, limit + self.own_extra));
+        own_ok
+            && self.obstacles.grid.all_near(p, limit, |k| {
+                let o = &self.obstacles.list[k];
+                k == self.own || (!(o.boss && Edge::contains(&o.edge, p)) && o.clear_by(p, limit))
+            })
     }
 
     /// The point rules, and the pierce clearance from every edge on cut-through machines.
     pub(super) fn pierce_ok(&self, p: Point) -> bool {
         self.point_ok(p)
-            && self
-                .pierce_clearance
-                .is_none_or(|c| self.obstacles.iter().all(|o| o.clear_by(p, c)))
+            && self.pierce_clearance.is_none_or(|c| {
+                self.obstacles
+                    .grid
+                    .all_near(p, c, |k| self.obstacles.list[k].clear_by(p, c))
+            })
     }
 
     pub(super) fn elements_ok(&self, elements: &[Element]) -> bool {
@@ -105,29 +115,29 @@ impl Room<'_> {
 
     /// The distance from `p` to the nearest finished edge, any cut's.
     pub(super) fn nearest_edge(&self, p: Point) -> f64 {
+        let list = &self.obstacles.list;
         self.obstacles
-            .iter()
-            .map(|o| o.edge.distance_to(p))
-            .fold(f64::INFINITY, f64::min)
+            .grid
+            .nearest(p, |k| list[k].edge.distance_to(p))
     }
 
     /// Room for a helical entry about `p` (see [`PlannedCut::entry_room`]), from every edge.
     pub(super) fn entry_room(&self, p: Point) -> f64 {
-        let Some(own) = self.obstacles.get(self.own) else {
+        let Some(own) = self.own() else {
             return 0.0;
         };
         if !own.on_scrap_side(p) {
             return 0.0;
         }
-        let nearest = self
-            .obstacles
-            .iter()
-            .enumerate()
-            .map(|(k, o)| {
-                let extra = if k == self.own { self.own_extra } else { 0.0 };
-                o.edge.distance_to(p) - extra
-            })
-            .fold(f64::INFINITY, f64::min);
+        let list = &self.obstacles.list;
+        let others = self.obstacles.grid.nearest(p, |k| {
+            if k == self.own {
+                f64::INFINITY
+            } else {
+                list[k].edge.distance_to(p)
+            }
+        });
+        let nearest = others.min(own.edge.distance_to(p) - self.own_extra);
         (nearest - self.r).max(0.0)
     }
 

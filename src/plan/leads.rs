@@ -77,7 +77,7 @@
 //! finished edge, any cut's, less the tool radius (and a roughing cut's allowance from its own
 //! edge), zero unless the point is on the cut's scrap side.
 
-use super::lead_room::{Obstacle, Room};
+use super::lead_room::{Obstacles, Room};
 use super::lead_shape::{frame_at, lead_in_shape, lead_out_shape, path_length};
 use super::{CutSide, LeadKind, LeadOptions, PlanError, PlanOptions, PlannedCut};
 use crate::geom::{Element, ExactPath, Point, Segment};
@@ -126,7 +126,7 @@ pub fn add_leads(
         ));
         leads.radius = radius;
     }
-    let obstacles: Vec<Obstacle> = cuts.iter().map(Obstacle::of).collect();
+    let obstacles = Obstacles::of(cuts);
     for (i, cut) in cuts.iter_mut().enumerate() {
         let room = Room {
             r,
