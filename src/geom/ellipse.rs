@@ -218,8 +218,10 @@ fn nearest_first_quadrant(a: f64, b: f64, x0: f64, y0: f64) -> (f64, f64) {
                 let q = b * y0 / u;
                 p * p + q * q - 1.0
             };
-            let mut lo = b * y0;
+            // Each term is at most 1 at the root, so u ≥ b y0 and u + a² − b² ≥ a x0.
+            let mut lo = (b * y0).max(a * x0 - gap);
             let mut hi = (a * x0).hypot(b * y0);
+            newton_from_below(&f, gap, a * x0, b * y0, &mut lo, &mut hi);
             for _ in 0..200 {
                 let mid = 0.5 * (lo + hi);
                 if mid == lo || mid == hi {
@@ -248,6 +250,40 @@ fn nearest_first_quadrant(a: f64, b: f64, x0: f64, y0: f64) -> (f64, f64) {
         } else {
             (a, 0.0)
         }
+    }
+}
+
+/// Narrows `[lo, hi]` round the root of Eberly's `F(u) = (c/(u + gap))² + (e/u)² − 1` by
+/// Newton steps from `lo`, where `F ≥ 0`. `F` is convex and decreasing on `u > 0`, so each
+/// tangent meets zero at or before the root: the steps rise monotonically to it, never past it,
+/// and converge quadratically once near (a point near the curve starts within a few ulps of
+/// `b²` of it). Stops when a step makes no progress or 64 steps have been taken; the bisection
+/// that follows then has a bracket of an ulp or two to close (or, in the rare slow case, the
+/// bracket Newton left).
+fn newton_from_below(f: &dyn Fn(f64) -> f64, gap: f64, c: f64, e: f64, lo: &mut f64, hi: &mut f64) {
+    let mut u = *lo;
+    if u.is_nan() || u <= 0.0 {
+        return;
+    }
+    for _ in 0..64 {
+        let fu = f(u);
+        if fu <= 0.0 {
+            *hi = hi.min(u);
+            return;
+        }
+        *lo = u;
+        let (p, q) = (c / (u + gap), e / u);
+        let slope = -2.0 * (p * p / (u + gap) + q * q / u);
+        let next = u - fu / slope;
+        if !(next > u && next < *hi) {
+            // Converged from below: close the bracket just above, if F agrees.
+            let above = u + 4.0 * f64::EPSILON * u;
+            if above < *hi && f(above) <= 0.0 {
+                *hi = above;
+            }
+            return;
+        }
+        u = next;
     }
 }
 
@@ -367,5 +403,45 @@ mod tests {
             // Samples 2π/20000 apart miss an extreme by at most a·(Δt)²/2 ≈ 2.5e-6 mm.
             assert!((exact - seen).abs() < 3e-6, "{exact} vs {seen}");
         }
+    }
+
+    #[test]
+    fn newton_start_agrees_with_plain_bisection() {
+        // The Newton steps only narrow the bracket: the answer must be the one plain bisection
+        // of Eberly's F(u) gives (the method before the steps were added), to rounding.
+        let bisect = |a: f64, b: f64, x0: f64, y0: f64| {
+            let gap = a * a - b * b;
+            let f = |u: f64| (a * x0 / (u + gap)).powi(2) + (b * y0 / u).powi(2) - 1.0;
+            let (mut lo, mut hi) = (b * y0, (a * x0).hypot(b * y0));
+            for _ in 0..200 {
+                let mid = 0.5 * (lo + hi);
+                if mid == lo || mid == hi {
+                    break;
+                }
+                if f(mid) > 0.0 { lo = mid } else { hi = mid }
+            }
+            let u = 0.5 * (lo + hi);
+            (a * a * x0 / (u + gap), (b * b * y0 / u).min(b))
+        };
+        let mut worst: f64 = 0.0;
+        for (a, b) in [(50.0, 20.0), (50.0, 49.0), (100.0, 10.0), (30.0, 3.0)] {
+            for i in 1..60 {
+                for j in 1..60 {
+                    let (x0, y0) = (1.6 * a * i as f64 / 60.0, 1.6 * b * j as f64 / 60.0);
+                    let (xs, ys) = nearest_first_quadrant(a, b, x0, y0);
+                    let (xr, yr) = bisect(a, b, x0, y0);
+                    worst = worst.max((xs - xr).hypot(ys - yr) / a);
+                }
+            }
+            // Points a hair off the curve, where the cut's samples lie.
+            for k in 1..200 {
+                let t = FRAC_PI_2 * k as f64 / 200.0;
+                let (x0, y0) = (a * t.cos() * 0.999, b * t.sin() * 0.999);
+                let (xs, ys) = nearest_first_quadrant(a, b, x0, y0);
+                let (xr, yr) = bisect(a, b, x0, y0);
+                worst = worst.max((xs - xr).hypot(ys - yr) / a);
+            }
+        }
+        assert!(worst < 1e-13, "relative disagreement {worst:e}");
     }
 }
