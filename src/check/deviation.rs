@@ -36,7 +36,7 @@
 //! radius; the written radius mismatch (reported separately, at most 0.002 mm by the writer's
 //! rule) changes a projection by a second-order amount only.
 
-use crate::geom::{Contour, Element, Ellipse, ExactPath, Move, Point};
+use crate::geom::{Bounds, BoxGrid, Contour, Element, Ellipse, ExactPath, Move, Point};
 use serde::Serialize;
 use std::f64::consts::{FRAC_PI_2, TAU};
 
@@ -164,11 +164,100 @@ impl<'a> Target<'a> {
     }
 }
 
-/// The written moves with their start points and bounding boxes.
+/// The written moves with their start points, arcs' radii and angles worked out once, and a
+/// grid over their bounding boxes (so that the nearest move is found among the few near).
 struct Written<'a> {
     moves: &'a [Move],
-    from: Vec<Point>,
-    boxes: Vec<(Point, Point)>,
+    shapes: Vec<Shape>,
+    grid: BoxGrid,
+}
+
+/// A written move as the controller runs it: a line, or an arc about `centre` from angle `a0`
+/// through `sweep` (signed) with the radius going linearly from `r0` to `r1`.
+#[derive(Clone, Copy)]
+enum Shape {
+    Line {
+        from: Point,
+        to: Point,
+    },
+    Arc {
+        centre: Point,
+        r0: f64,
+        r1: f64,
+        a0: f64,
+        sweep: f64,
+    },
+}
+
+impl Shape {
+    fn of(from: Point, m: &Move) -> Shape {
+        match *m {
+            Move::Line { to } => Shape::Line { from, to },
+            Move::Arc { to, centre, .. } => Shape::Arc {
+                centre,
+                r0: from.distance(centre),
+                r1: to.distance(centre),
+                a0: (from - centre).angle(),
+                sweep: m.sweep(from),
+            },
+        }
+    }
+
+    /// The point at share `u` of the move.
+    fn point_at(&self, u: f64) -> Point {
+        match *self {
+            Shape::Line { from, to } => from.lerp(to, u),
+            Shape::Arc {
+                centre,
+                r0,
+                r1,
+                a0,
+                sweep,
+            } => {
+                let (s, c) = (a0 + u * sweep).sin_cos();
+                let r = r0 + u * (r1 - r0);
+                Point::new(centre.x + r * c, centre.y + r * s)
+            }
+        }
+    }
+
+    fn length(&self) -> f64 {
+        match *self {
+            Shape::Line { from, to } => from.distance(to),
+            Shape::Arc { r0, sweep, .. } => r0 * sweep.abs(),
+        }
+    }
+
+    /// The exact distance from `p` to the move.
+    fn distance(&self, p: Point) -> f64 {
+        match *self {
+            Shape::Line { from, to } => {
+                let v = to - from;
+                let len2 = v.length_squared();
+                let t = if len2 > 0.0 {
+                    ((p - from).dot(v) / len2).clamp(0.0, 1.0)
+                } else {
+                    0.0
+                };
+                p.distance(from.lerp(to, t))
+            }
+            Shape::Arc {
+                centre, a0, sweep, ..
+            } => {
+                let rel = if sweep >= 0.0 {
+                    ((p - centre).angle() - a0).rem_euclid(TAU)
+                } else {
+                    (a0 - (p - centre).angle()).rem_euclid(TAU)
+                };
+                if p != centre && rel <= sweep.abs() {
+                    p.distance(self.point_at(rel / sweep.abs()))
+                } else {
+                    p.distance(self.point_at(0.0))
+                        .min(p.distance(self.point_at(1.0)))
+                }
+            }
+        }
+    }
 }
 
 impl<'a> Written<'a> {
@@ -179,62 +268,50 @@ impl<'a> Written<'a> {
             from.push(at);
             at = m.end();
         }
+        let shapes = moves
+            .iter()
+            .zip(&from)
+            .map(|(m, &f)| Shape::of(f, m))
+            .collect();
         let boxes = moves
             .iter()
             .zip(&from)
-            .map(|(m, &f)| box_of(f, m))
+            .map(|(m, &f)| {
+                let (min, max) = box_of(f, m);
+                Bounds { min, max }
+            })
             .collect();
-        Written { moves, from, boxes }
+        Written {
+            moves,
+            shapes,
+            grid: BoxGrid::new(boxes),
+        }
     }
 
     fn length(&self, i: usize) -> f64 {
-        self.moves[i].length(self.from[i])
+        self.shapes[i].length()
     }
 
     /// The exact distance from `p` to move `i`.
     fn distance(&self, i: usize, p: Point) -> f64 {
-        let from = self.from[i];
-        match self.moves[i] {
-            Move::Line { to } => {
-                let v = to - from;
-                let len2 = v.length_squared();
-                let t = if len2 > 0.0 {
-                    ((p - from).dot(v) / len2).clamp(0.0, 1.0)
-                } else {
-                    0.0
-                };
-                p.distance(from.lerp(to, t))
-            }
-            m @ Move::Arc { to, centre, .. } => {
-                let sweep = m.sweep(from);
-                let a0 = (from - centre).angle();
-                let rel = if sweep >= 0.0 {
-                    ((p - centre).angle() - a0).rem_euclid(TAU)
-                } else {
-                    (a0 - (p - centre).angle()).rem_euclid(TAU)
-                };
-                if p != centre && rel <= sweep.abs() {
-                    p.distance(m.point_at(from, rel / sweep.abs()))
-                } else {
-                    p.distance(from).min(p.distance(to))
-                }
-            }
-        }
+        self.shapes[i].distance(p)
     }
 
-    /// The nearest move to `p` and its distance, starting from move `hint`.
+    /// The nearest move to `p` and its distance: move `hint`, unless one whose box lies nearer
+    /// than it is nearer still (the grid names every such move).
     fn nearest(&self, p: Point, hint: usize) -> (f64, usize) {
         let mut best = (self.distance(hint, p), hint);
-        for (i, (lo, hi)) in self.boxes.iter().enumerate() {
-            let dx = (lo.x - p.x).max(p.x - hi.x).max(0.0);
-            let dy = (lo.y - p.y).max(p.y - hi.y).max(0.0);
-            if dx.hypot(dy) < best.0 {
+        let reach = best.0;
+        self.grid.all_near(p, reach, |i| {
+            if i != best.1 {
                 let d = self.distance(i, p);
-                if d < best.0 {
+                // Ties: the hint, else the first move (as a scan in order would find).
+                if d < best.0 || (d == best.0 && best.1 != hint && i < best.1) {
                     best = (d, i);
                 }
             }
-        }
+            true
+        });
         best
     }
 }
@@ -306,7 +383,7 @@ fn samples_on(m: &Move) -> usize {
 }
 
 fn point_on(written: &Written, i: usize, u: f64) -> Point {
-    written.moves[i].point_at(written.from[i], u)
+    written.shapes[i].point_at(u)
 }
 
 /// The largest distance from a point of `exact` to the written moves, and the move nearest to

@@ -1,12 +1,12 @@
 //! Measuring how far emitted moves stray from the exact curve they stand for.
 
 use crate::geom::Element;
+use crate::geom::Ellipse;
 use crate::geom::ExactPath;
 use crate::geom::Move;
 use crate::geom::search::golden_min;
 use crate::geom::{ArcSegment, Point, Segment};
 use serde::Serialize;
-use crate::geom::Ellipse;
 use std::f64::consts::{FRAC_PI_2, TAU};
 
 /// Samples taken along every emitted line (and along the exact curve per line).

@@ -198,7 +198,7 @@ impl Ellipse {
         let x = xs.copysign(if q.x == 0.0 { 1.0 } else { q.x });
         let y = ys.copysign(if q.y == 0.0 { 1.0 } else { q.y });
         let t = (y / b).atan2(x / a);
-        let d = (x0 - xs).hypot(y0 - ys);
+        let d = Vec2::new(x0 - xs, y0 - ys).length();
         (d, t)
     }
 }
@@ -220,7 +220,7 @@ fn nearest_first_quadrant(a: f64, b: f64, x0: f64, y0: f64) -> (f64, f64) {
             };
             // Each term is at most 1 at the root, so u ≥ b y0 and u + a² − b² ≥ a x0.
             let mut lo = (b * y0).max(a * x0 - gap);
-            let mut hi = (a * x0).hypot(b * y0);
+            let mut hi = Vec2::new(a * x0, b * y0).length();
             newton_from_below(&f, gap, a * x0, b * y0, &mut lo, &mut hi);
             for _ in 0..200 {
                 let mid = 0.5 * (lo + hi);

@@ -71,8 +71,11 @@ impl Vec2 {
         self.x * other.y - self.y * other.x
     }
 
+    /// `√(x² + y²)`, by the plain square root: lengths in mm are nowhere near where `x²`
+    /// would overflow (about 1e154), so this is as exact as `hypot` to about an ulp, and several
+    /// times faster (it is the innermost step of every distance).
     pub fn length(self) -> f64 {
-        self.x.hypot(self.y)
+        self.dot(self).sqrt()
     }
 
     pub fn length_squared(self) -> f64 {
