@@ -350,3 +350,47 @@ fn negative_max_gap_is_refused() {
     };
     assert_eq!(build_part(&d, &opts), Err(ChainError::BadMaxGap(-1.0)));
 }
+
+#[test]
+fn among_many_holes_the_one_crossing_pair_and_the_one_nested_pair_are_found() {
+    // 30 × 30 squares of loose lines in a 700 × 700 plate: the grid that narrows the pair
+    // checks must still find the two that overlap, wherever they are in the list.
+    let big = [(0.0, 0.0), (700.0, 0.0), (700.0, 700.0), (0.0, 700.0)];
+    let square = |x: f64, y: f64, s: f64| [(x, y), (x + s, y), (x + s, y + s), (x, y + s)];
+    let grid = |d: &mut D| {
+        d.lines("CUT", &big, true);
+        for i in 0..30 {
+            for j in 0..30 {
+                d.lines(
+                    "CUT",
+                    &square(10.0 + 22.0 * i as f64, 10.0 + 22.0 * j as f64, 8.0),
+                    true,
+                );
+            }
+        }
+    };
+    let mut d = D::new();
+    grid(&mut d);
+    let part = d.build().expect("900 squares apart are holes");
+    assert_eq!(part.holes.len(), 900);
+    // One more square overlapping the last one's corner: a crossing.
+    let mut d = D::new();
+    grid(&mut d);
+    d.lines(
+        "CUT",
+        &square(10.0 + 22.0 * 29.0 + 5.0, 10.0 + 22.0 * 29.0 + 5.0, 8.0),
+        true,
+    );
+    let e = d.build().unwrap_err();
+    assert!(matches!(e, ChainError::Crossing { .. }), "{e}");
+    // One inside a square in the middle: a hole inside a hole.
+    let mut d = D::new();
+    grid(&mut d);
+    d.lines(
+        "CUT",
+        &square(10.0 + 22.0 * 14.0 + 2.0, 10.0 + 22.0 * 14.0 + 2.0, 4.0),
+        true,
+    );
+    let e = d.build().unwrap_err();
+    assert!(matches!(e, ChainError::Nested { .. }), "{e}");
+}

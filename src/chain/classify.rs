@@ -4,7 +4,7 @@
 use super::crossing::{flatten_contour, flatten_ellipse, polygons_cross};
 use super::error::{ChainError, fmt_handles};
 use super::{InnerBoundary, InnerShape};
-use crate::geom::{Contour, Element, bounds_of};
+use crate::geom::{Bounds, BoxGrid, Contour, Element, bounds_of};
 use crate::geom::{Ellipse, Point};
 
 /// A closed cut shape, with what the classification needs.
@@ -83,6 +83,13 @@ impl Shape {
         }
     }
 
+    fn bounds(&self) -> Bounds {
+        Bounds {
+            min: self.low,
+            max: self.high,
+        }
+    }
+
     fn boxes_overlap(&self, other: &Shape) -> bool {
         self.low.x <= other.high.x
             && other.low.x <= self.high.x
@@ -109,11 +116,20 @@ pub(super) fn classify(mut shapes: Vec<Shape>) -> Result<Classified, ChainError>
     Ok((outline, name_holes(shapes), warnings))
 }
 
-/// Crossings first: without them, each pair is either nested or apart.
+/// The shapes' boxes on a grid, so that each shape meets only the shapes whose boxes overlap
+/// its own.
+fn grid_of(shapes: &[Shape]) -> BoxGrid {
+    BoxGrid::new(shapes.iter().map(Shape::bounds).collect())
+}
+
+/// Crossings first: without them, each pair is either nested or apart. Pairs are taken in
+/// order (the first shape, then the second), as a scan of every pair would meet them.
 fn refuse_crossings(shapes: &[Shape]) -> Result<(), ChainError> {
-    let n = shapes.len();
-    for i in 0..n {
-        for j in i + 1..n {
+    let grid = grid_of(shapes);
+    let mut near = Vec::new();
+    for i in 0..shapes.len() {
+        grid.overlapping(&shapes[i].bounds(), &mut near);
+        for &j in near.iter().filter(|&&j| j > i) {
             if shapes[i].boxes_overlap(&shapes[j])
                 && let Some(at) = polygons_cross(&shapes[i].polygon, &shapes[j].polygon)
             {
@@ -131,9 +147,12 @@ fn refuse_crossings(shapes: &[Shape]) -> Result<(), ChainError> {
 /// `parents[i]`: the shapes shape i lies inside.
 fn parents_of(shapes: &[Shape]) -> Vec<Vec<usize>> {
     let n = shapes.len();
+    let grid = grid_of(shapes);
+    let mut near = Vec::new();
     let mut parents: Vec<Vec<usize>> = vec![Vec::new(); n];
     for i in 0..n {
-        for j in 0..n {
+        grid.overlapping(&shapes[i].bounds(), &mut near);
+        for &j in &near {
             if i != j
                 && shapes[j].area > shapes[i].area
                 && shapes[i].boxes_overlap(&shapes[j])

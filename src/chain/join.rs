@@ -194,15 +194,18 @@ fn group_ends(ends: &[Point], max_gap: f64) -> Vec<Vec<usize>> {
             }
         }
     }
-    let mut by_root: Vec<(usize, Vec<usize>)> = Vec::new();
+    // Groups in the order of their first end, found through a map from root to group.
+    let mut groups: Vec<Vec<usize>> = Vec::new();
+    let mut group_of_root: HashMap<usize, usize> = HashMap::new();
     for k in 0..ends.len() {
         let r = find(&mut parent, k);
-        match by_root.iter_mut().find(|(root, _)| *root == r) {
-            Some((_, g)) => g.push(k),
-            None => by_root.push((r, vec![k])),
-        }
+        let g = *group_of_root.entry(r).or_insert_with(|| {
+            groups.push(Vec::new());
+            groups.len() - 1
+        });
+        groups[g].push(k);
     }
-    by_root.into_iter().map(|(_, g)| g).collect()
+    groups
 }
 
 /// Makes each element of a closed loop start exactly where the one before it ends.

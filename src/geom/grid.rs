@@ -181,6 +181,30 @@ impl BoxGrid {
         out.dedup();
     }
 
+    /// Every item whose box meets `query` (touching counts), in increasing order of index; wide
+    /// items always. `out` is cleared first.
+    pub fn overlapping(&self, query: &Bounds, out: &mut Vec<usize>) {
+        out.clear();
+        if let Some(c) = self.cell_range(query) {
+            for j in c[2]..=c[3] {
+                let row = j * self.nx;
+                for &k in &self.items[self.starts[row + c[0]]..self.starts[row + c[1] + 1]] {
+                    let b = &self.boxes[k];
+                    if b.min.x <= query.max.x
+                        && query.min.x <= b.max.x
+                        && b.min.y <= query.max.y
+                        && query.min.y <= b.max.y
+                    {
+                        out.push(k);
+                    }
+                }
+            }
+        }
+        out.extend(self.wide.iter().copied());
+        out.sort_unstable();
+        out.dedup();
+    }
+
     /// Whether `ok(k)` holds for every item whose box lies within `radius` of `p` (and for every
     /// wide item); stops at the first that fails. Items spread over several cells may be asked
     /// more than once, and some items a little farther than `radius` may be asked too; items
@@ -321,6 +345,31 @@ mod tests {
                 out.iter()
                     .all(|&k| k == 2000 || boxes[k].distance_to(p) <= r)
             );
+        }
+    }
+
+    #[test]
+    fn overlapping_names_exactly_the_boxes_that_meet_the_query() {
+        let boxes = scatter();
+        let grid = BoxGrid::new(boxes.clone());
+        let meets = |a: &Bounds, b: &Bounds| {
+            a.min.x <= b.max.x && b.min.x <= a.max.x && a.min.y <= b.max.y && b.min.y <= a.max.y
+        };
+        let mut out = Vec::new();
+        for q in [
+            square(100.0, 100.0, 5.0),
+            square(-30.0, 590.0, 20.0),
+            square(5000.0, 0.0, 1.0),
+        ] {
+            grid.overlapping(&q, &mut out);
+            let brute: Vec<usize> = (0..boxes.len()).filter(|&k| meets(&boxes[k], &q)).collect();
+            let named: Vec<usize> = out
+                .iter()
+                .copied()
+                .filter(|&k| meets(&boxes[k], &q))
+                .collect();
+            assert_eq!(named, brute);
+            assert!(out.iter().all(|&k| k == 2000 || meets(&boxes[k], &q)));
         }
     }
 
