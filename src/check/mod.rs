@@ -389,15 +389,25 @@ fn range_at(trace: &Trace, idx: usize) -> std::ops::Range<usize> {
 /// The moves of cut number `number` (the K of `(cut K of N: NAME)`, 1-based), by index.
 /// `None` when the program holds no such cut.
 pub fn cut_range(trace: &Trace, number: usize) -> Option<std::ops::Range<usize>> {
-    let idx = trace.cut_numbers.iter().position(|&k| k == number)?;
+    // The writer numbers cuts 1, 2, … in order, so cut K is usually at K − 1; a program
+    // edited by hand is searched.
+    let idx = match number.checked_sub(1) {
+        Some(i) if trace.cut_numbers.get(i) == Some(&number) => i,
+        _ => trace.cut_numbers.iter().position(|&k| k == number)?,
+    };
     Some(range_at(trace, idx))
 }
 
 /// The indices of the moves in `range` that follow a comment `mark` (up to the next comment).
 fn marked_in(trace: &Trace, range: std::ops::Range<usize>, mark: &str) -> Vec<usize> {
     let mut out = Vec::new();
-    for (k, (text, at)) in trace.marks.iter().enumerate() {
-        if text != mark || !range.contains(at) {
+    // The marks are in program order: start at the first one inside the range.
+    let first = trace.marks.partition_point(|(_, at)| *at < range.start);
+    for (k, (text, at)) in trace.marks.iter().enumerate().skip(first) {
+        if *at >= range.end {
+            break;
+        }
+        if text != mark {
             continue;
         }
         let end = trace
@@ -412,8 +422,9 @@ fn marked_in(trace: &Trace, range: std::ops::Range<usize>, mark: &str) -> Vec<us
 
 /// The moves in `range` that are not its contour.
 fn off_contour_in(trace: &Trace, range: std::ops::Range<usize>) -> Vec<usize> {
+    // `marked_in` gives indices in increasing order.
     let contour = marked_in(trace, range.clone(), "contour");
-    range.filter(|i| !contour.contains(i)).collect()
+    range.filter(|i| contour.binary_search(i).is_err()).collect()
 }
 
 /// [`moves_off_contour`] of cut number `number` (1-based K of its cut comment).

@@ -191,18 +191,24 @@ fn tab_reports(c: &FittedCut, d: f64) -> Vec<TabReport> {
 
 /// Builds the report from the stages' results.
 pub fn build_report(input: ReportInput) -> Report {
+    // Each cut's solved feature and drawn ellipse, by name (the first of a name, as a scan
+    // would find).
+    let mut solved_by_name = std::collections::HashMap::new();
+    for o in input.solved {
+        solved_by_name.entry(o.name.as_str()).or_insert(o);
+    }
+    let mut holes_by_name = std::collections::HashMap::new();
+    for (n, e) in input.ellipse_holes {
+        holes_by_name.entry(n.as_str()).or_insert(e);
+    }
     let features = input
         .cuts
         .iter()
         .map(|c| {
-            let info = input.solved.iter().find(|o| o.name == c.name);
-            let ellipse = info.map(|o| summary(&o.ellipse)).or_else(|| {
-                input
-                    .ellipse_holes
-                    .iter()
-                    .find(|(n, _)| *n == c.name)
-                    .map(|(_, e)| summary(e))
-            });
+            let info = solved_by_name.get(c.name.as_str()).copied();
+            let ellipse = info
+                .map(|o| summary(&o.ellipse))
+                .or_else(|| holes_by_name.get(c.name.as_str()).map(|e| summary(e)));
             FeatureReport {
                 name: c.name.clone(),
                 kind: c.kind,
