@@ -424,7 +424,9 @@ fn marked_in(trace: &Trace, range: std::ops::Range<usize>, mark: &str) -> Vec<us
 fn off_contour_in(trace: &Trace, range: std::ops::Range<usize>) -> Vec<usize> {
     // `marked_in` gives indices in increasing order.
     let contour = marked_in(trace, range.clone(), "contour");
-    range.filter(|i| contour.binary_search(i).is_err()).collect()
+    range
+        .filter(|i| contour.binary_search(i).is_err())
+        .collect()
 }
 
 /// [`moves_off_contour`] of cut number `number` (1-based K of its cut comment).
