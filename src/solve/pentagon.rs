@@ -7,7 +7,7 @@
 //! to `D₃₃ = 1` gives back the centre `c = (D₁₃, D₂₃)` and `Σ = ccᵀ − D₂ₓ₂`; `D₃₃ = 0` is a
 //! parabola, a Σ that is not positive definite a hyperbola.
 
-use crate::geom::{Ellipse, Line, Point};
+use crate::geom::{Ellipse, Line, Point, Vec2};
 use nalgebra::{DMatrix, SVD};
 
 /// The ellipse touching the five side lines of the counter-clockwise convex pentagon
@@ -19,6 +19,37 @@ pub fn tangent_conic(corners: &[Point]) -> Result<Ellipse, String> {
             corners.len()
         ));
     }
+    // Solved about the corners' mean and in units of their size, so that a bay far from the
+    // drawing's origin loses no digits: `Σ = ccᵀ − D` cancels terms of the size of |c|² there.
+    let mean = corners
+        .iter()
+        .fold(Vec2::new(0.0, 0.0), |acc, p| acc + p.to_vec())
+        / 5.0;
+    let size = corners
+        .iter()
+        .map(|p| (p.to_vec() - mean).length())
+        .fold(0.0, f64::max);
+    if !(size > 0.0 && size.is_finite()) {
+        return Err("the corners coincide".into());
+    }
+    let local: Vec<Point> = corners
+        .iter()
+        .map(|p| Point::ORIGIN + (p.to_vec() - mean) / size)
+        .collect();
+    let e = tangent_conic_near_origin(&local)?;
+    let (sxx, sxy, syy) = e.shape_matrix();
+    let s2 = size * size;
+    Ellipse::from_shape_matrix(
+        Point::ORIGIN + (e.centre().to_vec() * size + mean),
+        sxx * s2,
+        sxy * s2,
+        syy * s2,
+    )
+    .map_err(|_| "the linear algebra failed".to_string())
+}
+
+/// [`tangent_conic`] for corners of size about 1 about the origin.
+fn tangent_conic_near_origin(corners: &[Point]) -> Result<Ellipse, String> {
     let mut rows = Vec::with_capacity(30);
     for i in 0..5 {
         let line = Line::through(corners[i], corners[(i + 1) % 5])
@@ -96,5 +127,35 @@ mod tests {
         let e = tangent_conic(&corners).unwrap();
         assert!((e.a() - 7.0).abs() < 1e-9 && (e.b() - 4.0).abs() < 1e-9);
         assert!((e.angle() - 0.4).abs() < 1e-9);
+    }
+
+    #[test]
+    fn a_pentagon_far_from_the_origin_loses_no_digits() {
+        // The same construction 3 m out on a sheet (and 2 km, for margin): solved about the
+        // corners' mean, the answer is as good as near the origin. Without the shift the
+        // cancellation in Σ = ccᵀ − D lost about |c|²/size² of relative precision.
+        for offset in [Vec2::new(3000.0, -1500.0), Vec2::new(2.0e6, 1.0e6)] {
+            let known = Ellipse::new(Point::ORIGIN + offset, 7.0, 4.0, 0.4).unwrap();
+            let ts = [0.2, 1.4, 2.6, 3.9, 5.1];
+            let lines: Vec<Line> = ts
+                .iter()
+                .map(|&t| {
+                    let p = known.point(t);
+                    Line::through(p, p + known.derivative(t)).unwrap()
+                })
+                .collect();
+            let corners: Vec<Point> = (0..5)
+                .map(|i| lines[(i + 4) % 5].intersection(&lines[i]).unwrap())
+                .collect();
+            let e = tangent_conic(&corners).unwrap();
+            // Line intersections at |p| = 2e6 carry about 1e-9 mm of rounding themselves.
+            let tol = 1e-9 * (1.0 + offset.length() / 1000.0);
+            assert!(
+                (e.a() - 7.0).abs() < tol && (e.b() - 4.0).abs() < tol,
+                "{e:?}"
+            );
+            assert!(e.centre().distance(known.centre()) < tol);
+            assert!((e.angle() - 0.4).abs() < tol);
+        }
     }
 }
