@@ -37,6 +37,8 @@
 //! stamps with a fixed date, so the bytes depend only on this code. Handles are given in the
 //! order the entities are added.
 
+pub mod sheet;
+
 use dxf::entities::{Circle, Entity, EntityType, Line, LwPolyline};
 use dxf::enums::{AcadVersion, Units};
 use dxf::tables::Layer;
