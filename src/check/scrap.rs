@@ -36,6 +36,7 @@
 use crate::check::{self, Trace, TraceMove};
 use crate::geom::{Bounds, BoxGrid, Edge, Move, Point};
 use crate::plan::{CutSide, FeatureKind, GOUGE_MARGIN, PlannedCut};
+use rayon::prelude::*;
 
 /// Spacing (mm) of the points checked along each move; at most [`MAX_SAMPLES`] per move.
 pub const SAMPLE_SPACING: f64 = 0.02;
@@ -85,59 +86,76 @@ pub fn check_scrap(
 ) -> Result<(), ScrapViolation> {
     let limit = rules.tool_radius * (1.0 - GOUGE_MARGIN) - rules.tolerance;
     let edges = Edges::of(cuts);
+    // Each cut on its own (in parallel, rayon); the first violation in cut order wins, as in a
+    // serial run.
+    let found: Vec<Result<(), ScrapViolation>> = (0..cuts.len())
+        .into_par_iter()
+        .map(|own| check_cut(trace, own, &edges, limit, rules))
+        .collect();
+    found.into_iter().collect()
+}
+
+/// Checks the moves of cut `own` (index into the cuts) off its contour.
+fn check_cut(
+    trace: &Trace,
+    own: usize,
+    edges: &Edges,
+    limit: f64,
+    rules: &ScrapRules,
+) -> Result<(), ScrapViolation> {
+    let cuts = edges.cuts;
+    let cut = &cuts[own];
     let mut near = Vec::new();
-    for (own, cut) in cuts.iter().enumerate() {
-        // Found by its number K in the writer's index comment `(cut K of N: NAME)`.
-        let number = own + 1;
-        if check::cut_range(trace, number).is_none() {
-            return Err(ScrapViolation {
-                feature: cut.name().to_string(),
-                part: String::new(),
-                line: 0,
-                at: cut.plunge(),
-                problem: "the cut is not in the program".into(),
-            });
+    // Found by its number K in the writer's index comment `(cut K of N: NAME)`.
+    let number = own + 1;
+    if check::cut_range(trace, number).is_none() {
+        return Err(ScrapViolation {
+            feature: cut.name().to_string(),
+            part: String::new(),
+            line: 0,
+            at: cut.plunge(),
+            problem: "the cut is not in the program".into(),
+        });
+    }
+    let mut pierce_seen = false;
+    for i in check::cut_moves_off_contour(trace, number) {
+        let m = &trace.moves[i];
+        if m.rapid {
+            continue;
         }
-        let mut pierce_seen = false;
-        for i in check::cut_moves_off_contour(trace, number) {
-            let m = &trace.moves[i];
-            if m.rapid {
-                continue;
-            }
-            let fail = |at: Point, problem: String| ScrapViolation {
-                feature: cut.name().to_string(),
-                part: part_of(trace, i),
-                line: m.line,
-                at,
-                problem,
-            };
-            if !pierce_seen {
-                pierce_seen = true;
-                if let Some(c) = rules.pierce_clearance {
-                    let p = Point::new(m.from[0], m.from[1]);
-                    edges.grid.near(p, c - rules.rounding, &mut near);
-                    for other in near.iter().map(|&k| &cuts[k]) {
-                        let d = other.edge().distance_to(p);
-                        if d < c - rules.rounding {
-                            return Err(fail(
-                                p,
-                                format!(
-                                    "the pierce point is {d:.4} mm from the edge of \"{}\", less \
-                                     than the pierce clearance {c} mm",
-                                    other.name()
-                                ),
-                            ));
-                        }
+        let fail = |at: Point, problem: String| ScrapViolation {
+            feature: cut.name().to_string(),
+            part: part_of(trace, i),
+            line: m.line,
+            at,
+            problem,
+        };
+        if !pierce_seen {
+            pierce_seen = true;
+            if let Some(c) = rules.pierce_clearance {
+                let p = Point::new(m.from[0], m.from[1]);
+                edges.grid.near(p, c - rules.rounding, &mut near);
+                for other in near.iter().map(|&k| &cuts[k]) {
+                    let d = other.edge().distance_to(p);
+                    if d < c - rules.rounding {
+                        return Err(fail(
+                            p,
+                            format!(
+                                "the pierce point is {d:.4} mm from the edge of \"{}\", less \
+                                 than the pierce clearance {c} mm",
+                                other.name()
+                            ),
+                        ));
                     }
                 }
             }
-            for (p, z) in sample_move(m) {
-                if rules.skip_above_stock && z > 0.0 {
-                    continue;
-                }
-                if let Some(problem) = point_problem(p, own, &edges, &mut near, limit, rules) {
-                    return Err(fail(p, problem));
-                }
+        }
+        for (p, z) in sample_move(m) {
+            if rules.skip_above_stock && z > 0.0 {
+                continue;
+            }
+            if let Some(problem) = point_problem(p, own, edges, &mut near, limit, rules) {
+                return Err(fail(p, problem));
             }
         }
     }

@@ -10,6 +10,7 @@ use super::deviation::{self, Deviation};
 use super::scrap::{ScrapRules, check_scrap};
 use super::{CheckError, Trace, cut_contour_lines, trace};
 use crate::plan::PlannedCut;
+use rayon::prelude::*;
 use serde::Serialize;
 
 /// What [`verify`] holds a program to (lengths in mm).
@@ -122,8 +123,14 @@ pub fn verify(
     let trace = trace(program).map_err(|e| Findings(vec![Finding::Unreadable(e)]))?;
     let mut findings = Vec::new();
     let mut measured = Vec::with_capacity(cuts.len());
-    for (k, cut) in cuts.iter().enumerate() {
-        match measure_cut(&trace, k + 1, cut, rules) {
+    // Measured in parallel (rayon), gathered in cut order.
+    let results: Vec<Result<CutDeviation, Vec<Finding>>> = cuts
+        .par_iter()
+        .enumerate()
+        .map(|(k, cut)| measure_cut(&trace, k + 1, cut, rules))
+        .collect();
+    for result in results {
+        match result {
             Ok(m) => measured.push(m),
             Err(mut f) => findings.append(&mut f),
         }

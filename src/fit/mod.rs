@@ -20,6 +20,7 @@
 use crate::geom::Point;
 use crate::geom::moves::{self, Move};
 use crate::plan::{CutSide, FeatureKind};
+use rayon::prelude::*;
 use serde::Serialize;
 
 /// One feature's cut, ready for a post-processor: the tool enters at `plunge`, runs `clearing`
@@ -228,8 +229,13 @@ pub enum FitError {
 }
 
 /// Fits every planned cut with `options`.
+///
+/// The cuts are fitted in parallel (rayon) and gathered in order; the error is the first cut's
+/// in plan order, as a serial run would give.
 pub fn fit_plan(plan: &Plan, options: &FitOptions) -> Result<Vec<FittedCut>, FitError> {
-    plan.cuts.iter().map(|c| fit_cut(c, options)).collect()
+    let fitted: Vec<Result<FittedCut, FitError>> =
+        plan.cuts.par_iter().map(|c| fit_cut(c, options)).collect();
+    fitted.into_iter().collect()
 }
 
 /// Fits one cut: the ellipse's parallel curve by an arc spline ([`MoveKind::Arcs`]) or a band

@@ -81,6 +81,7 @@ use super::lead_room::{Obstacles, Room};
 use super::lead_shape::{frame_at, lead_in_shape, lead_out_shape, path_length};
 use super::{CutSide, LeadKind, LeadOptions, PlanError, PlanOptions, PlannedCut};
 use crate::geom::{Element, ExactPath, Point, Segment};
+use rayon::prelude::*;
 use std::f64::consts::{FRAC_PI_2, PI, TAU};
 
 /// Spacing (mm) of the points at which a lead is checked against the edges; at most
@@ -127,31 +128,49 @@ pub fn add_leads(
         leads.radius = radius;
     }
     let obstacles = Obstacles::of(cuts);
-    for (i, cut) in cuts.iter_mut().enumerate() {
-        let room = Room {
-            r,
-            obstacles: &obstacles,
-            own: i,
-            own_extra: cut.allowance.max(0.0),
-            pierce_clearance: opts.pierce_clearance,
-            mill_arc_min: mill.then_some(r),
-        };
-        let mut notes = Vec::new();
-        let scale = place_lead_in(cut, &room, &leads, &mut notes)?;
-        set_overcut(cut, leads.overcut, &mut notes);
-        if leads.lead_out && leads.kind != LeadKind::Straight {
-            let mut base = scale.unwrap_or(1.0);
-            if !mill && cut.side == CutSide::Inside {
-                base *= 0.5;
-            }
-            place_lead_out(cut, &room, &leads, base, &mut notes);
-        }
-        cut.entry_room = room.entry_room(cut.plunge);
-        if !notes.is_empty() {
-            warnings.push(format!("{}: {}", cut.name, notes.join("; ")));
-        }
+    // Each cut's leads depend only on the finished edges, so the cuts are done in parallel
+    // (rayon); warnings and the first error come in cut order, as in a serial run.
+    let done: Vec<Result<Option<String>, PlanError>> = cuts
+        .par_iter_mut()
+        .enumerate()
+        .map(|(i, cut)| {
+            let room = Room {
+                r,
+                obstacles: &obstacles,
+                own: i,
+                own_extra: cut.allowance.max(0.0),
+                pierce_clearance: opts.pierce_clearance,
+                mill_arc_min: mill.then_some(r),
+            };
+            leads_of_one_cut(cut, &room, &leads, mill)
+        })
+        .collect();
+    for warning in done {
+        warnings.extend(warning?);
     }
     Ok(())
+}
+
+/// Places one cut's lead-in, overcut and lead-out and its entry room; the warning naming what
+/// was shrunk, replaced or left out, if anything.
+fn leads_of_one_cut(
+    cut: &mut PlannedCut,
+    room: &Room,
+    leads: &LeadOptions,
+    mill: bool,
+) -> Result<Option<String>, PlanError> {
+    let mut notes = Vec::new();
+    let scale = place_lead_in(cut, room, leads, &mut notes)?;
+    set_overcut(cut, leads.overcut, &mut notes);
+    if leads.lead_out && leads.kind != LeadKind::Straight {
+        let mut base = scale.unwrap_or(1.0);
+        if !mill && cut.side == CutSide::Inside {
+            base *= 0.5;
+        }
+        place_lead_out(cut, room, leads, base, &mut notes);
+    }
+    cut.entry_room = room.entry_room(cut.plunge);
+    Ok((!notes.is_empty()).then(|| format!("{}: {}", cut.name, notes.join("; "))))
 }
 
 /// The lead settings, checked: lengths finite and not negative, a straight part for line leads
