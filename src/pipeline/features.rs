@@ -2,7 +2,7 @@
 //! ellipse in every bay), against the drawing's bays, points and lines.
 
 use crate::chain::{Bay, Part};
-use crate::geom::{Line, Point};
+use crate::geom::{Bounds, BoxGrid, Line, Point};
 use crate::read::{Drawing, EntityKind};
 use crate::settings::job_file::{
     BaySelect, CutKind, FeatureSource, FeatureSpec, FitPoints, LineSource, PointSource, Rule,
@@ -12,7 +12,7 @@ use crate::solve::least_squares_ellipse;
 use crate::solve::{Candidate, Solution};
 use crate::solve::{Failure, solve_bay};
 use serde::Serialize;
-use std::collections::BTreeMap;
+use std::collections::{BTreeMap, HashMap};
 
 /// How well a least-squares fit matches its points.
 #[derive(Debug, Clone, Copy, PartialEq, Serialize)]
@@ -75,7 +75,38 @@ pub struct FeatureInputs<'a> {
 /// Solves every spec. A spec that cannot be solved gives a [`Failure`] with the reason; the
 /// others are still solved, so that a listing shows everything at once.
 pub fn solve_features(specs: &[FeatureSpec], inputs: &FeatureInputs) -> Vec<SolvedFeature> {
-    specs.iter().map(|s| solve_one(s, inputs)).collect()
+    let bays = BayLookup::of(inputs.part);
+    specs.iter().map(|s| solve_one(s, inputs, &bays)).collect()
+}
+
+/// The part's bays by name (ignoring ASCII case; the first of a name) and on a grid by their
+/// boxes, so that finding a feature's bay does not scan every bay.
+struct BayLookup {
+    by_name: HashMap<String, usize>,
+    grid: BoxGrid,
+}
+
+impl BayLookup {
+    fn of(part: &Part) -> Self {
+        let mut by_name = HashMap::with_capacity(part.bays.len());
+        for (i, b) in part.bays.iter().enumerate() {
+            by_name.entry(b.name().to_ascii_lowercase()).or_insert(i);
+        }
+        let boxes = part
+            .bays
+            .iter()
+            .map(|b| {
+                Bounds::of_points(b.corners()).unwrap_or(Bounds {
+                    min: Point::new(f64::NAN, f64::NAN),
+                    max: Point::new(f64::NAN, f64::NAN),
+                })
+            })
+            .collect();
+        BayLookup {
+            by_name,
+            grid: BoxGrid::new(boxes),
+        }
+    }
 }
 
 fn failure(reason: String) -> Failure {
@@ -85,7 +116,7 @@ fn failure(reason: String) -> Failure {
     }
 }
 
-fn solve_one(spec: &FeatureSpec, inputs: &FeatureInputs) -> SolvedFeature {
+fn solve_one(spec: &FeatureSpec, inputs: &FeatureInputs, bays: &BayLookup) -> SolvedFeature {
     let mut out = SolvedFeature {
         name: spec.name.clone(),
         source: String::new(),
@@ -100,7 +131,7 @@ fn solve_one(spec: &FeatureSpec, inputs: &FeatureInputs) -> SolvedFeature {
     match &spec.source {
         FeatureSource::Bay { select, rule } => {
             let margin = spec.margin.unwrap_or(inputs.default_margin);
-            bay_feature(&mut out, inputs, select, rule, margin);
+            bay_feature(&mut out, inputs, bays, select, rule, margin);
         }
         FeatureSource::Constraints {
             through,
@@ -116,13 +147,14 @@ fn solve_one(spec: &FeatureSpec, inputs: &FeatureInputs) -> SolvedFeature {
 fn bay_feature(
     out: &mut SolvedFeature,
     inputs: &FeatureInputs,
+    bays: &BayLookup,
     select: &BaySelect,
     rule: &Rule,
     margin: f64,
 ) {
     out.rule = Some(rule.describe());
     out.margin_mm = Some(margin);
-    out.outcome = find_bay(inputs.part, select).and_then(|bay| {
+    out.outcome = find_bay(inputs.part, bays, select).and_then(|bay| {
         out.source = format!("{} ({} sides)", bay.name(), bay.corners().len());
         out.bay = Some(bay.name().to_string());
         solve_bay(bay, rule, margin).map(|s| {
@@ -231,7 +263,7 @@ fn describe_select(select: &BaySelect) -> String {
     }
 }
 
-fn find_bay<'a>(part: &'a Part, select: &BaySelect) -> Result<&'a Bay, Failure> {
+fn find_bay<'a>(part: &'a Part, bays: &BayLookup, select: &BaySelect) -> Result<&'a Bay, Failure> {
     let names = || {
         let all: Vec<&str> = part.bays.iter().map(|b| b.name()).collect();
         if all.is_empty() {
@@ -241,15 +273,17 @@ fn find_bay<'a>(part: &'a Part, select: &BaySelect) -> Result<&'a Bay, Failure> 
         }
     };
     match select {
-        BaySelect::Name(n) => part
-            .bays
-            .iter()
-            .find(|b| b.name().eq_ignore_ascii_case(n))
+        BaySelect::Name(n) => bays
+            .by_name
+            .get(&n.to_ascii_lowercase())
+            .map(|&i| &part.bays[i])
             .ok_or_else(|| failure(format!("there is no bay named \"{n}\"; {}", names()))),
         BaySelect::Inside(p) => {
-            let hits: Vec<&Bay> = part
-                .bays
+            let mut near = Vec::new();
+            bays.grid.overlapping(&Bounds::at(*p), &mut near);
+            let hits: Vec<&Bay> = near
                 .iter()
+                .map(|&i| &part.bays[i])
                 .filter(|b| inside(b.corners(), *p))
                 .collect();
             match hits.as_slice() {
