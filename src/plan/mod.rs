@@ -37,6 +37,7 @@ mod lead_shape;
 mod leads;
 mod offset;
 mod options;
+mod order;
 mod paths;
 pub mod pocket;
 mod tabs;
@@ -48,7 +49,7 @@ pub use options::{
 };
 
 use crate::chain::{InnerShape, Part};
-use crate::geom::{Ellipse, Point};
+use crate::geom::Ellipse;
 use finishing::add_finishing_cuts;
 use paths::{plan_contour, plan_ellipse, plan_ellipse_boss};
 
@@ -133,7 +134,7 @@ pub fn plan_cuts(part: &Part, openings: &[Opening], opts: &PlanOptions) -> Resul
         };
         inner.push(cut);
     }
-    let mut cuts: Vec<PlannedCut> = order_nearest_first(inner)
+    let mut cuts: Vec<PlannedCut> = order::order_nearest_first(inner)
         .into_iter()
         .map(|c| directed(c, opts.direction))
         .collect();
@@ -170,22 +171,4 @@ fn directed(cut: PlannedCut, direction: Direction) -> PlannedCut {
         Direction::Climb => cut,
         Direction::Conventional => cut.reversed(),
     }
-}
-
-/// Orders cuts by nearest neighbour, starting nearest to the work zero.
-fn order_nearest_first(mut cuts: Vec<PlannedCut>) -> Vec<PlannedCut> {
-    let mut out = Vec::with_capacity(cuts.len());
-    let mut here = Point::ORIGIN;
-    while !cuts.is_empty() {
-        let (i, _) = cuts
-            .iter()
-            .enumerate()
-            .map(|(i, c)| (i, c.plunge.distance(here)))
-            .min_by(|a, b| a.1.total_cmp(&b.1))
-            .unwrap_or((0, 0.0));
-        let c = cuts.remove(i);
-        here = c.path.start_point();
-        out.push(c);
-    }
-    out
 }
