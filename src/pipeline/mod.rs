@@ -207,10 +207,71 @@ pub fn run_resolved(
     s: &JobSettings,
     resolved: &ResolvedJob,
 ) -> Result<JobOutput, JobError> {
+    run_resolved_watched(dxf, profile, s, resolved, &|_| {})
+}
+
+/// A step of the job, told to a watcher as it starts (for a progress display).
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Step {
+    /// Reading the drawing, chaining it and solving every feature.
+    Solving,
+    /// Planning this many features' cuts.
+    Planning(usize),
+    /// Fitting this many cuts.
+    Fitting(usize),
+    /// Writing the program.
+    Writing,
+    /// Reading the program back and checking this many cuts.
+    Checking(usize),
+    /// Drawing the preview and the report.
+    Reporting,
+}
+
+impl Step {
+    /// Every step, in order, for a display that counts them.
+    pub const COUNT: usize = 6;
+
+    /// The step's place in the order, from 0.
+    pub fn index(self) -> usize {
+        match self {
+            Step::Solving => 0,
+            Step::Planning(_) => 1,
+            Step::Fitting(_) => 2,
+            Step::Writing => 3,
+            Step::Checking(_) => 4,
+            Step::Reporting => 5,
+        }
+    }
+
+    /// What the step does, in words: `fitting 1200 cuts`.
+    pub fn describe(self) -> String {
+        match self {
+            Step::Solving => "reading and solving".into(),
+            Step::Planning(n) => format!("planning {n} features"),
+            Step::Fitting(n) => format!("fitting {n} cuts"),
+            Step::Writing => "writing the program".into(),
+            Step::Checking(n) => format!("checking {n} cuts"),
+            Step::Reporting => "drawing the preview".into(),
+        }
+    }
+}
+
+/// [`run_resolved`], telling `watch` each [`Step`] as it starts.
+pub fn run_resolved_watched(
+    dxf: &[u8],
+    profile: &MachineProfile,
+    s: &JobSettings,
+    resolved: &ResolvedJob,
+    watch: &dyn Fn(Step),
+) -> Result<JobOutput, JobError> {
     let file = || s.file_name.clone();
+    watch(Step::Solving);
     let solved = read_and_solve(dxf, s)?;
     refuse_unsolved(&solved, profile, &s.file_name)?;
     let (to_cut, infos) = openings(&solved.features);
+    watch(Step::Planning(
+        to_cut.len() + solved.part.holes.len() + usize::from(solved.part.outline.is_some()),
+    ));
     let plan =
         plan::plan_cuts(&solved.part, &to_cut, &resolved.plan).map_err(|error| JobError::Plan {
             file: file(),
@@ -218,6 +279,7 @@ pub fn run_resolved(
         })?;
     // The fit gets the tolerance less what rounding may take (`settings::ToleranceBudget`);
     // the checker then measures the program as written against the whole tolerance.
+    watch(Step::Fitting(plan.cuts.len()));
     let mut cuts = fit::fit_plan(&plan, &resolved.fit).map_err(|error| JobError::Fit {
         file: file(),
         error,
@@ -225,57 +287,93 @@ pub fn run_resolved(
     for cut in &mut cuts {
         cut.tolerance = s.tolerance;
     }
+    watch(Step::Writing);
     let program =
         post::write_program(&cuts, profile, &resolved.program).map_err(|error| JobError::Post {
             file: file(),
             error,
         })?;
+    watch(Step::Checking(plan.cuts.len()));
     let verified = read_back(&program, &plan.cuts, s, resolved, profile)?;
     for (cut, read_back) in cuts.iter_mut().zip(&verified.cuts) {
         cut.measured_deviation = read_back.both_ways;
         cut.part_side_deviation = read_back.part_side;
     }
-    let ellipse_holes = ellipse_holes(&solved.part);
-    let mut ellipses: Vec<(String, Ellipse)> =
-        to_cut.iter().map(|o| (o.name.clone(), o.ellipse)).collect();
-    ellipses.extend(ellipse_holes.iter().cloned());
-    let preview = preview::preview_svg(&PreviewInput {
-        title: &s.file_name,
-        part: &solved.part,
-        ellipses: &ellipses,
+    watch(Step::Reporting);
+    let (preview, report) = present(&Finished {
+        s,
+        resolved,
+        profile,
+        solved: &solved,
+        to_cut: &to_cut,
+        infos: &infos,
+        plan: &plan,
         cuts: &cuts,
-        tool_diameter: resolved.tool_diameter,
-    });
-    let mut warnings = solved.part.warnings.clone();
-    warnings.extend(unused_warnings(&solved.unused_bays));
-    warnings.extend(plan.warnings.iter().cloned());
-    warnings.extend(resolved.direction_warning.clone());
-    let report = report::build_report(ReportInput {
-        drawing: &s.file_name,
-        drawing_units: solved.drawing.units.symbol(),
-        machine: profile.name(),
-        machine_kind: profile.kind().as_str(),
-        tool_diameter: resolved.tool_diameter,
-        cut_depth: resolved.depth,
-        tolerance: s.tolerance,
-        solved: &infos,
-        ellipse_holes: &ellipse_holes,
-        cuts: &cuts,
-        warnings,
-        notes: solved.drawing.notes.clone(),
-        program_bounds: verified.bounds,
-        largest_arc_radius_mismatch: verified.largest_arc_radius_mismatch,
-        tab_height: resolved
-            .plan
-            .tabs
-            .filter(|t| t.height > 0.0 && !resolved.cuts_through)
-            .map(|t| t.height),
+        verified: &verified,
     });
     Ok(JobOutput {
         program,
         preview,
         report,
     })
+}
+
+/// What the job has made, for the preview and the report.
+struct Finished<'a> {
+    s: &'a JobSettings,
+    resolved: &'a ResolvedJob,
+    profile: &'a MachineProfile,
+    solved: &'a Solved,
+    to_cut: &'a [plan::Opening],
+    infos: &'a [SolvedInfo],
+    plan: &'a plan::Plan,
+    cuts: &'a [fit::FittedCut],
+    verified: &'a check::Verified,
+}
+
+/// The preview and the report of a finished job.
+fn present(f: &Finished) -> (String, Report) {
+    let (s, resolved, solved) = (f.s, f.resolved, f.solved);
+    let ellipse_holes = ellipse_holes(&solved.part);
+    let mut ellipses: Vec<(String, Ellipse)> = f
+        .to_cut
+        .iter()
+        .map(|o| (o.name.clone(), o.ellipse))
+        .collect();
+    ellipses.extend(ellipse_holes.iter().cloned());
+    let preview = preview::preview_svg(&PreviewInput {
+        title: &s.file_name,
+        part: &solved.part,
+        ellipses: &ellipses,
+        cuts: f.cuts,
+        tool_diameter: resolved.tool_diameter,
+    });
+    let mut warnings = solved.part.warnings.clone();
+    warnings.extend(unused_warnings(&solved.unused_bays));
+    warnings.extend(f.plan.warnings.iter().cloned());
+    warnings.extend(resolved.direction_warning.clone());
+    let report = report::build_report(ReportInput {
+        drawing: &s.file_name,
+        drawing_units: solved.drawing.units.symbol(),
+        machine: f.profile.name(),
+        machine_kind: f.profile.kind().as_str(),
+        tool_diameter: resolved.tool_diameter,
+        cut_depth: resolved.depth,
+        tolerance: s.tolerance,
+        solved: f.infos,
+        ellipse_holes: &ellipse_holes,
+        cuts: f.cuts,
+        warnings,
+        notes: solved.drawing.notes.clone(),
+        program_bounds: f.verified.bounds,
+        largest_arc_radius_mismatch: f.verified.largest_arc_radius_mismatch,
+        tab_height: resolved
+            .plan
+            .tabs
+            .filter(|t| t.height > 0.0 && !resolved.cuts_through)
+            .map(|t| t.height),
+    });
+    (preview, report)
 }
 
 /// Refuses a pocket on a kind that cuts through, and a job with features that could not be
