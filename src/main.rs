@@ -1,10 +1,14 @@
 //! The `conicut` command: reads files, runs the job, writes the outputs whole or not at all.
 
+mod cli;
+
 use anyhow::{Context, Result, bail};
 use clap::{Args, Parser, Subcommand};
+use cli::batch;
+use cli::progress::Progress;
 use conicut::chain::{DEFAULT_BAY_LAYER, DEFAULT_MAX_GAP};
 use conicut::geom::Point;
-use conicut::pipeline::{JobOutput, resolve, run_resolved, solve_job};
+use conicut::pipeline::{JobOutput, Step, resolve, run_resolved, run_resolved_watched, solve_job};
 use conicut::plan::{Direction, LeadKind};
 use conicut::read::Units;
 use conicut::read::parse_points_csv;
@@ -60,10 +64,11 @@ enum Command {
         #[arg(long)]
         json: bool,
     },
-    /// Run the whole job on a drawing of your own.
+    /// Run the whole job on drawings of your own: one, several, or folders of them.
     Plan {
-        /// The DXF drawing.
-        drawing: PathBuf,
+        /// The DXF drawings, or folders of them (every .dxf directly inside, in name order).
+        #[arg(required = true)]
+        drawings: Vec<PathBuf>,
         /// Machine profile (TOML), e.g. machine-profiles/metric-mill.toml.
         #[arg(long)]
         machine: PathBuf,
@@ -71,10 +76,14 @@ enum Command {
         /// those profiles supply their kerf when it is not given.
         #[arg(long, alias = "kerf", allow_negative_numbers = true)]
         tool_diameter: Option<f64>,
-        /// Folder for the outputs (created if missing). Default: `<drawing name>-conicut` in the
-        /// current folder.
+        /// Folder for the outputs (created if missing). One drawing: its outputs, by default
+        /// `<drawing name>-conicut` in the current folder. Several: one `<drawing
+        /// name>-conicut` folder per drawing inside it, by default in the current folder.
         #[arg(long)]
         out: Option<PathBuf>,
+        /// No progress bar (it is shown only on a terminal, and only for work that lasts).
+        #[arg(long)]
+        quiet: bool,
         #[command(flatten)]
         input: DrawingArgs,
         #[command(flatten)]
@@ -342,23 +351,91 @@ fn run(cli: Cli) -> Result<()> {
             Ok(())
         }
         Command::Plan {
-            drawing,
+            drawings,
             machine,
             tool_diameter,
             out,
+            quiet,
             input,
             cut,
         } => {
             let machine = read_profile(&machine)?;
-            let (bytes, file_name, stem) = read_drawing(&drawing)?;
-            let mut request = request(file_name, &input, Some(&cut))?;
-            request.tool_diameter = tool_diameter;
-            let resolved = resolve(&request, &machine)?;
-            let output = run_resolved(&bytes, &machine.profile, &request, &resolved)?;
-            let out = out.unwrap_or_else(|| PathBuf::from(format!("{stem}-conicut")));
-            finish(output, &out, &stem)
+            let drawings = batch::expand(&drawings)?;
+            let plan = PlanArgs {
+                machine: &machine,
+                tool_diameter,
+                input: &input,
+                cut: &cut,
+            };
+            if let [drawing] = drawings.as_slice() {
+                let progress = Progress::new(quiet, 1);
+                let dir = out.unwrap_or_else(|| {
+                    PathBuf::from(format!("{}-conicut", batch::stem_of(drawing)))
+                });
+                let result = plan_one(&plan, drawing, &dir, &|step| {
+                    progress.step(0, &batch::stem_of(drawing), step)
+                });
+                progress.finish();
+                print!("{}", result?.to_text());
+                Ok(())
+            } else {
+                plan_batch(&plan, &drawings, &out.unwrap_or_default(), quiet)
+            }
         }
     }
+}
+
+/// What `plan` runs every drawing with.
+struct PlanArgs<'a> {
+    machine: &'a Machine,
+    tool_diameter: Option<f64>,
+    input: &'a DrawingArgs,
+    cut: &'a CutArgs,
+}
+
+/// Plans one drawing and writes its outputs into `dir`; the report.
+fn plan_one(
+    plan: &PlanArgs,
+    drawing: &Path,
+    dir: &Path,
+    watch: &dyn Fn(Step),
+) -> Result<conicut::report::Report> {
+    let (bytes, file_name, stem) = read_drawing(drawing)?;
+    let mut request = request(file_name, plan.input, Some(plan.cut))?;
+    request.tool_diameter = plan.tool_diameter;
+    let resolved = resolve(&request, plan.machine)?;
+    let output = run_resolved_watched(&bytes, &plan.machine.profile, &request, &resolved, watch)?;
+    write_outputs(output, dir, &stem)
+}
+
+/// Plans every drawing, each into its own folder inside `parent`, whatever the others do;
+/// prints each failure as it happens and the summary at the end, and fails if any failed.
+fn plan_batch(plan: &PlanArgs, drawings: &[PathBuf], parent: &Path, quiet: bool) -> Result<()> {
+    let folders = batch::output_folders(drawings, parent)?;
+    let progress = Progress::new(quiet, drawings.len());
+    let mut outcomes = Vec::with_capacity(drawings.len());
+    for (k, (drawing, dir)) in drawings.iter().zip(&folders).enumerate() {
+        let started = std::time::Instant::now();
+        let name = batch::stem_of(drawing);
+        let result = plan_one(plan, drawing, dir, &|step| progress.step(k, &name, step));
+        if let Err(e) = &result {
+            progress.bar_suspended(|| eprintln!("error: {e:#}"));
+        }
+        outcomes.push(batch::Outcome {
+            drawing: drawing.clone(),
+            seconds: started.elapsed().as_secs_f64(),
+            result: result
+                .map(|report| (report.features.len(), dir.clone()))
+                .map_err(|e| format!("{e:#}")),
+        });
+    }
+    progress.finish();
+    print!("{}", batch::summary(&outcomes));
+    let failed = outcomes.iter().filter(|o| o.result.is_err()).count();
+    if failed > 0 {
+        bail!("{failed} of {} drawings failed (see above)", outcomes.len());
+    }
+    Ok(())
 }
 
 /// A bundled profile by its stem (`metric-mill`, `laser`, …).
@@ -395,7 +472,13 @@ fn demo_stem(machine: &str) -> String {
 }
 
 /// Writes the outputs into `dir` and prints the summary.
-fn finish(mut output: JobOutput, dir: &Path, stem: &str) -> Result<()> {
+fn finish(output: JobOutput, dir: &Path, stem: &str) -> Result<()> {
+    print!("{}", write_outputs(output, dir, stem)?.to_text());
+    Ok(())
+}
+
+/// Writes the outputs into `dir`, all or none; the report, naming the files.
+fn write_outputs(mut output: JobOutput, dir: &Path, stem: &str) -> Result<conicut::report::Report> {
     let names = [
         ("program", format!("{stem}.ngc")),
         ("preview", format!("{stem}.svg")),
@@ -418,8 +501,7 @@ fn finish(mut output: JobOutput, dir: &Path, stem: &str) -> Result<()> {
         .map(|((_, name), body)| (dir.join(name), body.as_str()))
         .collect();
     write_all_or_nothing(dir, &files)?;
-    print!("{text}");
-    Ok(())
+    Ok(output.report)
 }
 
 /// Writes every file beside its final name, then renames them all into place; on any failure the
