@@ -134,25 +134,33 @@ pub fn plan_cuts(part: &Part, openings: &[Opening], opts: &PlanOptions) -> Resul
         };
         inner.push(cut);
     }
-    let mut cuts: Vec<PlannedCut> = order::order_nearest_first(inner)
-        .into_iter()
-        .map(|c| directed(c, opts.direction))
-        .collect();
-    if let Some(outline) = &part.outline {
-        let cw = if outline.is_ccw() {
-            outline.reversed()
-        } else {
-            outline.clone()
-        };
-        let outline_cut = plan_contour(
-            "outline",
-            FeatureKind::Outline,
-            CutSide::Outside,
-            &cw,
-            r,
-            d,
-            &mut warnings,
-        )?;
+    // The outline is cut last (inner cuts first, so the part stays held): planned first, so
+    // that the order of the others can end near where it starts.
+    let outline_cut = match &part.outline {
+        Some(outline) => {
+            let cw = if outline.is_ccw() {
+                outline.reversed()
+            } else {
+                outline.clone()
+            };
+            Some(plan_contour(
+                "outline",
+                FeatureKind::Outline,
+                CutSide::Outside,
+                &cw,
+                r,
+                d,
+                &mut warnings,
+            )?)
+        }
+        None => None,
+    };
+    let mut cuts: Vec<PlannedCut> =
+        order::order_cuts(inner, outline_cut.as_ref().map(|c| c.plunge))
+            .into_iter()
+            .map(|c| directed(c, opts.direction))
+            .collect();
+    if let Some(outline_cut) = outline_cut {
         cuts.push(directed(outline_cut, opts.direction));
         if let (Some(tabs), Some(last)) = (&opts.tabs, cuts.last_mut()) {
             last.tabs = tabs::place_tabs(last, tabs, opts, &mut warnings)?;
