@@ -20,6 +20,7 @@ use crate::geom::{ExactPath, Move, Point};
 use serde::Serialize;
 
 pub mod deviation;
+pub mod rapids;
 pub mod scrap;
 mod verify;
 

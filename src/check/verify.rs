@@ -51,6 +51,8 @@ pub struct Verified {
     pub bounds: Option<([f64; 3], [f64; 3])>,
     /// Largest difference between an arc's start and end radius (mm).
     pub largest_arc_radius_mismatch: f64,
+    /// The rapid travel as written, and the least any order of the cuts could have.
+    pub rapids: super::rapids::Rapids,
 }
 
 /// One thing wrong with a written program. Each is a bug in conicut, not in the user's input:
@@ -145,6 +147,7 @@ pub fn verify(
         cuts: measured,
         bounds: trace.bounds,
         largest_arc_radius_mismatch: trace.largest_arc_radius_mismatch,
+        rapids: super::rapids::rapids(&trace),
     })
 }
 

@@ -367,6 +367,7 @@ fn present(f: &Finished) -> (String, Report) {
         notes: solved.drawing.notes.clone(),
         program_bounds: f.verified.bounds,
         largest_arc_radius_mismatch: f.verified.largest_arc_radius_mismatch,
+        rapids: Some(f.verified.rapids),
         tab_height: resolved
             .plan
             .tabs

@@ -120,6 +120,9 @@ pub struct Report {
     pub program_bounds_mm: Option<ProgramBounds>,
     /// Largest difference between an arc's start and end radius in the program (mm).
     pub largest_arc_radius_mismatch_mm: f64,
+    /// The program's rapid travel in XY, read back (mm), and the least any order of the cuts
+    /// could have.
+    pub rapids: Option<RapidReport>,
     /// Mills and routers: the height of tabs above the floor of the cut (mm); `None` when there
     /// are no tabs or they are gaps (laser, plasma, waterjet).
     pub tab_height_mm: Option<f64>,
@@ -155,6 +158,7 @@ pub struct ReportInput<'a> {
     pub notes: Vec<String>,
     pub program_bounds: Option<([f64; 3], [f64; 3])>,
     pub largest_arc_radius_mismatch: f64,
+    pub rapids: Option<crate::check::rapids::Rapids>,
     /// Mills and routers with tabs: their height above the floor (mm).
     pub tab_height: Option<f64>,
 }
@@ -187,6 +191,17 @@ fn tab_reports(c: &FittedCut, d: f64) -> Vec<TabReport> {
             }
         })
         .collect()
+}
+
+/// The program's rapid travel (see `check::rapids`), in mm.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+pub struct RapidReport {
+    /// The XY length of every rapid move, read back from the program.
+    pub length_mm: f64,
+    /// The minimum spanning tree of the work zero and the cuts' pierce points.
+    pub pierce_tree_mm: f64,
+    /// No order of the cuts has shorter rapids than this.
+    pub lower_bound_mm: f64,
 }
 
 /// Builds the report from the stages' results.
@@ -249,6 +264,11 @@ pub fn build_report(input: ReportInput) -> Report {
             .program_bounds
             .map(|(min, max)| ProgramBounds { min, max }),
         largest_arc_radius_mismatch_mm: input.largest_arc_radius_mismatch,
+        rapids: input.rapids.map(|r| RapidReport {
+            length_mm: r.length,
+            pierce_tree_mm: r.pierce_tree,
+            lower_bound_mm: r.lower_bound,
+        }),
         tab_height_mm: input.tab_height,
     }
 }
@@ -359,6 +379,15 @@ impl Report {
             );
         }
         self.write_tabs(&mut s);
+        if let Some(r) = &self.rapids {
+            let _ = writeln!(
+                s,
+                "\nrapids: {:.1} mm in XY; no order of these cuts needs less than {:.1} mm (the \
+                 minimum spanning tree of the work zero and the pierce points, {:.1} mm, less \
+                 how far each cut ends from its pierce point)",
+                r.length_mm, r.lower_bound_mm, r.pierce_tree_mm
+            );
+        }
         write_list(&mut s, "warnings", &self.warnings);
         write_list(&mut s, "notes", &self.notes);
         if !self.files.is_empty() {
