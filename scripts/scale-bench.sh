@@ -21,10 +21,12 @@ work=$(mktemp -d)
 trap 'rm -rf "$work"' EXIT
 sed -e 's/^x_max = .*/x_max = 10000.0/' -e 's/^y_max = .*/y_max = 10000.0/' \
   machine-profiles/laser.toml > "$work/big-laser.toml"
-measure() { # label, command...: prints "wall cpu peak_MB"
-  local out="$work/time.txt"
-  /usr/bin/time -f "%e %U %S %M" -o "$out" "${@}" > /dev/null
-  awk '{printf "%.2f %.2f %.0f", $1, $2 + $3, $4 / 1024}' "$out"
+measure() { # command...: prints "wall cpu peak_MB" (seconds to the millisecond)
+  local out="$work/time.txt" t
+  TIMEFORMAT='%3R %3U %3S'
+  t=$( { time /usr/bin/time -f "%M" -o "$out" "${@}" > /dev/null 2>&1; } 2>&1 )
+  read -r wall user sys <<< "$t"
+  awk -v w="$wall" -v u="$user" -v s="$sys" '{printf "%.3f %.3f %.0f", w, u + s, $1 / 1024}' "$out"
 }
 printf '%8s %10s %10s %10s %10s %10s %10s %8s\n' bays dxf_MB base_wall base_cpu conicut_wall conicut_cpu peak_MB cpu_ratio
 for n in "${sizes[@]}"; do
@@ -32,6 +34,6 @@ for n in "${sizes[@]}"; do
   size=$(stat -c %s "$work/sheet.dxf")
   read -r bw bc bm <<< "$(measure ./target/release/examples/read_write_baseline "$work/sheet.dxf" "$work/copy")"
   read -r cw cc cm <<< "$(measure ./target/release/conicut plan "$work/sheet.dxf" --machine "$work/big-laser.toml" --out "$work/out")"
-  ratio=$(awk -v a="$cc" -v b="$bc" 'BEGIN { printf "%.1f", (b > 0 ? a / b : 0) }')
+  ratio=$(awk -v a="$cc" -v b="$bc" 'BEGIN { if (b > 0) printf "%.1f", a / b; else printf "n/a" }')
   printf '%8d %10.1f %10s %10s %10s %10s %10s %8s\n' "$n" "$(awk -v s="$size" 'BEGIN{print s/1e6}')" "$bw" "$bc" "$cw" "$cc" "$cm" "$ratio"
 done
