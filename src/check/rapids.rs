@@ -4,8 +4,7 @@
 //! The bound: any order visits the work zero and every cut's pierce point, so its rapids, were
 //! each cut to end where it was pierced, would be a path through those points, and no path
 //! through points is shorter than their minimum spanning tree (Euclidean, found through the
-//! Delaunay triangulation, which holds every edge of that tree: Preparata & Shamos,
-//! "Computational Geometry", 1985, §6.1, from memory). A cut ends elsewhere (after its
+//! Delaunay triangulation, which holds every edge of that tree: docs/sources.md P4.4). A cut ends elsewhere (after its
 //! overcut and lead-out), so the rapid that leaves it may be shorter than the tree's idea by as
 //! much as its exit lies from its pierce point (the triangle inequality); the bound subtracts
 //! that for every cut.
@@ -133,6 +132,8 @@ mod tests {
 
     #[test]
     fn the_tree_agrees_with_prims_algorithm() {
+        // The Delaunay triangulation holds every edge of the Euclidean minimum spanning tree
+        // (docs/sources.md P4.4): Kruskal on its edges must match Prim's on every pair.
         let mut state = 0x2545_f491_4f6c_dd1d_u64;
         let mut next = || {
             state ^= state << 13;

@@ -279,8 +279,9 @@ mod tests {
 
     #[test]
     fn newton_finds_the_nearest_point_of_the_parallel_curve() {
-        // Against a dense search over the anomaly, for points within 0.05 mm either side of the
-        // parallel curve, started from the neighbouring anomaly as the measurement does.
+        // Against a dense search over the anomaly (the shared normal of docs/sources.md M11), for
+        // points within 0.05 mm either side of the parallel curve, started from the
+        // neighbouring anomaly as the measurement does.
         for (a, b, inset) in [
             (50.0, 20.0, 3.0),
             (50.0, 49.0, 3.0),

@@ -407,8 +407,8 @@ mod tests {
 
     #[test]
     fn newton_start_agrees_with_plain_bisection() {
-        // The Newton steps only narrow the bracket: the answer must be the one plain bisection
-        // of Eberly's F(u) gives (the method before the steps were added), to rounding.
+        // docs/sources.md M11. The Newton steps only narrow the bracket: the answer must be the
+        // one plain bisection of Eberly's F(u) gives (the method before the steps were added), to rounding.
         let bisect = |a: f64, b: f64, x0: f64, y0: f64| {
             let gap = a * a - b * b;
             let f = |u: f64| (a * x0 / (u + gap)).powi(2) + (b * y0 / u).powi(2) - 1.0;

@@ -437,9 +437,8 @@ mod tests {
         sorted.sort_unstable();
         assert_eq!(sorted, (0..3000).collect::<Vec<_>>(), "every cut once");
         let (before, after) = (tour(&points, &nn), tour(&points, &better));
-        // Nearest neighbour is commonly about 25 % above the optimum on random points and 2-opt
-        // about 5 % (Johnson & McGeoch, "The traveling salesman problem: a case study in local
-        // optimization", 1997, from memory); ask for a clear gain only.
+        // Nearest neighbour runs about 25 % above the optimum on random points and 2-opt about
+        // 5 % (docs/sources.md P4.4, from memory); ask for a clear gain only.
         assert!(after < 0.95 * before, "{before} → {after}");
     }
 
