@@ -131,9 +131,9 @@ mod tests {
 
     #[test]
     fn a_pentagon_far_from_the_origin_loses_no_digits() {
-        // docs/sources.md M12. The same construction 3 m out on a sheet (and 2 km, for margin): solved about the
-        // corners' mean, the answer is as good as near the origin. Without the shift the
-        // cancellation in Σ = ccᵀ − D lost about |c|²/size² of relative precision.
+        // docs/sources.md M12. The same construction 3 m out on a sheet (and 2 km, for margin):
+        // solved about the corners' mean, the answer is as good as near the origin. Without the
+        // shift the cancellation in Σ = ccᵀ − D lost about |c|²/size² of relative precision.
         for offset in [Vec2::new(3000.0, -1500.0), Vec2::new(2.0e6, 1.0e6)] {
             let known = Ellipse::new(Point::ORIGIN + offset, 7.0, 4.0, 0.4).unwrap();
             let ts = [0.2, 1.4, 2.6, 3.9, 5.1];
