@@ -4,9 +4,10 @@
 //! The bound: any order visits the work zero and every cut's pierce point, so its rapids, were
 //! each cut to end where it was pierced, would be a path through those points, and no path
 //! through points is shorter than their minimum spanning tree (Euclidean, found through the
-//! Delaunay triangulation, which holds every edge of that tree: docs/sources.md P4.4). A cut ends elsewhere (after its
-//! overcut and lead-out), so the rapid that leaves it may be shorter than the tree's idea by as
-//! much as its exit lies from its pierce point (the triangle inequality); the bound subtracts
+//! Delaunay triangulation, which holds every edge of that tree: docs/sources.md P4.4). A cut
+//! ends elsewhere (after its overcut and lead-out), so the rapid that leaves it may be shorter
+//! than the tree's idea by as much as its exit lies from its pierce point (the triangle
+//! inequality); the bound subtracts
 //! that for every cut.
 
 use super::Trace;
