@@ -8,7 +8,8 @@
 //! Ø4 mm fixing hole beside every third bay. The bays sit on a square pitch of [`PITCH`] mm; each
 //! is a triangle or quadrilateral whose corners lie on a circle at jittered angles (such a
 //! polygon is always convex), or a regular pentagon, then stretched and turned (which keeps it
-//! convex, and a pentagon's five-tangent ellipse inside it), so that no two bays are alike. A seed makes the drawing repeatable.
+//! convex, and a pentagon's five-tangent ellipse inside it), so that no two bays are alike. A
+//! seed makes the drawing repeatable.
 //!
 //! The text is an ASCII DXF of LINEs and CIRCLEs only (it reads the same in every DXF version),
 //! with `$INSUNITS` 4 (millimetres). The outline is a rectangle on [`super::OUTLINE_LAYER`] and
