@@ -124,6 +124,13 @@ pub(super) fn anomaly_at_length(
 /// The length of a path (mm).
 pub(super) fn path_length(path: &ExactPath) -> f64 {
     match path {
+        // A regular parallel curve (inset below b²/a) is `∫ (1 − dκ) ds = L − 2πd` long
+        // (docs/sources.md M8); past that, the speed's absolute value is integrated.
+        ExactPath::EllipseParallel { ellipse, inset, .. }
+            if *inset < ellipse.min_radius_of_curvature() =>
+        {
+            ellipse.perimeter() - TAU * inset
+        }
         ExactPath::EllipseParallel { ellipse, inset, .. } => {
             let h = TAU / ELLIPSE_STEPS as f64;
             let speed = |t: f64| ellipse_speed(ellipse, *inset, t);
@@ -184,6 +191,32 @@ pub(super) fn lead_out_shape(kind: LeadKind, f: &Frame, length: f64, radius: f64
                 Element::Arc(a),
                 Element::Line(Segment::new(q, q + n * length)),
             ]
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::geom::{Ellipse, Point};
+
+    #[test]
+    fn a_parallel_curve_is_the_perimeter_less_two_pi_times_the_inset() {
+        // docs/sources.md M8: ∫ (1 − dκ) ds = L − 2πd; against the Simpson sum of its speed.
+        let e = Ellipse::new(Point::new(5.0, -2.0), 50.0, 20.0, 0.4).unwrap();
+        for inset in [0.0, 3.0, 7.9, -3.0] {
+            let path = ExactPath::EllipseParallel {
+                ellipse: e,
+                inset,
+                start: 0.0,
+                clockwise: false,
+            };
+            let h = TAU / ELLIPSE_STEPS as f64;
+            let speed = |t: f64| ellipse_speed(&e, inset, t);
+            let summed: f64 = (0..ELLIPSE_STEPS)
+                .map(|k| simpson(&speed, k as f64 * h, h))
+                .sum();
+            assert!((path_length(&path) - summed).abs() < 1e-9, "inset {inset}");
         }
     }
 }
