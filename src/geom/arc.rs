@@ -114,8 +114,10 @@ impl ArcSegment {
     /// The shortest distance from `p` to any point of the arc.
     pub fn distance_to(&self, p: Point) -> f64 {
         let v = p - self.centre;
-        if v.length() > 0.0 && self.contains_angle(v.angle()) {
-            (v.length() - self.radius).abs()
+        let r = v.length();
+        // A full circle holds every direction (no angle to work out).
+        if r > 0.0 && (self.is_full_circle() || self.contains_angle(v.angle())) {
+            (r - self.radius).abs()
         } else {
             p.distance(self.start_point())
                 .min(p.distance(self.end_point()))
