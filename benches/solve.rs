@@ -4,11 +4,14 @@
 //!   quadrilateral (0,0), (5,0), (4,3), (1,4), no margin (target: ≤ 500 ns per solve).
 //! * `three_points_two_lines`: every conic through (1,7), (8,1), (9,8) touching x = 0 and y = 0,
 //!   the worked example of docs/sources.md M5 (four real ellipses).
+//! * `least_squares_100`: the least-squares ellipse through 100 points measured round a 40 × 15 mm
+//!   ellipse with ±0.02 mm of deterministic scatter (docs/sources.md M9's method).
 
 use conicut::chain::Bay;
 use conicut::geom::{Line, Point};
 use conicut::solve::conics_through_and_tangent;
 use conicut::solve::largest_tangent_ellipse;
+use conicut::solve::least_squares_ellipse;
 use criterion::{Criterion, criterion_group, criterion_main};
 use std::hint::black_box;
 
@@ -45,5 +48,26 @@ fn three_points_two_lines(c: &mut Criterion) {
     });
 }
 
-criterion_group!(benches, four_sided_largest, three_points_two_lines);
+fn least_squares_100(c: &mut Criterion) {
+    let points: Vec<Point> = (0..100)
+        .map(|k| {
+            let t = std::f64::consts::TAU * k as f64 / 100.0;
+            let wobble = 0.02 * (7.3 * k as f64).sin();
+            Point::new(
+                12.0 + (40.0 + wobble) * t.cos(),
+                -3.0 + (15.0 + wobble) * t.sin(),
+            )
+        })
+        .collect();
+    c.bench_function("least_squares_100", |b| {
+        b.iter(|| least_squares_ellipse(black_box(&points)).unwrap())
+    });
+}
+
+criterion_group!(
+    benches,
+    four_sided_largest,
+    three_points_two_lines,
+    least_squares_100
+);
 criterion_main!(benches);

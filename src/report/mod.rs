@@ -313,6 +313,19 @@ impl Report {
         serde_json::to_string_pretty(self).unwrap_or_default()
     }
 
+    /// The rapid travel and its bound, when measured.
+    fn write_rapids(&self, s: &mut String) {
+        if let Some(r) = &self.rapids {
+            let _ = writeln!(
+                s,
+                "\nrapids: {:.1} mm in XY; no order of these cuts needs less than {:.1} mm (the \
+                 minimum spanning tree of the work zero and the pierce points, {:.1} mm, less \
+                 how far each cut ends from its pierce point)",
+                r.length_mm, r.lower_bound_mm, r.pierce_tree_mm
+            );
+        }
+    }
+
     /// The one-screen summary for people.
     pub fn to_text(&self) -> String {
         let mut s = String::new();
@@ -379,15 +392,7 @@ impl Report {
             );
         }
         self.write_tabs(&mut s);
-        if let Some(r) = &self.rapids {
-            let _ = writeln!(
-                s,
-                "\nrapids: {:.1} mm in XY; no order of these cuts needs less than {:.1} mm (the \
-                 minimum spanning tree of the work zero and the pierce points, {:.1} mm, less \
-                 how far each cut ends from its pierce point)",
-                r.length_mm, r.lower_bound_mm, r.pierce_tree_mm
-            );
-        }
+        self.write_rapids(&mut s);
         write_list(&mut s, "warnings", &self.warnings);
         write_list(&mut s, "notes", &self.notes);
         if !self.files.is_empty() {
