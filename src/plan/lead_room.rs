@@ -1,9 +1,15 @@
 //! Where a lead may go: the finished edges it must keep the tool off, and the rules for one
 //! cut's leads (see the rules in [`super::leads`]).
 
-use super::leads::{MAX_SAMPLES, SAMPLE_SPACING};
 use super::{CutSide, FeatureKind, GOUGE_MARGIN, PlannedCut};
 use crate::geom::{Bounds, BoxGrid, Edge, Element, Point};
+
+/// Spacing (mm) of the points at which a lead is checked against the edges; at most
+/// [`MAX_SAMPLES`] per piece.
+pub const SAMPLE_SPACING: f64 = 0.02;
+
+/// The most points checked on one piece of a lead.
+pub const MAX_SAMPLES: usize = 4096;
 
 /// What a lead must keep away from: one cut's finished edge.
 pub(super) struct Obstacle {

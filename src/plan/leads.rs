@@ -26,7 +26,7 @@
 //!
 //! # Where a lead may go
 //!
-//! Every point of a lead, sampled every [`SAMPLE_SPACING`] mm along each piece (arcs included),
+//! Every point of a lead, sampled every [`SAMPLE_SPACING`](super::lead_room::SAMPLE_SPACING) mm along each piece (arcs included),
 //! must keep the tool off the finished part:
 //!
 //! * on its own cut's scrap side of the finished edge (arcs of a drawn contour followed exactly,
@@ -77,19 +77,12 @@
 //! finished edge, any cut's, less the tool radius (and a roughing cut's allowance from its own
 //! edge), zero unless the point is on the cut's scrap side.
 
-use super::lead_room::{Obstacles, Room};
+use super::lead_room::{Obstacles, Room, SAMPLE_SPACING};
 use super::lead_shape::{frame_at, lead_in_shape, lead_out_shape, path_length};
 use super::{CutSide, LeadKind, LeadOptions, PlanError, PlanOptions, PlannedCut};
 use crate::geom::{Element, ExactPath, Point, Segment};
 use rayon::prelude::*;
 use std::f64::consts::{FRAC_PI_2, PI, TAU};
-
-/// Spacing (mm) of the points at which a lead is checked against the edges; at most
-/// [`MAX_SAMPLES`] per piece.
-pub const SAMPLE_SPACING: f64 = 0.02;
-
-/// The most points checked on one piece of a lead.
-pub const MAX_SAMPLES: usize = 4096;
 
 /// How many times a lead that does not fit is halved before the cut falls back on a straight
 /// entry: down to 1/8 of the size asked for, below which a lead is hardly better than a straight

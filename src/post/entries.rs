@@ -3,7 +3,7 @@
 
 use super::error::PostError;
 use super::profile::{ArcForm, MachineProfile};
-use super::program::ProgramSettings;
+use super::setup::ProgramSettings;
 use super::writer::{Writer, units_point};
 use crate::fit::FittedCut;
 use crate::geom::Move;

@@ -4,8 +4,8 @@
 use super::entries::{helical, helix_radius};
 use super::number::format_number;
 use super::profile::{Cutter, MachineKind, MachineProfile, Process, Spindle};
-use super::program::{ProgramSettings, Resolved, Written, pass_depths};
 use super::safety::{PRECEDENCE, SAFETY_HEADING, cautions};
+use super::setup::{ProgramSettings, Resolved, Written, pass_depths};
 use super::writer::{COMMENT_WIDTH, comment_line, sanitize, wrap};
 use crate::fit::FittedCut;
 use crate::plan::{CutSide, FeatureKind};

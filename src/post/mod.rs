@@ -30,6 +30,7 @@ mod profile;
 mod program;
 mod refusals;
 mod safety;
+mod setup;
 mod writer;
 
 pub use arcs::{MAX_SPLITS, RADIUS_MARGIN};
@@ -40,6 +41,7 @@ pub use profile::{
     ArcForm, CommentStyle, Cutter, DwellUnit, MAX_DECIMALS, MM_PER_INCH, MachineKind,
     MachineProfile, Process, ProgramUnits, Spindle, TravelEnvelope, radius_rule,
 };
-pub use program::{ProgramSettings, pass_depths, write_program};
+pub use program::write_program;
 pub use safety::{PRECEDENCE, SAFETY_HEADING, cautions};
+pub use setup::{ProgramSettings, pass_depths};
 pub use writer::sanitize;

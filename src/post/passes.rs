@@ -3,7 +3,7 @@
 
 use super::error::PostError;
 use super::profile::Spindle;
-use super::program::{ProgramSettings, Resolved, Written, pass_depths};
+use super::setup::{ProgramSettings, Resolved, Written, pass_depths};
 use super::writer::{Writer, units_point};
 use crate::fit::FittedCut;
 use crate::geom::Move;

@@ -4,7 +4,7 @@
 use super::error::PostError;
 use super::passes::tab_pieces;
 use super::profile::Process;
-use super::program::{Resolved, Written};
+use super::setup::{Resolved, Written};
 use super::writer::Writer;
 use crate::fit::FittedCut;
 use crate::geom::Move;

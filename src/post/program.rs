@@ -6,93 +6,12 @@ use super::header::header;
 use super::number::format_number;
 use super::profile::{Cutter, MachineProfile};
 use super::refusals::{check_cut, check_feed, check_settings};
+use super::setup::{ProgramSettings, Resolved, Written};
 use super::writer::{Writer, sanitize, units_point};
 use crate::fit::FittedCut;
 
-/// What the user asked for this program. Lengths in millimetres, feeds in millimetres per minute
-/// (conicut's internal units; the profile's units apply only to the written program).
-#[derive(Debug, Clone, PartialEq)]
-pub struct ProgramSettings {
-    /// The job's title, for the header.
-    pub title: String,
-    /// The drawing the cuts came from, for the header (a file name, not a path of this machine).
-    pub source: String,
-    /// The width the paths allow for (mm, positive), for the header: the tool diameter on a mill
-    /// or router, the kerf width on a laser, plasma table or waterjet (usually the profile's
-    /// [`MachineProfile::kerf_width`]).
-    pub tool_diameter: f64,
-    /// Cut depth (mm, positive) on a mill or router: the floor of the cut is at Z = −depth.
-    /// Unused by lasers, plasma tables and waterjets, which cut through (any value is accepted).
-    pub depth: f64,
-    /// The tolerance the paths were fitted to (mm), for the header.
-    pub tolerance: f64,
-    /// Cutting feed (mm/min); `None` uses the profile's.
-    pub cut_feed: Option<f64>,
-    /// Feed down into the work (mm/min): the plunge on a mill or router, the move from pierce
-    /// height to cut height on the other kinds; `None` uses the profile's.
-    pub plunge_feed: Option<f64>,
-    /// Spindle speed (rpm) on a mill or router; `None` uses the profile's. Unused by the other
-    /// kinds.
-    pub spindle_speed: Option<f64>,
-    /// Entry into the material on a mill or router: `Some(angle)` ramps down in a zig-zag along the
-    /// line from the plunge point to the contour's start, never steeper than `angle` degrees
-    /// (common practice: about 1–3° in steel, up to 5–10° in aluminium, docs/sources.md
-    /// §4.3); `None` plunges straight down (only for centre-cutting tools). Unused by the other
-    /// kinds.
-    pub ramp_angle_deg: Option<f64>,
-    /// Depth of each pass (mm, positive) on a mill or router: the cut is made in
-    /// `ceil(depth / stepdown)` passes, the last one to the full depth; `None` cuts the full
-    /// depth in one pass. Unused by the other kinds.
-    pub stepdown: Option<f64>,
-    /// With a ramp angle: enter by a helix about the plunge point where the cut leaves room for
-    /// one ([`helix_radius`]), by the zig-zag elsewhere. Unused by the other kinds.
-    pub helical_entry: bool,
-    /// Mills and routers: the height of tabs above the floor of the cut (mm); passes whose floor
-    /// lies below the tab top rise to it over each tab. Unused by the other kinds, whose tabs
-    /// are gaps.
-    pub tab_height: f64,
-}
-
-/// The floors of the passes (mm below the work zero, ascending in depth): every `stepdown` down
-/// to `depth`, the last at exactly `depth`. A pass shallower than a micrometre is merged into the
-/// one before it.
-pub fn pass_depths(depth: f64, stepdown: Option<f64>) -> Vec<f64> {
-    match stepdown {
-        Some(step) if step.is_finite() && step > 0.0 && step < depth => {
-            let n = (depth / step - 1e-9).ceil().max(1.0) as usize;
-            let mut out: Vec<f64> = (1..n).map(|k| k as f64 * step).collect();
-            out.retain(|d| depth - d > 1e-3);
-            out.push(depth);
-            out
-        }
-        _ => vec![depth],
-    }
-}
-
 /// The largest line number (NISTIR 6556 §3.3.1: at most five digits).
 pub(super) const MAX_LINE_NUMBER: u32 = 99_999;
-
-/// Feeds, heights and speeds of one program, resolved from the settings and the profile, in the
-/// profile's units.
-pub(super) struct Resolved {
-    pub(super) cut_feed: f64,
-    pub(super) plunge_feed: f64,
-    /// Spindle speed (rpm); mills and routers only.
-    pub(super) spindle_speed: f64,
-    /// The floor of a mill or router cut (negative); unused by the other kinds.
-    pub(super) floor: f64,
-    /// The tool diameter (mm), for the helix's reach.
-    pub(super) tool_diameter: f64,
-    /// Whether entries may be helical.
-    pub(super) helical: bool,
-}
-
-/// What was written for one cut, for the header.
-#[derive(Debug, Clone, Copy, Default)]
-pub(super) struct Written {
-    pub(super) lines: usize,
-    pub(super) arcs: usize,
-}
 
 /// Writes `cuts` as one program for `profile`.
 ///
@@ -104,7 +23,7 @@ pub(super) struct Written {
 /// line `G21|G20 G90 G17 G94 G40`; the profile's start block; a rapid to the safe height; then:
 ///
 /// * **mill, router**: the spindle on with `S` (and a `G4 P` dwell if the profile asks); per cut
-///   and per pass ([`pass_depths`]; one pass at the full depth for a finishing cut,
+///   and per pass ([`pass_depths`](super::pass_depths); one pass at the full depth for a finishing cut,
 ///   [`FittedCut::full_depth_only`]) a rapid over the plunge point and down to the retract height,
 ///   the entry into the pass's depth at the plunge point (a straight plunge without a ramp angle;
 ///   with one a helix, or a zig-zag ramp, see `Writer::enter`), then the runs of the cut at the
@@ -137,7 +56,7 @@ pub fn write_program(
         return Err(PostError::NoCuts);
     }
     check_settings(settings, profile.cutter())?;
-    let r = Resolved::new(profile, settings)?;
+    let r = resolve(profile, settings)?;
     for cut in cuts {
         check_cut(cut, profile, &r)?;
     }
@@ -146,43 +65,41 @@ pub fn write_program(
     Ok(assemble(&head, &body))
 }
 
-impl Resolved {
-    /// The feeds and spindle speed of `settings` (or the profile's), refused above the profile's
-    /// limits, in the profile's units.
-    fn new(profile: &MachineProfile, settings: &ProgramSettings) -> Result<Resolved, PostError> {
-        let units = profile.units();
-        let cut_feed = settings
-            .cut_feed
-            .map_or(profile.cut_feed(), |f| units.from_mm(f));
-        let plunge_feed = settings
-            .plunge_feed
-            .map_or(profile.plunge_feed(), |f| units.from_mm(f));
-        check_feed(profile, "cut feed", cut_feed)?;
-        let plunge_name = match profile.cutter() {
-            Cutter::Spindle(_) => "plunge feed",
-            Cutter::Process(_) => "feed down to the cut height",
-        };
-        check_feed(profile, plunge_name, plunge_feed)?;
-        let mut spindle_speed = 0.0;
-        if let Cutter::Spindle(s) = profile.cutter() {
-            spindle_speed = settings.spindle_speed.unwrap_or(s.speed);
-            if spindle_speed > s.max_speed {
-                return Err(PostError::SpindleTooFast {
-                    value: format_number(spindle_speed, 0),
-                    max: format_number(s.max_speed, 0),
-                    profile: profile.name().to_string(),
-                });
-            }
+/// The feeds and spindle speed of `settings` (or the profile's), refused above the profile's
+/// limits, in the profile's units.
+fn resolve(profile: &MachineProfile, settings: &ProgramSettings) -> Result<Resolved, PostError> {
+    let units = profile.units();
+    let cut_feed = settings
+        .cut_feed
+        .map_or(profile.cut_feed(), |f| units.from_mm(f));
+    let plunge_feed = settings
+        .plunge_feed
+        .map_or(profile.plunge_feed(), |f| units.from_mm(f));
+    check_feed(profile, "cut feed", cut_feed)?;
+    let plunge_name = match profile.cutter() {
+        Cutter::Spindle(_) => "plunge feed",
+        Cutter::Process(_) => "feed down to the cut height",
+    };
+    check_feed(profile, plunge_name, plunge_feed)?;
+    let mut spindle_speed = 0.0;
+    if let Cutter::Spindle(s) = profile.cutter() {
+        spindle_speed = settings.spindle_speed.unwrap_or(s.speed);
+        if spindle_speed > s.max_speed {
+            return Err(PostError::SpindleTooFast {
+                value: format_number(spindle_speed, 0),
+                max: format_number(s.max_speed, 0),
+                profile: profile.name().to_string(),
+            });
         }
-        Ok(Resolved {
-            cut_feed,
-            plunge_feed,
-            spindle_speed,
-            floor: -units.from_mm(settings.depth),
-            tool_diameter: settings.tool_diameter,
-            helical: helical(settings, profile),
-        })
     }
+    Ok(Resolved {
+        cut_feed,
+        plunge_feed,
+        spindle_speed,
+        floor: -units.from_mm(settings.depth),
+        tool_diameter: settings.tool_diameter,
+        helical: helical(settings, profile),
+    })
 }
 
 /// The program's blocks after the header: the opening, every cut, the closing; and what was

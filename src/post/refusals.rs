@@ -7,7 +7,7 @@ use super::entries::helix_radius;
 use super::error::PostError;
 use super::number::format_number;
 use super::profile::{ArcForm, Cutter, MachineProfile};
-use super::program::{ProgramSettings, Resolved};
+use super::setup::{ProgramSettings, Resolved};
 use super::writer::units_point;
 use crate::fit::FittedCut;
 use crate::geom::Move;

@@ -5,7 +5,7 @@ use super::arcs::{Piece, arc_pieces};
 use super::error::PostError;
 use super::number::format_number;
 use super::profile::{CommentStyle, DwellUnit, MachineProfile, ProgramUnits, radius_rule};
-use super::program::Written;
+use super::setup::Written;
 use crate::geom::Move;
 use crate::geom::Point;
 
