@@ -5,7 +5,7 @@ use crate::geom::Ellipse;
 use crate::geom::ExactPath;
 use crate::geom::Move;
 use crate::geom::search::golden_min;
-use crate::geom::{ArcSegment, Point, Segment};
+use crate::geom::{ArcSegment, Bounds, Point, Segment, bounds_of_elements};
 use serde::Serialize;
 use std::f64::consts::{FRAC_PI_2, TAU};
 
@@ -244,18 +244,30 @@ pub fn measure_sides(start: Point, moves: &[Move], exact: &ExactPath) -> SideDev
 /// sample's nearest move is looked for among the seven around the previous one's. A local
 /// answer can only be too large, never too small; the first sample and any answer longer than
 /// its move get a full scan.
+///
+/// The previous sample's move is measured first; the others of the seven only where their box
+/// lies no farther than the best so far (a box is never farther than its move), and of equally
+/// near moves the first in the order `j − 3 … j + 3` is kept, as a scan of all seven would.
 fn distance_to_pieces_in_order(samples: &[Point], segments: &[Element]) -> f64 {
     let n = segments.len();
+    let boxes: Vec<Option<Bounds>> = segments
+        .iter()
+        .map(|e| bounds_of_elements(std::slice::from_ref(e)))
+        .collect();
     let mut j = 0usize;
     let mut worst: f64 = 0.0;
     for (i, p) in samples.iter().enumerate() {
-        let (mut best, mut best_j) = (f64::INFINITY, j);
-        for k in 0..7 {
+        // (distance, place in the order j − 3 … j + 3, index)
+        let first = segments[j].distance_to(*p);
+        let (mut best, mut best_k, mut best_j) = (first, 3usize, j);
+        for k in (0..7).filter(|&k| k != 3) {
             let idx = (j + n + k - 3) % n;
+            if boxes[idx].is_some_and(|b| b.distance_to(*p) > best) {
+                continue;
+            }
             let d = segments[idx].distance_to(*p);
-            if d < best {
-                best = d;
-                best_j = idx;
+            if d < best || (d == best && k < best_k) {
+                (best, best_k, best_j) = (d, k, idx);
             }
         }
         if i == 0 || best > segments[best_j].length() {
