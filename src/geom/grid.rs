@@ -266,7 +266,7 @@ fn is_finite(b: &Bounds) -> bool {
 }
 
 /// The cell side: the median of the boxes' larger sides, raised so that the grid has at most
-/// [`CELLS_PER_ITEM`] cells per item; never zero.
+/// about [`CELLS_PER_ITEM`] cells per item (3 × that for boxes along a line); never zero.
 fn cell_size(boxes: &[&Bounds], extent: &Bounds) -> f64 {
     let mut sides: Vec<f64> = boxes
         .iter()
@@ -275,9 +275,13 @@ fn cell_size(boxes: &[&Bounds], extent: &Bounds) -> f64 {
     let mid = sides.len() / 2;
     let median = *sides.select_nth_unstable_by(mid, f64::total_cmp).1;
     let area = (extent.max.x - extent.min.x) * (extent.max.y - extent.min.y);
-    let least = (area / (CELLS_PER_ITEM * boxes.len()) as f64).sqrt();
+    let cells = (CELLS_PER_ITEM * boxes.len()) as f64;
+    let least = (area / cells).sqrt();
     let span = (extent.max.x - extent.min.x).max(extent.max.y - extent.min.y);
-    let cell = median.max(least);
+    // Also at least span / cells: boxes strung along one line (no area) then get at most that
+    // many cells along it, so the grid never has more than about 3 × CELLS_PER_ITEM cells per
+    // item.
+    let cell = median.max(least).max(span / cells);
     if cell > 0.0 && cell.is_finite() {
         cell
     } else if span > 0.0 {
@@ -412,6 +416,20 @@ mod tests {
             let found = grid.nearest(p, |k| centre(&boxes[k]).distance(p));
             assert_eq!(found, brute, "at {p:?}");
         }
+    }
+
+    #[test]
+    fn boxes_along_a_line_get_a_small_grid() {
+        // Points 1 µm across strung over a kilometre: the median side would make a billion
+        // cells; the span rule keeps them to a few per item.
+        let boxes: Vec<Bounds> = (0..1000)
+            .map(|k| square(1000.0 * k as f64, 5.0, 1e-6))
+            .collect();
+        let grid = BoxGrid::new(boxes.clone());
+        assert!(grid.nx * grid.ny <= 3 * CELLS_PER_ITEM * boxes.len() + 1);
+        let mut out = Vec::new();
+        grid.near(Point::new(2000.0, 5.0), 1.0, &mut out);
+        assert_eq!(out, vec![2]);
     }
 
     #[test]
