@@ -1,10 +1,11 @@
-//! The order of the inner cuts: nearest neighbour from the work zero, found through a grid so
-//! that a sheet of thousands of cuts is ordered in about linear time.
+//! The order of the inner cuts: nearest neighbour from the work zero, then 2-opt moves, both
+//! through grids so that a sheet of thousands of cuts is ordered in about linear time.
 //!
-//! Each next cut is the one whose plunge point is nearest to where the last cut ended (the first:
-//! nearest to the work zero); of equally near ones, the one first in the input. This is exactly
-//! what comparing every remaining cut would choose: the grid only skips cells that cannot hold a
-//! nearer point.
+//! Nearest neighbour: each next cut is the one whose plunge point is nearest to where the last
+//! cut ended (the first: nearest to the work zero); of equally near ones, the one first in the
+//! input. This is exactly what comparing every remaining cut would choose: the grid only skips
+//! cells that cannot hold a nearer point. Then [`two_opt`] shortens that tour, which ends at the
+//! outline's plunge point when there is an outline (it is cut last).
 
 use super::PlannedCut;
 use crate::geom::Point;
