@@ -284,7 +284,10 @@ fn check_design(u: &[(f64, f64)]) -> Result<[f64; 6], LeastSquaresError> {
         let (x, y) = u[i];
         [x * x, x * y, y * y, x, y, 1.0][j]
     });
-    let svd = design.svd(false, true);
+    // The singular values and right vectors of the design are those of its QR factor R (6 × 6),
+    // which is far cheaper to decompose than the n × 6 design itself.
+    let r_factor = design.qr().r();
+    let svd = r_factor.svd(false, true);
     let v_t = svd
         .v_t
         .as_ref()
