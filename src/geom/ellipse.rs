@@ -289,7 +289,20 @@ fn newton_from_below(f: &dyn Fn(f64) -> f64, gap: f64, c: f64, e: f64, lo: &mut 
     for _ in 0..64 {
         let fu = f(u);
         if fu <= 0.0 {
+            // Rounding took the step onto or past the root: close the bracket just below.
             *hi = hi.min(u);
+            let mut step = 4.0 * f64::EPSILON * u;
+            for _ in 0..12 {
+                let below = u - step;
+                if below <= *lo {
+                    break;
+                }
+                if f(below) > 0.0 {
+                    *lo = below;
+                    break;
+                }
+                step *= 8.0;
+            }
             return;
         }
         *lo = u;
@@ -297,10 +310,19 @@ fn newton_from_below(f: &dyn Fn(f64) -> f64, gap: f64, c: f64, e: f64, lo: &mut 
         let slope = -2.0 * (p * p / (u + gap) + q * q / u);
         let next = u - fu / slope;
         if !(next > u && next < *hi) {
-            // Converged from below: close the bracket just above, if F agrees.
-            let above = u + 4.0 * f64::EPSILON * u;
-            if above < *hi && f(above) <= 0.0 {
-                *hi = above;
+            // Converged from below: close the bracket just above, where F turns negative (a few
+            // ulps up, more where F's own rounding hides its sign that close).
+            let mut step = 4.0 * f64::EPSILON * u;
+            for _ in 0..12 {
+                let above = u + step;
+                if above >= *hi {
+                    break;
+                }
+                if f(above) <= 0.0 {
+                    *hi = above;
+                    break;
+                }
+                step *= 8.0;
             }
             return;
         }
