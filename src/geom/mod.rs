@@ -15,6 +15,7 @@
 mod arc;
 mod bounds;
 mod contour;
+pub mod decimal;
 mod ellipse;
 pub mod grid;
 mod line;

@@ -18,7 +18,7 @@
 /// assert_eq!(format_number(-2.0, 0), "-2");
 /// ```
 pub fn format_number(value: f64, decimals: usize) -> String {
-    let text = format!("{value:.decimals$}");
+    let text = crate::geom::decimal::fixed(value, decimals);
     match text.strip_prefix('-') {
         Some(rest) if rest.bytes().all(|c| c == b'0' || c == b'.') => rest.to_string(),
         _ => text,

@@ -110,7 +110,7 @@ pub fn num(v: f64) -> String {
     if !v.is_finite() {
         return "0".into();
     }
-    let s = format!("{v:.4}");
+    let s = crate::geom::decimal::fixed(v, 4);
     let s = s.trim_end_matches('0').trim_end_matches('.');
     match s {
         "-0" | "" => "0".into(),
