@@ -242,6 +242,17 @@ fn nearest_first_quadrant(a: f64, b: f64, x0: f64, y0: f64) -> (f64, f64) {
             // Each term is at most 1 at the root, so u ≥ b y0 and u + a² − b² ≥ a x0.
             let mut lo = (b * y0).max(a * x0 - gap);
             let mut hi = Vec2::new(a * x0, b * y0).length();
+            // A point near the curve has its root near u = b² (F(b²) is the point's level
+            // (x0/a)² + (y0/b)² − 1): start there, or a level's worth below it for a point
+            // inside, whenever F says the start is still below the root.
+            let b2 = b * b;
+            let level = (x0 / a).powi(2) + (y0 / b).powi(2) - 1.0;
+            for start in [b2, b2 * (1.0 + 2.0 * level)] {
+                if start > lo && start < hi && f(start) > 0.0 {
+                    lo = start;
+                    break;
+                }
+            }
             newton_from_below(&f, gap, a * x0, b * y0, &mut lo, &mut hi);
             for _ in 0..200 {
                 let mid = 0.5 * (lo + hi);
