@@ -37,6 +37,7 @@
 //! radius; the written radius mismatch (reported separately, at most 0.002 mm by the writer's
 //! rule) changes a projection by a second-order amount only.
 
+use crate::geom::search::brent_max;
 use crate::geom::{Bounds, BoxGrid, Contour, Element, Ellipse, ExactPath, Move, Point};
 use serde::Serialize;
 use std::f64::consts::{FRAC_PI_2, TAU};
@@ -499,111 +500,9 @@ fn refine_peaks(f: &dyn Fn(f64) -> f64, samples: &[f64], speed: f64, floor: f64)
         }
         let lo = (k as f64 - 1.0).max(0.0) * h;
         let hi = (k as f64 + 1.0).min(n as f64) * h;
-        best = best.max(golden_max(f, lo, hi)).max(v);
+        let x = k as f64 * h;
+        let (peak, _) = brent_max(&|u| f(u), lo, hi, x, v, 0.25 * PARAMETER_TOLERANCE);
+        best = best.max(peak).max(v);
     }
     best
-}
-
-/// The largest value of `f` on `[lo, hi]` that Brent's search finds (the peak when `f` is
-/// unimodal there): parabolas through the best three points where they step inside the
-/// bracket, golden-section steps where they do not, stopped when the bracket is about
-/// [`PARAMETER_TOLERANCE`] wide (R. P. Brent, "Algorithms for Minimization without Derivatives",
-/// 1973, ch. 5, docs/sources.md M13). A smooth peak takes about six evaluations where golden
-/// sections alone take over twenty. Every value it returns is one `f` took.
-fn golden_max(f: &dyn Fn(f64) -> f64, mut lo: f64, mut hi: f64) -> f64 {
-    let golden = 0.5 * (3.0 - 5f64.sqrt());
-    let g = |u: f64| -f(u);
-    let mut x = lo + golden * (hi - lo);
-    let (mut w, mut v) = (x, x);
-    let mut fx = g(x);
-    let (mut fw, mut fv) = (fx, fx);
-    let (mut d, mut e) = (0.0f64, 0.0f64);
-    for _ in 0..200 {
-        let m = 0.5 * (lo + hi);
-        let tol1 = f64::EPSILON * x.abs() + 0.25 * PARAMETER_TOLERANCE;
-        let tol2 = 2.0 * tol1;
-        if (x - m).abs() <= tol2 - 0.5 * (hi - lo) {
-            break;
-        }
-        let mut parabolic = false;
-        if e.abs() > tol1 {
-            let r = (x - w) * (fx - fv);
-            let mut q = (x - v) * (fx - fw);
-            let mut p = (x - v) * q - (x - w) * r;
-            q = 2.0 * (q - r);
-            if q > 0.0 {
-                p = -p;
-            } else {
-                q = -q;
-            }
-            if p.abs() < (0.5 * q * e).abs() && p > q * (lo - x) && p < q * (hi - x) {
-                e = d;
-                d = p / q;
-                let u = x + d;
-                if u - lo < tol2 || hi - u < tol2 {
-                    d = if x < m { tol1 } else { -tol1 };
-                }
-                parabolic = true;
-            }
-        }
-        if !parabolic {
-            e = if x < m { hi - x } else { lo - x };
-            d = golden * e;
-        }
-        let u = x + if d.abs() >= tol1 { d } else { tol1.copysign(d) };
-        let fu = g(u);
-        if fu <= fx {
-            if u < x {
-                hi = x;
-            } else {
-                lo = x;
-            }
-            (v, fv, w, fw, x, fx) = (w, fw, x, fx, u, fu);
-        } else {
-            if u < x {
-                lo = u;
-            } else {
-                hi = u;
-            }
-            if fu <= fw || w == x {
-                (v, fv, w, fw) = (w, fw, u, fu);
-            } else if fu <= fv || v == x || v == w {
-                (v, fv) = (u, fu);
-            }
-        }
-    }
-    -fx
-}
-
-#[cfg(test)]
-mod search_tests {
-    use super::*;
-
-    /// A function, its bracket and its largest value there.
-    type Case<'a> = (&'a dyn Fn(f64) -> f64, f64, f64, f64);
-
-    #[test]
-    fn the_peak_search_finds_smooth_peaks_kinks_and_peaks_at_the_ends() {
-        // docs/sources.md M13. Peaks inside, at a kink, and at either end of the bracket.
-        let cases: [Case; 5] = [
-            (&|u| 1.0 - (u - 0.3).powi(2), 0.0, 1.0, 1.0),
-            (&|u| (7.0 * u).sin(), 0.0, 0.5, 1.0),
-            (&|u| 2.0 - (u - 0.7).abs(), 0.5, 0.9, 2.0),
-            (&|u| u, 0.2, 0.4, 0.4),
-            (&|u| -u * u, 0.1, 0.3, -0.01),
-        ];
-        for (k, (f, lo, hi, peak)) in cases.into_iter().enumerate() {
-            let found = golden_max(f, lo, hi);
-            assert!(
-                found <= peak + 1e-15,
-                "case {k}: {found} above the peak {peak}"
-            );
-            // A parameter error of PARAMETER_TOLERANCE lowers these by at most about that much
-            // (slope ≤ 7) or its square.
-            assert!(
-                found >= peak - 7.0 * PARAMETER_TOLERANCE,
-                "case {k}: {found} vs {peak}"
-            );
-        }
-    }
 }

@@ -116,3 +116,51 @@ pub fn brent_max(f: &impl Fn(f64) -> f64, a: f64, b: f64, x: f64, fx: f64, tol: 
     }
     (-gx, x)
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// A function, its bracket and its extreme value there.
+    type Case<'a> = (&'a dyn Fn(f64) -> f64, f64, f64, f64);
+
+    const TOL: f64 = 1e-7;
+
+    /// Peaks inside, at a kink, and at either end of the bracket (docs/sources.md M13).
+    fn peaks() -> [Case<'static>; 5] {
+        [
+            (&|u| 1.0 - (u - 0.3).powi(2), 0.0, 1.0, 1.0),
+            (&|u| (7.0 * u).sin(), 0.0, 0.5, 1.0),
+            (&|u| 2.0 - (u - 0.7).abs(), 0.5, 0.9, 2.0),
+            (&|u| u, 0.2, 0.4, 0.4),
+            (&|u| -u * u, 0.1, 0.3, -0.01),
+        ]
+    }
+
+    #[test]
+    fn brent_finds_smooth_peaks_kinks_and_peaks_at_the_ends() {
+        for (k, (f, lo, hi, peak)) in peaks().into_iter().enumerate() {
+            for x in [lo, 0.5 * (lo + hi), hi] {
+                let (found, _) = brent_max(&|u| f(u), lo, hi, x, f(x), TOL);
+                assert!(found <= peak + 1e-15, "case {k}: {found} above {peak}");
+                // Located within a few TOL, the value is within slope (≤ 7) times that.
+                assert!(
+                    found >= peak - 7.0 * 4.0 * TOL,
+                    "case {k} from {x}: {found} vs {peak}"
+                );
+            }
+        }
+    }
+
+    #[test]
+    fn golden_section_finds_the_same_extremes() {
+        for (k, (f, lo, hi, peak)) in peaks().into_iter().enumerate() {
+            let (least, _) = golden_min(&|u| -f(u), lo, hi);
+            assert!(
+                (-least - peak).abs() < 1e-7,
+                "case {k}: {} vs {peak}",
+                -least
+            );
+        }
+    }
+}
