@@ -135,13 +135,8 @@ mod tests {
     fn the_tree_agrees_with_prims_algorithm() {
         // The Delaunay triangulation holds every edge of the Euclidean minimum spanning tree
         // (docs/sources.md P4.4): Kruskal on its edges must match Prim's on every pair.
-        let mut state = 0x2545_f491_4f6c_dd1d_u64;
-        let mut next = || {
-            state ^= state << 13;
-            state ^= state >> 7;
-            state ^= state << 17;
-            (state >> 11) as f64 / (1u64 << 53) as f64
-        };
+        let mut random = crate::geom::random::XorShift::from_state(0x2545_f491_4f6c_dd1d_u64);
+        let mut next = || random.next();
         for n in [2, 3, 10, 200, 700] {
             let points: Vec<[f64; 2]> = (0..n).map(|_| [500.0 * next(), 300.0 * next()]).collect();
             let (fast, slow) = (spanning_tree_length(&points), prim(&points));

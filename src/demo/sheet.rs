@@ -17,6 +17,7 @@
 
 use super::{HOLES_LAYER, OUTLINE_LAYER};
 use crate::chain::DEFAULT_BAY_LAYER;
+use crate::geom::random::XorShift;
 use std::f64::consts::TAU;
 use std::fmt::Write;
 
@@ -107,22 +108,6 @@ fn circle(out: &mut String, x: f64, y: f64, r: f64) {
         out,
         "0\nCIRCLE\n8\n{HOLES_LAYER}\n10\n{x:.6}\n20\n{y:.6}\n30\n0.0\n40\n{r:.6}\n"
     );
-}
-
-/// Marsaglia's xorshift64: numbers in [0, 1), the same for the same seed on every machine.
-struct XorShift(u64);
-
-impl XorShift {
-    fn new(seed: u64) -> Self {
-        XorShift(seed.wrapping_mul(0x9E37_79B9_7F4A_7C15) | 1)
-    }
-
-    fn next(&mut self) -> f64 {
-        self.0 ^= self.0 << 13;
-        self.0 ^= self.0 >> 7;
-        self.0 ^= self.0 << 17;
-        (self.0 >> 11) as f64 / (1u64 << 53) as f64
-    }
 }
 
 #[cfg(test)]

@@ -50,13 +50,8 @@ mod tests {
 
     #[test]
     fn the_text_is_the_standard_formatters() {
-        let mut state = 0x9E37_79B9_7F4A_7C15_u64;
-        let mut next = || {
-            state ^= state << 13;
-            state ^= state >> 7;
-            state ^= state << 17;
-            (state >> 11) as f64 / (1u64 << 53) as f64
-        };
+        let mut random = crate::geom::random::XorShift::from_state(0x9E37_79B9_7F4A_7C15_u64);
+        let mut next = || random.next();
         let mut values = vec![
             0.0,
             -0.0,

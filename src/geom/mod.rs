@@ -1,7 +1,8 @@
 //! Plane geometry shared by every stage: points, vectors, lines, segments, circular arcs,
 //! ellipses and their parallel curves, bounding boxes, closed contours of lines and arcs, exact tool-centre paths and the
 //! edges they make, feed moves (lines and arcs) and runs of them, the numeric helpers they need
-//! (real polynomial roots on an interval, golden-section and Brent searches), and the one
+//! (real polynomial roots on an interval, golden-section and Brent searches, a repeatable
+//! pseudo-random generator), and the one
 //! inch-to-millimetre factor.
 //!
 //! # Units and conventions
@@ -22,6 +23,7 @@ mod line;
 pub mod moves;
 mod parallel;
 mod path;
+pub mod random;
 pub mod roots;
 pub mod search;
 pub mod units;

@@ -414,17 +414,9 @@ mod tests {
     }
 
     fn random_points(n: usize, seed: u64, w: f64, h: f64) -> Vec<Point> {
-        let mut state = seed.wrapping_mul(0x9E37_79B9_7F4A_7C15) | 1;
+        let mut random = crate::geom::random::XorShift::new(seed);
         (0..n)
-            .map(|_| {
-                let mut next = || {
-                    state ^= state << 13;
-                    state ^= state >> 7;
-                    state ^= state << 17;
-                    (state >> 11) as f64 / (1u64 << 53) as f64
-                };
-                Point::new(w * next(), h * next())
-            })
+            .map(|_| Point::new(w * random.next(), h * random.next()))
             .collect()
     }
 
@@ -489,13 +481,8 @@ mod tests {
 
     #[test]
     fn the_grid_gives_the_order_of_comparing_every_cut() {
-        let mut state = 0x9E37_79B9_7F4A_7C15_u64;
-        let mut next = || {
-            state ^= state << 13;
-            state ^= state >> 7;
-            state ^= state << 17;
-            (state >> 11) as f64 / (1u64 << 53) as f64
-        };
+        let mut random = crate::geom::random::XorShift::from_state(0x9E37_79B9_7F4A_7C15_u64);
+        let mut next = || random.next();
         // Scattered, clustered in one corner, on a lattice (many equal distances), and with the
         // path starts a little off the plunge points as for real cuts.
         let scattered: Vec<Point> = (0..700)
