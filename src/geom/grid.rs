@@ -142,6 +142,29 @@ impl BoxGrid {
         ])
     }
 
+    /// Every item listed in a cell that `query` touches (an item spread over several cells is
+    /// named once for each), wide items not included.
+    fn listed<'a>(&'a self, query: &Bounds) -> impl Iterator<Item = usize> + 'a {
+        let c = self.cell_range(query);
+        c.into_iter().flat_map(move |c| {
+            (c[2]..=c[3]).flat_map(move |j| {
+                let row = j * self.nx;
+                self.items[self.starts[row + c[0]]..self.starts[row + c[1] + 1]]
+                    .iter()
+                    .copied()
+            })
+        })
+    }
+
+    /// The square of half side `radius` (at least 0) about `p`.
+    fn square_about(p: Point, radius: f64) -> Bounds {
+        let r = radius.max(0.0);
+        Bounds {
+            min: Point::new(p.x - r, p.y - r),
+            max: Point::new(p.x + r, p.y + r),
+        }
+    }
+
     /// The number of items.
     pub fn len(&self) -> usize {
         self.boxes.len()
@@ -162,20 +185,11 @@ impl BoxGrid {
     pub fn near(&self, p: Point, radius: f64, out: &mut Vec<usize>) {
         out.clear();
         let r = radius.max(0.0);
-        let query = Bounds {
-            min: Point::new(p.x - r, p.y - r),
-            max: Point::new(p.x + r, p.y + r),
-        };
-        if let Some(c) = self.cell_range(&query) {
-            for j in c[2]..=c[3] {
-                let row = j * self.nx;
-                for &k in &self.items[self.starts[row + c[0]]..self.starts[row + c[1] + 1]] {
-                    if self.boxes[k].distance_to(p) <= r {
-                        out.push(k);
-                    }
-                }
-            }
-        }
+        let query = Self::square_about(p, r);
+        out.extend(
+            self.listed(&query)
+                .filter(|&k| self.boxes[k].distance_to(p) <= r),
+        );
         out.extend(self.wide.iter().copied());
         out.sort_unstable();
         out.dedup();
@@ -185,21 +199,13 @@ impl BoxGrid {
     /// items always. `out` is cleared first.
     pub fn overlapping(&self, query: &Bounds, out: &mut Vec<usize>) {
         out.clear();
-        if let Some(c) = self.cell_range(query) {
-            for j in c[2]..=c[3] {
-                let row = j * self.nx;
-                for &k in &self.items[self.starts[row + c[0]]..self.starts[row + c[1] + 1]] {
-                    let b = &self.boxes[k];
-                    if b.min.x <= query.max.x
-                        && query.min.x <= b.max.x
-                        && b.min.y <= query.max.y
-                        && query.min.y <= b.max.y
-                    {
-                        out.push(k);
-                    }
-                }
-            }
-        }
+        out.extend(self.listed(query).filter(|&k| {
+            let b = &self.boxes[k];
+            b.min.x <= query.max.x
+                && query.min.x <= b.max.x
+                && b.min.y <= query.max.y
+                && query.min.y <= b.max.y
+        }));
         out.extend(self.wide.iter().copied());
         out.sort_unstable();
         out.dedup();
@@ -211,21 +217,10 @@ impl BoxGrid {
     /// left out are certainly farther. Allocates nothing.
     pub fn all_near(&self, p: Point, radius: f64, mut ok: impl FnMut(usize) -> bool) -> bool {
         let r = radius.max(0.0);
-        let query = Bounds {
-            min: Point::new(p.x - r, p.y - r),
-            max: Point::new(p.x + r, p.y + r),
-        };
-        if let Some(c) = self.cell_range(&query) {
-            for j in c[2]..=c[3] {
-                let row = j * self.nx;
-                for &k in &self.items[self.starts[row + c[0]]..self.starts[row + c[1] + 1]] {
-                    if self.boxes[k].distance_to(p) <= r && !ok(k) {
-                        return false;
-                    }
-                }
-            }
-        }
-        self.wide.iter().all(|&k| ok(k))
+        let query = Self::square_about(p, r);
+        self.listed(&query)
+            .all(|k| self.boxes[k].distance_to(p) > r || ok(k))
+            && self.wide.iter().all(|&k| ok(k))
     }
 
     /// The least of `distance(k)` over every item, found by asking ever wider circles about `p`:
@@ -304,13 +299,8 @@ mod tests {
 
     /// A deterministic scatter of boxes of varied size, and one covering them all.
     fn scatter() -> Vec<Bounds> {
-        let mut state = 0x2545_f491_4f6c_dd1d_u64;
-        let mut next = || {
-            state ^= state << 13;
-            state ^= state >> 7;
-            state ^= state << 17;
-            (state >> 11) as f64 / (1u64 << 53) as f64
-        };
+        let mut random = crate::geom::random::XorShift::from_state(0x2545_f491_4f6c_dd1d_u64);
+        let mut next = || random.next();
         let mut boxes: Vec<Bounds> = (0..2000)
             .map(|_| square(1000.0 * next(), 600.0 * next(), 1.0 + 40.0 * next()))
             .collect();
