@@ -92,6 +92,21 @@ fn tangent_conic_near_origin(corners: &[Point]) -> Result<Ellipse, String> {
 mod tests {
     use super::*;
 
+    /// The pentagon bounded by `known`'s tangent lines at five fixed parameters: its one tangent
+    /// conic is `known`.
+    fn corners_around(known: &Ellipse) -> Vec<Point> {
+        let lines: Vec<Line> = [0.2, 1.4, 2.6, 3.9, 5.1]
+            .iter()
+            .map(|&t| {
+                let p = known.point(t);
+                Line::through(p, p + known.derivative(t)).unwrap()
+            })
+            .collect();
+        (0..5)
+            .map(|i| lines[(i + 4) % 5].intersection(&lines[i]).unwrap())
+            .collect()
+    }
+
     #[test]
     fn regular_pentagon_gives_its_incircle() {
         // By symmetry the one conic touching a regular pentagon's sides is its incircle, radius
@@ -113,18 +128,7 @@ mod tests {
         // Five tangent lines of a known ellipse bound a pentagon whose one tangent conic is that
         // ellipse.
         let known = Ellipse::new(Point::new(3.0, 1.0), 7.0, 4.0, 0.4).unwrap();
-        let ts = [0.2, 1.4, 2.6, 3.9, 5.1];
-        let lines: Vec<Line> = ts
-            .iter()
-            .map(|&t| {
-                let p = known.point(t);
-                Line::through(p, p + known.derivative(t)).unwrap()
-            })
-            .collect();
-        let corners: Vec<Point> = (0..5)
-            .map(|i| lines[(i + 4) % 5].intersection(&lines[i]).unwrap())
-            .collect();
-        let e = tangent_conic(&corners).unwrap();
+        let e = tangent_conic(&corners_around(&known)).unwrap();
         assert!((e.a() - 7.0).abs() < 1e-9 && (e.b() - 4.0).abs() < 1e-9);
         assert!((e.angle() - 0.4).abs() < 1e-9);
     }
@@ -136,18 +140,7 @@ mod tests {
         // shift the cancellation in Σ = ccᵀ − D lost about |c|²/size² of relative precision.
         for offset in [Vec2::new(3000.0, -1500.0), Vec2::new(2.0e6, 1.0e6)] {
             let known = Ellipse::new(Point::ORIGIN + offset, 7.0, 4.0, 0.4).unwrap();
-            let ts = [0.2, 1.4, 2.6, 3.9, 5.1];
-            let lines: Vec<Line> = ts
-                .iter()
-                .map(|&t| {
-                    let p = known.point(t);
-                    Line::through(p, p + known.derivative(t)).unwrap()
-                })
-                .collect();
-            let corners: Vec<Point> = (0..5)
-                .map(|i| lines[(i + 4) % 5].intersection(&lines[i]).unwrap())
-                .collect();
-            let e = tangent_conic(&corners).unwrap();
+            let e = tangent_conic(&corners_around(&known)).unwrap();
             // Line intersections at |p| = 2e6 carry about 1e-9 mm of rounding themselves.
             let tol = 1e-9 * (1.0 + offset.length() / 1000.0);
             assert!(
