@@ -136,7 +136,7 @@ mod tests {
         // The Delaunay triangulation holds every edge of the Euclidean minimum spanning tree
         // (docs/sources.md P4.4): Kruskal on its edges must match Prim's on every pair.
         let mut random = crate::geom::random::XorShift::from_state(0x2545_f491_4f6c_dd1d_u64);
-        let mut next = || random.next();
+        let mut next = || random.next_f64();
         for n in [2, 3, 10, 200, 700] {
             let points: Vec<[f64; 2]> = (0..n).map(|_| [500.0 * next(), 300.0 * next()]).collect();
             let (fast, slow) = (spanning_tree_length(&points), prim(&points));

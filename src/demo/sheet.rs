@@ -76,10 +76,10 @@ pub fn sheet_dxf(bays: usize, seed: u64) -> String {
 
 /// A convex polygon of 3 to 5 corners about `(cx, cy)`, within 15 mm of it, counter-clockwise.
 fn bay_corners(random: &mut XorShift, cx: f64, cy: f64) -> Vec<(f64, f64)> {
-    let sides = 3 + (random.next() * 3.0) as usize % 3;
-    let radius = 11.0 + 2.0 * random.next();
-    let turn = TAU * random.next();
-    let (sx, sy) = (0.9 + 0.2 * random.next(), 0.9 + 0.2 * random.next());
+    let sides = 3 + (random.next_f64() * 3.0) as usize % 3;
+    let radius = 11.0 + 2.0 * random.next_f64();
+    let turn = TAU * random.next_f64();
+    let (sx, sy) = (0.9 + 0.2 * random.next_f64(), 0.9 + 0.2 * random.next_f64());
     let step = TAU / sides as f64;
     (0..sides)
         .map(|i| {
@@ -87,7 +87,7 @@ fn bay_corners(random: &mut XorShift, cx: f64, cy: f64) -> Vec<(f64, f64)> {
             // side lines is then the image of the incircle, inside the bay. Triangles and
             // quadrilaterals get jittered corners (their largest inscribed ellipse is inside).
             let jitter = if sides == 5 { 0.0 } else { 0.25 };
-            let t = i as f64 * step + jitter * step * (random.next() - 0.5);
+            let t = i as f64 * step + jitter * step * (random.next_f64() - 0.5);
             let (x, y) = (radius * sx * t.cos(), radius * sy * t.sin());
             let (s, c) = turn.sin_cos();
             (cx + c * x - s * y, cy + s * x + c * y)

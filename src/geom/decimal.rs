@@ -51,7 +51,7 @@ mod tests {
     #[test]
     fn the_text_is_the_standard_formatters() {
         let mut random = crate::geom::random::XorShift::from_state(0x9E37_79B9_7F4A_7C15_u64);
-        let mut next = || random.next();
+        let mut next = || random.next_f64();
         let mut values = vec![
             0.0,
             -0.0,

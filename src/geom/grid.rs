@@ -300,7 +300,7 @@ mod tests {
     /// A deterministic scatter of boxes of varied size, and one covering them all.
     fn scatter() -> Vec<Bounds> {
         let mut random = crate::geom::random::XorShift::from_state(0x2545_f491_4f6c_dd1d_u64);
-        let mut next = || random.next();
+        let mut next = || random.next_f64();
         let mut boxes: Vec<Bounds> = (0..2000)
             .map(|_| square(1000.0 * next(), 600.0 * next(), 1.0 + 40.0 * next()))
             .collect();

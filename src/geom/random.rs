@@ -29,13 +29,8 @@ impl XorShift {
     }
 
     /// A number in [0, 1) with 53 random bits.
-    pub fn next(&mut self) -> f64 {
+    pub fn next_f64(&mut self) -> f64 {
         (self.next_u64() >> 11) as f64 / (1u64 << 53) as f64
-    }
-
-    /// A number in [lo, hi).
-    pub fn range(&mut self, lo: f64, hi: f64) -> f64 {
-        lo + (hi - lo) * self.next()
     }
 }
 
@@ -51,16 +46,16 @@ mod tests {
         assert_eq!(r.next_u64(), 0x4082_2041);
         let mut a = XorShift::new(7);
         let mut b = XorShift::new(7);
-        let first: Vec<f64> = (0..1000).map(|_| a.next()).collect();
+        let first: Vec<f64> = (0..1000).map(|_| a.next_f64()).collect();
         assert!(first.iter().all(|&x| (0.0..1.0).contains(&x)));
         assert!(
             first
                 .iter()
-                .zip((0..1000).map(|_| b.next()))
+                .zip((0..1000).map(|_| b.next_f64()))
                 .all(|(x, y)| *x == y)
         );
         let mean = first.iter().sum::<f64>() / 1000.0;
         assert!((mean - 0.5).abs() < 0.05, "mean {mean}");
-        assert_ne!(XorShift::new(8).next(), first[0], "the seed matters");
+        assert_ne!(XorShift::new(8).next_f64(), first[0], "the seed matters");
     }
 }

@@ -416,7 +416,7 @@ mod tests {
     fn random_points(n: usize, seed: u64, w: f64, h: f64) -> Vec<Point> {
         let mut random = crate::geom::random::XorShift::new(seed);
         (0..n)
-            .map(|_| Point::new(w * random.next(), h * random.next()))
+            .map(|_| Point::new(w * random.next_f64(), h * random.next_f64()))
             .collect()
     }
 
@@ -482,7 +482,7 @@ mod tests {
     #[test]
     fn the_grid_gives_the_order_of_comparing_every_cut() {
         let mut random = crate::geom::random::XorShift::from_state(0x9E37_79B9_7F4A_7C15_u64);
-        let mut next = || random.next();
+        let mut next = || random.next_f64();
         // Scattered, clustered in one corner, on a lattice (many equal distances), and with the
         // path starts a little off the plunge points as for real cuts.
         let scattered: Vec<Point> = (0..700)
