@@ -1,7 +1,7 @@
 //! Checking a closed loop on the bay layer and turning it into a [`Bay`].
 
 use super::{BayError, BayProblem, ChainError, fmt_handles};
-use crate::geom::{Element, Point, Segment};
+use crate::geom::{Element, Point, Segment, Vec2};
 use serde::Serialize;
 
 /// Consecutive sides whose directions differ by at most this angle (radians) are one side.
@@ -38,6 +38,16 @@ impl Bay {
             .map(|i| Element::Line(Segment::new(corners[i], corners[(i + 1) % n])))
             .collect();
         make_bay(name, layer, &sides, handles, 0.0)
+    }
+
+    /// The bay moved by `v` (still convex, its corners in the same order).
+    pub fn translated(&self, v: Vec2) -> Bay {
+        Bay {
+            name: self.name.clone(),
+            layer: self.layer.clone(),
+            corners: self.corners.iter().map(|&p| p + v).collect(),
+            handles: self.handles.clone(),
+        }
     }
 
     /// A name for messages and reports, e.g. `bay 2`.

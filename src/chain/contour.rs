@@ -2,7 +2,7 @@
 //! beside the checks that make one).
 
 use super::Bay;
-use crate::geom::{Contour, Ellipse};
+use crate::geom::{Contour, Ellipse, Vec2};
 use serde::Serialize;
 
 /// The shape of an inner boundary of the part.
@@ -36,4 +36,37 @@ pub struct Part {
     pub bays: Vec<Bay>,
     /// Things the user should know that did not stop the job.
     pub warnings: Vec<String>,
+}
+
+impl InnerShape {
+    /// The shape moved by `v`.
+    pub fn translated(&self, v: Vec2) -> InnerShape {
+        match self {
+            InnerShape::Contour(c) => InnerShape::Contour(c.translated(v)),
+            InnerShape::Ellipse(e) => InnerShape::Ellipse(e.translated(v)),
+        }
+    }
+}
+
+impl InnerBoundary {
+    /// The boundary moved by `v`.
+    pub fn translated(&self, v: Vec2) -> InnerBoundary {
+        InnerBoundary {
+            name: self.name.clone(),
+            layer: self.layer.clone(),
+            shape: self.shape.translated(v),
+        }
+    }
+}
+
+impl Part {
+    /// The part moved by `v`: outline, holes and bays alike (the warnings unchanged).
+    pub fn translated(&self, v: Vec2) -> Part {
+        Part {
+            outline: self.outline.as_ref().map(|c| c.translated(v)),
+            holes: self.holes.iter().map(|h| h.translated(v)).collect(),
+            bays: self.bays.iter().map(|b| b.translated(v)).collect(),
+            warnings: self.warnings.clone(),
+        }
+    }
 }

@@ -16,6 +16,14 @@ pub struct ArcSegment {
 }
 
 impl ArcSegment {
+    /// The arc moved by `v`.
+    pub fn translated(&self, v: Vec2) -> ArcSegment {
+        ArcSegment {
+            centre: self.centre + v,
+            ..*self
+        }
+    }
+
     /// A full circle, counter-clockwise from angle 0.
     pub fn circle(centre: Point, radius: f64) -> Self {
         ArcSegment {

@@ -11,6 +11,14 @@ pub enum Element {
 }
 
 impl Element {
+    /// The piece moved by `v`.
+    pub fn translated(&self, v: Vec2) -> Element {
+        match self {
+            Element::Line(s) => Element::Line(s.translated(v)),
+            Element::Arc(a) => Element::Arc(a.translated(v)),
+        }
+    }
+
     pub fn start(&self) -> Point {
         match self {
             Element::Line(s) => s.start,
@@ -146,6 +154,15 @@ impl Contour {
             layer: layer.into(),
             handles,
         })
+    }
+
+    /// The contour moved by `v` (a translation keeps it closed: every piece moves alike).
+    pub fn translated(&self, v: Vec2) -> Contour {
+        Contour {
+            elements: self.elements.iter().map(|e| e.translated(v)).collect(),
+            layer: self.layer.clone(),
+            handles: self.handles.clone(),
+        }
     }
 
     /// The pieces in order of travel.

@@ -30,6 +30,14 @@ pub struct Ellipse {
 }
 
 impl Ellipse {
+    /// The ellipse moved by `v`.
+    pub fn translated(&self, v: Vec2) -> Ellipse {
+        Ellipse {
+            centre: self.centre + v,
+            ..*self
+        }
+    }
+
     /// An ellipse with semi-axes `r1` along the direction `angle` and `r2` across it. The axes are
     /// swapped and the angle normalised so that `a ≥ b` and the angle lies in (−π/2, π/2].
     pub fn new(centre: Point, r1: f64, r2: f64, angle: f64) -> Result<Self, EllipseError> {

@@ -15,6 +15,11 @@ impl Segment {
         Segment { start, end }
     }
 
+    /// The segment moved by `v`.
+    pub fn translated(&self, v: Vec2) -> Segment {
+        Segment::new(self.start + v, self.end + v)
+    }
+
     pub fn length(&self) -> f64 {
         self.start.distance(self.end)
     }
