@@ -9,7 +9,8 @@ use cli::progress::Progress;
 use conicut::chain::{DEFAULT_BAY_LAYER, DEFAULT_MAX_GAP};
 use conicut::geom::Point;
 use conicut::pipeline::{JobOutput, Step, resolve, run_resolved, run_resolved_watched, solve_job};
-use conicut::plan::{Direction, LeadKind};
+use conicut::plan::{Direction, LeadKind, WorkZero};
+use conicut::post::WorkOffset;
 use conicut::read::Units;
 use conicut::read::parse_points_csv;
 use conicut::report::OutputFile;
@@ -178,6 +179,17 @@ struct CutArgs {
     /// of machine.
     #[arg(long, allow_negative_numbers = true)]
     tab_height: Option<f64>,
+    /// Where the program's X0 Y0 is on the part: drawing (the drawing's own origin, the
+    /// default), lower-left, lower-right, upper-left, upper-right or centre of the outline's box
+    /// (of everything cut when there is no outline), or a drawing point X,Y in mm. Z0 is always
+    /// the top of the stock (the sheet's top on laser, plasma and waterjet), depths measured
+    /// down from it. A job file's `zero` applies when this is not given.
+    #[arg(long, allow_hyphen_values = true, value_name = "WHERE")]
+    zero: Option<WorkZero>,
+    /// The work offset the program runs from: G54 … G59. Default: the job file's, else the
+    /// machine profile's start block (G54 in the bundled profiles).
+    #[arg(long, value_name = "G5x")]
+    work_offset: Option<WorkOffset>,
     /// Straight moves (G1) only, no arcs (G2/G3).
     #[arg(long)]
     lines_only: bool,
@@ -302,6 +314,8 @@ fn request(file_name: String, input: &DrawingArgs, cut: Option<&CutArgs>) -> Res
         scrap_side_only: cut.is_some_and(|c| c.scrap_side_only),
         job,
         csv_points,
+        zero: cut.and_then(|c| c.zero),
+        work_offset: cut.and_then(|c| c.work_offset),
     })
 }
 

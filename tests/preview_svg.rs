@@ -135,6 +135,7 @@ fn render_input(f: &Fixture) -> String {
         ellipses: &f.ellipses,
         cuts: &f.cuts,
         tool_diameter: TOOL,
+        work_zero: "the drawing's origin",
     })
 }
 
@@ -363,6 +364,7 @@ fn empty_and_bad_input_still_give_a_valid_page() {
         ellipses: &[],
         cuts: &[],
         tool_diameter: f64::NAN,
+        work_zero: "the drawing's origin",
     });
     assert!(roxmltree::Document::parse(&svg).is_ok());
     assert!(!svg.contains("NaN"));
@@ -379,6 +381,7 @@ fn empty_and_bad_input_still_give_a_valid_page() {
         ellipses: &[],
         cuts: &cuts,
         tool_diameter: 6.0,
+        work_zero: "the drawing's origin",
     });
     let doc = roxmltree::Document::parse(&svg).unwrap();
     assert!(!svg.contains("NaN") && !svg.contains("inf"), "{svg}");
@@ -481,6 +484,7 @@ fn arc_moves_are_drawn_as_exact_svg_arcs() {
         ellipses: &[],
         cuts: &cuts,
         tool_diameter: 2.0,
+        work_zero: "the drawing's origin",
     });
     let doc = roxmltree::Document::parse(&svg).unwrap();
     for (cut, (centres, flag)) in cuts.iter().zip([

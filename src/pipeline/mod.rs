@@ -44,6 +44,11 @@ pub enum JobError {
     Fit { file: String, error: FitError },
     #[error("{file}: {error}")]
     Post { file: String, error: PostError },
+    #[error("{file}: {error}")]
+    Zero {
+        file: String,
+        error: plan::ZeroError,
+    },
     #[error("{file}: the edge margin must be zero or a positive number of mm (got {margin})")]
     BadMargin { file: String, margin: f64 },
     #[error(
@@ -266,9 +271,12 @@ pub fn run_resolved_watched(
 ) -> Result<JobOutput, JobError> {
     let file = || s.file_name.clone();
     watch(Step::Solving);
-    let solved = read_and_solve(dxf, s)?;
+    let mut solved = read_and_solve(dxf, s)?;
     refuse_unsolved(&solved, profile, &s.file_name)?;
-    let (to_cut, infos) = openings(&solved.features);
+    let (mut to_cut, mut infos) = openings(&solved.features);
+    let zero = place_zero(s, &mut solved, &mut to_cut, &mut infos)?;
+    let mut program_settings = resolved.program.clone();
+    program_settings.work_zero = Some(zero.words.clone());
     watch(Step::Planning(
         to_cut.len() + solved.part.holes.len() + usize::from(solved.part.outline.is_some()),
     ));
@@ -289,7 +297,7 @@ pub fn run_resolved_watched(
     }
     watch(Step::Writing);
     let program =
-        post::write_program(&cuts, profile, &resolved.program).map_err(|error| JobError::Post {
+        post::write_program(&cuts, profile, &program_settings).map_err(|error| JobError::Post {
             file: file(),
             error,
         })?;
@@ -310,6 +318,7 @@ pub fn run_resolved_watched(
         plan: &plan,
         cuts: &cuts,
         verified: &verified,
+        zero: &zero,
     });
     Ok(JobOutput {
         program,
@@ -329,6 +338,7 @@ struct Finished<'a> {
     plan: &'a plan::Plan,
     cuts: &'a [fit::FittedCut],
     verified: &'a check::Verified,
+    zero: &'a plan::PlacedZero,
 }
 
 /// The preview and the report of a finished job.
@@ -347,6 +357,7 @@ fn present(f: &Finished) -> (String, Report) {
         ellipses: &ellipses,
         cuts: f.cuts,
         tool_diameter: resolved.tool_diameter,
+        work_zero: &f.zero.words,
     });
     let mut warnings = solved.part.warnings.clone();
     warnings.extend(unused_warnings(&solved.unused_bays));
@@ -373,8 +384,38 @@ fn present(f: &Finished) -> (String, Report) {
             .tabs
             .filter(|t| t.height > 0.0 && !resolved.cuts_through)
             .map(|t| t.height),
+        work_zero: f.zero,
     });
     (preview, report)
+}
+
+/// Places the work zero the user asked for on the part and moves everything to be cut (the
+/// part and the solved ellipses) into program coordinates, X0 Y0 at that point (`plan::zero`).
+fn place_zero(
+    s: &JobSettings,
+    solved: &mut Solved,
+    to_cut: &mut [plan::Opening],
+    infos: &mut [SolvedInfo],
+) -> Result<plan::PlacedZero, JobError> {
+    let ellipses: Vec<Ellipse> = to_cut.iter().map(|o| o.ellipse).collect();
+    let zero = s
+        .work_zero()
+        .place(&solved.part, &ellipses)
+        .map_err(|error| JobError::Zero {
+            file: s.file_name.clone(),
+            error,
+        })?;
+    let v = zero.shift;
+    if v.x != 0.0 || v.y != 0.0 {
+        solved.part = solved.part.translated(v);
+        for o in to_cut.iter_mut() {
+            o.ellipse = o.ellipse.translated(v);
+        }
+        for i in infos.iter_mut() {
+            i.ellipse = i.ellipse.translated(v);
+        }
+    }
+    Ok(zero)
 }
 
 /// Refuses a pocket on a kind that cuts through, and a job with features that could not be

@@ -41,12 +41,14 @@ mod order;
 mod paths;
 pub mod pocket;
 mod tabs;
+pub mod zero;
 
 pub use cut::{PlannedCut, Tab};
 pub use error::PlanError;
 pub use options::{
     Direction, LeadKind, LeadOptions, POCKET_STEPOVER_PER_DIAMETER, PlanOptions, TabOptions,
 };
+pub use zero::{PlacedZero, WorkZero, ZERO_WORDS, ZeroError};
 
 use crate::chain::{InnerShape, Part};
 use crate::geom::Ellipse;

@@ -41,7 +41,7 @@ pub enum PostError {
     )]
     NotFinite { feature: String, what: &'static str },
     #[error(
-        "feature \"{feature}\": {what} would move {axis} to {value} {units}, outside the machine's travel {axis} {limits} {units}. Move the work zero, check the drawing's units and the depth, or use a profile for a larger machine"
+        "feature \"{feature}\": {what} would move {axis} to {value} {units}, outside the machine's travel {axis} {limits} {units}. Move the work zero (`--zero lower-left` puts X0 Y0 at the lower-left corner of the part, `--zero centre` at its centre), check the drawing's units and the depth, or use a profile for a larger machine"
     )]
     OutsideEnvelope {
         feature: String,

@@ -33,6 +33,7 @@ pub(super) fn header(
             profile.kind()
         ),
         format!("units: {u}, {}, feeds in {u}/min", units.g_word()),
+        zero_line(profile, s),
     ];
     match profile.cutter() {
         Cutter::Spindle(sp) => text.extend(spindle_lines(sp, s, r, profile, &xy, &z, &fd)),
@@ -71,6 +72,21 @@ pub(super) fn header(
         .flat_map(|t| wrap(&sanitize(t), COMMENT_WIDTH))
         .map(|t| comment_line(style, &t))
         .collect()
+}
+
+/// Where the program's zero is on the part: X0 Y0 in words, Z0 the top of the stock (or of the
+/// sheet, on the kinds that cut through), and the work offset when one was chosen.
+fn zero_line(profile: &MachineProfile, s: &ProgramSettings) -> String {
+    let xy = s.work_zero.as_deref().unwrap_or("the drawing's origin");
+    let z = if profile.spindle().is_some() {
+        "top of the stock"
+    } else {
+        "top of the sheet"
+    };
+    let offset = s
+        .work_offset
+        .map_or_else(String::new, |o| format!("; work offset {}", o.word()));
+    format!("work zero: X0 Y0 = {xy}; Z0 = {z}{offset}")
 }
 
 /// The header lines on the direction of travel (every kind) and, on mills and routers, the entry

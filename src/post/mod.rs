@@ -43,5 +43,5 @@ pub use profile::{
 };
 pub use program::write_program;
 pub use safety::{PRECEDENCE, SAFETY_HEADING, cautions};
-pub use setup::{ProgramSettings, pass_depths};
+pub use setup::{ProgramSettings, WorkOffset, pass_depths};
 pub use writer::sanitize;

@@ -6,7 +6,7 @@ use super::header::header;
 use super::number::format_number;
 use super::profile::{Cutter, MachineProfile};
 use super::refusals::{check_cut, check_feed, check_settings};
-use super::setup::{ProgramSettings, Resolved, Written};
+use super::setup::{ProgramSettings, Resolved, WorkOffset, Written};
 use super::writer::{Writer, sanitize, units_point};
 use crate::fit::FittedCut;
 
@@ -111,7 +111,7 @@ fn write_body(
     r: &Resolved,
 ) -> Result<(Vec<String>, Vec<Written>), PostError> {
     let mut w = Writer::new(profile);
-    w.opening(r);
+    w.opening(r, settings.work_offset);
     let mut written = Vec::new();
     for (i, cut) in cuts.iter().enumerate() {
         w.comment(&format!(
@@ -143,11 +143,15 @@ fn assemble(head: &[String], body: &[String]) -> String {
 impl Writer<'_> {
     /// The modal line, the profile's start block, a rapid to the safe height, and on a mill or
     /// router the spindle on (and its delay).
-    fn opening(&mut self, r: &Resolved) {
+    fn opening(&mut self, r: &Resolved, work_offset: Option<WorkOffset>) {
         let profile = self.profile;
         self.block(format!("{} G90 G17 G94 G40", profile.units().g_word()));
-        for line in profile.start_block() {
-            self.block(line.clone());
+        let (start_block, replaced) = with_work_offset(profile.start_block(), work_offset);
+        if let (Some(offset), false) = (work_offset, replaced) {
+            self.block(offset.word());
+        }
+        for line in start_block {
+            self.block(line);
         }
         self.rapid_z(profile.safe_height());
         if let Cutter::Spindle(s) = profile.cutter() {
@@ -187,4 +191,34 @@ impl Writer<'_> {
         }
         self.block("M30".to_string());
     }
+}
+
+/// The profile's start block with every G54–G59 word replaced by `offset` (when given), and
+/// whether one was there to replace.
+fn with_work_offset(block: &[String], offset: Option<WorkOffset>) -> (Vec<String>, bool) {
+    let Some(offset) = offset else {
+        return (block.to_vec(), false);
+    };
+    let mut replaced = false;
+    let lines = block
+        .iter()
+        .map(|line| {
+            let words: Vec<String> = line
+                .split(' ')
+                .map(|w| {
+                    let is_offset = w.len() == 3
+                        && w.starts_with(['G', 'g'])
+                        && w[1..].parse::<u8>().is_ok_and(|n| (54..=59).contains(&n));
+                    if is_offset {
+                        replaced = true;
+                        offset.word()
+                    } else {
+                        w.to_string()
+                    }
+                })
+                .collect();
+            words.join(" ")
+        })
+        .collect();
+    (lines, replaced)
 }

@@ -44,6 +44,34 @@ pub struct ProgramSettings {
     /// lies below the tab top rise to it over each tab. Unused by the other kinds, whose tabs
     /// are gaps.
     pub tab_height: f64,
+    /// Where X0 Y0 lies on the part, in words, for the header (`the lower-left corner of the
+    /// outline's box`); `None`: the drawing's own origin.
+    pub work_zero: Option<String>,
+    /// The work offset to run from; `None`: whatever the profile's start block selects. A G54
+    /// to G59 word in the start block is replaced by it; without one it is written as its own
+    /// block before the start block.
+    pub work_offset: Option<WorkOffset>,
+}
+
+/// A work offset, G54 to G59: which of the controller's stored zeros the program runs from.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct WorkOffset(u8);
+
+impl WorkOffset {
+    /// The offset `G<code>`, for codes 54 to 59.
+    pub fn new(code: u8) -> Option<WorkOffset> {
+        (54..=59).contains(&code).then_some(WorkOffset(code))
+    }
+
+    /// The G code's number, 54 to 59.
+    pub fn code(self) -> u8 {
+        self.0
+    }
+
+    /// The word as written: `G55`.
+    pub fn word(self) -> String {
+        format!("G{}", self.0)
+    }
 }
 
 /// The floors of the passes (mm below the work zero, ascending in depth): every `stepdown` down

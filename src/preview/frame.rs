@@ -58,7 +58,7 @@ pub struct Frame {
 }
 
 /// Number of legend rows (two columns each).
-pub const LEGEND_ROWS: usize = 5;
+pub const LEGEND_ROWS: usize = 6;
 
 impl Frame {
     /// A page around `content` with room above for the title and below for the legend.

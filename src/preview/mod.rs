@@ -42,6 +42,10 @@ pub struct PreviewInput<'a> {
     pub cuts: &'a [FittedCut],
     /// Tool diameter (mm), drawn as a translucent band along each tool path; 0 for none.
     pub tool_diameter: f64,
+    /// Where the program's X0 Y0 is on the part, in words (`the lower-left corner of the
+    /// outline's box`); the picture is in program coordinates, so X0 Y0 is its origin, marked
+    /// by two axes.
+    pub work_zero: &'a str,
 }
 
 /// The tool-centre path as points, for the bounds and the direction arrows (the path itself is
@@ -117,6 +121,7 @@ mod palette {
     pub const LEAD: &str = "#1a9a6c";
     pub const CLEARING: &str = "#8d74c4";
     pub const TAB: &str = "#e8a300";
+    pub const ORIGIN: &str = "#a4161a";
     pub const TEXT: &str = "#1d2733";
 }
 
@@ -159,6 +164,9 @@ pub fn preview_svg(input: &PreviewInput) -> String {
     doc = doc.add(part_group(input.part, u));
     doc = doc.add(cut_group(input, &frame));
     doc = doc.add(ellipse_group(input.ellipses, &frame));
+    if origin_in_view(&frame) {
+        doc = doc.add(origin_group(&frame));
+    }
     doc = doc.add(title_group(input, &frame));
     doc = doc.add(scale_bar(&frame));
     doc = doc.add(legend(&frame));
@@ -194,6 +202,16 @@ fn content_bounds(input: &PreviewInput) -> Option<Bounds> {
     } else {
         0.0
     };
+    // The work zero is drawn when it lies near the part (within half the part's size); a
+    // zero far away would shrink the part to a speck, and the title says where it is instead.
+    if let Some(b) = Bounds::of(pts.iter().copied()) {
+        let reach = 0.5 * b.width().max(b.height());
+        let gap_x = (b.min.x - 0.0).max(0.0 - b.max.x).max(0.0);
+        let gap_y = (b.min.y - 0.0).max(0.0 - b.max.y).max(0.0);
+        if gap_x <= reach && gap_y <= reach {
+            pts.push(Point::ORIGIN);
+        }
+    }
     for cut in input.cuts {
         let mut path = vec![cut.plunge];
         for (_, from, moves) in runs(cut) {
@@ -491,7 +509,11 @@ fn title_group(input: &PreviewInput, frame: &Frame) -> Group {
             fixed(input.tool_diameter, 2)
         ));
     }
-    subtitle.push_str("; dimensions in mm, drawn 1:1");
+    subtitle.push_str("; dimensions in mm, drawn 1:1; X0 Y0 = ");
+    subtitle.push_str(input.work_zero);
+    if !origin_in_view(frame) {
+        subtitle.push_str(" (outside this view)");
+    }
     Group::new()
         .set("class", "title")
         .set("fill", palette::TEXT)
@@ -593,23 +615,109 @@ fn legend(frame: &Frame) -> Group {
         g = g.add(sample).add(label(text, x, y));
     }
     let (x, y) = spot(items.len());
-    g.add(
-        Circle::new()
-            .set("cx", num(x + 1.5 * f))
-            .set("cy", num(y))
-            .set("r", num(4.0 * u))
-            .set("fill", palette::BACKGROUND)
-            .set("stroke", palette::PLUNGE)
-            .set("stroke-width", num(1.5 * u)),
-    )
-    .add(
-        Circle::new()
-            .set("cx", num(x + 1.5 * f))
-            .set("cy", num(y))
-            .set("r", num(1.2 * u))
-            .set("fill", palette::PLUNGE),
-    )
-    .add(label("plunge point", x, y))
+    g = g
+        .add(
+            Circle::new()
+                .set("cx", num(x + 1.5 * f))
+                .set("cy", num(y))
+                .set("r", num(4.0 * u))
+                .set("fill", palette::BACKGROUND)
+                .set("stroke", palette::PLUNGE)
+                .set("stroke-width", num(1.5 * u)),
+        )
+        .add(
+            Circle::new()
+                .set("cx", num(x + 1.5 * f))
+                .set("cy", num(y))
+                .set("r", num(1.2 * u))
+                .set("fill", palette::PLUNGE),
+        )
+        .add(label("plunge point", x, y));
+    if origin_in_view(frame) {
+        // The same mark as in the picture, smaller, its corner low in the sample's box.
+        let (x, y) = spot(items.len() + 1);
+        let mark = Group::new()
+            .set("stroke", palette::ORIGIN)
+            .set("stroke-width", num(1.5 * u))
+            .set("fill", "none")
+            .add(axes_mark(x + 0.6 * f, y + 0.4 * f, 0.9 * f, u));
+        g = g.add(mark).add(label("work zero X0 Y0", x, y));
+    }
+    g
+}
+
+/// Whether the program's origin lies inside the drawn content (see [`content_bounds`]).
+fn origin_in_view(frame: &Frame) -> bool {
+    let c = &frame.content;
+    c.min.x <= 0.0 && 0.0 <= c.max.x && c.min.y <= 0.0 && 0.0 <= c.max.y
+}
+
+/// The work zero: a ring at X0 Y0 and arrows along +X and +Y, three text heights long, each
+/// named by its letter.
+fn origin_group(frame: &Frame) -> Group {
+    let u = frame.unit();
+    let f = frame.font;
+    let length = 3.0 * f;
+    let mut g = Group::new()
+        .set("class", "work-zero")
+        .set("stroke", palette::ORIGIN)
+        .set("stroke-width", num(1.5 * u))
+        .set("fill", "none");
+    g = g.add(axes_mark(0.0, 0.0, length, u));
+    for (text, x, y) in [("X", length + 0.4 * f, 0.0), ("Y", 0.0, -length - 0.5 * f)] {
+        g = g.add(
+            Text::new(text)
+                .set("x", num(x))
+                .set("y", num(y))
+                .set("font-size", num(0.8 * f))
+                .set("text-anchor", "middle")
+                .set("dominant-baseline", "middle")
+                .set("stroke", "none")
+                .set("fill", palette::ORIGIN),
+        );
+    }
+    g
+}
+
+/// Two arrows from the SVG point `(x, y)`, `length` along +X (right) and +Y (up, SVG −y), and a
+/// ring at the corner: the work-zero mark, in the picture and in the legend.
+fn axes_mark(x: f64, y: f64, length: f64, u: f64) -> Group {
+    let head = 0.25 * length;
+    let arrow_x = format!(
+        "M{} {} L{} {} M{} {} L{} {} L{} {}",
+        num(x),
+        num(y),
+        num(x + length),
+        num(y),
+        num(x + length - head),
+        num(y - 0.5 * head),
+        num(x + length),
+        num(y),
+        num(x + length - head),
+        num(y + 0.5 * head)
+    );
+    let arrow_y = format!(
+        "M{} {} L{} {} M{} {} L{} {} L{} {}",
+        num(x),
+        num(y),
+        num(x),
+        num(y - length),
+        num(x - 0.5 * head),
+        num(y - length + head),
+        num(x),
+        num(y - length),
+        num(x + 0.5 * head),
+        num(y - length + head)
+    );
+    Group::new()
+        .add(Path::new().set("d", arrow_x))
+        .add(Path::new().set("d", arrow_y))
+        .add(
+            Circle::new()
+                .set("cx", num(x))
+                .set("cy", num(y))
+                .set("r", num(3.0 * u)),
+        )
 }
 
 fn fixed(v: f64, decimals: usize) -> String {

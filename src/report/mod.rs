@@ -126,6 +126,23 @@ pub struct Report {
     /// Mills and routers: the height of tabs above the floor of the cut (mm); `None` when there
     /// are no tabs or they are gaps (laser, plasma, waterjet).
     pub tab_height_mm: Option<f64>,
+    /// Where the program's X0 Y0 is on the drawing. Every coordinate in this report (centres,
+    /// plunge points, tabs, the program's box) is a program coordinate: the drawing coordinate
+    /// plus `shift_mm`.
+    pub work_zero: WorkZeroReport,
+}
+
+/// The work zero: the rule asked for, the drawing point that is X0 Y0, and the shift.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct WorkZeroReport {
+    /// `drawing`, `lower-left`, `lower-right`, `upper-left`, `upper-right`, `centre`, or `X,Y`.
+    pub rule: String,
+    /// Where X0 Y0 is, in words.
+    pub description: String,
+    /// The drawing point that is X0 Y0 (mm).
+    pub drawing_point_mm: [f64; 2],
+    /// Program coordinates are drawing coordinates plus this (mm).
+    pub shift_mm: [f64; 2],
 }
 
 /// The box the tool centre stays in (mm).
@@ -161,6 +178,8 @@ pub struct ReportInput<'a> {
     pub rapids: Option<crate::check::rapids::Rapids>,
     /// Mills and routers with tabs: their height above the floor (mm).
     pub tab_height: Option<f64>,
+    /// Where the program's X0 Y0 is on the drawing.
+    pub work_zero: &'a crate::plan::PlacedZero,
 }
 
 fn summary(e: &crate::geom::Ellipse) -> EllipseSummary {
@@ -270,6 +289,15 @@ pub fn build_report(input: ReportInput) -> Report {
             lower_bound_mm: r.lower_bound,
         }),
         tab_height_mm: input.tab_height,
+        work_zero: WorkZeroReport {
+            rule: input.work_zero.rule.word(),
+            description: input.work_zero.words.clone(),
+            drawing_point_mm: [
+                input.work_zero.drawing_point.x,
+                input.work_zero.drawing_point.y,
+            ],
+            shift_mm: [input.work_zero.shift.x, input.work_zero.shift.y],
+        },
     }
 }
 
@@ -343,6 +371,25 @@ impl Report {
             "drawing {} ({}), machine: {} ({}), {cutter}, tolerance {} mm",
             self.drawing, self.drawing_units, self.machine, self.machine_kind, self.tolerance_mm
         );
+        let z = &self.work_zero;
+        if z.shift_mm == [0.0, 0.0] {
+            let _ = writeln!(
+                s,
+                "work zero: X0 Y0 = {}; coordinates as drawn",
+                z.description
+            );
+        } else {
+            let _ = writeln!(
+                s,
+                "work zero: X0 Y0 = {}, drawing point ({:.3}, {:.3}); program coordinates = \
+                 drawing coordinates + ({:.3}, {:.3})",
+                z.description,
+                z.drawing_point_mm[0],
+                z.drawing_point_mm[1],
+                z.shift_mm[0],
+                z.shift_mm[1]
+            );
+        }
         let _ = writeln!(s);
         let w = self
             .features

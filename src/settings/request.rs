@@ -5,7 +5,8 @@ use super::defaults;
 use super::job_file::JobFile;
 use crate::chain;
 use crate::geom::{Point, Units};
-use crate::plan::{Direction, LeadKind};
+use crate::plan::{Direction, LeadKind, WorkZero};
+use crate::post::WorkOffset;
 use std::collections::BTreeMap;
 
 /// What the user asked for.
@@ -63,13 +64,34 @@ pub struct JobSettings {
     pub job: Option<JobFile>,
     /// Points read from the CSV files the job file names, by the path as written there (mm).
     pub csv_points: BTreeMap<String, Vec<Point>>,
+    /// Which drawing point becomes the program's X0 Y0 (`--zero`); `None`: the job file's, else
+    /// the drawing's own origin.
+    pub zero: Option<WorkZero>,
+    /// The work offset (`--work-offset`); `None`: the job file's, else the profile's.
+    pub work_offset: Option<WorkOffset>,
 }
 
 impl JobSettings {
+    /// The work zero asked for: the command line's, else the job file's, else the drawing's
+    /// origin.
+    pub fn work_zero(&self) -> WorkZero {
+        self.zero
+            .or_else(|| self.job.as_ref().and_then(|j| j.zero))
+            .unwrap_or_default()
+    }
+
+    /// The work offset asked for: the command line's, else the job file's; `None`: the
+    /// profile's.
+    pub fn work_offset(&self) -> Option<WorkOffset> {
+        self.work_offset
+            .or_else(|| self.job.as_ref().and_then(|j| j.work_offset))
+    }
+
     /// The command line's defaults for the drawing `file_name` cut with a tool (or kerf) of
     /// `tool_diameter` mm: no edge margin, 0.01 mm tolerance, the profile's depth in one pass, a
     /// helical entry no steeper than 3°, climb milling, the profile's leads, no tabs, no
-    /// finishing pass, arcs, two-sided tolerance, every bay's largest ellipse.
+    /// finishing pass, arcs, two-sided tolerance, every bay's largest ellipse, the drawing's
+    /// origin as the work zero, the profile's work offset.
     pub fn new(file_name: &str, tool_diameter: f64) -> Self {
         JobSettings {
             file_name: file_name.to_string(),
@@ -93,6 +115,8 @@ impl JobSettings {
             scrap_side_only: false,
             job: None,
             csv_points: BTreeMap::new(),
+            zero: None,
+            work_offset: None,
         }
     }
 }

@@ -134,6 +134,9 @@ pub fn resolve(s: &JobSettings, machine: &Machine) -> Result<ResolvedJob, Settin
         // A helix is written as arcs: not for straight moves only.
         helical_entry: s.helical_entry && !budget.lines_only,
         tab_height: tabs.map_or(0.0, |t| t.height),
+        // Placed on the part by the pipeline, once the part is read.
+        work_zero: None,
+        work_offset: s.work_offset(),
     };
     Ok(ResolvedJob {
         tool_diameter,

@@ -2,7 +2,8 @@
 //! line, in a job file and in a machine profile: one table per concept, parsed into the one enum
 //! the stages use ([`LeadKind`], [`Direction`]).
 
-use crate::plan::{Direction, LeadKind};
+use crate::plan::{Direction, LeadKind, WorkZero, ZERO_WORDS};
+use crate::post::WorkOffset;
 use std::str::FromStr;
 
 /// Each lead shape with its word.
@@ -70,6 +71,51 @@ impl FromStr for Direction {
     }
 }
 
+impl FromStr for WorkZero {
+    type Err = UnknownWord;
+
+    /// `drawing`, `lower-left`, `lower-right`, `upper-left`, `upper-right`, `centre` (or
+    /// `center`), or a drawing point `X,Y` in mm.
+    fn from_str(s: &str) -> Result<Self, Self::Err> {
+        let word = s.trim();
+        if word == "center" {
+            return Ok(WorkZero::Centre);
+        }
+        if let Some((x, y)) = word.split_once(',') {
+            let (x, y) = (x.trim().parse::<f64>(), y.trim().parse::<f64>());
+            if let (Ok(x), Ok(y)) = (x, y)
+                && x.is_finite()
+                && y.is_finite()
+            {
+                return Ok(WorkZero::At { x, y });
+            }
+        }
+        lookup(word, &ZERO_WORDS, "a work zero").map_err(|mut e| {
+            e.allowed
+                .push_str(", or a drawing point as X,Y in mm (e.g. 120,-35.5)");
+            e
+        })
+    }
+}
+
+impl FromStr for WorkOffset {
+    type Err = UnknownWord;
+
+    /// `G54` … `G59` (either case).
+    fn from_str(s: &str) -> Result<Self, Self::Err> {
+        let word = s.trim();
+        word.get(1..)
+            .filter(|_| word.starts_with(['G', 'g']))
+            .and_then(|n| n.parse::<u8>().ok())
+            .and_then(WorkOffset::new)
+            .ok_or_else(|| UnknownWord {
+                word: word.to_string(),
+                what: "a work offset",
+                allowed: "G54, G55, G56, G57, G58 or G59".into(),
+            })
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -88,5 +134,26 @@ mod tests {
             "\"spiral\" is not a lead shape; use \"straight\", \"line\", \"arc\" or \"line-arc\""
         );
         assert!("Climb!".parse::<Direction>().is_err());
+    }
+
+    #[test]
+    fn work_zeros_and_offsets_parse_and_others_are_refused() {
+        for (word, zero) in ZERO_WORDS {
+            assert_eq!(word.parse::<WorkZero>(), Ok(zero));
+        }
+        assert_eq!("center".parse::<WorkZero>(), Ok(WorkZero::Centre));
+        assert_eq!(
+            " 120, -35.5 ".parse::<WorkZero>(),
+            Ok(WorkZero::At { x: 120.0, y: -35.5 })
+        );
+        for bad in ["left", "1,2,3", "1,", "nan,0", "inf,1"] {
+            let e = bad.parse::<WorkZero>().unwrap_err();
+            assert!(e.to_string().contains("X,Y"), "{bad}: {e}");
+        }
+        assert_eq!("G55".parse::<WorkOffset>().map(|w| w.code()), Ok(55));
+        assert_eq!("g59".parse::<WorkOffset>().map(|w| w.code()), Ok(59));
+        for bad in ["G53", "G60", "55", "G5.5", ""] {
+            assert!(bad.parse::<WorkOffset>().is_err(), "{bad}");
+        }
     }
 }

@@ -50,5 +50,7 @@ pub fn program_settings(
         ramp_angle_deg: None,
         helical_entry: false,
         tab_height: 0.0,
+        work_zero: None,
+        work_offset: None,
     }
 }

@@ -3,7 +3,8 @@
 
 use super::{JobFileError, JobFileErrorKind as Kind};
 use crate::geom::Point;
-use crate::plan::LeadKind;
+use crate::plan::{LeadKind, WorkZero, ZERO_WORDS};
+use crate::post::WorkOffset;
 use crate::settings::toml_text::LineIndex;
 use toml::Spanned;
 use toml::de::{DeTable, DeValue};
@@ -238,6 +239,51 @@ impl<'t> Context<'t> {
                 e,
                 Kind::BadValue,
                 format!("unknown lead shape \"{word}\"; use {}", bad.allowed),
+            )
+        })
+    }
+
+    /// A work zero: a word (`"lower-left"`, …) or a drawing point `[x, y]` in the file's unit.
+    pub(super) fn work_zero(
+        &self,
+        e: &Entry<'_, '_>,
+        scale: f64,
+    ) -> Result<WorkZero, JobFileError> {
+        if let DeValue::Array(_) = e.value.get_ref() {
+            let p = self.point_of(e, e.value, scale)?;
+            return Ok(WorkZero::At { x: p.x, y: p.y });
+        }
+        let word = self.string(e)?;
+        if word.contains(',') {
+            return Err(self.at(
+                e,
+                Kind::BadValue,
+                format!(
+                    "the work zero \"{word}\" looks like a point; in a job file write a point as \
+                     a list in the file's unit, `zero = [x, y]`"
+                ),
+            ));
+        }
+        word.parse::<WorkZero>().map_err(|_| {
+            self.at(
+                e,
+                Kind::BadValue,
+                format!(
+                    "unknown work zero \"{word}\"; use {} in quotes, or a drawing point `[x, y]`",
+                    ZERO_WORDS.map(|(w, _)| format!("\"{w}\"")).join(", ")
+                ),
+            )
+        })
+    }
+
+    /// A work offset, `"G54"` to `"G59"`.
+    pub(super) fn work_offset(&self, e: &Entry<'_, '_>) -> Result<WorkOffset, JobFileError> {
+        let word = self.string(e)?;
+        word.parse::<WorkOffset>().map_err(|bad| {
+            self.at(
+                e,
+                Kind::BadValue,
+                format!("unknown work offset \"{word}\"; use {}", bad.allowed),
             )
         })
     }

@@ -1,10 +1,12 @@
 //! The keys a job file may hold, where, and which belong together.
 
 /// Keys allowed at the top of a job file.
-pub(super) const TOP_KEYS: [&str; 9] = [
+pub(super) const TOP_KEYS: [&str; 11] = [
     "units",
     "margin",
     "bay_layer",
+    "zero",
+    "work_offset",
     "lead",
     "lead_length",
     "lead_radius",

@@ -12,6 +12,10 @@
 //!                               # and size in this file is in this unit; nothing is guessed.
 //! margin = 4.0                  # optional: default edge margin for bay features (≥ 0)
 //! bay_layer = "OPENING-BAYS"    # optional: the DXF layer holding the bays
+//! zero = "lower-left"           # optional: the program's X0 Y0: drawing | lower-left |
+//!                               # lower-right | upper-left | upper-right | centre (of the
+//!                               # outline's box), or a drawing point [x, y]; default drawing
+//! work_offset = "G55"           # optional: G54 … G59; default the machine profile's
 //! lead = "line-arc"             # optional, every cut: straight | line | arc | line-arc
 //! lead_length = 2.0             # optional: the lead's straight part (≥ 0)
 //! lead_radius = 1.5             # optional: the lead's arc radius (> 0)
@@ -82,7 +86,8 @@ mod keys;
 mod parse;
 
 use crate::geom::Point;
-use crate::plan::LeadKind;
+use crate::plan::{LeadKind, WorkZero};
+use crate::post::WorkOffset;
 use crate::read::Units;
 
 pub use crate::solve::Rule;
@@ -97,6 +102,11 @@ pub struct JobFile {
     pub margin: Option<f64>,
     /// The DXF layer holding the bays, if the file names one.
     pub bay_layer: Option<String>,
+    /// `zero`: which drawing point becomes the program's X0 Y0, if the file says (the command
+    /// line's `--zero` wins).
+    pub zero: Option<WorkZero>,
+    /// `work_offset`: G54 … G59, if the file says (the command line's `--work-offset` wins).
+    pub work_offset: Option<WorkOffset>,
     /// Leads for every cut of the job, where the file gives them (mm); the command line
     /// overrides them and the machine profile fills in the rest.
     pub leads: LeadSpec,

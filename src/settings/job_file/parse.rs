@@ -37,11 +37,21 @@ pub fn parse_job_file(text: &str, file_name: &str) -> Result<JobFile, JobFileErr
     let margin = top.get("margin").map(|e| cx.margin(e, scale)).transpose()?;
     let bay_layer = top.get("bay_layer").map(|e| cx.string(e)).transpose()?;
     let leads = leads(&cx, &top, scale)?;
+    let zero = top
+        .get("zero")
+        .map(|e| cx.work_zero(e, scale))
+        .transpose()?;
+    let work_offset = top
+        .get("work_offset")
+        .map(|e| cx.work_offset(e))
+        .transpose()?;
     let features = features(&cx, feature_tables(&cx, &top)?, scale)?;
     Ok(JobFile {
         units,
         margin,
         bay_layer,
+        zero,
+        work_offset,
         leads,
         features,
     })
