@@ -71,6 +71,32 @@ impl Element {
         }
     }
 
+    /// The piece cut at share `t` (strictly between 0 and 1) into the part before and the part
+    /// after, meeting at [`Element::point_at`]`(t)`.
+    pub fn split_at(&self, t: f64) -> (Element, Element) {
+        match self {
+            Element::Line(s) => {
+                let m = s.point_at(t);
+                (
+                    Element::Line(Segment::new(s.start, m)),
+                    Element::Line(Segment::new(m, s.end)),
+                )
+            }
+            Element::Arc(a) => {
+                let first = ArcSegment {
+                    sweep: a.sweep * t,
+                    ..*a
+                };
+                let second = ArcSegment {
+                    start_angle: a.start_angle + a.sweep * t,
+                    sweep: a.sweep * (1.0 - t),
+                    ..*a
+                };
+                (Element::Arc(first), Element::Arc(second))
+            }
+        }
+    }
+
     /// Shortest distance from `p` to this piece.
     pub fn distance_to(&self, p: Point) -> f64 {
         match self {
@@ -165,6 +191,35 @@ impl Contour {
         }
     }
 
+    /// The same closed path travelled from the point at share `t` (strictly between 0 and 1)
+    /// of piece `index` instead: that piece is cut there, its second part first and its first
+    /// part last. `None` for an index past the end or a `t` outside (0, 1).
+    pub fn starting_within(&self, index: usize, t: f64) -> Option<Contour> {
+        let piece = self.elements.get(index)?;
+        if !(t > 0.0 && t < 1.0) {
+            return None;
+        }
+        let (before, after) = piece.split_at(t);
+        let n = self.elements.len();
+        let mut elements = Vec::with_capacity(n + 1);
+        let mut handles = Vec::with_capacity(n + 1);
+        let handle = |k: usize| self.handles.get(k).cloned();
+        elements.push(after);
+        handles.extend(handle(index));
+        for k in 1..n {
+            let j = (index + k) % n;
+            elements.push(self.elements[j]);
+            handles.extend(handle(j));
+        }
+        elements.push(before);
+        handles.extend(handle(index));
+        Some(Contour {
+            elements,
+            layer: self.layer.clone(),
+            handles,
+        })
+    }
+
     /// The pieces in order of travel.
     pub fn elements(&self) -> &[Element] {
         &self.elements
@@ -232,15 +287,22 @@ impl Contour {
         for e in &self.elements {
             match e {
                 Element::Line(s) => total += angle_between(s.start - p, s.end - p),
-                Element::Arc(a) => {
-                    let (s, t) = (a.start_point(), a.end_point());
-                    let full = a.is_full_circle();
-                    if !full {
-                        total += angle_between(s - p, t - p);
-                    }
+                Element::Arc(a) if a.is_full_circle() => {
                     if p.distance(a.centre) < a.radius {
+                        total += std::f64::consts::TAU * a.sweep.signum();
+                    }
+                }
+                Element::Arc(a) => {
+                    // Each half of the arc in turn: the angle its chord subtends at `p`, and a
+                    // whole turn more when `p` lies between that chord and the arc. Halving
+                    // keeps the arc's centre, which lies on the chord of a half circle (where
+                    // the chord's angle is ±π either way), off both chords.
+                    let inside_circle = p.distance(a.centre) < a.radius;
+                    for (s, mid, t) in [(0.0, 0.25, 0.5), (0.5, 0.75, 1.0)] {
+                        let (s, mid, t) = (a.point_at(s), a.point_at(mid), a.point_at(t));
+                        total += angle_between(s - p, t - p);
                         let side = |q: Point| (t - s).cross(q - s);
-                        if full || side(p) * side(a.point_at(0.5)) > 0.0 {
+                        if inside_circle && side(p) * side(mid) > 0.0 {
                             total += std::f64::consts::TAU * a.sweep.signum();
                         }
                     }
@@ -292,6 +354,129 @@ pub fn bounds_of(points: &[Point]) -> Option<(Point, Point)> {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    /// An arc of `sweep_deg` about (3, −2), radius 5, from angle 20°, closed by its chord.
+    fn arc_and_chord(sweep_deg: f64, ccw: bool) -> (Contour, ArcSegment) {
+        let sweep = sweep_deg.to_radians() * if ccw { 1.0 } else { -1.0 };
+        let arc = ArcSegment {
+            centre: Point::new(3.0, -2.0),
+            radius: 5.0,
+            start_angle: 20f64.to_radians(),
+            sweep,
+        };
+        let chord = Segment::new(arc.end_point(), arc.start_point());
+        let c = Contour::new(vec![Element::Arc(arc), Element::Line(chord)], "0", vec![]).unwrap();
+        (c, arc)
+    }
+
+    #[test]
+    fn arcs_of_half_a_turn_and_about_it_enclose_what_they_bound() {
+        // The region an arc and its chord bound is the disc cut by the chord's line, on the side
+        // of the arc's middle, whatever the sweep. Points on a grid through the centre (which a
+        // half circle's chord passes through) and along the chord's line itself.
+        for sweep in [179.9, 180.0, 180.1, 359.9, 90.0] {
+            for ccw in [true, false] {
+                let (c, arc) = arc_and_chord(sweep, ccw);
+                let (s, t, mid) = (arc.start_point(), arc.end_point(), arc.point_at(0.5));
+                let side = |q: Point| (t - s).cross(q - s);
+                let mut points = vec![arc.centre, s.midpoint(t)];
+                for i in -12..=12 {
+                    for j in -12..=12 {
+                        points.push(arc.centre + Vec2::new(0.45 * i as f64, 0.45 * j as f64));
+                    }
+                }
+                for p in points {
+                    let (d, h) = (p.distance(arc.centre), side(p));
+                    // Leave out points within 1e-9 of the boundary (the arc, and the chord
+                    // inside the disc), where either answer is fair.
+                    let on_chord_line = h.abs() <= 1e-9 * (t - s).length();
+                    if (d - 5.0).abs() < 1e-9 || (on_chord_line && d < 5.0) {
+                        continue;
+                    }
+                    let truth = d < 5.0 && h * side(mid) > 0.0;
+                    assert_eq!(c.contains(p), truth, "sweep {sweep} ccw {ccw} at {p:?}");
+                }
+            }
+        }
+    }
+
+    #[test]
+    fn a_contour_started_within_a_piece_is_the_same_path() {
+        let (c, _) = arc_and_chord(180.0, true);
+        for index in 0..2 {
+            let moved = c.starting_within(index, 0.3).unwrap();
+            assert_eq!(moved.elements().len(), 3);
+            let start = c.elements()[index].point_at(0.3);
+            assert!(moved.elements()[0].start().distance(start) < 1e-12);
+            assert!(moved.elements()[2].end().distance(start) < 1e-12);
+            assert!((moved.length() - c.length()).abs() < 1e-12);
+            assert!((moved.signed_area() - c.signed_area()).abs() < 1e-9);
+            // Every piece ends where the next starts (Contour::new checks it).
+            assert!(Contour::new(moved.elements().to_vec(), "0", vec![]).is_ok());
+        }
+        assert!(c.starting_within(2, 0.5).is_none());
+        assert!(c.starting_within(0, 1.0).is_none());
+    }
+
+    #[test]
+    fn a_circle_drawn_as_two_half_circles_holds_its_centre() {
+        let c0 = Point::new(160.0, 50.0);
+        let half = |start: f64| {
+            Element::Arc(ArcSegment {
+                centre: c0,
+                radius: 10.0,
+                start_angle: start,
+                sweep: std::f64::consts::PI,
+            })
+        };
+        let c = Contour::new(vec![half(0.0), half(std::f64::consts::PI)], "0", vec![]).unwrap();
+        for p in [
+            c0,
+            c0 + Vec2::new(9.9, 0.0),
+            c0 + Vec2::new(-9.9, 0.0),
+            c0 + Vec2::new(0.0, 9.9),
+        ] {
+            assert!(c.contains(p), "{p:?}");
+        }
+        assert!(!c.contains(c0 + Vec2::new(10.1, 0.0)));
+        // An obround slot, its half circles' centres on their chords and inside the slot.
+        let (a, b, r) = (Point::new(60.0, 50.0), Point::new(120.0, 50.0), 8.0);
+        let up = Vec2::new(0.0, r);
+        let slot = Contour::new(
+            vec![
+                Element::Line(Segment::new(a - up, b - up)),
+                Element::Arc(ArcSegment {
+                    centre: b,
+                    radius: r,
+                    start_angle: -std::f64::consts::FRAC_PI_2,
+                    sweep: std::f64::consts::PI,
+                }),
+                Element::Line(Segment::new(b + up, a + up)),
+                Element::Arc(ArcSegment {
+                    centre: a,
+                    radius: r,
+                    start_angle: std::f64::consts::FRAC_PI_2,
+                    sweep: std::f64::consts::PI,
+                }),
+            ],
+            "0",
+            vec![],
+        )
+        .unwrap();
+        for k in -10..=80 {
+            // Off the ends at 52 and 128 (the boundary), through both arc centres at 60 and 120.
+            let k = if k == 10 {
+                9.5
+            } else if k == 70 {
+                69.5
+            } else {
+                k as f64
+            };
+            let p = Point::new(50.5 + k, 50.0);
+            let inside = p.x > a.x - r && p.x < b.x + r;
+            assert_eq!(slot.contains(p), inside, "{p:?}");
+        }
+    }
 
     fn square() -> Contour {
         let p = [
