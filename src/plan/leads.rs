@@ -254,33 +254,66 @@ fn round3(v: f64) -> f64 {
     (v * 1000.0).round() / 1000.0
 }
 
+/// Where a cut's path may start, for the lead search.
+#[derive(Debug, Clone, Copy, PartialEq)]
+enum Start {
+    /// Where the plan put it.
+    Planned,
+    /// At this anomaly of an ellipse's parallel curve.
+    Anomaly(f64),
+    /// In the middle of this piece of a contour.
+    MiddleOf(usize),
+}
+
+/// The most contour pieces whose middles are tried as starts (the longest first).
+const CONTOUR_STARTS: usize = 8;
+
 /// The starts to try for a cut: anomalies for an ellipse's parallel curve (inside: the ends of
-/// the minor axis, then the planned start and its opposite; outside: the planned start first),
-/// `None` (keep) for a contour.
-fn start_candidates(cut: &PlannedCut) -> Vec<Option<f64>> {
-    let ExactPath::EllipseParallel { start, .. } = cut.path else {
-        return vec![None];
+/// the minor axis, then the planned start and its opposite; outside: the planned start first);
+/// for a contour the planned start, then the middles of its longest pieces (a start at a sharp
+/// inside corner, where two pieces meet, may leave no room for a lead that a piece's middle has).
+fn start_candidates(cut: &PlannedCut) -> Vec<Start> {
+    let start = match &cut.path {
+        ExactPath::EllipseParallel { start, .. } => *start,
+        ExactPath::Contour(c) => {
+            let mut pieces: Vec<(usize, f64)> = c
+                .elements()
+                .iter()
+                .map(Element::length)
+                .enumerate()
+                .collect();
+            // Longest first; of equal length, the earlier.
+            pieces.sort_by(|a, b| b.1.total_cmp(&a.1).then(a.0.cmp(&b.0)));
+            return std::iter::once(Start::Planned)
+                .chain(
+                    pieces
+                        .into_iter()
+                        .take(CONTOUR_STARTS)
+                        .map(|(i, _)| Start::MiddleOf(i)),
+                )
+                .collect();
+        }
     };
     let list = match cut.side {
         CutSide::Inside => [FRAC_PI_2, 3.0 * FRAC_PI_2, start, start + PI],
         CutSide::Outside => [start, start + PI, FRAC_PI_2, 3.0 * FRAC_PI_2],
     };
-    let mut out: Vec<Option<f64>> = Vec::new();
+    let mut out: Vec<f64> = Vec::new();
     for t in list {
         let t = t.rem_euclid(TAU);
-        let seen = out.iter().flatten().any(|u| {
+        let seen = out.iter().any(|u| {
             let d = (t - u).rem_euclid(TAU);
             d.min(TAU - d) < 1e-12
         });
         if !seen {
-            out.push(Some(t));
+            out.push(t);
         }
     }
-    out
+    out.into_iter().map(Start::Anomaly).collect()
 }
 
-/// `path` starting at anomaly `start` (ellipse paths; others unchanged).
-fn with_start(path: &ExactPath, start: Option<f64>) -> ExactPath {
+/// `path` from `start`.
+fn with_start(path: &ExactPath, start: Start) -> ExactPath {
     match (path, start) {
         (
             ExactPath::EllipseParallel {
@@ -289,13 +322,16 @@ fn with_start(path: &ExactPath, start: Option<f64>) -> ExactPath {
                 clockwise,
                 ..
             },
-            Some(t),
+            Start::Anomaly(t),
         ) => ExactPath::EllipseParallel {
             ellipse: *ellipse,
             inset: *inset,
             start: t,
             clockwise: *clockwise,
         },
+        (ExactPath::Contour(c), Start::MiddleOf(i)) => c
+            .starting_within(i, 0.5)
+            .map_or_else(|| path.clone(), ExactPath::Contour),
         _ => path.clone(),
     }
 }
