@@ -109,6 +109,16 @@ struct DrawingArgs {
     /// margin wins).
     #[arg(long, default_value_t = defaults::MARGIN_MM, allow_negative_numbers = true)]
     margin: f64,
+    /// Cut only these layers' geometry (names separated by commas, matched ignoring case; the
+    /// bay layer is read as always). Default: every layer the drawing shows; frozen, off and
+    /// non-plotting layers are never cut unless named here. A job file's `cut_layers` applies
+    /// when this is not given.
+    #[arg(long, value_delimiter = ',', value_name = "LAYERS")]
+    cut_layers: Option<Vec<String>>,
+    /// Never cut these layers' geometry (names separated by commas, matched ignoring case). A
+    /// job file's `skip_layers` applies when this is not given.
+    #[arg(long, value_delimiter = ',', value_name = "LAYERS")]
+    skip_layers: Option<Vec<String>>,
     /// Largest gap closed when joining drawing pieces into contours (mm).
     #[arg(
         long = "gap-tolerance",
@@ -314,6 +324,8 @@ fn request(file_name: String, input: &DrawingArgs, cut: Option<&CutArgs>) -> Res
         scrap_side_only: cut.is_some_and(|c| c.scrap_side_only),
         job,
         csv_points,
+        cut_layers: input.cut_layers.clone(),
+        skip_layers: input.skip_layers.clone(),
         zero: cut.and_then(|c| c.zero),
         work_offset: cut.and_then(|c| c.work_offset),
     })
@@ -338,6 +350,8 @@ fn run(cli: Cli) -> Result<()> {
                 bay_layer: DEFAULT_BAY_LAYER.to_string(),
                 margin,
                 max_gap: DEFAULT_MAX_GAP,
+                cut_layers: None,
+                skip_layers: None,
             };
             let mut request = request(DEMO_NAME.to_string(), &input, Some(&cut))?;
             // The demo's own stock and end mill; cut-through kinds use their kerf.

@@ -84,6 +84,8 @@ fn example_file_parses_to_the_expected_specs() {
         units: Units::Millimetres,
         margin: Some(4.0),
         bay_layer: Some("OPENING-BAYS".into()),
+        cut_layers: None,
+        skip_layers: None,
         zero: None,
         work_offset: None,
         leads: LeadSpec::default(),

@@ -71,6 +71,8 @@ fn plate() -> Part {
         holes: vec![hole],
         bays: vec![bay],
         warnings: vec![],
+        notes: vec![],
+        layers: vec![],
     }
 }
 

@@ -36,6 +36,12 @@ pub struct ChainOptions {
     /// Layers of construction geometry that is neither cut nor a bay (probe points, guide lines
     /// named by a job file; compared case-insensitively): their entities are left out.
     pub construction_layers: Vec<String>,
+    /// When given, only these layers' geometry is cut (compared case-insensitively); the bay
+    /// layer and the construction layers are read as always. A layer named here is cut even
+    /// when the drawing hides it.
+    pub cut_layers: Option<Vec<String>>,
+    /// Layers whose geometry is never cut (compared case-insensitively).
+    pub skip_layers: Vec<String>,
 }
 
 impl Default for ChainOptions {
@@ -44,6 +50,8 @@ impl Default for ChainOptions {
             max_gap: DEFAULT_MAX_GAP,
             bay_layer: DEFAULT_BAY_LAYER.to_string(),
             construction_layers: Vec::new(),
+            cut_layers: None,
+            skip_layers: Vec::new(),
         }
     }
 }
@@ -66,13 +74,17 @@ impl Default for ChainOptions {
 ///   boxes: by x, then by y, then by first handle.
 /// * A bay not inside the outline, and ignored POINT entities, give warnings.
 /// * Entities on the construction layers are left out altogether.
+/// * Geometry on a layer the drawing hides (frozen, off, not plotted), on a layer named in
+///   `skip_layers`, or on a layer not named in `cut_layers` (when given) is not cut: each such
+///   layer is listed in the part's notes with its entities' handles. The bay layer is read
+///   whatever its state. Every layer with entities is listed in [`Part::layers`] with its role.
 pub fn build_part(drawing: &Drawing, opts: &ChainOptions) -> Result<Part, ChainError> {
     let max_gap = opts.max_gap;
     if !(max_gap.is_finite() && max_gap >= 0.0) {
         return Err(ChainError::BadMaxGap(max_gap));
     }
     let mut warnings = Vec::new();
-    let (mut layers, points) = gather(drawing, opts, max_gap)?;
+    let (mut layers, points, uses, notes) = gather(drawing, opts, max_gap)?;
     warnings.extend(points_warning(&points));
     join_layers(&mut layers, max_gap)?;
     let (bay_loops, shapes) = sort_loops(layers, max_gap)?;
@@ -87,6 +99,8 @@ pub fn build_part(drawing: &Drawing, opts: &ChainOptions) -> Result<Part, ChainE
         holes,
         bays,
         warnings,
+        notes,
+        layers: uses,
     })
 }
 

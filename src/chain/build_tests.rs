@@ -58,6 +58,7 @@ impl D {
             units: Units::Millimetres,
             units_from: UnitsSource::Header,
             notes: Vec::new(),
+            layers: Vec::new(),
         };
         build_part(&d, &ChainOptions::default())
     }
@@ -153,6 +154,7 @@ fn raising_the_max_gap_closes_the_gap_and_snaps_it() {
         units: Units::Millimetres,
         units_from: UnitsSource::Header,
         notes: Vec::new(),
+        layers: Vec::new(),
     };
     let opts = ChainOptions {
         max_gap: 0.3,
@@ -343,6 +345,7 @@ fn negative_max_gap_is_refused() {
         units: Units::Millimetres,
         units_from: UnitsSource::Header,
         notes: Vec::new(),
+        layers: Vec::new(),
     };
     let opts = ChainOptions {
         max_gap: -1.0,

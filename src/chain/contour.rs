@@ -36,6 +36,37 @@ pub struct Part {
     pub bays: Vec<Bay>,
     /// Things the user should know that did not stop the job.
     pub warnings: Vec<String>,
+    /// Geometry read but not cut (layers hidden or left out), one line each.
+    pub notes: Vec<String>,
+    /// Every layer that holds entities, in order of first appearance, with what it was used for.
+    pub layers: Vec<LayerUse>,
+}
+
+/// What one layer of the drawing was used for.
+#[derive(Debug, Clone, PartialEq, Eq, Serialize)]
+pub struct LayerUse {
+    pub name: String,
+    pub role: LayerRole,
+    /// Why a layer is not cut: `frozen`, `off`, `not plotted`, `skipped` (named in the skip
+    /// list), `not in the cut list`.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub reason: Option<String>,
+    /// How many of its entities were read.
+    pub entities: usize,
+}
+
+/// A layer's role in the job.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum LayerRole {
+    /// Its closed shapes are the outline and holes.
+    Cut,
+    /// The bay layer.
+    Bays,
+    /// Points and lines a job file's features are built from.
+    Construction,
+    /// Read, listed, never cut.
+    NotCut,
 }
 
 impl InnerShape {
@@ -60,13 +91,16 @@ impl InnerBoundary {
 }
 
 impl Part {
-    /// The part moved by `v`: outline, holes and bays alike (the warnings unchanged).
+    /// The part moved by `v`: outline, holes and bays alike (warnings, notes and layers
+    /// unchanged).
     pub fn translated(&self, v: Vec2) -> Part {
         Part {
             outline: self.outline.as_ref().map(|c| c.translated(v)),
             holes: self.holes.iter().map(|h| h.translated(v)).collect(),
             bays: self.bays.iter().map(|b| b.translated(v)).collect(),
             warnings: self.warnings.clone(),
+            notes: self.notes.clone(),
+            layers: self.layers.clone(),
         }
     }
 }

@@ -1,48 +1,131 @@
 //! Gathering the drawing's entities per layer: open pieces, closed loops and full ellipses.
 
 use super::ChainOptions;
+use super::contour::{LayerRole, LayerUse};
 use super::error::{ChainError, fmt_point};
 use super::join::{Piece, snap_loop};
 use crate::geom::Element;
 use crate::geom::{ArcSegment, Ellipse, Point, Segment};
 use crate::read::{Drawing, Entity, EntityKind};
+use std::collections::{HashMap, HashSet};
 
-/// The entities of every layer not a construction layer, per layer in order of first appearance
-/// (names compared case-insensitively), and a description of each POINT entity (not used).
+/// The entities of every layer that is cut or holds the bays, per layer in order of first
+/// appearance (names compared case-insensitively); a description of each POINT entity (not
+/// used); every layer's use; and a note for each layer read but not cut.
 pub(super) fn gather(
     drawing: &Drawing,
     opts: &ChainOptions,
     max_gap: f64,
-) -> Result<(Vec<LayerStuff>, Vec<String>), ChainError> {
+) -> Result<Gathered, ChainError> {
     let bay_key = opts.bay_layer.to_lowercase();
+    let lower =
+        |names: &[String]| -> HashSet<String> { names.iter().map(|n| n.to_lowercase()).collect() };
+    let construction = lower(&opts.construction_layers);
+    let skip = lower(&opts.skip_layers);
+    let cut_only = opts.cut_layers.as_deref().map(lower);
+    let hidden: HashMap<String, &'static str> = drawing
+        .layers
+        .iter()
+        .filter_map(|l| l.hidden().map(|why| (l.name.to_lowercase(), why)))
+        .collect();
+    // The role of a layer, and why it is not cut.
+    let role_of = |key: &str| -> (LayerRole, Option<&'static str>) {
+        if key == bay_key {
+            (LayerRole::Bays, None)
+        } else if construction.contains(key) {
+            (LayerRole::Construction, None)
+        } else if skip.contains(key) {
+            (LayerRole::NotCut, Some("skipped"))
+        } else if let Some(only) = &cut_only {
+            if only.contains(key) {
+                (LayerRole::Cut, None)
+            } else {
+                (LayerRole::NotCut, Some("not in the cut list"))
+            }
+        } else if let Some(why) = hidden.get(key) {
+            (LayerRole::NotCut, Some(*why))
+        } else {
+            (LayerRole::Cut, None)
+        }
+    };
     let mut layers: Vec<LayerStuff> = Vec::new();
+    let mut uses: Vec<LayerUse> = Vec::new();
+    let mut not_cut: Vec<Vec<String>> = Vec::new();
+    let mut index: HashMap<String, usize> = HashMap::new();
     let mut points: Vec<String> = Vec::new();
     for e in &drawing.entities {
         let key = e.layer.to_lowercase();
-        if opts
-            .construction_layers
-            .iter()
-            .any(|l| l.to_lowercase() == key)
-        {
-            continue;
-        }
-        let idx = match layers.iter().position(|l| l.key == key) {
-            Some(i) => i,
-            None => {
-                layers.push(LayerStuff {
-                    is_bay: key == bay_key,
-                    key,
-                    name: e.layer.clone(),
-                    pieces: Vec::new(),
-                    loops: Vec::new(),
-                    ellipses: Vec::new(),
-                });
-                layers.len() - 1
+        let k = *index.entry(key.clone()).or_insert_with(|| {
+            let (role, reason) = role_of(&key);
+            uses.push(LayerUse {
+                name: e.layer.clone(),
+                role,
+                reason: reason.map(str::to_string),
+                entities: 0,
+            });
+            not_cut.push(Vec::new());
+            layers.push(LayerStuff {
+                is_bay: role == LayerRole::Bays,
+                name: e.layer.clone(),
+                pieces: Vec::new(),
+                loops: Vec::new(),
+                ellipses: Vec::new(),
+            });
+            uses.len() - 1
+        });
+        uses[k].entities += 1;
+        match uses[k].role {
+            LayerRole::Cut | LayerRole::Bays => {
+                add_entity(&mut layers[k], e, max_gap, &mut points)?;
             }
-        };
-        add_entity(&mut layers[idx], e, max_gap, &mut points)?;
+            LayerRole::Construction => {}
+            LayerRole::NotCut => {
+                not_cut[k].push(format!("{} {}", e.kind.type_name(), e.handle));
+            }
+        }
     }
-    Ok((layers, points))
+    let notes = uses
+        .iter()
+        .zip(&not_cut)
+        .filter(|(_, list)| !list.is_empty())
+        .map(|(u, list)| not_cut_note(u, list))
+        .collect();
+    // Layers that are not cut hold nothing to join.
+    let layers = layers
+        .into_iter()
+        .zip(&uses)
+        .filter(|(_, u)| matches!(u.role, LayerRole::Cut | LayerRole::Bays))
+        .map(|(l, _)| l)
+        .collect();
+    Ok((layers, points, uses, notes))
+}
+
+/// What [`gather`] returns.
+pub(super) type Gathered = (Vec<LayerStuff>, Vec<String>, Vec<LayerUse>, Vec<String>);
+
+/// The note for a layer read but not cut: why, and its entities (the first 12 by type and
+/// handle, then how many more).
+fn not_cut_note(u: &LayerUse, entities: &[String]) -> String {
+    let why = match u.reason.as_deref() {
+        Some("skipped") => "named in the layers to skip".to_string(),
+        Some("not in the cut list") => "not among the layers to cut".to_string(),
+        Some(state) => format!("{state} in the drawing"),
+        None => "not cut".to_string(),
+    };
+    let shown = entities.len().min(12);
+    let more = if entities.len() > shown {
+        format!(" and {} more", entities.len() - shown)
+    } else {
+        String::new()
+    };
+    format!(
+        "layer {} is {why}, so its {} entit{} {} not cut: {}{more}",
+        u.name,
+        entities.len(),
+        if entities.len() == 1 { "y" } else { "ies" },
+        if entities.len() == 1 { "is" } else { "are" },
+        entities[..shown].join(", ")
+    )
 }
 
 /// One entity added to its layer (a POINT only described in `points`).
@@ -123,7 +206,6 @@ fn add_polyline(
 }
 
 pub(super) struct LayerStuff {
-    key: String,
     pub(super) name: String,
     pub(super) is_bay: bool,
     /// Open pieces, to be joined.

@@ -25,7 +25,7 @@ pub use bay::{Bay, COLLINEAR_ANGLE_LIMIT};
 pub use build::{
     CROSSING_CHECK_SAGITTA, ChainOptions, DEFAULT_BAY_LAYER, DEFAULT_MAX_GAP, build_part,
 };
-pub use contour::{InnerBoundary, InnerShape, Part};
+pub use contour::{InnerBoundary, InnerShape, LayerRole, LayerUse, Part};
 
 pub use error::{BayError, BayProblem, ChainError, OpenContour};
 

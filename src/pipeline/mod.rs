@@ -49,6 +49,15 @@ pub enum JobError {
         file: String,
         error: plan::ZeroError,
     },
+    #[error(
+        "{file}: the layers to cut name {missing}, which the drawing does not have; its layers \
+         are {known}. Check the spelling (--cut-layers, or cut_layers in the job file)"
+    )]
+    UnknownCutLayers {
+        file: String,
+        missing: String,
+        known: String,
+    },
     #[error("{file}: the edge margin must be zero or a positive number of mm (got {margin})")]
     BadMargin { file: String, margin: f64 },
     #[error(
@@ -113,6 +122,7 @@ fn read_and_solve(dxf: &[u8], s: &JobSettings) -> Result<Solved, JobError> {
             units: s.units,
         },
     )?;
+    let layer_warnings = check_layer_names(&drawing, s)?;
     let bay_layer = s
         .job
         .as_ref()
@@ -128,12 +138,16 @@ fn read_and_solve(dxf: &[u8], s: &JobSettings) -> Result<Solved, JobError> {
                 .as_ref()
                 .map(JobFile::construction_layers)
                 .unwrap_or_default(),
+            cut_layers: s.cut_layers(),
+            skip_layers: s.skip_layers(),
         },
     )
     .map_err(|error| JobError::Chain {
         file: file(),
         error,
     })?;
+    let mut part = part;
+    part.warnings.extend(layer_warnings);
     let (specs, default_margin) = match &s.job {
         Some(job) => (job.features.clone(), job.margin.unwrap_or(s.margin)),
         None => (features::default_specs(&part), s.margin),
@@ -169,6 +183,54 @@ fn read_and_solve(dxf: &[u8], s: &JobSettings) -> Result<Solved, JobError> {
     })
 }
 
+/// The drawing's layer names: its LAYER table's, then any others its entities use, each once
+/// (compared ignoring case), in that order.
+fn layer_names(drawing: &read::Drawing) -> Vec<String> {
+    let mut seen = std::collections::HashSet::new();
+    drawing
+        .layers
+        .iter()
+        .map(|l| l.name.as_str())
+        .chain(drawing.entities.iter().map(|e| e.layer.as_str()))
+        .filter(|n| seen.insert(n.to_lowercase()))
+        .map(str::to_string)
+        .collect()
+}
+
+/// Refuses layers to cut that the drawing does not have (a misspelt name would cut nothing of
+/// it); warns of layers to skip that it does not have.
+fn check_layer_names(drawing: &read::Drawing, s: &JobSettings) -> Result<Vec<String>, JobError> {
+    let names = layer_names(drawing);
+    let known: std::collections::HashSet<String> = names.iter().map(|n| n.to_lowercase()).collect();
+    let missing = |asked: &[String]| -> Vec<String> {
+        asked
+            .iter()
+            .filter(|n| !known.contains(&n.to_lowercase()))
+            .map(|n| format!("\"{n}\""))
+            .collect()
+    };
+    if let Some(cut) = s.cut_layers() {
+        let gone = missing(&cut);
+        if !gone.is_empty() {
+            return Err(JobError::UnknownCutLayers {
+                file: s.file_name.clone(),
+                missing: gone.join(", "),
+                known: names.join(", "),
+            });
+        }
+    }
+    let gone = missing(&s.skip_layers());
+    Ok(if gone.is_empty() {
+        Vec::new()
+    } else {
+        vec![format!(
+            "the layers to skip name {}, which the drawing does not have (its layers are {})",
+            gone.join(", "),
+            names.join(", ")
+        )]
+    })
+}
+
 /// Solves every feature without cutting anything: what `conicut solve` lists.
 pub fn solve_job(dxf: &[u8], s: &JobSettings) -> Result<SolveListing, JobError> {
     let solved = read_and_solve(dxf, s)?;
@@ -179,8 +241,16 @@ pub fn solve_job(dxf: &[u8], s: &JobSettings) -> Result<SolveListing, JobError> 
         solved.drawing.units.symbol(),
         &solved.features,
         warnings,
-        solved.drawing.notes.clone(),
+        all_notes(&solved),
     ))
+}
+
+/// The drawing's notes (what was read but not used), then the part's (what was read but not
+/// cut).
+fn all_notes(solved: &Solved) -> Vec<String> {
+    let mut notes = solved.drawing.notes.clone();
+    notes.extend(solved.part.notes.iter().cloned());
+    notes
 }
 
 fn unused_warnings(bays: &[String]) -> Vec<String> {
@@ -375,7 +445,8 @@ fn present(f: &Finished) -> (String, Report) {
         ellipse_holes: &ellipse_holes,
         cuts: f.cuts,
         warnings,
-        notes: solved.drawing.notes.clone(),
+        notes: all_notes(solved),
+        layers: &solved.part.layers,
         program_bounds: f.verified.bounds,
         largest_arc_radius_mismatch: f.verified.largest_arc_radius_mismatch,
         rapids: Some(f.verified.rapids),

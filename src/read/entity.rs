@@ -15,6 +15,37 @@ pub struct Drawing {
     /// Things read but not used (unsupported entities, paper space, degenerate pieces), one line
     /// each, for the user.
     pub notes: Vec<String>,
+    /// The layers of the drawing's LAYER table, in file order (a drawing may use layers its
+    /// table does not list; those are shown).
+    pub layers: Vec<Layer>,
+}
+
+/// A layer of the LAYER table and whether it is shown and plotted.
+#[derive(Debug, Clone, PartialEq, Eq, Serialize)]
+pub struct Layer {
+    pub name: String,
+    /// Frozen (flag bit 1 of group 70).
+    pub frozen: bool,
+    /// Off (a negative colour number, group 62).
+    pub off: bool,
+    /// Plotted (group 290; plotted unless it says 0).
+    pub plotted: bool,
+}
+
+impl Layer {
+    /// Why the layer is hidden (`frozen`, `off`, `not plotted`), or `None` when it is shown
+    /// and plotted.
+    pub fn hidden(&self) -> Option<&'static str> {
+        if self.frozen {
+            Some("frozen")
+        } else if self.off {
+            Some("off")
+        } else if !self.plotted {
+            Some("not plotted")
+        } else {
+            None
+        }
+    }
 }
 
 /// One entity of the drawing.

@@ -7,7 +7,7 @@ use super::entity::describe;
 use super::notes::{Notes, describe_raw, label, label_raw};
 use super::ocs::Ctx;
 use super::raw::{self, RawRecord, RawScan};
-use super::{Drawing, Entity, ReadError, ReadOptions, Units, UnitsSource};
+use super::{Drawing, Entity, Layer, ReadError, ReadOptions, Units, UnitsSource};
 
 /// Reads an ASCII DXF file's bytes. See the module documentation for what is read and how.
 pub fn read_dxf(bytes: &[u8], opts: &ReadOptions) -> Result<Drawing, ReadError> {
@@ -32,11 +32,22 @@ pub fn read_dxf(bytes: &[u8], opts: &ReadOptions) -> Result<Drawing, ReadError> 
             counted: matched,
         });
     }
+    let layers = scan
+        .layers
+        .iter()
+        .map(|l| Layer {
+            name: l.name.clone(),
+            frozen: l.flags & 1 != 0,
+            off: l.colour < 0,
+            plotted: l.plotted,
+        })
+        .collect();
     Ok(Drawing {
         entities: found.entities,
         units,
         units_from,
         notes: found.notes.finish(),
+        layers,
     })
 }
 

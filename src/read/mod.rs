@@ -53,7 +53,7 @@ mod raw;
 mod units;
 
 pub use convert::{FLAT_Z_LIMIT, FULL_ARC_SLACK_DEG, FULL_ELLIPSE_SLACK};
-pub use entity::{Drawing, Entity, EntityKind};
+pub use entity::{Drawing, Entity, EntityKind, Layer};
 pub use error::ReadError;
 pub use load::read_dxf;
 pub use ocs::EXTRUSION_TILT_LIMIT;

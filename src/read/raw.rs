@@ -1,6 +1,7 @@
 //! A second, independent look at the file's text: the records of the ENTITIES section with
 //! the line each starts on, their handles and layers, a check that every numeric value parses,
-//! and the `$INSUNITS` header value.
+//! the `$INSUNITS` header value, and the LAYER table's states (frozen, off, not plotted), which
+//! the crate does not keep whole.
 //!
 //! The `dxf` crate (0.6.2) stops reading the ENTITIES section at the first value it cannot parse
 //! and may still return `Ok`, silently losing that entity and every one after it
@@ -45,6 +46,19 @@ pub(super) struct RawScan {
     pub has_entities_section: bool,
     /// The raw `$INSUNITS` value (group 70), if the header has one.
     pub insunits: Option<i64>,
+    /// The LAYER records of the TABLES section, in file order.
+    pub layers: Vec<RawLayer>,
+}
+
+/// One LAYER record: its name (group 2), flags (70: bit 1 frozen), colour (62: negative when
+/// the layer is off) and plot flag (290: 0 when it is not plotted), as written.
+#[derive(Debug, Clone, Default, PartialEq)]
+pub(super) struct RawLayer {
+    pub name: String,
+    pub line: usize,
+    pub flags: i64,
+    pub colour: i64,
+    pub plotted: bool,
 }
 
 /// How the `dxf` crate parses the value of a group code (mirrors its `ExpectedType` table).
@@ -120,6 +134,8 @@ struct Scanner<'a> {
     section: Option<String>,
     expect_section_name: bool,
     last_header_variable: Option<&'a str>,
+    /// Inside a LAYER record of the TABLES section.
+    in_layer: bool,
 }
 
 impl<'a> Scanner<'a> {
@@ -152,6 +168,7 @@ impl<'a> Scanner<'a> {
         match self.section.as_deref() {
             Some("HEADER") => self.header_pair(code, value),
             Some("ENTITIES") => self.entities_pair(line_no, code, value)?,
+            Some("TABLES") => self.tables_pair(line_no, code, value),
             _ => {}
         }
         Ok(true)
@@ -163,6 +180,37 @@ impl<'a> Scanner<'a> {
             self.last_header_variable = Some(value.trim());
         } else if code == 70 && self.last_header_variable == Some("$INSUNITS") {
             self.out.insunits = value.trim().parse::<f64>().ok().map(|v| v as i64);
+        }
+    }
+
+    /// A pair of the TABLES section: a LAYER record begins at `0 LAYER` (the table's own header
+    /// is `0 TABLE`, `2 LAYER`), and its name, flags, colour and plot flag are kept. Values that
+    /// do not parse are left at their defaults (visible), for the crate to report if it cares.
+    fn tables_pair(&mut self, line_no: usize, code: i32, value: &str) {
+        if code == 0 {
+            self.in_layer = value.trim() == "LAYER";
+            if self.in_layer {
+                self.out.layers.push(RawLayer {
+                    line: line_no,
+                    plotted: true,
+                    ..RawLayer::default()
+                });
+            }
+            return;
+        }
+        if !self.in_layer {
+            return;
+        }
+        let Some(layer) = self.out.layers.last_mut() else {
+            return;
+        };
+        let int = || value.trim().parse::<f64>().ok().map(|v| v as i64);
+        match code {
+            2 => layer.name = value.trim().to_string(),
+            70 => layer.flags = int().unwrap_or(0),
+            62 => layer.colour = int().unwrap_or(7),
+            290 => layer.plotted = int().is_none_or(|v| v != 0),
+            _ => {}
         }
     }
 
@@ -262,6 +310,32 @@ mod tests {
         assert_eq!(s.records[1].vertices, 2);
         assert_eq!(s.records[2].handle, None);
         assert_eq!(s.records[2].layer.as_deref(), Some("CUT"));
+    }
+
+    #[test]
+    fn reads_the_layer_table_states() {
+        let text = "0\nSECTION\n2\nTABLES\n0\nTABLE\n2\nLAYER\n70\n3\n\
+0\nLAYER\n2\nPLATE\n70\n0\n62\n7\n\
+0\nLAYER\n2\nOLD\n70\n1\n62\n7\n\
+0\nLAYER\n2\nHIDDEN\n70\n0\n62\n-3\n\
+0\nLAYER\n2\nNOTES\n70\n0\n62\n2\n290\n0\n\
+0\nENDTAB\n0\nENDSEC\n0\nSECTION\n2\nENTITIES\n0\nENDSEC\n0\nEOF\n";
+        let scan = scan(text).unwrap();
+        let states: Vec<(&str, i64, i64, bool)> = scan
+            .layers
+            .iter()
+            .map(|l| (l.name.as_str(), l.flags, l.colour, l.plotted))
+            .collect();
+        assert_eq!(
+            states,
+            [
+                ("PLATE", 0, 7, true),
+                ("OLD", 1, 7, true),
+                ("HIDDEN", 0, -3, true),
+                ("NOTES", 0, 2, false)
+            ]
+        );
+        assert_eq!(scan.layers[1].line, 19, "the line of its `0`");
     }
 
     #[test]

@@ -115,6 +115,9 @@ pub struct Report {
     pub files: Vec<OutputFile>,
     pub warnings: Vec<String>,
     pub notes: Vec<String>,
+    /// Every layer that holds entities, with its role (`cut`, `bays`, `construction`,
+    /// `not-cut`), why it is not cut, and how many entities it holds.
+    pub layers: Vec<crate::chain::LayerUse>,
     /// Smallest and largest X, Y, Z the program's tool centre reaches (mm), read back from the
     /// program.
     pub program_bounds_mm: Option<ProgramBounds>,
@@ -173,6 +176,8 @@ pub struct ReportInput<'a> {
     pub cuts: &'a [FittedCut],
     pub warnings: Vec<String>,
     pub notes: Vec<String>,
+    /// Every layer with entities and what it was used for.
+    pub layers: &'a [crate::chain::LayerUse],
     pub program_bounds: Option<([f64; 3], [f64; 3])>,
     pub largest_arc_radius_mismatch: f64,
     pub rapids: Option<crate::check::rapids::Rapids>,
@@ -279,6 +284,7 @@ pub fn build_report(input: ReportInput) -> Report {
         files: Vec::new(),
         warnings: input.warnings,
         notes: input.notes,
+        layers: input.layers.to_vec(),
         program_bounds_mm: input
             .program_bounds
             .map(|(min, max)| ProgramBounds { min, max }),
@@ -339,6 +345,28 @@ impl Report {
     pub fn to_json(&self) -> String {
         // Serialising plain numbers, strings and vectors cannot fail.
         serde_json::to_string_pretty(self).unwrap_or_default()
+    }
+
+    /// One line naming every layer with what it was used for and its entities.
+    fn write_layers(&self, s: &mut String) {
+        if self.layers.is_empty() {
+            return;
+        }
+        let list: Vec<String> = self
+            .layers
+            .iter()
+            .map(|l| {
+                let role = match (l.role, l.reason.as_deref()) {
+                    (crate::chain::LayerRole::Cut, _) => "cut".to_string(),
+                    (crate::chain::LayerRole::Bays, _) => "bays".to_string(),
+                    (crate::chain::LayerRole::Construction, _) => "construction".to_string(),
+                    (crate::chain::LayerRole::NotCut, Some(why)) => format!("not cut, {why}"),
+                    (crate::chain::LayerRole::NotCut, None) => "not cut".to_string(),
+                };
+                format!("{} ({role}, {})", l.name, l.entities)
+            })
+            .collect();
+        let _ = writeln!(s, "\nlayers: {}", list.join("; "));
     }
 
     /// The rapid travel and its bound, when measured.
@@ -440,6 +468,7 @@ impl Report {
         }
         self.write_tabs(&mut s);
         self.write_rapids(&mut s);
+        self.write_layers(&mut s);
         write_list(&mut s, "warnings", &self.warnings);
         write_list(&mut s, "notes", &self.notes);
         if !self.files.is_empty() {

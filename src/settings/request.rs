@@ -64,6 +64,11 @@ pub struct JobSettings {
     pub job: Option<JobFile>,
     /// Points read from the CSV files the job file names, by the path as written there (mm).
     pub csv_points: BTreeMap<String, Vec<Point>>,
+    /// Only these layers' geometry is cut (`--cut-layers`); `None`: the job file's, else every
+    /// layer the drawing shows.
+    pub cut_layers: Option<Vec<String>>,
+    /// These layers' geometry is never cut (`--skip-layers`); `None`: the job file's, else none.
+    pub skip_layers: Option<Vec<String>>,
     /// Which drawing point becomes the program's X0 Y0 (`--zero`); `None`: the job file's, else
     /// the drawing's own origin.
     pub zero: Option<WorkZero>,
@@ -77,6 +82,21 @@ impl JobSettings {
     pub fn work_zero(&self) -> WorkZero {
         self.zero
             .or_else(|| self.job.as_ref().and_then(|j| j.zero))
+            .unwrap_or_default()
+    }
+
+    /// The layers to cut, when limited: the command line's, else the job file's.
+    pub fn cut_layers(&self) -> Option<Vec<String>> {
+        self.cut_layers
+            .clone()
+            .or_else(|| self.job.as_ref().and_then(|j| j.cut_layers.clone()))
+    }
+
+    /// The layers never cut: the command line's, else the job file's.
+    pub fn skip_layers(&self) -> Vec<String> {
+        self.skip_layers
+            .clone()
+            .or_else(|| self.job.as_ref().and_then(|j| j.skip_layers.clone()))
             .unwrap_or_default()
     }
 
@@ -115,6 +135,8 @@ impl JobSettings {
             scrap_side_only: false,
             job: None,
             csv_points: BTreeMap::new(),
+            cut_layers: None,
+            skip_layers: None,
             zero: None,
             work_offset: None,
         }

@@ -276,6 +276,23 @@ impl<'t> Context<'t> {
         })
     }
 
+    /// A list of layer names, `["A", "B"]`, each non-empty text.
+    pub(super) fn layer_names(&self, e: &Entry<'_, '_>) -> Result<Vec<String>, JobFileError> {
+        self.list_of(
+            e,
+            "a list of layer names in quotes, `[\"A\", \"B\"]`",
+            |v| match v.get_ref() {
+                DeValue::String(s) if !s.trim().is_empty() => Ok(s.trim().to_string()),
+                _ => Err(self.at_item(
+                    e,
+                    v,
+                    Kind::BadValue,
+                    "each layer is a name in quotes, such as \"PLATE\"".into(),
+                )),
+            },
+        )
+    }
+
     /// A work offset, `"G54"` to `"G59"`.
     pub(super) fn work_offset(&self, e: &Entry<'_, '_>) -> Result<WorkOffset, JobFileError> {
         let word = self.string(e)?;

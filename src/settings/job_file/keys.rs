@@ -1,10 +1,12 @@
 //! The keys a job file may hold, where, and which belong together.
 
 /// Keys allowed at the top of a job file.
-pub(super) const TOP_KEYS: [&str; 11] = [
+pub(super) const TOP_KEYS: [&str; 13] = [
     "units",
     "margin",
     "bay_layer",
+    "cut_layers",
+    "skip_layers",
     "zero",
     "work_offset",
     "lead",

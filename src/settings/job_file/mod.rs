@@ -12,6 +12,8 @@
 //!                               # and size in this file is in this unit; nothing is guessed.
 //! margin = 4.0                  # optional: default edge margin for bay features (≥ 0)
 //! bay_layer = "OPENING-BAYS"    # optional: the DXF layer holding the bays
+//! cut_layers = ["PLATE"]        # optional: cut only these layers' geometry (bays as always)
+//! skip_layers = ["DIMS"]        # optional: never cut these layers' geometry
 //! zero = "lower-left"           # optional: the program's X0 Y0: drawing | lower-left |
 //!                               # lower-right | upper-left | upper-right | centre (of the
 //!                               # outline's box), or a drawing point [x, y]; default drawing
@@ -102,6 +104,12 @@ pub struct JobFile {
     pub margin: Option<f64>,
     /// The DXF layer holding the bays, if the file names one.
     pub bay_layer: Option<String>,
+    /// `cut_layers`: only these layers' geometry is cut, if the file says (the command line's
+    /// `--cut-layers` wins).
+    pub cut_layers: Option<Vec<String>>,
+    /// `skip_layers`: these layers' geometry is never cut, if the file says (the command
+    /// line's `--skip-layers` wins).
+    pub skip_layers: Option<Vec<String>>,
     /// `zero`: which drawing point becomes the program's X0 Y0, if the file says (the command
     /// line's `--zero` wins).
     pub zero: Option<WorkZero>,

@@ -37,6 +37,14 @@ pub fn parse_job_file(text: &str, file_name: &str) -> Result<JobFile, JobFileErr
     let margin = top.get("margin").map(|e| cx.margin(e, scale)).transpose()?;
     let bay_layer = top.get("bay_layer").map(|e| cx.string(e)).transpose()?;
     let leads = leads(&cx, &top, scale)?;
+    let cut_layers = top
+        .get("cut_layers")
+        .map(|e| cx.layer_names(e))
+        .transpose()?;
+    let skip_layers = top
+        .get("skip_layers")
+        .map(|e| cx.layer_names(e))
+        .transpose()?;
     let zero = top
         .get("zero")
         .map(|e| cx.work_zero(e, scale))
@@ -50,6 +58,8 @@ pub fn parse_job_file(text: &str, file_name: &str) -> Result<JobFile, JobFileErr
         units,
         margin,
         bay_layer,
+        cut_layers,
+        skip_layers,
         zero,
         work_offset,
         leads,
