@@ -259,3 +259,19 @@ fn the_job_file_names_layers_and_the_command_line_wins() {
     let message = String::from_utf8_lossy(&out.stderr);
     assert!(message.contains("list of layer names"), "{message}");
 }
+
+#[test]
+fn a_bay_layer_that_holds_no_bays_is_a_warning_naming_the_layers() {
+    let dir = tempfile::tempdir().unwrap();
+    write(&dir.path().join("layers.dxf"));
+    let report = plan(dir.path(), &["--bay-layer", "BAYS"]);
+    let warnings = report["warnings"].to_string();
+    assert!(
+        warnings.contains("no bays were found (the drawing has no layer \\\"BAYS\\\")"),
+        "{warnings}"
+    );
+    assert!(
+        warnings.contains("OPENING-BAYS"),
+        "the layers listed: {warnings}"
+    );
+}

@@ -148,6 +148,9 @@ fn read_and_solve(dxf: &[u8], s: &JobSettings) -> Result<Solved, JobError> {
     })?;
     let mut part = part;
     part.warnings.extend(layer_warnings);
+    if s.job.is_none() && part.bays.is_empty() {
+        part.warnings.push(no_bays_warning(&drawing, &bay_layer));
+    }
     let (specs, default_margin) = match &s.job {
         Some(job) => (job.features.clone(), job.margin.unwrap_or(s.margin)),
         None => (features::default_specs(&part), s.margin),
@@ -195,6 +198,23 @@ fn layer_names(drawing: &read::Drawing) -> Vec<String> {
         .filter(|n| seen.insert(n.to_lowercase()))
         .map(str::to_string)
         .collect()
+}
+
+/// The warning for a drawing with no bays to solve (and no job file naming features).
+fn no_bays_warning(drawing: &read::Drawing, bay_layer: &str) -> String {
+    let names = layer_names(drawing);
+    let has_layer = names.iter().any(|n| n.eq_ignore_ascii_case(bay_layer));
+    let why = if has_layer {
+        format!("layer \"{bay_layer}\" holds no closed loop of straight sides")
+    } else {
+        format!("the drawing has no layer \"{bay_layer}\"")
+    };
+    format!(
+        "no bays were found ({why}), so no elliptical opening is cut, only the outline and the \
+         drawn holes; name the layer that holds the bays with --bay-layer (the drawing's layers: \
+         {})",
+        names.join(", ")
+    )
 }
 
 /// Refuses layers to cut that the drawing does not have (a misspelt name would cut nothing of

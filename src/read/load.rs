@@ -1,6 +1,7 @@
 //! Loading a file: the text checked and scanned on its own ([`super::raw`]), the `dxf` crate's
 //! load, the units, and each scanned record matched with what the crate loaded.
 
+use super::blocks::{Affine, Blocks, Expansion};
 use super::convert::{Converted, convert};
 use super::dropped::match_loaded;
 use super::entity::describe;
@@ -18,9 +19,13 @@ pub fn read_dxf(bytes: &[u8], opts: &ReadOptions) -> Result<Drawing, ReadError> 
     let (units, units_from) = resolve_units(&file, scan.insunits, opts.units)?;
     let loaded_entities: Vec<&dxf::entities::Entity> = loaded.entities().collect();
     let mut found = Found::default();
+    let blocks = Blocks::of(&loaded);
     let matched = collect(
-        &file,
-        units.mm_per_unit(),
+        &Source {
+            file: &file,
+            scale: units.mm_per_unit(),
+            blocks: &blocks,
+        },
         &scan.records,
         &loaded_entities,
         &mut found,
@@ -106,11 +111,17 @@ struct Found {
     notes: Notes,
 }
 
+/// What every entity is read against: the file's name, its unit's scale to mm, its blocks.
+struct Source<'a> {
+    file: &'a str,
+    scale: f64,
+    blocks: &'a Blocks<'a>,
+}
+
 /// Walks the scanned records in step with the loaded entities; returns how many loaded entities
 /// were matched.
 fn collect(
-    file: &str,
-    scale: f64,
+    src: &Source,
     records: &[RawRecord],
     loaded: &[&dxf::entities::Entity],
     found: &mut Found,
@@ -122,7 +133,7 @@ fn collect(
         } else {
             rec.kind.as_str()
         };
-        match match_loaded(kind, rec, loaded.get(next).copied(), file)? {
+        match match_loaded(kind, rec, loaded.get(next).copied(), src.file)? {
             None => found.notes.add(
                 &rec.kind,
                 rec.layer.as_deref().unwrap_or("0"),
@@ -130,17 +141,17 @@ fn collect(
             ),
             Some(ent) => {
                 next += 1;
-                take(file, scale, rec, kind, ent, found)?;
+                take(src, rec, kind, ent, found)?;
             }
         }
     }
     Ok(next)
 }
 
-/// One matched record: its polyline vertices counted, paper space noted, the geometry converted.
+/// One matched record: its polyline vertices counted, paper space noted, an INSERT expanded
+/// ([`super::blocks`]), the geometry converted.
 fn take(
-    file: &str,
-    scale: f64,
+    src: &Source,
     rec: &RawRecord,
     kind: &str,
     ent: &dxf::entities::Entity,
@@ -150,6 +161,7 @@ fn take(
         .handle
         .clone()
         .unwrap_or_else(|| format!("L{}", rec.line));
+    let (file, scale) = (src.file, src.scale);
     let layer = ent.common.layer.clone();
     let ctx = Ctx {
         file,
@@ -173,6 +185,22 @@ fn take(
             &label(&handle, rec.line),
         );
         return Ok(());
+    }
+    if let dxf::entities::EntityType::Insert(ins) = &ent.specific {
+        let mut expansion = Expansion {
+            blocks: src.blocks,
+            ctx: &ctx,
+            line: rec.line,
+            out: &mut found.entities,
+            notes: &mut found.notes,
+        };
+        return expansion.insert(
+            ins,
+            &layer,
+            &handle,
+            Affine::scaling(scale),
+            &mut Vec::new(),
+        );
     }
     match convert(&ent.specific, &ctx)? {
         Converted::Kind(kind) => found.entities.push(Entity {

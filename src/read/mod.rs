@@ -41,6 +41,7 @@
 //! entity records it finds one by one with what the crate loaded, refusing the file when one
 //! went missing.
 
+mod blocks;
 mod convert;
 mod dropped;
 mod entity;
@@ -52,6 +53,7 @@ pub mod points;
 mod raw;
 mod units;
 
+pub use blocks::{MAX_NESTING, SIMILARITY_TOLERANCE};
 pub use convert::{FLAT_Z_LIMIT, FULL_ARC_SLACK_DEG, FULL_ELLIPSE_SLACK};
 pub use entity::{Drawing, Entity, EntityKind, Layer};
 pub use error::ReadError;
