@@ -221,6 +221,16 @@ enum EntryArg {
 const DEMO_NAME: &str = "truss-bracket.dxf";
 
 fn main() {
+    // A panic inside the DXF library is contained by the reader and becomes a clear error; any
+    // other panic is a bug of ours, said in one line instead of a backtrace.
+    std::panic::set_hook(Box::new(|info| {
+        if !conicut::read::library_panicking() {
+            eprintln!(
+                "error: conicut stopped on an internal error, which is a bug: {info}. Please \
+                 report it with the drawing and the command line"
+            );
+        }
+    }));
     let cli = Cli::parse();
     if let Err(e) = run(cli) {
         eprintln!("error: {e:#}");
@@ -445,7 +455,17 @@ fn plan_batch(plan: &PlanArgs, drawings: &[PathBuf], parent: &Path, quiet: bool)
     for (k, (drawing, dir)) in drawings.iter().zip(&folders).enumerate() {
         let started = std::time::Instant::now();
         let name = batch::stem_of(drawing);
-        let result = plan_one(plan, drawing, dir, &|step| progress.step(k, &name, step));
+        // A bug on one drawing (a panic) fails that drawing only; the others still run.
+        let result = std::panic::catch_unwind(std::panic::AssertUnwindSafe(|| {
+            plan_one(plan, drawing, dir, &|step| progress.step(k, &name, step))
+        }))
+        .unwrap_or_else(|_| {
+            Err(anyhow::anyhow!(
+                "{}: conicut stopped on an internal error (said above); nothing was written \
+                 for it",
+                drawing.display()
+            ))
+        });
         if let Err(e) = &result {
             progress.bar_suspended(|| eprintln!("error: {e:#}"));
         }

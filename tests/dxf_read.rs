@@ -150,13 +150,9 @@ fn unitless_drawing_needs_the_flag_and_disagreement_is_refused() {
     square(&mut d);
     let bytes = save(&d);
     let e = read_dxf(&bytes, &opts(None)).unwrap_err();
-    assert_eq!(
-        e,
-        ReadError::NoUnits {
-            file: "drawing.dxf".into()
-        }
-    );
+    assert!(matches!(e, ReadError::NoUnits { .. }), "{e:?}");
     assert!(e.to_string().contains("--units mm or --units in"), "{e}");
+    assert!(e.to_string().contains("$INSUNITS is 0, unitless"), "{e}");
 
     let r = read_dxf(&bytes, &opts(Some(Units::Millimetres))).unwrap();
     assert_eq!(r.units_from, UnitsSource::UserFlag);
@@ -359,4 +355,52 @@ fn bay_drawn_clockwise_comes_back_counter_clockwise() {
         .sum();
     assert!((area - 1500.0).abs() < 1e-9, "signed area {area}");
     assert_eq!(c[1], Point::new(60.0, 0.0));
+}
+
+#[test]
+fn fields_conicut_does_not_use_never_stop_the_reading() {
+    // An R12 drawing as the dxf crate writes it, then given header dates out of any calendar's
+    // range ($TDUPDATE, $TDINDWG: the crate's date library panics on them) and a dimension
+    // style naming an arrow block (DIMSTYLE group 5: a block name in R12, a handle later, which
+    // the crate cannot parse). conicut reads neither, so the drawing reads.
+    let mut d = dxf::Drawing::new();
+    square(&mut d);
+    let text = String::from_utf8(save(&d)).unwrap();
+    let patch = |text: String, from: &str, to: &str| {
+        assert_eq!(
+            text.matches(from).count(),
+            1,
+            "{from:?} once in the crate's output"
+        );
+        text.replace(from, to)
+    };
+    // The value line after `variable`'s group 40.
+    let set_date = |text: String, variable: &str, value: &str| {
+        let key = format!("{variable}\r\n 40\r\n");
+        let at = text.find(&key).expect("the variable") + key.len();
+        let end = at + text[at..].find("\r\n").unwrap();
+        format!("{}{value}{}", &text[..at], &text[end..])
+    };
+    let text = set_date(text, "$TDUPDATE", "-1e300");
+    let text = set_date(text, "$TDINDWG", "1e300");
+    let text = patch(
+        text,
+        "  0\r\nDIMSTYLE\r\n  5\r\nA\r\n",
+        "  0\r\nDIMSTYLE\r\n  5\r\nARCHTICK\r\n",
+    );
+    // As written, the crate cannot load it (the check is on the crate, not on conicut).
+    let crate_load = std::panic::catch_unwind(|| dxf::Drawing::load(&mut text.as_bytes()).is_ok());
+    assert!(
+        !matches!(crate_load, Ok(true)),
+        "the crate alone fails on this file"
+    );
+    let e = read_dxf(text.as_bytes(), &opts(None)).unwrap_err();
+    // R12 has no units field: the message says so.
+    assert!(
+        e.to_string()
+            .contains("R12 or older drawing ($ACADVER AC1009)"),
+        "{e}"
+    );
+    let r = read_dxf(text.as_bytes(), &opts(Some(Units::Millimetres))).expect("it reads");
+    assert_eq!(r.entities.len(), 4);
 }

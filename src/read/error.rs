@@ -22,6 +22,13 @@ pub enum ReadError {
         line: Option<usize>,
         message: String,
     },
+    /// The DXF library stopped with a panic (contained here; see `read::library_panicking`).
+    #[error(
+        "{file}: the DXF library could not read this file (it stopped with: {message}). \
+         Open the drawing in the CAD program and save it again, perhaps as another DXF version; \
+         if that does not help, please report it with the drawing"
+    )]
+    LibraryPanic { file: String, message: String },
     #[error(
         "{file}, line {line}: group code {code} of {what} should hold a finite number but holds \
          '{value}'. Correct the value in the CAD program and export again"
@@ -54,10 +61,14 @@ pub enum ReadError {
         counted: usize,
     },
     #[error(
-        "{file}: the drawing does not say what units it is in ($INSUNITS is 0 or missing). Pass \
-         --units mm or --units in to say which"
+        "{file}: the drawing does not say what units it is in ({why}). Pass --units mm or \
+         --units in to say which; nothing is guessed"
     )]
-    NoUnits { file: String },
+    NoUnits {
+        file: String,
+        /// Why not, in words: an R12 file has no units field at all.
+        why: String,
+    },
     #[error(
         "{file}: the drawing's header says its units are {header} ($INSUNITS) but --units says \
          {flag}. Find out which is right: drop --units to use the header's unit, or correct \

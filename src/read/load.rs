@@ -7,6 +7,7 @@ use super::dropped::match_loaded;
 use super::entity::describe;
 use super::notes::{Notes, describe_raw, label, label_raw};
 use super::ocs::Ctx;
+use super::prepass::prepare;
 use super::raw::{self, RawRecord, RawScan};
 use super::{Drawing, Entity, Layer, ReadError, ReadOptions, Units, UnitsSource};
 
@@ -16,7 +17,8 @@ pub fn read_dxf(bytes: &[u8], opts: &ReadOptions) -> Result<Drawing, ReadError> 
     refuse_non_text(bytes, &file)?;
     let scan = scan_text(bytes, &file)?;
     let loaded = load_with_crate(bytes, &file)?;
-    let (units, units_from) = resolve_units(&file, scan.insunits, opts.units)?;
+    let (units, units_from) =
+        resolve_units(&file, scan.insunits, scan.version.as_deref(), opts.units)?;
     let loaded_entities: Vec<&dxf::entities::Entity> = loaded.entities().collect();
     let mut found = Found::default();
     let blocks = Blocks::of(&loaded);
@@ -96,11 +98,47 @@ fn scan_text(bytes: &[u8], file: &str) -> Result<RawScan, ReadError> {
     Ok(scan)
 }
 
+/// The `dxf` crate's load of the file's text as [`prepare`]d: the parts conicut does not use
+/// left out, the crate's line numbers mapped back to the file's, and a panic inside the crate
+/// contained and turned into [`ReadError::LibraryPanic`].
 fn load_with_crate(bytes: &[u8], file: &str) -> Result<dxf::Drawing, ReadError> {
-    dxf::Drawing::load(&mut &bytes[..]).map_err(|e| ReadError::Load {
+    let prepared = prepare(bytes);
+    let loaded =
+        contain_panics(|| dxf::Drawing::load(&mut &prepared.text[..])).map_err(|message| {
+            ReadError::LibraryPanic {
+                file: file.to_string(),
+                message,
+            }
+        })?;
+    loaded.map_err(|e| ReadError::Load {
         file: file.to_string(),
-        line: dxf_error_line(&e),
+        line: dxf_error_line(&e).map(|l| prepared.original_line(l)),
         message: e.to_string(),
+    })
+}
+
+thread_local! {
+    /// Set while a library call runs whose panics are caught and reported in words.
+    static CONTAINING: std::cell::Cell<bool> = const { std::cell::Cell::new(false) };
+}
+
+/// Whether this thread is inside a library call whose panic is contained (a panic hook may then
+/// stay quiet: the panic becomes a clear error).
+pub fn library_panicking() -> bool {
+    CONTAINING.with(|c| c.get())
+}
+
+/// Runs `f`, turning a panic into its message.
+fn contain_panics<T>(f: impl FnOnce() -> T) -> Result<T, String> {
+    CONTAINING.with(|c| c.set(true));
+    let result = std::panic::catch_unwind(std::panic::AssertUnwindSafe(f));
+    CONTAINING.with(|c| c.set(false));
+    result.map_err(|payload| {
+        payload
+            .downcast_ref::<&str>()
+            .map(|s| s.to_string())
+            .or_else(|| payload.downcast_ref::<String>().cloned())
+            .unwrap_or_else(|| "an internal error".to_string())
     })
 }
 
@@ -222,6 +260,7 @@ fn take(
 fn resolve_units(
     file: &str,
     insunits: Option<i64>,
+    version: Option<&str>,
     flag: Option<Units>,
 ) -> Result<(Units, UnitsSource), ReadError> {
     let header = match Units::from_insunits(insunits.unwrap_or(0)) {
@@ -244,7 +283,27 @@ fn resolve_units(
         (None, Some(f)) => Ok((f, UnitsSource::UserFlag)),
         (None, None) => Err(ReadError::NoUnits {
             file: file.to_string(),
+            why: no_units_reason(version, insunits),
         }),
+    }
+}
+
+/// Why a drawing states no units: R12 and older (`$ACADVER` AC1009 and below) have no units
+/// field; later versions leave `$INSUNITS` out or at 0 (unitless).
+fn no_units_reason(version: Option<&str>, insunits: Option<i64>) -> String {
+    let old = version.is_some_and(|v| {
+        v.strip_prefix("AC")
+            .and_then(|n| n.parse::<u32>().ok())
+            .is_some_and(|n| n <= 1009)
+    });
+    match (old, insunits, version) {
+        (true, _, Some(v)) => format!(
+            "it is an R12 or older drawing ($ACADVER {v}), and those have no units field; \
+             $INSUNITS came with R2000"
+        ),
+        (_, Some(0), _) => "$INSUNITS is 0, unitless".to_string(),
+        (_, _, None) => "its header has neither $INSUNITS nor $ACADVER".to_string(),
+        _ => "$INSUNITS is missing from its header".to_string(),
     }
 }
 

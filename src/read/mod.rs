@@ -50,6 +50,7 @@ mod load;
 mod notes;
 mod ocs;
 pub mod points;
+mod prepass;
 mod raw;
 mod units;
 
@@ -57,9 +58,10 @@ pub use blocks::{MAX_NESTING, SIMILARITY_TOLERANCE};
 pub use convert::{FLAT_Z_LIMIT, FULL_ARC_SLACK_DEG, FULL_ELLIPSE_SLACK};
 pub use entity::{Drawing, Entity, EntityKind, Layer};
 pub use error::ReadError;
-pub use load::read_dxf;
+pub use load::{library_panicking, read_dxf};
 pub use ocs::EXTRUSION_TILT_LIMIT;
 pub use points::{PointsError, PointsProblem, parse_points_csv};
+pub use prepass::{KEPT_HEADER_VARIABLES, KEPT_TABLES};
 pub use units::{Units, UnitsSource, UnknownUnits};
 
 /// What the caller knows about the file beyond its bytes.

@@ -46,6 +46,8 @@ pub(super) struct RawScan {
     pub has_entities_section: bool,
     /// The raw `$INSUNITS` value (group 70), if the header has one.
     pub insunits: Option<i64>,
+    /// `$ACADVER` (group 1), e.g. `AC1009` for R12, if the header has one.
+    pub version: Option<String>,
     /// The LAYER records of the TABLES section, in file order.
     pub layers: Vec<RawLayer>,
 }
@@ -174,12 +176,14 @@ impl<'a> Scanner<'a> {
         Ok(true)
     }
 
-    /// A pair of the HEADER section: only `$INSUNITS` is kept.
+    /// A pair of the HEADER section: only `$INSUNITS` and `$ACADVER` are kept.
     fn header_pair(&mut self, code: i32, value: &'a str) {
         if code == 9 {
             self.last_header_variable = Some(value.trim());
         } else if code == 70 && self.last_header_variable == Some("$INSUNITS") {
             self.out.insunits = value.trim().parse::<f64>().ok().map(|v| v as i64);
+        } else if code == 1 && self.last_header_variable == Some("$ACADVER") {
+            self.out.version = Some(value.trim().to_string());
         }
     }
 
