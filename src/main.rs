@@ -49,7 +49,7 @@ enum Command {
         margin: f64,
         /// Cutter diameter (mm). Default: 6 mm for mills and routers, the profile's kerf width
         /// for laser, plasma and waterjet.
-        #[arg(long, alias = "kerf", allow_negative_numbers = true)]
+        #[arg(long, visible_alias = "kerf", allow_negative_numbers = true)]
         tool_diameter: Option<f64>,
         /// A job file saying which ellipse each bay gets (see demo-parts/truss-bracket-job.toml).
         #[arg(long)]
@@ -70,12 +70,14 @@ enum Command {
         /// The DXF drawings, or folders of them (every .dxf directly inside, in name order).
         #[arg(required = true)]
         drawings: Vec<PathBuf>,
-        /// Machine profile (TOML), e.g. machine-profiles/metric-mill.toml.
+        /// Machine profile: the path of a profile file (TOML), e.g.
+        /// machine-profiles/metric-mill.toml, or the name of a bundled one: metric-mill,
+        /// inch-router, laser, plasma or waterjet.
         #[arg(long)]
         machine: PathBuf,
         /// Cutter diameter (mm), or the kerf width for laser, plasma and waterjet (`--kerf`);
         /// those profiles supply their kerf when it is not given.
-        #[arg(long, alias = "kerf", allow_negative_numbers = true)]
+        #[arg(long, visible_alias = "kerf", allow_negative_numbers = true)]
         tool_diameter: Option<f64>,
         /// Folder for the outputs (created if missing). One drawing: its outputs, by default
         /// `<drawing name>-conicut` in the current folder. Several: one `<drawing
@@ -143,13 +145,14 @@ struct CutArgs {
     stepdown: Option<f64>,
     /// How a mill or router enters the material: helix (a helix about the plunge point where
     /// there is room, the zig-zag elsewhere), zigzag (back and forth along the first entry
-    /// move), or straight (plunge straight down: centre-cutting tools only).
-    #[arg(long, value_enum, default_value_t = EntryArg::Helix)]
-    entry: EntryArg,
+    /// move), or straight (plunge straight down: centre-cutting tools only). Default: helix.
+    /// Mills and routers only.
+    #[arg(long, value_enum)]
+    entry: Option<EntryArg>,
     /// The steepest descent of a helix or zig-zag entry (degrees; common practice: 1–3° in
-    /// steel, up to 5–10° in aluminium).
-    #[arg(long, default_value_t = defaults::RAMP_ANGLE_DEG, allow_negative_numbers = true)]
-    ramp_angle: f64,
+    /// steel, up to 5–10° in aluminium). Default: 3. Mills and routers only.
+    #[arg(long, allow_negative_numbers = true)]
+    ramp_angle: Option<f64>,
     /// Climb (default) or conventional milling; thermal cuts keep the usual direction.
     #[arg(long, default_value = "climb")]
     direction: Direction,
@@ -303,10 +306,13 @@ fn request(file_name: String, input: &DrawingArgs, cut: Option<&CutArgs>) -> Res
         tolerance: cut.map(|c| c.tolerance).unwrap_or(defaults::TOLERANCE_MM),
         depth: cut.and_then(|c| c.depth),
         stepdown: cut.and_then(|c| c.stepdown),
-        ramp_angle_deg: cut
-            .filter(|c| c.entry != EntryArg::Straight)
-            .map(|c| c.ramp_angle),
-        helical_entry: cut.is_none_or(|c| c.entry == EntryArg::Helix),
+        ramp_angle_deg: match cut {
+            Some(c) if c.entry == Some(EntryArg::Straight) => None,
+            Some(c) => Some(c.ramp_angle.unwrap_or(defaults::RAMP_ANGLE_DEG)),
+            None => Some(defaults::RAMP_ANGLE_DEG),
+        },
+        helical_entry: cut.is_none_or(|c| c.entry.is_none_or(|e| e == EntryArg::Helix)),
+        milling_flags: cut.map(milling_flags).unwrap_or_default(),
         leads: cut.map_or_else(LeadRequest::default, |c| LeadRequest {
             kind: c.lead,
             length: c.lead_length,
@@ -339,6 +345,21 @@ fn request(file_name: String, input: &DrawingArgs, cut: Option<&CutArgs>) -> Res
         zero: cut.and_then(|c| c.zero),
         work_offset: cut.and_then(|c| c.work_offset),
     })
+}
+
+/// The milling-only options given on the command line, by flag.
+fn milling_flags(c: &CutArgs) -> Vec<String> {
+    [
+        ("--depth", c.depth.is_some()),
+        ("--stepdown", c.stepdown.is_some()),
+        ("--entry", c.entry.is_some()),
+        ("--ramp-angle", c.ramp_angle.is_some()),
+        ("--tab-height", c.tab_height.is_some()),
+    ]
+    .into_iter()
+    .filter(|(_, given)| *given)
+    .map(|(flag, _)| flag.to_string())
+    .collect()
 }
 
 /// Each command: parse (clap, above) → read the inputs → resolve the settings → run the
@@ -490,23 +511,37 @@ fn plan_batch(plan: &PlanArgs, drawings: &[PathBuf], parent: &Path, quiet: bool)
 fn bundled_profile(machine: &str) -> Result<Machine> {
     let wanted = format!("machine-profiles/{machine}.toml");
     let Some((file, text)) = BUNDLED_PROFILES.iter().find(|(f, _)| *f == wanted) else {
-        let names: Vec<&str> = BUNDLED_PROFILES
-            .iter()
-            .filter_map(|(f, _)| f.strip_prefix("machine-profiles/"))
-            .filter_map(|f| f.strip_suffix(".toml"))
-            .collect();
         bail!(
             "there is no bundled profile \"{machine}\"; choose one of {}",
-            names.join(", ")
+            bundled_names().join(", ")
         );
     };
     Machine::from_toml(text, file).map_err(|e| anyhow::anyhow!("{e}"))
 }
 
-/// A machine profile read from a file.
+/// The names of the bundled profiles.
+fn bundled_names() -> Vec<&'static str> {
+    BUNDLED_PROFILES
+        .iter()
+        .filter_map(|(f, _)| f.strip_prefix("machine-profiles/"))
+        .filter_map(|f| f.strip_suffix(".toml"))
+        .collect()
+}
+
+/// A machine profile read from a file, or a bundled one by its name when no such file exists.
 fn read_profile(path: &Path) -> Result<Machine> {
-    let text = fs::read_to_string(path)
-        .with_context(|| format!("cannot read the machine profile {}", path.display()))?;
+    let name = path.to_string_lossy();
+    if !path.exists() && bundled_names().contains(&name.as_ref()) {
+        return bundled_profile(&name);
+    }
+    let text = fs::read_to_string(path).with_context(|| {
+        format!(
+            "cannot read the machine profile {}; give the path of a profile file, or the name \
+             of a bundled one: {}",
+            path.display(),
+            bundled_names().join(", ")
+        )
+    })?;
     Machine::from_toml(&text, &path.display().to_string()).map_err(|e| anyhow::anyhow!("{e}"))
 }
 

@@ -452,7 +452,7 @@ fn present(f: &Finished) -> (String, Report) {
     let mut warnings = solved.part.warnings.clone();
     warnings.extend(unused_warnings(&solved.unused_bays));
     warnings.extend(f.plan.warnings.iter().cloned());
-    warnings.extend(resolved.direction_warning.clone());
+    warnings.extend(resolved.warnings.iter().cloned());
     let report = report::build_report(ReportInput {
         drawing: &s.file_name,
         drawing_units: solved.drawing.units.symbol(),

@@ -69,6 +69,10 @@ pub struct JobSettings {
     pub cut_layers: Option<Vec<String>>,
     /// These layers' geometry is never cut (`--skip-layers`); `None`: the job file's, else none.
     pub skip_layers: Option<Vec<String>>,
+    /// The milling-only options the user gave (`--depth`, `--stepdown`, `--entry`,
+    /// `--ramp-angle`, `--tab-height`), by flag, so that a kind that cuts through can say it
+    /// ignored them.
+    pub milling_flags: Vec<String>,
     /// Which drawing point becomes the program's X0 Y0 (`--zero`); `None`: the job file's, else
     /// the drawing's own origin.
     pub zero: Option<WorkZero>,
@@ -137,6 +141,7 @@ impl JobSettings {
             csv_points: BTreeMap::new(),
             cut_layers: None,
             skip_layers: None,
+            milling_flags: Vec::new(),
             zero: None,
             work_offset: None,
         }

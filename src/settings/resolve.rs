@@ -28,9 +28,10 @@ pub struct ResolvedJob {
     pub fit: FitOptions,
     /// Stage 6's options (the profile gives it its words).
     pub program: ProgramSettings,
-    /// Set when a request was ignored rather than refused (conventional milling on a kind that
-    /// cuts through), for the report.
-    pub direction_warning: Option<String>,
+    /// Requests ignored rather than refused (conventional milling, a depth, passes or an entry
+    /// on a kind that cuts through) and settings worth a second look (a pass deeper than the
+    /// tool is wide), for the report.
+    pub warnings: Vec<String>,
 }
 
 /// How the tolerance is shared. The program's coordinates are rounded to the profile's decimals,
@@ -99,7 +100,8 @@ pub fn resolve(s: &JobSettings, machine: &Machine) -> Result<ResolvedJob, Settin
         .as_ref()
         .map(|t| resolve_tabs(t, profile, s))
         .transpose()?;
-    let (direction, direction_warning) = mill_only_settings(s, profile)?;
+    let (direction, mut warnings) = mill_only_settings(s, profile)?;
+    warnings.extend(deep_pass_warning(s, profile, tool_diameter, depth));
     let plan = PlanOptions {
         tool_diameter,
         leads: resolve_leads(&s.leads, s.job.as_ref(), machine.defaults.leads),
@@ -146,7 +148,7 @@ pub fn resolve(s: &JobSettings, machine: &Machine) -> Result<ResolvedJob, Settin
         plan,
         fit,
         program,
-        direction_warning,
+        warnings,
     })
 }
 
@@ -283,17 +285,19 @@ fn resolve_tabs(
 }
 
 /// The settings only mills and routers act on. Laser, plasma and waterjet cut through in one
-/// pass: a finishing allowance is refused ([`SettingsError::FinishCutsThrough`]). They always cut in
-/// the usual direction for thermal cutting (outline clockwise, holes counter-clockwise: the
-/// squarer side of a plasma kerf, on the right of travel with the usual swirl, falls on the part;
-/// docs/sources.md P4.1): conventional milling is a milling matter, so a request for it is
-/// ignored with the warning returned here rather than refused (the program is still right).
+/// pass: a finishing allowance is refused ([`SettingsError::FinishCutsThrough`]); a depth,
+/// passes, an entry or a ramp angle given for one (`JobSettings::milling_flags`) is ignored with
+/// a warning naming each. They always cut in the usual direction for thermal cutting (outline
+/// clockwise, holes counter-clockwise: the squarer side of a plasma kerf, on the right of travel
+/// with the usual swirl, falls on the part; docs/sources.md P4.1): conventional milling is a
+/// milling matter, so a request for it is ignored with a warning rather than refused (the
+/// program is still right).
 fn mill_only_settings(
     s: &JobSettings,
     profile: &MachineProfile,
-) -> Result<(Direction, Option<String>), SettingsError> {
+) -> Result<(Direction, Vec<String>), SettingsError> {
     if profile.spindle().is_some() {
-        return Ok((s.direction, None));
+        return Ok((s.direction, Vec::new()));
     }
     if let Some(allowance) = s.finish_allowance {
         return Err(SettingsError::FinishCutsThrough {
@@ -301,14 +305,62 @@ fn mill_only_settings(
             machine: profile.kind().to_string(),
         });
     }
-    let warning = (s.direction == Direction::Conventional).then(|| {
-        format!(
+    let mut warnings = Vec::new();
+    if s.direction == Direction::Conventional {
+        warnings.push(format!(
             "the conventional direction applies to mills and routers only and was ignored: the \
              {} cuts in the usual direction (outline clockwise, holes counter-clockwise)",
             profile.kind()
+        ));
+    }
+    if !s.milling_flags.is_empty() {
+        warnings.push(format!(
+            "{} appl{} to mills and routers only and {} ignored: a {} cuts through the sheet in \
+             one pass, pierced in the scrap",
+            s.milling_flags.join(", "),
+            if s.milling_flags.len() == 1 {
+                "ies"
+            } else {
+                "y"
+            },
+            if s.milling_flags.len() == 1 {
+                "was"
+            } else {
+                "were"
+            },
+            profile.kind()
+        ));
+    }
+    Ok((Direction::Climb, warnings))
+}
+
+/// Common practice: a pass no deeper than the tool's diameter when slotting (a full-width cut,
+/// as every contour's first pass is).
+pub const MAX_PASS_PER_DIAMETER: f64 = 1.0;
+
+/// A warning when a mill's or router's deepest pass is deeper than [`MAX_PASS_PER_DIAMETER`]
+/// times the tool, naming `--stepdown`.
+fn deep_pass_warning(
+    s: &JobSettings,
+    profile: &MachineProfile,
+    tool_diameter: f64,
+    depth: f64,
+) -> Option<String> {
+    if profile.spindle().is_none() {
+        return None;
+    }
+    let pass = s
+        .stepdown
+        .filter(|&st| st > 0.0 && st < depth)
+        .unwrap_or(depth);
+    (pass > MAX_PASS_PER_DIAMETER * tool_diameter).then(|| {
+        format!(
+            "each pass cuts {pass} mm deep with a {tool_diameter} mm tool; common practice is at \
+             most {MAX_PASS_PER_DIAMETER} × the diameter per pass when slotting. Give a smaller \
+             --stepdown (e.g. {}) unless the tool and machine are made for it",
+            (MAX_PASS_PER_DIAMETER * tool_diameter * 0.5 * 1000.0).round() / 1000.0
         )
-    });
-    Ok((Direction::Climb, warning))
+    })
 }
 
 #[cfg(test)]
@@ -407,14 +459,39 @@ mod tests {
     }
 
     #[test]
+    fn a_pass_deeper_than_the_tool_is_wide_is_a_warning() {
+        let mill = profile("metric-mill");
+        let mut s = JobSettings::new("part.dxf", 3.0);
+        s.depth = Some(3.0);
+        assert!(
+            resolve(&s, &mill).unwrap().warnings.is_empty(),
+            "3 mm with a 3 mm tool"
+        );
+        s.depth = Some(5.0);
+        let w = resolve(&s, &mill).unwrap().warnings;
+        assert!(w.iter().any(|w| w.contains("--stepdown")), "{w:?}");
+        s.stepdown = Some(2.5);
+        assert!(resolve(&s, &mill).unwrap().warnings.is_empty());
+    }
+
+    #[test]
     fn milling_only_requests_on_a_laser() {
         let laser = profile("laser");
         let mut s = JobSettings::new("part.dxf", 0.2);
         s.direction = Direction::Conventional;
         let r = resolve(&s, &laser).unwrap();
         assert_eq!(r.plan.direction, Direction::Climb);
-        assert!(r.direction_warning.is_some());
+        assert_eq!(r.warnings.len(), 1, "{:?}", r.warnings);
         assert!(r.cuts_through && r.depth == 0.0);
+        s.milling_flags = vec!["--stepdown".into(), "--depth".into()];
+        let r = resolve(&s, &laser).unwrap();
+        assert!(
+            r.warnings
+                .iter()
+                .any(|w| w.starts_with("--stepdown, --depth apply to mills and routers only")),
+            "{:?}",
+            r.warnings
+        );
         s.finish_allowance = Some(0.3);
         assert!(matches!(
             resolve(&s, &laser),
