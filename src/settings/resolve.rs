@@ -346,9 +346,8 @@ fn deep_pass_warning(
     tool_diameter: f64,
     depth: f64,
 ) -> Option<String> {
-    if profile.spindle().is_none() {
-        return None;
-    }
+    // Mills and routers only.
+    profile.spindle()?;
     let pass = s
         .stepdown
         .filter(|&st| st > 0.0 && st < depth)
