@@ -153,6 +153,18 @@ struct CutArgs {
     /// steel, up to 5–10° in aluminium). Default: 3. Mills and routers only.
     #[arg(long, allow_negative_numbers = true)]
     ramp_angle: Option<f64>,
+    /// The cutting feed (mm/min). Default: the job file's, else the machine profile's; refused
+    /// above the profile's largest feed.
+    #[arg(long, allow_negative_numbers = true, value_name = "MM_PER_MIN")]
+    feed: Option<f64>,
+    /// The feed down into the work (mm/min): the plunge on a mill or router, the move from
+    /// pierce height to cut height on the others. Default: the job file's, else the profile's.
+    #[arg(long, allow_negative_numbers = true, value_name = "MM_PER_MIN")]
+    plunge_feed: Option<f64>,
+    /// The spindle speed (rpm), mills and routers only. Default: the job file's, else the
+    /// profile's; refused above the profile's largest speed.
+    #[arg(long, allow_negative_numbers = true, value_name = "RPM")]
+    spindle_speed: Option<f64>,
     /// Climb (default) or conventional milling; thermal cuts keep the usual direction.
     #[arg(long, default_value = "climb")]
     direction: Direction,
@@ -312,6 +324,9 @@ fn request(file_name: String, input: &DrawingArgs, cut: Option<&CutArgs>) -> Res
             None => Some(defaults::RAMP_ANGLE_DEG),
         },
         helical_entry: cut.is_none_or(|c| c.entry.is_none_or(|e| e == EntryArg::Helix)),
+        cut_feed: cut.and_then(|c| c.feed),
+        plunge_feed: cut.and_then(|c| c.plunge_feed),
+        spindle_speed: cut.and_then(|c| c.spindle_speed),
         milling_flags: cut.map(milling_flags).unwrap_or_default(),
         leads: cut.map_or_else(LeadRequest::default, |c| LeadRequest {
             kind: c.lead,
@@ -355,6 +370,7 @@ fn milling_flags(c: &CutArgs) -> Vec<String> {
         ("--entry", c.entry.is_some()),
         ("--ramp-angle", c.ramp_angle.is_some()),
         ("--tab-height", c.tab_height.is_some()),
+        ("--spindle-speed", c.spindle_speed.is_some()),
     ]
     .into_iter()
     .filter(|(_, given)| *given)

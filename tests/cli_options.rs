@@ -74,3 +74,72 @@ fn milling_options_on_a_laser_are_ignored_with_a_warning_naming_them() {
         "{warnings}"
     );
 }
+
+#[test]
+fn feeds_and_speeds_from_the_command_line_and_the_job_file_within_the_profile_limits() {
+    let dir = tempfile::tempdir().unwrap();
+    // The demo part on the bundled mill (6 mm end mill): its profile's feeds are 400 and 100
+    // mm/min and 8,000 rpm, at most 2,500 mm/min and 10,000 rpm.
+    let demo = conicut::demo::demo_dxf_bytes();
+    fs::write(dir.path().join("d.dxf"), &demo).unwrap();
+    let run = |args: &[&str]| {
+        conicut()
+            .current_dir(dir.path())
+            .args([
+                "plan",
+                "d.dxf",
+                "--machine",
+                "metric-mill",
+                "--tool-diameter",
+                "6",
+                "--out",
+                "out",
+            ])
+            .args(args)
+            .output()
+            .unwrap()
+    };
+    let program = || fs::read_to_string(dir.path().join("out/d.ngc")).unwrap();
+    let out = run(&[
+        "--feed",
+        "800",
+        "--plunge-feed",
+        "120",
+        "--spindle-speed",
+        "9000",
+    ]);
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let text = program();
+    assert!(text.contains("F800"), "the cut feed is written");
+    assert!(text.contains("F120"), "the plunge feed is written");
+    assert!(text.contains("S9000"), "the spindle speed is written");
+    // The job file's (in inches per minute: 40 in/min = 1016 mm/min) when the command line is
+    // silent.
+    fs::write(
+        dir.path().join("job.toml"),
+        "units = \"in\"\nfeed = 40\n[[feature]]\nname = \"bay 1\"\nbay = \"bay 1\"\n",
+    )
+    .unwrap();
+    let out = run(&["--job", "job.toml"]);
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    assert!(program().contains("F1016"), "40 in/min in mm/min");
+    // Past the profile's limits: refused, naming the limit.
+    let out = run(&["--feed", "5000"]);
+    assert!(!out.status.success());
+    let message = String::from_utf8_lossy(&out.stderr);
+    assert!(message.contains("2500"), "{message}");
+    let out = run(&["--spindle-speed", "12000"]);
+    assert!(!out.status.success());
+    assert!(String::from_utf8_lossy(&out.stderr).contains("10000"));
+    let out = run(&["--feed", "-5"]);
+    assert!(!out.status.success());
+    assert!(String::from_utf8_lossy(&out.stderr).contains("not a positive number"));
+}

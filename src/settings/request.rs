@@ -69,6 +69,14 @@ pub struct JobSettings {
     pub cut_layers: Option<Vec<String>>,
     /// These layers' geometry is never cut (`--skip-layers`); `None`: the job file's, else none.
     pub skip_layers: Option<Vec<String>>,
+    /// The cutting feed (mm/min; `--feed`); `None`: the job file's, else the profile's.
+    pub cut_feed: Option<f64>,
+    /// The feed down into the work (mm/min; `--plunge-feed`); `None`: the job file's, else the
+    /// profile's.
+    pub plunge_feed: Option<f64>,
+    /// The spindle speed (rpm; `--spindle-speed`), mills and routers; `None`: the job file's,
+    /// else the profile's.
+    pub spindle_speed: Option<f64>,
     /// The milling-only options the user gave (`--depth`, `--stepdown`, `--entry`,
     /// `--ramp-angle`, `--tab-height`), by flag, so that a kind that cuts through can say it
     /// ignored them.
@@ -141,6 +149,9 @@ impl JobSettings {
             csv_points: BTreeMap::new(),
             cut_layers: None,
             skip_layers: None,
+            cut_feed: None,
+            plunge_feed: None,
+            spindle_speed: None,
             milling_flags: Vec::new(),
             zero: None,
             work_offset: None,

@@ -122,15 +122,18 @@ pub fn resolve(s: &JobSettings, machine: &Machine) -> Result<ResolvedJob, Settin
         },
         scrap_side_only: s.scrap_side_only,
     };
+    // A job file's value, when there is a job file and it gives one.
+    let job =
+        |f: fn(&crate::settings::job_file::JobFile) -> Option<f64>| s.job.as_ref().and_then(f);
     let program = ProgramSettings {
         title: format!("elliptical openings for {}", s.file_name),
         source: s.file_name.clone(),
         tool_diameter,
         depth,
         tolerance: s.tolerance,
-        cut_feed: None,
-        plunge_feed: None,
-        spindle_speed: None,
+        cut_feed: s.cut_feed.or(job(|j| j.feed)),
+        plunge_feed: s.plunge_feed.or(job(|j| j.plunge_feed)),
+        spindle_speed: s.spindle_speed.or(job(|j| j.spindle_speed)),
         stepdown: s.stepdown,
         ramp_angle_deg: s.ramp_angle_deg,
         // A helix is written as arcs: not for straight moves only.

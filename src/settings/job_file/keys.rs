@@ -1,8 +1,11 @@
 //! The keys a job file may hold, where, and which belong together.
 
 /// Keys allowed at the top of a job file.
-pub(super) const TOP_KEYS: [&str; 13] = [
+pub(super) const TOP_KEYS: [&str; 16] = [
     "units",
+    "feed",
+    "plunge_feed",
+    "spindle_speed",
     "margin",
     "bay_layer",
     "cut_layers",

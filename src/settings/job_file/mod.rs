@@ -14,6 +14,9 @@
 //! bay_layer = "OPENING-BAYS"    # optional: the DXF layer holding the bays
 //! cut_layers = ["PLATE"]        # optional: cut only these layers' geometry (bays as always)
 //! skip_layers = ["DIMS"]        # optional: never cut these layers' geometry
+//! feed = 1200.0                # optional: cutting feed, file units per minute
+//! plunge_feed = 300.0           # optional: feed down into the work, file units per minute
+//! spindle_speed = 18000         # optional: rpm (mills and routers)
 //! zero = "lower-left"           # optional: the program's X0 Y0: drawing | lower-left |
 //!                               # lower-right | upper-left | upper-right | centre (of the
 //!                               # outline's box), or a drawing point [x, y]; default drawing
@@ -110,6 +113,12 @@ pub struct JobFile {
     /// `skip_layers`: these layers' geometry is never cut, if the file says (the command
     /// line's `--skip-layers` wins).
     pub skip_layers: Option<Vec<String>>,
+    /// `feed`: the cutting feed (converted to mm/min), if the file gives one.
+    pub feed: Option<f64>,
+    /// `plunge_feed`: the feed down into the work (mm/min), if the file gives one.
+    pub plunge_feed: Option<f64>,
+    /// `spindle_speed`: rpm, if the file gives one.
+    pub spindle_speed: Option<f64>,
     /// `zero`: which drawing point becomes the program's X0 Y0, if the file says (the command
     /// line's `--zero` wins).
     pub zero: Option<WorkZero>,

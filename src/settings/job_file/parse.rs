@@ -37,6 +37,18 @@ pub fn parse_job_file(text: &str, file_name: &str) -> Result<JobFile, JobFileErr
     let margin = top.get("margin").map(|e| cx.margin(e, scale)).transpose()?;
     let bay_layer = top.get("bay_layer").map(|e| cx.string(e)).transpose()?;
     let leads = leads(&cx, &top, scale)?;
+    let feed = top
+        .get("feed")
+        .map(|e| cx.size(e, scale, "the feed"))
+        .transpose()?;
+    let plunge_feed = top
+        .get("plunge_feed")
+        .map(|e| cx.size(e, scale, "the plunge feed"))
+        .transpose()?;
+    let spindle_speed = top
+        .get("spindle_speed")
+        .map(|e| cx.size(e, 1.0, "the spindle speed"))
+        .transpose()?;
     let cut_layers = top
         .get("cut_layers")
         .map(|e| cx.layer_names(e))
@@ -60,6 +72,9 @@ pub fn parse_job_file(text: &str, file_name: &str) -> Result<JobFile, JobFileErr
         bay_layer,
         cut_layers,
         skip_layers,
+        feed,
+        plunge_feed,
+        spindle_speed,
         zero,
         work_offset,
         leads,
