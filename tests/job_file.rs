@@ -79,6 +79,8 @@ fn example_file_parses_to_the_expected_specs() {
         source,
         cut,
         margin,
+        depth: None,
+        stepdown: None,
     };
     let expected = JobFile {
         units: Units::Millimetres,

@@ -279,6 +279,7 @@ fn plan_of(name: &str, e: Ellipse, d: f64, stepover: f64) -> Result<Plan, PlanEr
         ellipse: e,
         side: CutSide::Inside,
         pocket: true,
+        depth: Default::default(),
     };
     let opts = PlanOptions {
         pocket_stepover: stepover,
@@ -628,8 +629,9 @@ fn demo_pockets_cut_scrap_side_only_never_touch_the_edge() {
     demo_pockets(true);
 }
 
-/// The demo drawing with the pocket job file on the metric mill, 6 mm tool, 3 mm deep in two
-/// passes, helical entry: both pockets covered at the floor and clear of their edges.
+/// The demo drawing with the pocket job file on the metric mill, 6 mm tool, the job 3 mm deep in
+/// passes of 1.5 mm and the pockets at their own depths, helical entry: both pockets covered at
+/// the floor and clear of their edges.
 fn demo_pockets(scrap_side_only: bool) {
     let d = 6.0;
     let r = d / 2.0;
@@ -654,12 +656,25 @@ fn demo_pockets(scrap_side_only: bool) {
             sum.angle_deg.to_radians(),
         )
         .expect("an ellipse");
-        check_demo_pocket(&trace, &f.name, &e, r, scrap_side_only);
+        // The job file gives each pocket its own depth (1.5 mm and 1 mm into the 3 mm plate).
+        let depth = match f.name.as_str() {
+            "pocket 2" => 1.5,
+            "round pocket 3" => 1.0,
+            other => panic!("an unexpected pocket {other}"),
+        };
+        check_demo_pocket(&trace, &f.name, &e, r, depth, scrap_side_only);
     }
     assert_eq!(pockets, 2, "the job file makes two pockets");
 }
 
-fn check_demo_pocket(trace: &ReadBack, name: &str, e: &Ellipse, r: f64, scrap_side_only: bool) {
+fn check_demo_pocket(
+    trace: &ReadBack,
+    name: &str,
+    e: &Ellipse,
+    r: f64,
+    depth: f64,
+    scrap_side_only: bool,
+) {
     let range = feature_indices(trace, name);
     let moves: Vec<&ReadMove> = range
         .clone()
@@ -667,7 +682,7 @@ fn check_demo_pocket(trace: &ReadBack, name: &str, e: &Ellipse, r: f64, scrap_si
         .filter(|m| !m.rapid)
         .collect();
     let floor = moves.iter().map(|m| m.to[2]).fold(f64::INFINITY, f64::min);
-    assert!((floor + 3.0).abs() < 1e-9, "floor {floor}");
+    assert!((floor + depth).abs() < 1e-9, "floor {floor}");
     // The clearing comes before the contour.
     let clearing = marked_moves(trace, name, "clearing");
     let mut contour = marked_moves(trace, name, "contour");

@@ -38,6 +38,8 @@ pub struct SolvedFeature {
     /// Edge margin used (bay features, mm).
     pub margin_mm: Option<f64>,
     pub cut: CutKind,
+    /// The feature's own depth and passes (mills and routers), if its spec gives them.
+    pub depth: crate::plan::CutDepth,
     /// The bay's corners after the margin (bay features, mm).
     pub solved_corners: Option<Vec<Point>>,
     pub fit: Option<FitQuality>,
@@ -58,6 +60,8 @@ pub fn default_specs(part: &Part) -> Vec<FeatureSpec> {
             },
             cut: CutKind::Hole,
             margin: None,
+            depth: None,
+            stepdown: None,
         })
         .collect()
 }
@@ -124,6 +128,10 @@ fn solve_one(spec: &FeatureSpec, inputs: &FeatureInputs, bays: &BayLookup) -> So
         rule: None,
         margin_mm: None,
         cut: spec.cut,
+        depth: crate::plan::CutDepth {
+            depth: spec.depth,
+            stepdown: spec.stepdown,
+        },
         solved_corners: None,
         fit: None,
         outcome: Err(failure(String::new())),

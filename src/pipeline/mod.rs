@@ -365,6 +365,20 @@ pub fn run_resolved_watched(
     refuse_unsolved(&solved, profile, &s.file_name)?;
     let (mut to_cut, mut infos) = openings(&solved.features);
     let zero = place_zero(s, &mut solved, &mut to_cut, &mut infos)?;
+    if profile.spindle().is_none() {
+        for f in solved
+            .features
+            .iter()
+            .filter(|f| f.depth != plan::CutDepth::default())
+        {
+            solved.part.warnings.push(format!(
+                "{}: its own depth and stepdown apply to mills and routers only and were \
+                 ignored: a {} cuts through",
+                f.name,
+                profile.kind()
+            ));
+        }
+    }
     let mut program_settings = resolved.program.clone();
     program_settings.work_zero = Some(zero.words.clone());
     watch(Step::Planning(
@@ -557,6 +571,7 @@ fn openings(features: &[SolvedFeature]) -> (Vec<plan::Opening>, Vec<SolvedInfo>)
                 CutKind::Hole | CutKind::Pocket => plan::CutSide::Inside,
             },
             pocket: f.cut == CutKind::Pocket,
+            depth: f.depth,
         });
         infos.push(SolvedInfo {
             name: f.name.clone(),

@@ -15,12 +15,25 @@ pub struct Tab {
     pub length: f64,
 }
 
+/// A feature's own cut depth and pass depth (mm, positive), overriding the job's on mills and
+/// routers: a pocket in a 3 mm plate need not go to the through-cut depth of the holes.
+#[derive(Debug, Clone, Copy, PartialEq, Default, Serialize)]
+pub struct CutDepth {
+    /// The depth below the work zero; `None`: the job's.
+    pub depth: Option<f64>,
+    /// The depth of each pass; `None`: the job's.
+    pub stepdown: Option<f64>,
+}
+
 /// One feature's planned cut.
 ///
 /// The fields are the plan stage's own (`pub(super)`): other stages read them through the
 /// accessors below and build cuts only through the constructors.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct PlannedCut {
+    /// This feature's own depth and passes (mills and routers), where its job-file feature
+    /// gives them; the job's otherwise.
+    pub(super) depth: CutDepth,
     pub(super) name: String,
     pub(super) kind: FeatureKind,
     pub(super) side: CutSide,
@@ -103,6 +116,7 @@ impl PlannedCut {
         edge: Edge,
     ) -> Self {
         PlannedCut {
+            depth: CutDepth::default(),
             name: name.to_string(),
             kind,
             side,
@@ -192,6 +206,17 @@ impl PlannedCut {
     /// Radial stock (mm) left on the finished edge for a finishing cut that follows.
     pub fn allowance(&self) -> f64 {
         self.allowance
+    }
+
+    /// This feature's own depth and passes, where it has them.
+    pub fn depth(&self) -> CutDepth {
+        self.depth
+    }
+
+    /// The cut with its own depth and passes.
+    pub fn with_depth(mut self, depth: CutDepth) -> Self {
+        self.depth = depth;
+        self
     }
 
     /// Sets `entry_room` from the edge and the tool radius `r`: the plunge point's distance from

@@ -43,7 +43,7 @@ pub mod pocket;
 mod tabs;
 pub mod zero;
 
-pub use cut::{PlannedCut, Tab};
+pub use cut::{CutDepth, PlannedCut, Tab};
 pub use error::PlanError;
 pub use options::{
     Direction, LeadKind, LeadOptions, POCKET_STEPOVER_PER_DIAMETER, PlanOptions, TabOptions,
@@ -69,6 +69,8 @@ pub struct Opening {
     pub side: CutSide,
     /// Clear the whole inside (a pocket), not just the edge; only with `Inside`.
     pub pocket: bool,
+    /// The feature's own depth and passes, if it has them.
+    pub depth: CutDepth,
 }
 
 /// The cuts in the order they run: every inner feature before the outline.
@@ -108,15 +110,19 @@ pub fn plan_cuts(part: &Part, openings: &[Opening], opts: &PlanOptions) -> Resul
     let mut warnings = Vec::new();
     let mut inner = Vec::new();
     for o in openings {
-        inner.push(match o.side {
-            CutSide::Inside if o.pocket => {
-                let mut cut = plan_ellipse(&o.name, FeatureKind::Pocket, &o.ellipse, r, d)?;
-                cut.clearing = pocket::clearing_rings(&o.name, &o.ellipse, r, opts, &mut warnings)?;
-                cut
+        inner.push(
+            match o.side {
+                CutSide::Inside if o.pocket => {
+                    let mut cut = plan_ellipse(&o.name, FeatureKind::Pocket, &o.ellipse, r, d)?;
+                    cut.clearing =
+                        pocket::clearing_rings(&o.name, &o.ellipse, r, opts, &mut warnings)?;
+                    cut
+                }
+                CutSide::Inside => plan_ellipse(&o.name, FeatureKind::Opening, &o.ellipse, r, d)?,
+                CutSide::Outside => plan_ellipse_boss(&o.name, &o.ellipse, r),
             }
-            CutSide::Inside => plan_ellipse(&o.name, FeatureKind::Opening, &o.ellipse, r, d)?,
-            CutSide::Outside => plan_ellipse_boss(&o.name, &o.ellipse, r),
-        });
+            .with_depth(o.depth),
+        );
     }
     for h in &part.holes {
         let cut = match &h.shape {

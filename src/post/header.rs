@@ -47,6 +47,27 @@ pub(super) fn header(
         } else {
             String::new()
         };
+        let own_depth = if profile.spindle().is_some()
+            && (cut.depth.depth.is_some() || cut.depth.stepdown.is_some())
+        {
+            let (depth, stepdown) = super::passes::cut_depth(cut, s);
+            let passes = if cut.full_depth_only {
+                1
+            } else {
+                pass_depths(depth, stepdown).len()
+            };
+            format!(
+                ", its own depth {} {u}{}",
+                format_number(units.from_mm(depth), profile.z_decimals()),
+                if passes > 1 {
+                    format!(" in {passes} passes")
+                } else {
+                    String::new()
+                }
+            )
+        } else {
+            String::new()
+        };
         let pass = if cut.allowance > 0.0 {
             format!(", roughing, leaves {} {u}", xy(cut.allowance))
         } else if cut.full_depth_only && profile.spindle().is_some() {
@@ -55,7 +76,7 @@ pub(super) fn header(
             String::new()
         };
         text.push(format!(
-            "{} {}: {}, {}{pass}, {} feed moves{arcs}, fitted deviation {} {u}",
+            "{} {}: {}, {}{own_depth}{pass}, {} feed moves{arcs}, fitted deviation {} {u}",
             i + 1,
             sanitize(&cut.name),
             kind_word(cut.kind),

@@ -8,6 +8,15 @@ use super::writer::{Writer, units_point};
 use crate::fit::FittedCut;
 use crate::geom::Move;
 
+/// The depth and pass depth of `cut` (mm): its own where its feature gives them, else the
+/// job's.
+pub(super) fn cut_depth(cut: &FittedCut, settings: &ProgramSettings) -> (f64, Option<f64>) {
+    (
+        cut.depth.depth.unwrap_or(settings.depth),
+        cut.depth.stepdown.or(settings.stepdown),
+    )
+}
+
 impl Writer<'_> {
     /// Every pass of a cut on a mill or router ([`pass_depths`]; one pass at the full depth for a
     /// finishing cut): over the plunge point at the retract height, the entry into the pass's
@@ -20,12 +29,13 @@ impl Writer<'_> {
         r: &Resolved,
     ) -> Result<Written, PostError> {
         let units = self.profile.units();
+        let (depth, stepdown) = cut_depth(cut, settings);
         let floors = if cut.full_depth_only {
-            vec![settings.depth]
+            vec![depth]
         } else {
-            pass_depths(settings.depth, settings.stepdown)
+            pass_depths(depth, stepdown)
         };
-        let tab_top = -units.from_mm(settings.depth - settings.tab_height);
+        let tab_top = -units.from_mm(depth - settings.tab_height);
         let mut done = Written::default();
         let mut z_prev = 0.0;
         let passes = floors.len();

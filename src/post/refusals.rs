@@ -118,6 +118,31 @@ pub(super) fn check_cut(
         feature: &cut.name,
     };
     envelope.check_heights(r)?;
+    if let (Cutter::Spindle(_), Some(depth)) = (profile.cutter(), cut.depth.depth) {
+        if !(depth.is_finite() && depth > 0.0) {
+            return Err(PostError::BadSetting {
+                setting: "a feature's depth",
+                value: depth,
+                problem: "is not a positive number",
+                hint: "give the feature's depth below the work zero in mm",
+            });
+        }
+        envelope.check(
+            "the feature's cut depth",
+            'Z',
+            -profile.units().from_mm(depth),
+        )?;
+    }
+    if let (Cutter::Spindle(_), Some(step)) = (profile.cutter(), cut.depth.stepdown)
+        && !(step.is_finite() && step > 0.0)
+    {
+        return Err(PostError::BadSetting {
+            setting: "a feature's stepdown",
+            value: step,
+            problem: "is not a positive number",
+            hint: "give the depth of each of the feature's passes in mm",
+        });
+    }
     envelope.check_plunge(cut)?;
     for (start, run) in runs {
         envelope.check_run(start, run)?;

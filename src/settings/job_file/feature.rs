@@ -48,6 +48,14 @@ impl Context<'_> {
                 .transpose()?,
             _ => None,
         };
+        let depth = entries
+            .get("depth")
+            .map(|e| self.size(e, scale, "the depth"))
+            .transpose()?;
+        let stepdown = entries
+            .get("stepdown")
+            .map(|e| self.size(e, scale, "the stepdown"))
+            .transpose()?;
         Ok((
             FeatureSpec {
                 name,
@@ -55,6 +63,8 @@ impl Context<'_> {
                 source,
                 cut,
                 margin,
+                depth,
+                stepdown,
             },
             name_entry.line,
         ))

@@ -21,9 +21,11 @@ pub(super) const TOP_KEYS: [&str; 16] = [
 ];
 
 /// Keys allowed in a `[[feature]]` table.
-pub(super) const FEATURE_KEYS: [&str; 18] = [
+pub(super) const FEATURE_KEYS: [&str; 20] = [
     "name",
     "cut",
+    "depth",
+    "stepdown",
     "bay",
     "inside",
     "rule",

@@ -34,6 +34,8 @@
 //! rule = "largest"              # which ellipse of the bay; default "largest" (rules below)
 //! margin = 3.0                  # optional: edge margin for this bay, overrides the default
 //! cut = "hole"                  # hole | boss | pocket; default hole
+//! depth = 1.5                   # optional (mills, routers): this feature's depth, and
+//! stepdown = 0.5                # its pass depth, overriding the job's
 //!
 //! [[feature]]
 //! name = "probed oval"
@@ -190,6 +192,10 @@ pub struct FeatureSpec {
     pub cut: CutKind,
     /// This bay's edge margin (mm, ≥ 0), overriding the file's default; only bay features have one.
     pub margin: Option<f64>,
+    /// `depth`: this feature's cut depth (mm, > 0; mills and routers), overriding the job's.
+    pub depth: Option<f64>,
+    /// `stepdown`: this feature's pass depth (mm, > 0; mills and routers), overriding the job's.
+    pub stepdown: Option<f64>,
 }
 
 /// Where a feature's ellipse comes from.

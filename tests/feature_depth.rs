@@ -1,0 +1,64 @@
+//! A feature's own depth and passes from the job file: the demo's pockets
+//! (demo-parts/truss-bracket-pocket-job.toml) go 1.5 mm (in passes of 0.75 mm) and 1 mm into
+//! the 3 mm plate while its holes cut through at the job's depth. Read back by the outside
+//! `gcode` crate (tests/support/gcode_read.rs; f32, 1e-4 mm).
+
+#[path = "support/gcode_read.rs"]
+mod gcode_read;
+
+use assert_cmd::Command;
+use gcode_read::{marked_moves, read_back};
+use std::fs;
+
+#[test]
+fn pockets_keep_their_own_depth_and_holes_the_jobs() {
+    let dir = tempfile::tempdir().unwrap();
+    let root = env!("CARGO_MANIFEST_DIR");
+    Command::cargo_bin("conicut")
+        .unwrap()
+        .current_dir(dir.path())
+        .args([
+            "demo",
+            "--out",
+            "out",
+            "--job",
+            &format!("{root}/demo-parts/truss-bracket-pocket-job.toml"),
+        ])
+        .assert()
+        .success();
+    let program = fs::read_to_string(dir.path().join("out/truss-bracket.ngc")).unwrap();
+    let read = read_back(&program);
+    // The deepest Z of each feature's contour moves, and how many passes reach the contour.
+    let deepest = |name: &str| {
+        marked_moves(&read, name, "contour")
+            .iter()
+            .map(|&i| read.moves[i].to[2])
+            .fold(f64::INFINITY, f64::min)
+    };
+    let demo_depth = conicut::demo::CUT_DEPTH;
+    for (name, depth) in [
+        ("pocket 2", 1.5),
+        ("round pocket 3", 1.0),
+        ("lightening hole 1", demo_depth),
+        ("lightening hole 4", demo_depth),
+    ] {
+        assert!(
+            (deepest(name) + depth).abs() < 1e-4,
+            "{name}: {}",
+            deepest(name)
+        );
+    }
+    // Pocket 2 in two passes of 0.75 mm: its contour at Z −0.75 and Z −1.5.
+    let mut levels: Vec<i64> = marked_moves(&read, "pocket 2", "contour")
+        .iter()
+        .map(|&i| (read.moves[i].to[2] * 1e4).round() as i64)
+        .collect();
+    levels.sort();
+    levels.dedup();
+    assert_eq!(levels, [-15000, -7500], "{levels:?}");
+    assert!(
+        program.contains(
+            "pocket 2: elliptical pocket, tool inside, its own depth 1.500 mm in 2 passes"
+        )
+    );
+}
