@@ -16,6 +16,7 @@ use conicut::read::parse_points_csv;
 use conicut::report::OutputFile;
 use conicut::settings::defaults;
 use conicut::settings::job_file::{FeatureSource, FitPoints, JobFile, parse_job_file};
+use conicut::settings::words::Length;
 use conicut::settings::{BUNDLED_PROFILES, JobSettings, LeadRequest, Machine, TabRequest};
 use std::collections::BTreeMap;
 use std::fs;
@@ -44,13 +45,13 @@ enum Command {
         machine: String,
         #[command(flatten)]
         cut: CutArgs,
-        /// Edge margin: each bay side is moved inward by this much before solving (mm).
-        #[arg(long, default_value_t = 4.0, allow_negative_numbers = true)]
-        margin: f64,
-        /// Cutter diameter (mm). Default: 6 mm for mills and routers, the profile's kerf width
+        /// Edge margin: each bay side is moved inward by this much before solving (mm, or with a unit: 0.25in).
+        #[arg(long, default_value_t = Length(4.0), allow_negative_numbers = true)]
+        margin: Length,
+        /// Cutter diameter (mm, or with a unit: 0.25in). Default: 6 mm for mills and routers, the profile's kerf width
         /// for laser, plasma and waterjet.
         #[arg(long, visible_alias = "kerf", allow_negative_numbers = true)]
-        tool_diameter: Option<f64>,
+        tool_diameter: Option<Length>,
         /// A job file saying which ellipse each bay gets (see demo-parts/truss-bracket-job.toml).
         #[arg(long)]
         job: Option<PathBuf>,
@@ -75,10 +76,10 @@ enum Command {
         /// inch-router, laser, plasma or waterjet.
         #[arg(long)]
         machine: PathBuf,
-        /// Cutter diameter (mm), or the kerf width for laser, plasma and waterjet (`--kerf`);
+        /// Cutter diameter (mm, or with a unit: 0.25in), or the kerf width for laser, plasma and waterjet (`--kerf`);
         /// those profiles supply their kerf when it is not given.
         #[arg(long, visible_alias = "kerf", allow_negative_numbers = true)]
-        tool_diameter: Option<f64>,
+        tool_diameter: Option<Length>,
         /// Folder for the outputs (created if missing). One drawing: its outputs, by default
         /// `<drawing name>-conicut` in the current folder. Several: one `<drawing
         /// name>-conicut` folder per drawing inside it, by default in the current folder.
@@ -107,10 +108,10 @@ struct DrawingArgs {
     /// Layer holding the bays (matched ignoring case; a job file's bay_layer wins).
     #[arg(long, default_value = DEFAULT_BAY_LAYER)]
     bay_layer: String,
-    /// Edge margin: each bay side is moved inward by this much before solving (mm; a job file's
+    /// Edge margin: each bay side is moved inward by this much before solving (mm or with a unit; a job file's
     /// margin wins).
-    #[arg(long, default_value_t = defaults::MARGIN_MM, allow_negative_numbers = true)]
-    margin: f64,
+    #[arg(long, default_value_t = Length(defaults::MARGIN_MM), allow_negative_numbers = true)]
+    margin: Length,
     /// Cut only these layers' geometry (names separated by commas, matched ignoring case; the
     /// bay layer is read as always). Default: every layer the drawing shows; frozen, off and
     /// non-plotting layers are never cut unless named here. A job file's `cut_layers` applies
@@ -121,28 +122,28 @@ struct DrawingArgs {
     /// job file's `skip_layers` applies when this is not given.
     #[arg(long, value_delimiter = ',', value_name = "LAYERS")]
     skip_layers: Option<Vec<String>>,
-    /// Largest gap closed when joining drawing pieces into contours (mm).
+    /// Largest gap closed when joining drawing pieces into contours (mm, or with a unit: 0.25in).
     #[arg(
         long = "gap-tolerance",
-        default_value_t = DEFAULT_MAX_GAP,
+        default_value_t = Length(DEFAULT_MAX_GAP),
         allow_negative_numbers = true
     )]
-    max_gap: f64,
+    max_gap: Length,
 }
 
 #[derive(Args, Debug)]
 struct CutArgs {
-    /// Largest distance between the emitted path and the exact curve (mm).
-    #[arg(long, default_value_t = defaults::TOLERANCE_MM, allow_negative_numbers = true)]
-    tolerance: f64,
-    /// Cut depth below the work zero (mm, positive). Default: the machine profile's (the demo:
+    /// Largest distance between the emitted path and the exact curve (mm, or with a unit: 0.25in).
+    #[arg(long, default_value_t = Length(defaults::TOLERANCE_MM), allow_negative_numbers = true)]
+    tolerance: Length,
+    /// Cut depth below the work zero (mm or with a unit, positive). Default: the machine profile's (the demo:
     /// through its 3 mm plate and 0.5 mm into the board below).
     #[arg(long, allow_negative_numbers = true)]
-    depth: Option<f64>,
-    /// Depth of each pass on a mill or router (mm): the cut is made in passes this deep, the
+    depth: Option<Length>,
+    /// Depth of each pass on a mill or router (mm, or with a unit: 0.25in): the cut is made in passes this deep, the
     /// last one to the full depth. Default: the full depth in one pass.
     #[arg(long, allow_negative_numbers = true)]
-    stepdown: Option<f64>,
+    stepdown: Option<Length>,
     /// How a mill or router enters the material: helix (a helix about the plunge point where
     /// there is room, the zig-zag elsewhere), zigzag (back and forth along the first entry
     /// move), or straight (plunge straight down: centre-cutting tools only). Default: helix.
@@ -168,42 +169,43 @@ struct CutArgs {
     /// Climb (default) or conventional milling; thermal cuts keep the usual direction.
     #[arg(long, default_value = "climb")]
     direction: Direction,
-    /// Mills and routers: leave this much stock (mm, radial) for a finishing pass at full depth.
+    /// Mills and routers: leave this much stock (mm or with a unit, radial) for a finishing pass at full depth.
     #[arg(long, allow_negative_numbers = true)]
-    finish_allowance: Option<f64>,
-    /// Pockets: distance between clearing rings (mm). Default: 40 % of the tool diameter.
+    finish_allowance: Option<Length>,
+    /// Pockets: distance between clearing rings (mm, or with a unit: 0.25in). Default: 40 % of the tool diameter.
     #[arg(long, allow_negative_numbers = true)]
-    stepover: Option<f64>,
+    stepover: Option<Length>,
     /// The lead-in's shape: straight (a straight move from the plunge or pierce point), line,
     /// arc, or line-arc. Default: the job file's, else the profile's.
     #[arg(long)]
     lead: Option<LeadKind>,
-    /// Length of the lead's straight part (mm). Default: the job file's, else the profile's.
+    /// Length of the lead's straight part (mm, or with a unit: 0.25in). Default: the job file's, else the profile's.
     #[arg(long, allow_negative_numbers = true)]
-    lead_length: Option<f64>,
-    /// Radius of the lead's arc (mm). Default: the job file's, else the profile's.
+    lead_length: Option<Length>,
+    /// Radius of the lead's arc (mm, or with a unit: 0.25in). Default: the job file's, else the profile's.
     #[arg(long, allow_negative_numbers = true)]
-    lead_radius: Option<f64>,
-    /// Cut this far past the start again before leaving (mm). Default: the job file's, else
+    lead_radius: Option<Length>,
+    /// Cut this far past the start again before leaving (mm, or with a unit: 0.25in). Default: the job file's, else
     /// the profile's.
     #[arg(long, allow_negative_numbers = true)]
-    overcut: Option<f64>,
+    overcut: Option<Length>,
     /// Stop on the contour instead of leaving by a lead-out.
     #[arg(long)]
     no_lead_out: bool,
     /// Tabs on the outline: this many, spread along it.
     #[arg(long)]
     tabs: Option<usize>,
-    /// Tabs on the outline: one about every this many mm along it.
+    /// Tabs on the outline: one about every this long along it (mm, or with a
+    /// unit: 6in).
     #[arg(long, allow_negative_numbers = true)]
-    tab_spacing: Option<f64>,
-    /// Length of each tab along the edge (mm). Default by kind of machine.
+    tab_spacing: Option<Length>,
+    /// Length of each tab along the edge (mm, or with a unit: 0.25in). Default by kind of machine.
     #[arg(long, allow_negative_numbers = true)]
-    tab_width: Option<f64>,
-    /// Mills and routers: height of each tab above the floor of the cut (mm). Default by kind
+    tab_width: Option<Length>,
+    /// Mills and routers: height of each tab above the floor of the cut (mm, or with a unit: 0.25in). Default by kind
     /// of machine.
     #[arg(long, allow_negative_numbers = true)]
-    tab_height: Option<f64>,
+    tab_height: Option<Length>,
     /// Where the program's X0 Y0 is on the part: drawing (the drawing's own origin, the
     /// default), lower-left, lower-right, upper-left, upper-right or centre of the outline's box
     /// (of everything cut when there is no outline), or a drawing point X,Y in mm. Z0 is always
@@ -311,13 +313,13 @@ fn request(file_name: String, input: &DrawingArgs, cut: Option<&CutArgs>) -> Res
         file_name,
         units: input.units,
         bay_layer: input.bay_layer.clone(),
-        max_gap: input.max_gap,
-        margin: input.margin,
+        max_gap: input.max_gap.0,
+        margin: input.margin.0,
         tool_diameter: None,
         fallback_tool_diameter: None,
-        tolerance: cut.map(|c| c.tolerance).unwrap_or(defaults::TOLERANCE_MM),
-        depth: cut.and_then(|c| c.depth),
-        stepdown: cut.and_then(|c| c.stepdown),
+        tolerance: cut.map_or(defaults::TOLERANCE_MM, |c| c.tolerance.0),
+        depth: cut.and_then(|c| mm(c.depth)),
+        stepdown: cut.and_then(|c| mm(c.stepdown)),
         ramp_angle_deg: match cut {
             Some(c) if c.entry == Some(EntryArg::Straight) => None,
             Some(c) => Some(c.ramp_angle.unwrap_or(defaults::RAMP_ANGLE_DEG)),
@@ -330,9 +332,9 @@ fn request(file_name: String, input: &DrawingArgs, cut: Option<&CutArgs>) -> Res
         milling_flags: cut.map(milling_flags).unwrap_or_default(),
         leads: cut.map_or_else(LeadRequest::default, |c| LeadRequest {
             kind: c.lead,
-            length: c.lead_length,
-            radius: c.lead_radius,
-            overcut: c.overcut,
+            length: mm(c.lead_length),
+            radius: mm(c.lead_radius),
+            overcut: mm(c.overcut),
             lead_out: c.no_lead_out.then_some(false),
         }),
         direction: cut.map_or(Direction::Climb, |c| c.direction),
@@ -345,12 +347,12 @@ fn request(file_name: String, input: &DrawingArgs, cut: Option<&CutArgs>) -> Res
             })
             .map(|c| TabRequest {
                 count: c.tabs,
-                spacing: c.tab_spacing,
-                width: c.tab_width,
-                height: c.tab_height,
+                spacing: mm(c.tab_spacing),
+                width: mm(c.tab_width),
+                height: mm(c.tab_height),
             }),
-        finish_allowance: cut.and_then(|c| c.finish_allowance),
-        pocket_stepover: cut.and_then(|c| c.stepover),
+        finish_allowance: cut.and_then(|c| mm(c.finish_allowance)),
+        pocket_stepover: cut.and_then(|c| mm(c.stepover)),
         lines_only: cut.is_some_and(|c| c.lines_only),
         scrap_side_only: cut.is_some_and(|c| c.scrap_side_only),
         job,
@@ -360,6 +362,11 @@ fn request(file_name: String, input: &DrawingArgs, cut: Option<&CutArgs>) -> Res
         zero: cut.and_then(|c| c.zero),
         work_offset: cut.and_then(|c| c.work_offset),
     })
+}
+
+/// A length option's millimetres.
+fn mm(length: Option<Length>) -> Option<f64> {
+    length.map(|l| l.0)
 }
 
 /// The milling-only options given on the command line, by flag.
@@ -396,15 +403,15 @@ fn run(cli: Cli) -> Result<()> {
                 units: None,
                 bay_layer: DEFAULT_BAY_LAYER.to_string(),
                 margin,
-                max_gap: DEFAULT_MAX_GAP,
+                max_gap: Length(DEFAULT_MAX_GAP),
                 cut_layers: None,
                 skip_layers: None,
             };
             let mut request = request(DEMO_NAME.to_string(), &input, Some(&cut))?;
             // The demo's own stock and end mill; cut-through kinds use their kerf.
-            request.tool_diameter = tool_diameter;
+            request.tool_diameter = mm(tool_diameter);
             request.fallback_tool_diameter = Some(defaults::DEMO_TOOL_DIAMETER_MM);
-            request.depth = Some(cut.depth.unwrap_or(conicut::demo::CUT_DEPTH));
+            request.depth = Some(mm(cut.depth).unwrap_or(conicut::demo::CUT_DEPTH));
             let resolved = resolve(&request, &machine_read)?;
             let bytes = conicut::demo::demo_dxf_bytes();
             let output = run_resolved(&bytes, &machine_read.profile, &request, &resolved)?;
@@ -463,7 +470,7 @@ fn run(cli: Cli) -> Result<()> {
 /// What `plan` runs every drawing with.
 struct PlanArgs<'a> {
     machine: &'a Machine,
-    tool_diameter: Option<f64>,
+    tool_diameter: Option<Length>,
     input: &'a DrawingArgs,
     cut: &'a CutArgs,
 }
@@ -477,7 +484,7 @@ fn plan_one(
 ) -> Result<conicut::report::Report> {
     let (bytes, file_name, stem) = read_drawing(drawing)?;
     let mut request = request(file_name, plan.input, Some(plan.cut))?;
-    request.tool_diameter = plan.tool_diameter;
+    request.tool_diameter = mm(plan.tool_diameter);
     let resolved = resolve(&request, plan.machine)?;
     let output = run_resolved_watched(&bytes, &plan.machine.profile, &request, &resolved, watch)?;
     write_outputs(output, dir, &stem)

@@ -143,3 +143,47 @@ fn feeds_and_speeds_from_the_command_line_and_the_job_file_within_the_profile_li
     assert!(!out.status.success());
     assert!(String::from_utf8_lossy(&out.stderr).contains("not a positive number"));
 }
+
+#[test]
+fn lengths_on_the_command_line_are_millimetres_unless_they_carry_their_unit() {
+    let dir = tempfile::tempdir().unwrap();
+    fs::write(dir.path().join("d.dxf"), conicut::demo::demo_dxf_bytes()).unwrap();
+    // A bare number is millimetres whatever the profile; 0.125 in is exactly 3.175 mm and 0.1 in
+    // 2.54 mm (the international inch, 25.4 mm, 1959).
+    for (tool, mm) in [("3.175", 3.175), ("0.125in", 3.175), ("3.175mm", 3.175)] {
+        let out = conicut()
+            .current_dir(dir.path())
+            .args(["plan", "d.dxf", "--machine", "metric-mill", "--out", "out"])
+            .args(["--tool-diameter", tool, "--depth", "0.1in"])
+            .output()
+            .unwrap();
+        assert!(
+            out.status.success(),
+            "{}",
+            String::from_utf8_lossy(&out.stderr)
+        );
+        let report: serde_json::Value = serde_json::from_str(
+            &fs::read_to_string(dir.path().join("out/d-report.json")).unwrap(),
+        )
+        .unwrap();
+        assert!(
+            (report["tool_diameter_mm"].as_f64().unwrap() - mm).abs() < 1e-12,
+            "{tool}"
+        );
+        assert!((report["cut_depth_mm"].as_f64().unwrap() - 2.54).abs() < 1e-12);
+    }
+    let out = conicut()
+        .current_dir(dir.path())
+        .args([
+            "plan",
+            "d.dxf",
+            "--machine",
+            "metric-mill",
+            "--tool-diameter",
+            "6 cubits",
+        ])
+        .output()
+        .unwrap();
+    assert!(!out.status.success());
+    assert!(String::from_utf8_lossy(&out.stderr).contains("is not a length"));
+}

@@ -116,6 +116,62 @@ impl FromStr for WorkOffset {
     }
 }
 
+/// A length given on the command line: a number of millimetres, or a number with a unit
+/// (`6`, `6mm`, `0.25in`, `0.25"`, `1.2 cm`; the units [`Units`](crate::geom::Units) reads).
+/// The rule is the same for every length option, whatever the machine profile's units: a bare
+/// number is millimetres.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Length(pub f64);
+
+/// A length that cannot be read.
+#[derive(Debug, Clone, PartialEq, Eq, thiserror::Error)]
+#[error(
+    "\"{0}\" is not a length; give a number of millimetres (6, 0.5) or a number with its unit \
+     (6mm, 0.25in, 0.25\")"
+)]
+pub struct BadLength(pub String);
+
+impl FromStr for Length {
+    type Err = BadLength;
+
+    fn from_str(s: &str) -> Result<Self, Self::Err> {
+        let text = s.trim();
+        let bad = || BadLength(text.to_string());
+        // The longest leading number, then the unit after it.
+        let (value, unit) = (1..=text.len())
+            .rev()
+            .filter(|&k| text.is_char_boundary(k))
+            .find_map(|k| {
+                let number = text[..k].trim_end();
+                let looks_numeric = number
+                    .chars()
+                    .all(|c| c.is_ascii_digit() || matches!(c, '.' | '-' | '+' | 'e' | 'E'));
+                let v = number.parse::<f64>().ok().filter(|_| looks_numeric)?;
+                Some((v, text[k..].trim()))
+            })
+            .ok_or_else(bad)?;
+        if !value.is_finite() {
+            return Err(bad());
+        }
+        let mm_per_unit = match unit {
+            "" => 1.0,
+            "\"" => crate::geom::Units::Inches.mm_per_unit(),
+            u => u
+                .parse::<crate::geom::Units>()
+                .map_err(|_| bad())?
+                .mm_per_unit(),
+        };
+        Ok(Length(value * mm_per_unit))
+    }
+}
+
+impl std::fmt::Display for Length {
+    /// Millimetres, as a bare number.
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        write!(f, "{}", self.0)
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -134,6 +190,28 @@ mod tests {
             "\"spiral\" is not a lead shape; use \"straight\", \"line\", \"arc\" or \"line-arc\""
         );
         assert!("Climb!".parse::<Direction>().is_err());
+    }
+
+    #[test]
+    fn lengths_are_millimetres_unless_they_say_their_unit() {
+        // 1 in = 25.4 mm exactly (international inch, 1959); 1 cm = 10 mm.
+        for (text, mm) in [
+            ("6", 6.0),
+            ("6mm", 6.0),
+            (" 0.25in", 6.35),
+            ("0.25\"", 6.35),
+            ("1.2 cm", 12.0),
+            ("-0.5", -0.5),
+            ("1e-3mm", 0.001),
+            ("2 inches", 50.8),
+        ] {
+            let got = text.parse::<Length>().unwrap().0;
+            assert!((got - mm).abs() < 1e-12, "{text}: {got}");
+        }
+        for bad in ["", "mm", "6 furlongs", "6in mm", "nan", "inf", "6,5"] {
+            let e = bad.parse::<Length>().unwrap_err();
+            assert!(e.to_string().contains("0.25in"), "{bad}: {e}");
+        }
     }
 
     #[test]
