@@ -4,7 +4,7 @@ use super::bay::make_bay;
 use super::classify::{Shape, classify};
 use super::crossing::{flatten_contour, polygons_cross};
 use super::error::{ChainError, OpenContour, fmt_point};
-use super::gather::{LayerStuff, gather};
+use super::gather::{LayerStuff, gather, partial_ellipses};
 use super::join::{Piece, join};
 use super::{Bay, Part};
 use crate::geom::{Contour, Element, Point, bounds_of_elements};
@@ -84,7 +84,8 @@ pub fn build_part(drawing: &Drawing, opts: &ChainOptions) -> Result<Part, ChainE
         return Err(ChainError::BadMaxGap(max_gap));
     }
     let mut warnings = Vec::new();
-    let (mut layers, points, uses, notes) = gather(drawing, opts, max_gap)?;
+    let (mut layers, points, uses, mut notes) = gather(drawing, opts, max_gap)?;
+    notes.extend(partial_ellipses(&layers, max_gap)?);
     warnings.extend(points_warning(&points));
     join_layers(&mut layers, max_gap)?;
     let (bay_loops, shapes) = sort_loops(layers, max_gap)?;

@@ -236,7 +236,7 @@ fn contour_crossing_the_outline_is_refused() {
 }
 
 #[test]
-fn full_ellipse_is_a_hole_and_partial_ellipse_is_refused() {
+fn full_ellipse_is_a_hole_a_lone_partial_one_a_note_and_one_in_a_contour_refused() {
     let e = Ellipse::new(Point::new(50.0, 30.0), 20.0, 10.0, 0.3).unwrap();
     let mut d = D::new();
     d.poly("CUT", &PLATE).push(
@@ -260,6 +260,19 @@ fn full_ellipse_is_a_hole_and_partial_ellipse_is_refused() {
             end: 2.0,
         },
     );
+    // Alone (its ends meet nothing): annotation or construction, listed and not cut.
+    let part = d.build().unwrap();
+    assert!(part.holes.is_empty());
+    assert!(
+        part.notes
+            .iter()
+            .any(|n| n.contains("ELLIPSE 101") && n.contains("not cut")),
+        "{:?}",
+        part.notes
+    );
+    // Closed by a line between its ends: part of a contour, which cannot be cut.
+    let (a, b) = (e.point(0.5), e.point(2.0));
+    d.lines("CUT", &[(b.x, b.y), (a.x, a.y)], false);
     let err = d.build().unwrap_err();
     assert!(
         matches!(err, ChainError::PartialEllipse { ref handle, .. } if handle == "101"),

@@ -5,7 +5,7 @@ use super::contour::{LayerRole, LayerUse};
 use super::error::{ChainError, fmt_point};
 use super::join::{Piece, snap_loop};
 use crate::geom::Element;
-use crate::geom::{ArcSegment, Ellipse, Point, Segment};
+use crate::geom::{ArcSegment, Bounds, BoxGrid, Ellipse, Point, Segment};
 use crate::read::{Drawing, Entity, EntityKind};
 use std::collections::{HashMap, HashSet};
 
@@ -70,6 +70,7 @@ pub(super) fn gather(
                 pieces: Vec::new(),
                 loops: Vec::new(),
                 ellipses: Vec::new(),
+                partials: Vec::new(),
             });
             uses.len() - 1
         });
@@ -152,13 +153,18 @@ fn add_entity(
         EntityKind::Polyline { vertices, closed } => {
             add_polyline(layer, vertices, *closed, &h, max_gap);
         }
-        EntityKind::Ellipse { ellipse, start, .. } => {
+        EntityKind::Ellipse {
+            ellipse,
+            start,
+            end,
+        } => {
             if !e.kind.is_full_ellipse() {
-                return Err(ChainError::PartialEllipse {
-                    layer: e.layer.clone(),
+                // Decided once the layer's pieces are known (`partial_ellipses`).
+                layer.partials.push(PartialArc {
                     handle: h,
-                    at: ellipse.point(*start),
+                    ends: [ellipse.point(*start), ellipse.point(*end)],
                 });
+                return Ok(());
             }
             if layer.is_bay {
                 return Err(ChainError::EllipseOnBayLayer {
@@ -214,6 +220,58 @@ pub(super) struct LayerStuff {
     pub(super) loops: Vec<Piece>,
     /// Full ellipses, with their handles.
     pub(super) ellipses: Vec<(Ellipse, String)>,
+    /// Partial ellipses (elliptical arcs), which no contour can hold.
+    pub(super) partials: Vec<PartialArc>,
+}
+
+/// An ELLIPSE entity that is only part of an ellipse: its handle and end points.
+pub(super) struct PartialArc {
+    handle: String,
+    ends: [Point; 2],
+}
+
+/// The partial ellipses of every layer: one whose ends meet another piece's end (within
+/// `max_gap`) belongs to a contour, which conicut cannot cut ([`ChainError::PartialEllipse`]);
+/// one that meets nothing is a drawing's annotation or construction and is listed in a note,
+/// not cut. The ends are looked up through a grid of the layer's open pieces' ends.
+pub(super) fn partial_ellipses(
+    layers: &[LayerStuff],
+    max_gap: f64,
+) -> Result<Vec<String>, ChainError> {
+    let mut notes = Vec::new();
+    for layer in layers.iter().filter(|l| !l.partials.is_empty()) {
+        let ends: Vec<Point> = layer
+            .pieces
+            .iter()
+            .filter_map(|p| Some([p.elements.first()?.start(), p.elements.last()?.end()]))
+            .flatten()
+            .chain(layer.partials.iter().flat_map(|a| a.ends))
+            .collect();
+        let grid = BoxGrid::new(ends.iter().map(|&p| Bounds::at(p)).collect());
+        let own = ends.len() - 2 * layer.partials.len();
+        let mut near = Vec::new();
+        for (k, arc) in layer.partials.iter().enumerate() {
+            let mine = [own + 2 * k, own + 2 * k + 1];
+            let joined = arc.ends.iter().any(|&p| {
+                grid.near(p, max_gap, &mut near);
+                near.iter()
+                    .any(|j| !mine.contains(j) && ends[*j].distance(p) <= max_gap)
+            });
+            if joined {
+                return Err(ChainError::PartialEllipse {
+                    layer: layer.name.clone(),
+                    handle: arc.handle.clone(),
+                    at: arc.ends[0],
+                });
+            }
+            notes.push(format!(
+                "layer {}: the ELLIPSE {} is only part of an ellipse and joins nothing, so it is \
+                 not cut (a closed shape is needed for a cut)",
+                layer.name, arc.handle
+            ));
+        }
+    }
+    Ok(notes)
 }
 
 /// The elements of a polyline. Zero-length pieces (consecutive vertices at most 1e-9 mm apart)
