@@ -12,6 +12,15 @@ use crate::geom::{Contour, Element};
 /// Sine of the turn below which two pieces count as meeting tangentially (no join needed).
 const TANGENT_SINE: f64 = 1e-9;
 
+/// Sine of the turn below which two pieces turning towards the tool side may be trimmed where
+/// their moved ends meet halfway, not at the crossing of their circles (see
+/// [`GRAZING_ERROR`]).
+const GRAZING_SINE: f64 = 1e-3;
+
+/// The largest `distance × turn²` (mm) for that halfway point: it lies within half of it of
+/// both pieces, far inside [`crate::geom::JOIN_LIMIT`].
+const GRAZING_ERROR: f64 = 1e-8;
+
 /// Why a contour could not be offset.
 #[derive(Debug, Clone, PartialEq)]
 pub enum OffsetError {
@@ -70,8 +79,19 @@ pub fn offset_left(contour: &Contour, distance: f64) -> Result<Offset, OffsetErr
             }));
         } else {
             // Turning left, towards the tool side: trim both at their crossing nearest the corner.
-            let p = crossing(&pieces[i], &pieces[j], corner)
-                .ok_or(OffsetError::PieceVanishes { at: corner })?;
+            // Pieces meeting at a very small turn (a curve drawn as many arcs) cross at a
+            // grazing angle, where the crossing of their circles is ill-conditioned (or lost to
+            // rounding): there the moved ends, at most `distance × turn` apart, meet halfway,
+            // within `distance × turn² / 2` of both pieces.
+            let grazing = turn.abs() < GRAZING_SINE
+                && distance * turn * turn <= GRAZING_ERROR
+                && end_i.distance(start_j) <= 2.0 * distance * turn.abs() + 1e-12;
+            let p = if grazing {
+                end_i.midpoint(start_j)
+            } else {
+                crossing(&pieces[i], &pieces[j], corner)
+                    .ok_or(OffsetError::PieceVanishes { at: corner })?
+            };
             pieces[i] = with_end(&pieces[i], p);
             pieces[j] = with_start(&pieces[j], p);
             inside_corners.push(corner);

@@ -1,4 +1,5 @@
-//! Converting one loaded entity: LINE, ARC, CIRCLE, LWPOLYLINE, POLYLINE, ELLIPSE and POINT into
+//! Converting one loaded entity: LINE, ARC, CIRCLE, LWPOLYLINE, POLYLINE, ELLIPSE, SPLINE (as a
+//! polyline of arcs, [`super::spline`]) and POINT into
 //! an [`EntityKind`] in millimetres and WCS (OCS mirrored, see [`super::ocs`]).
 
 use super::ocs::{Ctx, EXTRUSION_TILT_LIMIT};
@@ -34,6 +35,7 @@ pub(super) fn convert(e: &EntityType, ctx: &Ctx) -> Result<Converted, ReadError>
         EntityType::LwPolyline(p) => lwpolyline(p, ctx),
         EntityType::Polyline(p) => dxf_polyline(p, ctx),
         EntityType::Ellipse(el) => ellipse(el, ctx),
+        EntityType::Spline(sp) => super::spline::spline(sp, ctx),
         EntityType::ModelPoint(p) => {
             ctx.finite(&[p.location.x, p.location.y])?;
             Ok(Converted::Kind(EntityKind::Point(ctx.wcs(&p.location))))

@@ -52,6 +52,7 @@ mod ocs;
 pub mod points;
 mod prepass;
 mod raw;
+mod spline;
 mod units;
 
 pub use blocks::{MAX_NESTING, SIMILARITY_TOLERANCE};
@@ -62,6 +63,7 @@ pub use load::{library_panicking, read_dxf};
 pub use ocs::EXTRUSION_TILT_LIMIT;
 pub use points::{PointsError, PointsProblem, parse_points_csv};
 pub use prepass::{KEPT_HEADER_VARIABLES, KEPT_TABLES};
+pub use spline::{MAX_SPLINE_ARCS, SPLINE_TOLERANCE};
 pub use units::{Units, UnitsSource, UnknownUnits};
 
 /// What the caller knows about the file beyond its bytes.
