@@ -174,14 +174,14 @@ fn conventional_plans_are_the_climb_plans_reversed_exactly() {
             ellipse: e,
             side: CutSide::Inside,
             pocket: false,
-            depth: Default::default(),
+            own: Default::default(),
         },
         Opening {
             name: "pocket".into(),
             ellipse: Ellipse::new(Point::new(20.0, 80.0), 12.0, 8.0, 0.0).expect("an ellipse"),
             side: CutSide::Inside,
             pocket: true,
-            depth: Default::default(),
+            own: Default::default(),
         },
     ];
     let opts = |direction| PlanOptions {

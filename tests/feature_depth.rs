@@ -62,3 +62,70 @@ fn pockets_keep_their_own_depth_and_holes_the_jobs() {
         )
     );
 }
+
+#[test]
+fn a_feature_keeps_its_own_feeds() {
+    let dir = tempfile::tempdir().unwrap();
+    fs::write(dir.path().join("d.dxf"), conicut::demo::demo_dxf_bytes()).unwrap();
+    // The metric mill's own feeds are 400 and 100 mm/min (machine-profiles/metric-mill.toml).
+    fs::write(
+        dir.path().join("job.toml"),
+        "units = \"mm\"\n[[feature]]\nname = \"slow\"\nbay = \"bay 1\"\nfeed = 250\nplunge_feed = 60\n\
+         [[feature]]\nname = \"usual\"\nbay = \"bay 2\"\n",
+    )
+    .unwrap();
+    Command::cargo_bin("conicut")
+        .unwrap()
+        .current_dir(dir.path())
+        .args([
+            "plan",
+            "d.dxf",
+            "--machine",
+            "metric-mill",
+            "--tool-diameter",
+            "6",
+        ])
+        .args(["--job", "job.toml", "--out", "out"])
+        .assert()
+        .success();
+    let program = fs::read_to_string(dir.path().join("out/d.ngc")).unwrap();
+    let read = read_back(&program);
+    let feeds = |name: &str| -> Vec<i64> {
+        let mut f: Vec<i64> = marked_moves(&read, name, "contour")
+            .iter()
+            .map(|&i| read.moves[i].feed.round() as i64)
+            .collect();
+        f.sort();
+        f.dedup();
+        f
+    };
+    assert_eq!(feeds("slow"), [250]);
+    assert_eq!(feeds("usual"), [400]);
+    assert!(program.contains("its own feeds 250.0 and 60.0 mm/min"));
+    // A feature's feed past the profile's largest (2500 mm/min) is refused, named.
+    fs::write(
+        dir.path().join("fast.toml"),
+        "units = \"mm\"\n[[feature]]\nname = \"fast\"\nbay = \"bay 1\"\nfeed = 9000\n",
+    )
+    .unwrap();
+    let out = Command::cargo_bin("conicut")
+        .unwrap()
+        .current_dir(dir.path())
+        .args([
+            "plan",
+            "d.dxf",
+            "--machine",
+            "metric-mill",
+            "--tool-diameter",
+            "6",
+        ])
+        .args(["--job", "fast.toml", "--out", "out2"])
+        .output()
+        .unwrap();
+    assert!(!out.status.success());
+    let message = String::from_utf8_lossy(&out.stderr);
+    assert!(
+        message.contains("feature's cut feed") && message.contains("2500"),
+        "{message}"
+    );
+}

@@ -191,7 +191,7 @@ fn a_finishing_pass_keeps_pocket_clearing_on_the_roughing_cut() {
         ellipse: e,
         side: CutSide::Inside,
         pocket: true,
-        depth: Default::default(),
+        own: Default::default(),
     }];
     let (d, s) = (6.0, 0.5);
     let plain = plan_cuts(&Part::default(), &openings, &PlanOptions::plain(d)).expect("plans");
@@ -279,7 +279,7 @@ fn bad_allowances_are_refused_with_what_to_do() {
         ellipse: e,
         side: CutSide::Inside,
         pocket: false,
-        depth: Default::default(),
+        own: Default::default(),
     }];
     let with = |s: f64| PlanOptions {
         finish_allowance: Some(s),

@@ -81,6 +81,8 @@ fn example_file_parses_to_the_expected_specs() {
         margin,
         depth: None,
         stepdown: None,
+        feed: None,
+        plunge_feed: None,
     };
     let expected = JobFile {
         units: Units::Millimetres,

@@ -284,7 +284,7 @@ fn the_scrap_check_refuses_a_program_whose_lead_enters_the_part() {
                 .ok()?,
                 side: CutSide::Inside,
                 pocket: false,
-                depth: Default::default(),
+                own: Default::default(),
             })
         })
         .collect();

@@ -20,7 +20,7 @@ fn plan_one(e: Ellipse, diameter: f64) -> Result<(), PlanError> {
         ellipse: e,
         side: CutSide::Inside,
         pocket: false,
-        depth: Default::default(),
+        own: Default::default(),
     };
     plan_cuts(&part, &[o], &PlanOptions::plain(diameter)).map(|_| ())
 }
@@ -51,7 +51,7 @@ fn demo() -> (Part, Vec<Opening>) {
                 .ellipse(),
             side: CutSide::Inside,
             pocket: false,
-            depth: Default::default(),
+            own: Default::default(),
         })
         .collect();
     (part, openings)

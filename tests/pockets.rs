@@ -279,7 +279,7 @@ fn plan_of(name: &str, e: Ellipse, d: f64, stepover: f64) -> Result<Plan, PlanEr
         ellipse: e,
         side: CutSide::Inside,
         pocket: true,
-        depth: Default::default(),
+        own: Default::default(),
     };
     let opts = PlanOptions {
         pocket_stepover: stepover,

@@ -19,7 +19,7 @@
 
 use crate::geom::Point;
 use crate::geom::moves::{self, Move};
-use crate::plan::{CutDepth, CutSide, FeatureKind};
+use crate::plan::{CutSide, FeatureKind, OwnSettings};
 use rayon::prelude::*;
 use serde::Serialize;
 
@@ -70,8 +70,8 @@ pub struct FittedCut {
     pub scrap_left: bool,
     /// Radial stock (mm) this cut leaves for a finishing cut (a roughing cut), else 0.
     pub allowance: f64,
-    /// The feature's own depth and passes (mills and routers), where it has them.
-    pub depth: CutDepth,
+    /// The feature's own depth, passes and feeds, where its job-file feature gives them.
+    pub own: OwnSettings,
 }
 
 impl FittedCut {
@@ -110,7 +110,7 @@ impl FittedCut {
             part_side_deviation: measured_deviation,
             scrap_left: true,
             allowance: 0.0,
-            depth: CutDepth::default(),
+            own: OwnSettings::default(),
         }
     }
 
@@ -308,7 +308,7 @@ pub fn fit_cut(cut: &PlannedCut, options: &FitOptions) -> Result<FittedCut, FitE
         part_side_deviation: sides.part_side,
         scrap_left: cut.scrap_left(),
         allowance: cut.allowance(),
-        depth: cut.depth(),
+        own: cut.own(),
     })
 }
 

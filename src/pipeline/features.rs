@@ -38,8 +38,8 @@ pub struct SolvedFeature {
     /// Edge margin used (bay features, mm).
     pub margin_mm: Option<f64>,
     pub cut: CutKind,
-    /// The feature's own depth and passes (mills and routers), if its spec gives them.
-    pub depth: crate::plan::CutDepth,
+    /// The feature's own depth, passes and feeds, if its spec gives them.
+    pub own: crate::plan::OwnSettings,
     /// The bay's corners after the margin (bay features, mm).
     pub solved_corners: Option<Vec<Point>>,
     pub fit: Option<FitQuality>,
@@ -62,6 +62,8 @@ pub fn default_specs(part: &Part) -> Vec<FeatureSpec> {
             margin: None,
             depth: None,
             stepdown: None,
+            feed: None,
+            plunge_feed: None,
         })
         .collect()
 }
@@ -128,9 +130,11 @@ fn solve_one(spec: &FeatureSpec, inputs: &FeatureInputs, bays: &BayLookup) -> So
         rule: None,
         margin_mm: None,
         cut: spec.cut,
-        depth: crate::plan::CutDepth {
+        own: crate::plan::OwnSettings {
             depth: spec.depth,
             stepdown: spec.stepdown,
+            feed: spec.feed,
+            plunge_feed: spec.plunge_feed,
         },
         solved_corners: None,
         fit: None,

@@ -369,7 +369,7 @@ pub fn run_resolved_watched(
         for f in solved
             .features
             .iter()
-            .filter(|f| f.depth != plan::CutDepth::default())
+            .filter(|f| f.own.depth.is_some() || f.own.stepdown.is_some())
         {
             solved.part.warnings.push(format!(
                 "{}: its own depth and stepdown apply to mills and routers only and were \
@@ -571,7 +571,7 @@ fn openings(features: &[SolvedFeature]) -> (Vec<plan::Opening>, Vec<SolvedInfo>)
                 CutKind::Hole | CutKind::Pocket => plan::CutSide::Inside,
             },
             pocket: f.cut == CutKind::Pocket,
-            depth: f.depth,
+            own: f.own,
         });
         infos.push(SolvedInfo {
             name: f.name.clone(),

@@ -15,14 +15,19 @@ pub struct Tab {
     pub length: f64,
 }
 
-/// A feature's own cut depth and pass depth (mm, positive), overriding the job's on mills and
-/// routers: a pocket in a 3 mm plate need not go to the through-cut depth of the holes.
+/// A feature's own settings from its job-file feature, overriding the job's: on mills and
+/// routers its cut depth and pass depth (mm, positive; a pocket in a 3 mm plate need not go to
+/// the through-cut depth of the holes), and on every kind its feeds (mm/min).
 #[derive(Debug, Clone, Copy, PartialEq, Default, Serialize)]
-pub struct CutDepth {
+pub struct OwnSettings {
     /// The depth below the work zero; `None`: the job's.
     pub depth: Option<f64>,
     /// The depth of each pass; `None`: the job's.
     pub stepdown: Option<f64>,
+    /// The cutting feed; `None`: the job's.
+    pub feed: Option<f64>,
+    /// The feed down into the work; `None`: the job's.
+    pub plunge_feed: Option<f64>,
 }
 
 /// One feature's planned cut.
@@ -31,9 +36,9 @@ pub struct CutDepth {
 /// accessors below and build cuts only through the constructors.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct PlannedCut {
-    /// This feature's own depth and passes (mills and routers), where its job-file feature
-    /// gives them; the job's otherwise.
-    pub(super) depth: CutDepth,
+    /// This feature's own depth, passes and feeds, where its job-file feature gives them; the
+    /// job's otherwise.
+    pub(super) own: OwnSettings,
     pub(super) name: String,
     pub(super) kind: FeatureKind,
     pub(super) side: CutSide,
@@ -116,7 +121,7 @@ impl PlannedCut {
         edge: Edge,
     ) -> Self {
         PlannedCut {
-            depth: CutDepth::default(),
+            own: OwnSettings::default(),
             name: name.to_string(),
             kind,
             side,
@@ -208,14 +213,14 @@ impl PlannedCut {
         self.allowance
     }
 
-    /// This feature's own depth and passes, where it has them.
-    pub fn depth(&self) -> CutDepth {
-        self.depth
+    /// This feature's own depth, passes and feeds, where it has them.
+    pub fn own(&self) -> OwnSettings {
+        self.own
     }
 
-    /// The cut with its own depth and passes.
-    pub fn with_depth(mut self, depth: CutDepth) -> Self {
-        self.depth = depth;
+    /// The cut with its own depth, passes and feeds.
+    pub fn with_own(mut self, own: OwnSettings) -> Self {
+        self.own = own;
         self
     }
 

@@ -108,7 +108,7 @@ fn roughing_cut(finish: &PlannedCut, s: f64, r: f64, d: f64) -> Result<PlannedCu
         .cloned()
         .collect();
     rough.allowance = s;
-    rough.depth = finish.depth;
+    rough.own = finish.own;
     Ok(rough)
 }
 

@@ -34,7 +34,7 @@ fn plan_opening(e: Ellipse, opts: &PlanOptions) -> crate::plan::Plan {
         ellipse: e,
         side: CutSide::Inside,
         pocket: false,
-        depth: Default::default(),
+        own: Default::default(),
     };
     plan_cuts(&Part::default(), &[open], opts).unwrap()
 }
@@ -144,7 +144,7 @@ fn bad_settings_are_refused() {
         ellipse: e,
         side: CutSide::Inside,
         pocket: false,
-        depth: Default::default(),
+        own: Default::default(),
     };
     for (kind, length, radius) in [
         (LeadKind::Line, 0.0, 1.0),

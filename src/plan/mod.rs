@@ -43,7 +43,7 @@ pub mod pocket;
 mod tabs;
 pub mod zero;
 
-pub use cut::{CutDepth, PlannedCut, Tab};
+pub use cut::{OwnSettings, PlannedCut, Tab};
 pub use error::PlanError;
 pub use options::{
     Direction, LeadKind, LeadOptions, POCKET_STEPOVER_PER_DIAMETER, PlanOptions, TabOptions,
@@ -69,8 +69,8 @@ pub struct Opening {
     pub side: CutSide,
     /// Clear the whole inside (a pocket), not just the edge; only with `Inside`.
     pub pocket: bool,
-    /// The feature's own depth and passes, if it has them.
-    pub depth: CutDepth,
+    /// The feature's own depth, passes and feeds, if it has them.
+    pub own: OwnSettings,
 }
 
 /// The cuts in the order they run: every inner feature before the outline.
@@ -121,7 +121,7 @@ pub fn plan_cuts(part: &Part, openings: &[Opening], opts: &PlanOptions) -> Resul
                 CutSide::Inside => plan_ellipse(&o.name, FeatureKind::Opening, &o.ellipse, r, d)?,
                 CutSide::Outside => plan_ellipse_boss(&o.name, &o.ellipse, r),
             }
-            .with_depth(o.depth),
+            .with_own(o.own),
         );
     }
     for h in &part.holes {

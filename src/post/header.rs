@@ -48,7 +48,7 @@ pub(super) fn header(
             String::new()
         };
         let own_depth = if profile.spindle().is_some()
-            && (cut.depth.depth.is_some() || cut.depth.stepdown.is_some())
+            && (cut.own.depth.is_some() || cut.own.stepdown.is_some())
         {
             let (depth, stepdown) = super::passes::cut_depth(cut, s);
             let passes = if cut.full_depth_only {
@@ -68,6 +68,13 @@ pub(super) fn header(
         } else {
             String::new()
         };
+        let own_feed = match (cut.own.feed, cut.own.plunge_feed) {
+            (None, None) => String::new(),
+            _ => {
+                let (f, p) = r.feeds_of(cut, units);
+                format!(", its own feeds {} and {} {u}/min", fd(f), fd(p))
+            }
+        };
         let pass = if cut.allowance > 0.0 {
             format!(", roughing, leaves {} {u}", xy(cut.allowance))
         } else if cut.full_depth_only && profile.spindle().is_some() {
@@ -76,7 +83,7 @@ pub(super) fn header(
             String::new()
         };
         text.push(format!(
-            "{} {}: {}, {}{own_depth}{pass}, {} feed moves{arcs}, fitted deviation {} {u}",
+            "{} {}: {}, {}{own_depth}{own_feed}{pass}, {} feed moves{arcs}, fitted deviation {} {u}",
             i + 1,
             sanitize(&cut.name),
             kind_word(cut.kind),

@@ -12,8 +12,8 @@ use crate::geom::Move;
 /// job's.
 pub(super) fn cut_depth(cut: &FittedCut, settings: &ProgramSettings) -> (f64, Option<f64>) {
     (
-        cut.depth.depth.unwrap_or(settings.depth),
-        cut.depth.stepdown.or(settings.stepdown),
+        cut.own.depth.unwrap_or(settings.depth),
+        cut.own.stepdown.or(settings.stepdown),
     )
 }
 
@@ -30,6 +30,7 @@ impl Writer<'_> {
     ) -> Result<Written, PostError> {
         let units = self.profile.units();
         let (depth, stepdown) = cut_depth(cut, settings);
+        let (cut_feed, plunge_feed) = r.feeds_of(cut, units);
         let floors = if cut.full_depth_only {
             vec![depth]
         } else {
@@ -49,15 +50,15 @@ impl Writer<'_> {
             // Down to the top of the stock, or to the floor the last pass left around
             // the plunge point, then into the new depth.
             if settings.ramp_angle_deg.is_some() {
-                self.feed_z(z_prev, r.plunge_feed);
+                self.feed_z(z_prev, plunge_feed);
             }
-            let consumed = self.enter(cut, settings, z_prev, z, r.plunge_feed)?;
+            let consumed = self.enter(cut, settings, z_prev, z, plunge_feed)?;
             let tabs = if cut.tabs.is_empty() || z >= tab_top {
                 None
             } else {
                 Some((tab_top, z))
             };
-            done = self.cut_runs(cut, consumed, r.cut_feed, tabs)?;
+            done = self.cut_runs(cut, consumed, cut_feed, tabs)?;
             z_prev = z;
         }
         self.rapid_z(s.retract_height);

@@ -22,9 +22,10 @@ impl Writer<'_> {
         self.rapid_z(p.pierce_height);
         self.block(p.on.clone());
         self.dwell(p.pierce_dwell);
-        self.feed_z(p.cut_height, r.plunge_feed);
+        let (cut_feed, plunge_feed) = r.feeds_of(cut, self.profile.units());
+        self.feed_z(p.cut_height, plunge_feed);
         let gaps = (!cut.tabs.is_empty()).then_some(p);
-        let done = self.cut_runs_process(cut, r.cut_feed, r.plunge_feed, gaps)?;
+        let done = self.cut_runs_process(cut, cut_feed, plunge_feed, gaps)?;
         self.block(p.off.clone());
         Ok(done)
     }

@@ -118,7 +118,28 @@ pub(super) fn check_cut(
         feature: &cut.name,
     };
     envelope.check_heights(r)?;
-    if let (Cutter::Spindle(_), Some(depth)) = (profile.cutter(), cut.depth.depth) {
+    let (cut_feed, plunge_feed) = r.feeds_of(cut, profile.units());
+    for (which, own, feed) in [
+        ("the feature's cut feed", cut.own.feed, cut_feed),
+        (
+            "the feature's plunge feed",
+            cut.own.plunge_feed,
+            plunge_feed,
+        ),
+    ] {
+        if own.is_some() {
+            if !(feed.is_finite() && feed > 0.0) {
+                return Err(PostError::BadSetting {
+                    setting: which,
+                    value: feed,
+                    problem: "is not a positive number",
+                    hint: "give the feed in mm/min",
+                });
+            }
+            check_feed(profile, which, feed)?;
+        }
+    }
+    if let (Cutter::Spindle(_), Some(depth)) = (profile.cutter(), cut.own.depth) {
         if !(depth.is_finite() && depth > 0.0) {
             return Err(PostError::BadSetting {
                 setting: "a feature's depth",
@@ -133,7 +154,7 @@ pub(super) fn check_cut(
             -profile.units().from_mm(depth),
         )?;
     }
-    if let (Cutter::Spindle(_), Some(step)) = (profile.cutter(), cut.depth.stepdown)
+    if let (Cutter::Spindle(_), Some(step)) = (profile.cutter(), cut.own.stepdown)
         && !(step.is_finite() && step > 0.0)
     {
         return Err(PostError::BadSetting {

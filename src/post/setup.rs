@@ -105,6 +105,23 @@ pub(super) struct Resolved {
     pub(super) helical: bool,
 }
 
+impl Resolved {
+    /// The cutting and plunge feeds of `cut` (profile units per minute): its own where its
+    /// feature gives them (mm/min), else the job's.
+    pub(super) fn feeds_of(
+        &self,
+        cut: &crate::fit::FittedCut,
+        units: super::ProgramUnits,
+    ) -> (f64, f64) {
+        (
+            cut.own.feed.map_or(self.cut_feed, |f| units.from_mm(f)),
+            cut.own
+                .plunge_feed
+                .map_or(self.plunge_feed, |f| units.from_mm(f)),
+        )
+    }
+}
+
 /// What was written for one cut, for the header.
 #[derive(Debug, Clone, Copy, Default)]
 pub(super) struct Written {

@@ -56,6 +56,14 @@ impl Context<'_> {
             .get("stepdown")
             .map(|e| self.size(e, scale, "the stepdown"))
             .transpose()?;
+        let feed = entries
+            .get("feed")
+            .map(|e| self.size(e, scale, "the feed"))
+            .transpose()?;
+        let plunge_feed = entries
+            .get("plunge_feed")
+            .map(|e| self.size(e, scale, "the plunge feed"))
+            .transpose()?;
         Ok((
             FeatureSpec {
                 name,
@@ -65,6 +73,8 @@ impl Context<'_> {
                 margin,
                 depth,
                 stepdown,
+                feed,
+                plunge_feed,
             },
             name_entry.line,
         ))

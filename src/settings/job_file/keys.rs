@@ -21,11 +21,13 @@ pub(super) const TOP_KEYS: [&str; 16] = [
 ];
 
 /// Keys allowed in a `[[feature]]` table.
-pub(super) const FEATURE_KEYS: [&str; 20] = [
+pub(super) const FEATURE_KEYS: [&str; 22] = [
     "name",
     "cut",
     "depth",
     "stepdown",
+    "feed",
+    "plunge_feed",
     "bay",
     "inside",
     "rule",

@@ -36,6 +36,8 @@
 //! cut = "hole"                  # hole | boss | pocket; default hole
 //! depth = 1.5                   # optional (mills, routers): this feature's depth, and
 //! stepdown = 0.5                # its pass depth, overriding the job's
+//! feed = 300.0                  # optional: this feature's cutting feed, file units per minute
+//! plunge_feed = 80.0            # optional: and its feed down into the work
 //!
 //! [[feature]]
 //! name = "probed oval"
@@ -196,6 +198,10 @@ pub struct FeatureSpec {
     pub depth: Option<f64>,
     /// `stepdown`: this feature's pass depth (mm, > 0; mills and routers), overriding the job's.
     pub stepdown: Option<f64>,
+    /// `feed`: this feature's cutting feed (mm/min), overriding the job's.
+    pub feed: Option<f64>,
+    /// `plunge_feed`: this feature's feed down into the work (mm/min), overriding the job's.
+    pub plunge_feed: Option<f64>,
 }
 
 /// Where a feature's ellipse comes from.
