@@ -7,7 +7,7 @@ use super::error::{ChainError, OpenContour, fmt_point};
 use super::gather::{LayerStuff, gather, partial_ellipses};
 use super::join::{Piece, join};
 use super::{Bay, Part};
-use crate::geom::{Contour, Element, Point, bounds_of_elements};
+use crate::geom::{Bounds, BoxGrid, Contour, Element, Point, bounds_of_elements};
 use crate::read::Drawing;
 
 /// The layer that holds bays unless the user names another. Matched case-insensitively, as DXF
@@ -87,7 +87,7 @@ pub fn build_part(drawing: &Drawing, opts: &ChainOptions) -> Result<Part, ChainE
     let (mut layers, points, uses, mut notes) = gather(drawing, opts, max_gap)?;
     notes.extend(partial_ellipses(&layers, max_gap)?);
     warnings.extend(points_warning(&points));
-    join_layers(&mut layers, max_gap)?;
+    warnings.extend(join_layers(&mut layers, max_gap)?);
     let (bay_loops, shapes) = sort_loops(layers, max_gap)?;
     let bays = make_bays(bay_loops, max_gap)?;
     let (outline, holes, mut more) = classify(shapes)?;
@@ -118,9 +118,15 @@ fn points_warning(points: &[String]) -> Option<String> {
     ))
 }
 
-/// Joins every layer's pieces into loops; collects all open runs before failing.
-fn join_layers(layers: &mut [LayerStuff], max_gap: f64) -> Result<(), ChainError> {
+/// Joins every layer's pieces into loops; collects all open runs before failing. A layer other
+/// than the bay layer that holds no closed shape at all, and whose open runs are all far from
+/// closing (each run's ends further apart than [`NEARLY_CLOSED`] of its length: construction
+/// lines, leaders), is not cut: its runs give a warning, with the nearest gap, instead of an
+/// error. Open runs on a layer that also holds closed shapes, on the bay layer, or that nearly
+/// close (a contour with a gap) are refused as before.
+fn join_layers(layers: &mut [LayerStuff], max_gap: f64) -> Result<Vec<String>, ChainError> {
     let mut open = Vec::new();
+    let mut warnings = Vec::new();
     for layer in layers {
         let joined = join(&layer.pieces, max_gap).map_err(|b| ChainError::Branch {
             layer: layer.name.clone(),
@@ -128,16 +134,34 @@ fn join_layers(layers: &mut [LayerStuff], max_gap: f64) -> Result<(), ChainError
             handles: b.handles,
         })?;
         layer.loops.extend(joined.loops);
+        if joined.open.is_empty() {
+            continue;
+        }
+        let nearly_closed = joined
+            .open
+            .iter()
+            .any(|r| r.ends[0].distance(r.ends[1]) < NEARLY_CLOSED * r.length);
         let loose: Vec<Point> = joined.open.iter().flat_map(|r| r.ends).collect();
-        for (r, run) in joined.open.into_iter().enumerate() {
-            open.push(OpenContour {
+        let grid = BoxGrid::new(loose.iter().map(|&p| Bounds::at(p)).collect());
+        let runs: Vec<OpenContour> = joined
+            .open
+            .into_iter()
+            .enumerate()
+            .map(|(r, run)| OpenContour {
                 layer: layer.name.clone(),
                 handles: run.handles,
                 pieces: run.pieces,
                 gaps: (0..2)
-                    .map(|i| nearest_loose_end(&loose, 2 * r + i))
+                    .map(|i| nearest_loose_end(&loose, &grid, 2 * r + i))
                     .collect(),
-            });
+            })
+            .collect();
+        let closed_here = !layer.loops.is_empty() || !layer.ellipses.is_empty();
+        if layer.is_bay || closed_here || nearly_closed {
+            open.extend(runs);
+        } else {
+            warnings.push(open_layer_warning(&layer.name, &runs, max_gap));
+            layer.pieces.clear();
         }
     }
     if !open.is_empty() {
@@ -146,19 +170,61 @@ fn join_layers(layers: &mut [LayerStuff], max_gap: f64) -> Result<(), ChainError
             max_gap,
         });
     }
-    Ok(())
+    Ok(warnings)
 }
 
-/// The loose end `me` with the nearest other loose end and its distance.
-fn nearest_loose_end(loose: &[Point], me: usize) -> (Point, Option<(Point, f64)>) {
-    let end = loose[me];
-    let nearest = loose
+/// An open run whose ends are closer than this share of its length looks like a contour with a
+/// gap, not like construction geometry.
+pub const NEARLY_CLOSED: f64 = 0.1;
+
+/// The warning for a layer of open pieces only.
+fn open_layer_warning(layer: &str, runs: &[OpenContour], max_gap: f64) -> String {
+    let handles: Vec<&str> = runs
         .iter()
-        .enumerate()
-        .filter(|&(k, _)| k != me)
-        .map(|(_, &q)| (q, q.distance(end)))
+        .flat_map(|r| r.handles.iter().map(String::as_str))
+        .collect();
+    let shown = handles.len().min(12);
+    let more = if handles.len() > shown {
+        format!(" and {} more", handles.len() - shown)
+    } else {
+        String::new()
+    };
+    let nearest = runs
+        .iter()
+        .flat_map(|r| r.gaps.iter())
+        .filter_map(|(end, near)| near.map(|(_, d)| (*end, d)))
         .min_by(|a, b| a.1.total_cmp(&b.1));
-    (end, nearest)
+    let gap = nearest.map_or(String::new(), |(at, d)| {
+        format!("; its nearest gap is {d:.3} mm, at {}", fmt_point(at))
+    });
+    format!(
+        "layer {layer} holds only open pieces ({} run{}: handles {}{more}), so nothing on it is \
+         cut{gap}. If it is meant to be cut, close its gaps in the CAD program or raise \
+         --gap-tolerance (now {max_gap} mm); if it is construction or annotation, \
+         --skip-layers {layer} says so",
+        runs.len(),
+        if runs.len() == 1 { "" } else { "s" },
+        handles[..shown].join(", ")
+    )
+}
+
+/// The loose end `me` with the nearest other loose end and its distance, through a grid of
+/// the loose ends.
+fn nearest_loose_end(loose: &[Point], grid: &BoxGrid, me: usize) -> (Point, Option<(Point, f64)>) {
+    let end = loose[me];
+    let mut best: Option<usize> = None;
+    let d = grid.nearest(end, |k| {
+        if k == me {
+            f64::INFINITY
+        } else {
+            let d = loose[k].distance(end);
+            if best.is_none_or(|b| d < loose[b].distance(end)) {
+                best = Some(k);
+            }
+            d
+        }
+    });
+    (end, best.filter(|_| d.is_finite()).map(|k| (loose[k], d)))
 }
 
 /// A loop on the bay layer, with its layer's name.

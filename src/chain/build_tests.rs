@@ -410,3 +410,33 @@ fn among_many_holes_the_one_crossing_pair_and_the_one_nested_pair_are_found() {
     let e = d.build().unwrap_err();
     assert!(matches!(e, ChainError::Nested { .. }), "{e}");
 }
+
+#[test]
+fn a_layer_of_construction_lines_is_a_warning_not_a_refusal() {
+    let mut d = D::new();
+    d.poly("CUT", &PLATE)
+        .lines("GUIDES", &[(5.0, 5.0), (60.0, 40.0)], false)
+        .lines("GUIDES", &[(10.0, 40.0), (30.0, 35.0), (30.0, 5.0)], false);
+    let part = d.build().unwrap();
+    assert!(part.outline.is_some());
+    let w = part.warnings.join("\n");
+    assert!(
+        w.contains("layer GUIDES holds only open pieces (2 runs"),
+        "{w}"
+    );
+    assert!(w.contains("--skip-layers GUIDES"), "{w}");
+    // A run that nearly closes (its ends 1 mm apart on a 100 mm run) is a contour with a gap.
+    let mut d = D::new();
+    d.poly("CUT", &PLATE).lines(
+        "GUIDES",
+        &[
+            (5.0, 5.0),
+            (30.0, 5.0),
+            (30.0, 30.0),
+            (5.0, 30.0),
+            (5.0, 6.0),
+        ],
+        false,
+    );
+    assert!(matches!(d.build(), Err(ChainError::Open { .. })));
+}

@@ -38,6 +38,8 @@ pub(super) struct OpenRun {
     pub handles: Vec<String>,
     pub pieces: usize,
     pub ends: [Point; 2],
+    /// The run's length (mm).
+    pub length: f64,
 }
 
 /// What joining one layer gave.
@@ -103,6 +105,7 @@ pub(super) fn join(pieces: &[Piece], max_gap: f64) -> Result<Joined, Branch> {
             handles: dedup(&run.handles),
             pieces: run.pieces,
             ends: [ends[k], ends[last]],
+            length: run.piece.elements.iter().map(Element::length).sum(),
         });
     }
     // Everything left is in a loop.
