@@ -6,21 +6,28 @@
 //! The part: a 200 × 120 mm plate (a closed polyline whose lower-right corner is a quarter
 //! circle of radius 10, drawn by a bulge), a rectangle bay of 60 × 40 (four LINEs), a
 //! triangle bay (three LINEs), a Ø16 CIRCLE, a slot of two ARCs and two LINEs, an ELLIPSE hole
-//! (R2000 and later), and a Ø8 circle placed by a block INSERT.
+//! (R2000 and later), a Ø12 circle drawn as a rational quadratic SPLINE (R2000 and later), a Ø10
+//! circle whose extrusion is (0, 0, −1), a Ø8 circle placed by a block INSERT, and a Ø10 circle
+//! on a layer that is off (never cut).
 //!
 //! Reference values: the rectangle bay's largest ellipse has semi-axes w/2 and h/2 at its
 //! centre (docs/sources.md M2, the rectangle row); the triangle's is its Steiner inellipse, of
 //! area π/(3√3) times the triangle's (docs/sources.md M3); a circle of radius R cut inside with
-//! a tool of radius r leaves the contour at R − r.
+//! a tool of radius r leaves the contour at R − r. The spline circle: nine control points on the
+//! square round the circle, weights 1 and √2/2 in turn, knots 0,0,0,¼,¼,½,½,¾,¾,1,1,1 (Piegl and
+//! Tiller, The NURBS Book, 2nd ed., 1997, §7.5, from memory). The extruded circle: under the
+//! arbitrary axis algorithm (docs/sources.md P2.3) the normal (0, 0, −1) has OCS x = −WCS x, so
+//! the centre is written as (−x, y).
 
 #[path = "support/gcode_read.rs"]
 mod gcode_read;
 
 use assert_cmd::Command;
 use dxf::entities::{
-    Arc, Circle, Ellipse, Entity, EntityType, Insert, Line, LwPolyline, Polyline, Vertex,
+    Arc, Circle, Ellipse, Entity, EntityType, Insert, Line, LwPolyline, Polyline, Spline, Vertex,
 };
 use dxf::enums::{AcadVersion, Units};
+use dxf::tables::Layer;
 use dxf::{Block, LwPolylineVertex};
 use gcode_read::{marked_moves, read_back};
 use std::f64::consts::PI;
@@ -129,6 +136,51 @@ fn part(v: AcadVersion, place: Place) -> dxf::Drawing {
         };
         d.add_entity(on("HOLES", EntityType::Ellipse(e)));
     }
+    if v != AcadVersion::R12 {
+        // A circle of radius 6 about (60, 95) as a rational quadratic spline.
+        let w = std::f64::consts::FRAC_1_SQRT_2;
+        let square = [
+            (1.0, 0.0),
+            (1.0, 1.0),
+            (0.0, 1.0),
+            (-1.0, 1.0),
+            (-1.0, 0.0),
+            (-1.0, -1.0),
+            (0.0, -1.0),
+            (1.0, -1.0),
+            (1.0, 0.0),
+        ];
+        let mut sp = Spline {
+            degree_of_curve: 2,
+            control_points: square
+                .iter()
+                .map(|&(x, y)| at(60.0 + 6.0 * x, 95.0 + 6.0 * y))
+                .collect(),
+            weight_values: (0..9).map(|i| if i % 2 == 0 { 1.0 } else { w }).collect(),
+            knot_values: vec![
+                0.0, 0.0, 0.0, 0.25, 0.25, 0.5, 0.5, 0.75, 0.75, 1.0, 1.0, 1.0,
+            ],
+            ..Default::default()
+        };
+        sp.set_is_rational(true);
+        sp.set_is_closed(true);
+        d.add_entity(on("HOLES", EntityType::Spline(sp)));
+    }
+    // A circle of radius 5 about (90, 100) seen from below: extrusion (0, 0, −1), OCS x = −x.
+    let c = at(90.0, 100.0);
+    let mut below = Circle::new(dxf::Point::new(-c.x, c.y, 0.0), 5.0 * s);
+    below.normal = dxf::Vector::new(0.0, 0.0, -1.0);
+    d.add_entity(on("HOLES", EntityType::Circle(below)));
+    // A circle on a layer that is off: never cut.
+    d.add_layer(Layer {
+        name: "HIDDEN".into(),
+        is_layer_on: false,
+        ..Default::default()
+    });
+    d.add_entity(on(
+        "HIDDEN",
+        EntityType::Circle(Circle::new(at(185.0, 100.0), 5.0 * s)),
+    ));
     // A block of one Ø8 circle on layer 0, inserted at (30, 100) on HOLES.
     d.add_block(Block {
         name: "PIN".into(),
@@ -278,29 +330,51 @@ fn check(out: &std::path::Path, case: &str, travel: [f64; 4], has_ellipse: bool)
         "{case}: {}",
         tri["area_mm2"]
     );
-    // Holes: the Ø16 circle, the slot, the block's Ø8 circle, the ellipse where the version has
-    // one.
+    // Holes: the Ø16 circle, the slot, the block's Ø8 circle, the extruded Ø10 circle, and the
+    // ellipse and the spline circle where the version has them; the circle on the layer that is
+    // off is not cut.
     let holes = features.iter().filter(|x| x["kind"] == "hole").count();
-    assert_eq!(holes, 3 + usize::from(has_ellipse), "{case}");
-    // Read back: the Ø16 circle's contour at 8 − r from (120, 30); everything within travel.
+    assert_eq!(holes, 4 + 2 * usize::from(has_ellipse), "{case}");
+    let hidden = report["layers"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|l| l["name"] == "HIDDEN")
+        .unwrap_or_else(|| panic!("{case}: layer HIDDEN in {}", report["layers"]));
+    assert_eq!(hidden["role"], "not-cut", "{case}");
+    assert_eq!(hidden["reason"], "off", "{case}");
+    // Read back: each circle's contour at R − r from its centre; everything within travel.
     let program = fs::read_to_string(out.join("p.ngc")).unwrap();
     let read = read_back(&program);
-    let circle = read
-        .features
-        .iter()
-        .map(|(n, _)| marked_moves(&read, n, "contour"))
-        .find(|m| {
-            !m.is_empty()
-                && m.iter().all(|&i| {
-                    let p = read.moves[i].to;
-                    (p[0] - 120.0).hypot(p[1] - 30.0) < 8.0
-                })
-        })
-        .unwrap_or_else(|| panic!("{case}: the circle's contour"));
-    for &i in &circle {
-        let p = read.moves[i].to;
-        let d = (p[0] - 120.0).hypot(p[1] - 30.0);
-        assert!((d - (8.0 - width / 2.0)).abs() < 0.01 + 2e-4, "{case}: {d}");
+    let mut circles = vec![
+        ((120.0, 30.0), 8.0),
+        ((90.0, 100.0), 5.0),
+        ((30.0, 100.0), 4.0),
+    ];
+    if has_ellipse {
+        circles.push(((60.0, 95.0), 6.0));
+    }
+    for ((cx, cy), radius) in circles {
+        let contour = read
+            .features
+            .iter()
+            .map(|(n, _)| marked_moves(&read, n, "contour"))
+            .find(|m| {
+                !m.is_empty()
+                    && m.iter().all(|&i| {
+                        let p = read.moves[i].to;
+                        (p[0] - cx).hypot(p[1] - cy) < radius
+                    })
+            })
+            .unwrap_or_else(|| panic!("{case}: the contour of the circle at ({cx}, {cy})"));
+        for &i in &contour {
+            let p = read.moves[i].to;
+            let d = (p[0] - cx).hypot(p[1] - cy);
+            assert!(
+                (d - (radius - width / 2.0)).abs() < 0.01 + 2e-4,
+                "{case}: circle at ({cx}, {cy}): {d}"
+            );
+        }
     }
     for m in &read.moves {
         for p in [m.from, m.to] {
