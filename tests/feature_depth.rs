@@ -129,3 +129,125 @@ fn a_feature_keeps_its_own_feeds() {
         "{message}"
     );
 }
+
+/// The spindle speed in force at the first feed move of each cut, by the cut's name (from the
+/// "cut i of n: NAME" comment before it), read from the program text.
+fn speeds_at_first_feed(program: &str) -> Vec<(String, i64)> {
+    let mut speed = None;
+    let mut section: Option<String> = None;
+    let mut out = Vec::new();
+    for line in program.lines() {
+        if let (Some(i), true) = (line.find("of "), line.contains("(cut ")) {
+            let name = line[i..].split_once(": ").unwrap().1.trim_end_matches(')');
+            section = Some(name.to_string());
+            continue;
+        }
+        let words: Vec<&str> = line.split_whitespace().collect();
+        for w in &words {
+            if let Some(s) = w.strip_prefix('S') {
+                speed = Some(s.parse::<f64>().unwrap().round() as i64);
+            }
+        }
+        if !words.contains(&"G1") {
+            continue;
+        }
+        if let Some(name) = section.take() {
+            out.push((name, speed.expect("a speed before the first feed move")));
+        }
+    }
+    out
+}
+
+#[test]
+fn a_feature_keeps_its_own_spindle_speed() {
+    let dir = tempfile::tempdir().unwrap();
+    fs::write(dir.path().join("d.dxf"), conicut::demo::demo_dxf_bytes()).unwrap();
+    // The metric mill's own speed is 8000 rpm, its largest 10000, its spindle delay 2 s
+    // (machine-profiles/metric-mill.toml).
+    fs::write(
+        dir.path().join("job.toml"),
+        "units = \"mm\"\n[[feature]]\nname = \"slow\"\nbay = \"bay 1\"\nspindle_speed = 6000\n\
+         [[feature]]\nname = \"usual\"\nbay = \"bay 2\"\n",
+    )
+    .unwrap();
+    let plan = |job: &str, out: &str| {
+        Command::cargo_bin("conicut")
+            .unwrap()
+            .current_dir(dir.path())
+            .args([
+                "plan",
+                "d.dxf",
+                "--machine",
+                "metric-mill",
+                "--tool-diameter",
+                "6",
+            ])
+            .args(["--job", job, "--out", out])
+            .output()
+            .unwrap()
+    };
+    assert!(plan("job.toml", "out").status.success());
+    let program = fs::read_to_string(dir.path().join("out/d.ngc")).unwrap();
+    let speeds = speeds_at_first_feed(&program);
+    let of = |name: &str| speeds.iter().find(|(n, _)| n == name).map(|s| s.1);
+    assert_eq!(of("slow"), Some(6000), "{speeds:?}");
+    assert_eq!(of("usual"), Some(8000), "{speeds:?}");
+    // Every other cut (holes, outline) at the job's speed.
+    assert!(
+        speeds
+            .iter()
+            .filter(|(n, _)| n != "slow")
+            .all(|s| s.1 == 8000),
+        "{speeds:?}"
+    );
+    // Each change of speed waits the spindle delay (G4 P2.00) on the next block.
+    let lines: Vec<&str> = program.lines().collect();
+    let changes: Vec<usize> = (0..lines.len())
+        .filter(|&i| lines[i].split_whitespace().any(|w| w.starts_with('S')))
+        .collect();
+    assert!(changes.len() >= 2, "{changes:?}");
+    for i in changes {
+        assert!(lines[i + 1].contains("G4 P2"), "{}", lines[i + 1]);
+    }
+    assert!(program.contains("its own spindle speed 6000 rpm"));
+    // Past the profile's largest speed: refused, the feature named.
+    fs::write(
+        dir.path().join("fast.toml"),
+        "units = \"mm\"\n[[feature]]\nname = \"fast\"\nbay = \"bay 1\"\nspindle_speed = 24000\n",
+    )
+    .unwrap();
+    let out = plan("fast.toml", "out2");
+    assert!(!out.status.success());
+    let message = String::from_utf8_lossy(&out.stderr);
+    assert!(
+        message.contains("fast") && message.contains("24000") && message.contains("10000"),
+        "{message}"
+    );
+    assert!(!dir.path().join("out2/d.ngc").exists());
+    // A laser has no spindle: the feature's speed is a warning, never silently dropped.
+    let out = Command::cargo_bin("conicut")
+        .unwrap()
+        .current_dir(dir.path())
+        .args(["plan", "d.dxf", "--machine", "laser"])
+        .args(["--job", "job.toml", "--out", "out3"])
+        .output()
+        .unwrap();
+    let message = String::from_utf8_lossy(&out.stderr);
+    assert!(
+        out.status.success(),
+        "{:?} {message} {}",
+        out.status,
+        String::from_utf8_lossy(&out.stdout)
+    );
+    let report: serde_json::Value =
+        serde_json::from_str(&fs::read_to_string(dir.path().join("out3/d-report.json")).unwrap())
+            .unwrap();
+    assert!(
+        report["warnings"].as_array().unwrap().iter().any(|w| w
+            .as_str()
+            .unwrap()
+            .contains("slow: its own spindle_speed applies to mills and routers only")),
+        "{}",
+        report["warnings"]
+    );
+}

@@ -83,6 +83,7 @@ fn example_file_parses_to_the_expected_specs() {
         stepdown: None,
         feed: None,
         plunge_feed: None,
+        spindle_speed: None,
     };
     let expected = JobFile {
         units: Units::Millimetres,

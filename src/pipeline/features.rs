@@ -64,6 +64,7 @@ pub fn default_specs(part: &Part) -> Vec<FeatureSpec> {
             stepdown: None,
             feed: None,
             plunge_feed: None,
+            spindle_speed: None,
         })
         .collect()
 }
@@ -135,6 +136,7 @@ fn solve_one(spec: &FeatureSpec, inputs: &FeatureInputs, bays: &BayLookup) -> So
             stepdown: spec.stepdown,
             feed: spec.feed,
             plunge_feed: spec.plunge_feed,
+            spindle_speed: spec.spindle_speed,
         },
         solved_corners: None,
         fit: None,

@@ -378,6 +378,18 @@ pub fn run_resolved_watched(
                 profile.kind()
             ));
         }
+        for f in solved
+            .features
+            .iter()
+            .filter(|f| f.own.spindle_speed.is_some())
+        {
+            solved.part.warnings.push(format!(
+                "{}: its own spindle_speed applies to mills and routers only and was ignored: \
+                 a {} has no spindle",
+                f.name,
+                profile.kind()
+            ));
+        }
     }
     let mut program_settings = resolved.program.clone();
     program_settings.work_zero = Some(zero.words.clone());

@@ -28,6 +28,8 @@ pub struct OwnSettings {
     pub feed: Option<f64>,
     /// The feed down into the work; `None`: the job's.
     pub plunge_feed: Option<f64>,
+    /// The spindle speed (rpm; mills and routers); `None`: the job's.
+    pub spindle_speed: Option<f64>,
 }
 
 /// One feature's planned cut.

@@ -71,6 +71,15 @@ pub enum PostError {
         profile: String,
     },
     #[error(
+        "{feature}: its own spindle speed of {value:.0} rpm is above the largest speed {max:.0} rpm that profile \"{profile}\" allows. Give a lower spindle_speed for this feature in the job file, or correct max_spindle_speed in the profile"
+    )]
+    FeatureSpindleTooFast {
+        feature: String,
+        value: f64,
+        max: f64,
+        profile: String,
+    },
+    #[error(
         "the program needs more than 99999 line numbers (NISTIR 6556 §3.3.1 allows 5 digits); set line_numbers = false in the profile or use a coarser tolerance"
     )]
     TooManyLineNumbers,

@@ -75,6 +75,12 @@ pub(super) fn header(
                 format!(", its own feeds {} and {} {u}/min", fd(f), fd(p))
             }
         };
+        let own_speed = match (cut.own.spindle_speed, profile.spindle()) {
+            (Some(speed), Some(_)) => {
+                format!(", its own spindle speed {} rpm", format_number(speed, 0))
+            }
+            _ => String::new(),
+        };
         let pass = if cut.allowance > 0.0 {
             format!(", roughing, leaves {} {u}", xy(cut.allowance))
         } else if cut.full_depth_only && profile.spindle().is_some() {
@@ -83,7 +89,7 @@ pub(super) fn header(
             String::new()
         };
         text.push(format!(
-            "{} {}: {}, {}{own_depth}{own_feed}{pass}, {} feed moves{arcs}, fitted deviation {} {u}",
+            "{} {}: {}, {}{own_depth}{own_feed}{own_speed}{pass}, {} feed moves{arcs}, fitted deviation {} {u}",
             i + 1,
             sanitize(&cut.name),
             kind_word(cut.kind),

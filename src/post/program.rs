@@ -155,8 +155,10 @@ impl Writer<'_> {
         }
         self.rapid_z(profile.safe_height());
         if let Cutter::Spindle(s) = profile.cutter() {
-            self.block(format!("{} S{}", s.on, format_number(r.spindle_speed, 0)));
+            let speed = format_number(r.spindle_speed, 0);
+            self.block(format!("{} S{speed}", s.on));
             self.dwell(s.delay);
+            self.spindle = Some(speed);
         }
     }
 
@@ -172,6 +174,16 @@ impl Writer<'_> {
         let safe = profile.safe_height();
         self.rapid_z(safe);
         self.rapid_xy(units_point(profile.units(), cut.plunge));
+        if let Cutter::Spindle(s) = profile.cutter() {
+            // A feature's own speed (or the job's again after one): S alone changes the speed
+            // of the running spindle; the profile's spindle delay lets it settle.
+            let speed = format_number(r.spindle_speed_of(cut), 0);
+            if self.spindle.as_deref() != Some(speed.as_str()) {
+                self.block(format!("S{speed}"));
+                self.dwell(s.delay);
+                self.spindle = Some(speed);
+            }
+        }
         let done = match profile.cutter() {
             Cutter::Spindle(s) => self.passes(cut, s, settings, r)?,
             Cutter::Process(p) => self.pierced(cut, p, r)?,

@@ -139,6 +139,24 @@ pub(super) fn check_cut(
             check_feed(profile, which, feed)?;
         }
     }
+    if let (Some(own), Cutter::Spindle(s)) = (cut.own.spindle_speed, profile.cutter()) {
+        if !(own.is_finite() && own > 0.0) {
+            return Err(PostError::BadSetting {
+                setting: "the feature's spindle speed",
+                value: own,
+                problem: "is not a positive number",
+                hint: "give the speed in rpm",
+            });
+        }
+        if own > s.max_speed {
+            return Err(PostError::FeatureSpindleTooFast {
+                feature: cut.name.clone(),
+                value: own,
+                max: s.max_speed,
+                profile: profile.name().to_string(),
+            });
+        }
+    }
     if let (Cutter::Spindle(_), Some(depth)) = (profile.cutter(), cut.own.depth) {
         if !(depth.is_finite() && depth > 0.0) {
             return Err(PostError::BadSetting {

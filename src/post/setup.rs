@@ -120,6 +120,11 @@ impl Resolved {
                 .map_or(self.plunge_feed, |f| units.from_mm(f)),
         )
     }
+
+    /// The spindle speed of `cut` (rpm): its own where its feature gives one, else the job's.
+    pub(super) fn spindle_speed_of(&self, cut: &crate::fit::FittedCut) -> f64 {
+        cut.own.spindle_speed.unwrap_or(self.spindle_speed)
+    }
 }
 
 /// What was written for one cut, for the header.

@@ -26,6 +26,8 @@ pub(super) struct Writer<'p> {
     /// Last written Z, as text.
     pub(super) z: Option<String>,
     pub(super) feed: Option<String>,
+    /// Last written spindle speed (S), as text; mills and routers.
+    pub(super) spindle: Option<String>,
 }
 
 impl<'p> Writer<'p> {
@@ -37,6 +39,7 @@ impl<'p> Writer<'p> {
             xy: None,
             z: None,
             feed: None,
+            spindle: None,
         }
     }
 

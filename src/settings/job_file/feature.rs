@@ -64,6 +64,10 @@ impl Context<'_> {
             .get("plunge_feed")
             .map(|e| self.size(e, scale, "the plunge feed"))
             .transpose()?;
+        let spindle_speed = entries
+            .get("spindle_speed")
+            .map(|e| self.size(e, 1.0, "the spindle speed"))
+            .transpose()?;
         Ok((
             FeatureSpec {
                 name,
@@ -75,6 +79,7 @@ impl Context<'_> {
                 stepdown,
                 feed,
                 plunge_feed,
+                spindle_speed,
             },
             name_entry.line,
         ))

@@ -21,13 +21,14 @@ pub(super) const TOP_KEYS: [&str; 16] = [
 ];
 
 /// Keys allowed in a `[[feature]]` table.
-pub(super) const FEATURE_KEYS: [&str; 22] = [
+pub(super) const FEATURE_KEYS: [&str; 23] = [
     "name",
     "cut",
     "depth",
     "stepdown",
     "feed",
     "plunge_feed",
+    "spindle_speed",
     "bay",
     "inside",
     "rule",

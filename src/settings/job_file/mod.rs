@@ -38,6 +38,7 @@
 //! stepdown = 0.5                # its pass depth, overriding the job's
 //! feed = 300.0                  # optional: this feature's cutting feed, file units per minute
 //! plunge_feed = 80.0            # optional: and its feed down into the work
+//! spindle_speed = 12000         # optional (mills, routers): this feature's rpm
 //!
 //! [[feature]]
 //! name = "probed oval"
@@ -202,6 +203,9 @@ pub struct FeatureSpec {
     pub feed: Option<f64>,
     /// `plunge_feed`: this feature's feed down into the work (mm/min), overriding the job's.
     pub plunge_feed: Option<f64>,
+    /// `spindle_speed`: this feature's spindle speed (rpm, > 0; mills and routers), overriding
+    /// the job's.
+    pub spindle_speed: Option<f64>,
 }
 
 /// Where a feature's ellipse comes from.
