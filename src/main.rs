@@ -8,7 +8,9 @@ use cli::batch;
 use cli::progress::Progress;
 use conicut::chain::{DEFAULT_BAY_LAYER, DEFAULT_MAX_GAP};
 use conicut::geom::Point;
-use conicut::pipeline::{JobOutput, Step, resolve, run_resolved, run_resolved_watched, solve_job};
+use conicut::pipeline::{
+    JobOutput, Step, check_job, resolve, run_resolved, run_resolved_watched, solve_job,
+};
 use conicut::plan::{Direction, LeadKind, WorkZero};
 use conicut::post::WorkOffset;
 use conicut::read::Units;
@@ -88,6 +90,32 @@ enum Command {
         /// No progress bar (it is shown only on a terminal, and only for work that lasts).
         #[arg(long)]
         quiet: bool,
+        #[command(flatten)]
+        input: DrawingArgs,
+        #[command(flatten)]
+        cut: CutArgs,
+    },
+    /// Check a program (conicut's or any RS274/NGC-style program) against its drawing: the
+    /// text's rules, the machine's limits, and every cut measured against the exact curves
+    /// solved again from the drawing and job (give the same options as to `plan`). Exit codes:
+    /// 0 no finding that must be fixed (warnings may be listed), 1 findings that must be fixed,
+    /// 2 the program, drawing, job or profile could not be read.
+    Check {
+        /// The program to check.
+        program: PathBuf,
+        /// The DXF drawing the program should cut.
+        #[arg(long)]
+        against: PathBuf,
+        /// Machine profile: a profile file's path or a bundled profile's name (as for `plan`).
+        #[arg(long)]
+        machine: PathBuf,
+        /// Cutter diameter (mm, or with a unit: 0.25in), or the kerf width (`--kerf`); the
+        /// profile's kerf when not given on laser, plasma and waterjet.
+        #[arg(long, visible_alias = "kerf", allow_negative_numbers = true)]
+        tool_diameter: Option<Length>,
+        /// Print JSON for scripts instead of the text.
+        #[arg(long)]
+        json: bool,
         #[command(flatten)]
         input: DrawingArgs,
         #[command(flatten)]
@@ -251,9 +279,43 @@ fn main() {
     let cli = Cli::parse();
     if let Err(e) = run(cli) {
         eprintln!("error: {e:#}");
-        std::process::exit(1);
+        // `check`: 2 when something could not be read, 1 for findings (and every other failure).
+        let code = if e.downcast_ref::<CheckUnreadable>().is_some() {
+            2
+        } else {
+            1
+        };
+        std::process::exit(code);
     }
 }
+
+/// `conicut check` could not read its program, drawing, job or profile (exit code 2).
+#[derive(Debug)]
+struct CheckUnreadable(String);
+
+impl std::fmt::Display for CheckUnreadable {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.write_str(&self.0)
+    }
+}
+
+impl std::error::Error for CheckUnreadable {}
+
+/// `conicut check` found this many things that must be fixed (exit code 1).
+#[derive(Debug)]
+struct CheckFindings(usize);
+
+impl std::fmt::Display for CheckFindings {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        write!(
+            f,
+            "{} finding(s) must be fixed before this program is run (listed above)",
+            self.0
+        )
+    }
+}
+
+impl std::error::Error for CheckFindings {}
 
 /// Reads the job file and every CSV of points it names (paths relative to the job file).
 fn read_job(path: &Path) -> Result<(JobFile, BTreeMap<String, Vec<Point>>)> {
@@ -429,6 +491,39 @@ fn run(cli: Cli) -> Result<()> {
                 println!("{}", listing.to_json());
             } else {
                 print!("{}", listing.to_text());
+            }
+            Ok(())
+        }
+        Command::Check {
+            program,
+            against,
+            machine,
+            tool_diameter,
+            json,
+            input,
+            cut,
+        } => {
+            let text = fs::read_to_string(&program).map_err(|e| {
+                CheckUnreadable(format!(
+                    "cannot read the program {}: {e}",
+                    program.display()
+                ))
+            })?;
+            let unreadable = |e: anyhow::Error| CheckUnreadable(format!("{e:#}"));
+            let machine = read_profile(&machine).map_err(unreadable)?;
+            let (bytes, file_name, _) = read_drawing(&against).map_err(unreadable)?;
+            let mut request = request(file_name, &input, Some(&cut)).map_err(unreadable)?;
+            request.tool_diameter = mm(tool_diameter);
+            let resolved = resolve(&request, &machine).map_err(|e| unreadable(e.into()))?;
+            let checked = check_job(&text, &bytes, &machine.profile, &request, &resolved)
+                .map_err(|e| unreadable(e.into()))?;
+            if json {
+                println!("{}", checked.to_json());
+            } else {
+                print!("{}", checked.to_text(&program.display().to_string()));
+            }
+            if checked.must_fix() > 0 {
+                return Err(CheckFindings(checked.must_fix()).into());
             }
             Ok(())
         }

@@ -70,6 +70,8 @@ pub struct Deviation {
     pub worst_move: usize,
     /// The index of the move reaching farthest onto the part side.
     pub worst_part_move: usize,
+    /// The largest distance from a point of the moves to the path (the one way alone).
+    pub moves_to_path: f64,
 }
 
 /// Measures the run of `moves` from `start` against `exact` (see the module docs), with the
@@ -80,10 +82,34 @@ pub fn measure(
     exact: &ExactPath,
     scrap_left: bool,
 ) -> Option<Deviation> {
-    if moves.is_empty() {
+    measure_pieces(&starts_of(start, moves), moves, exact, scrap_left)
+}
+
+/// The start point of each of `moves` run one after the other from `start`.
+fn starts_of(start: Point, moves: &[Move]) -> Vec<Point> {
+    let mut from = Vec::with_capacity(moves.len());
+    let mut at = start;
+    for m in moves {
+        from.push(at);
+        at = m.end();
+    }
+    from
+}
+
+/// [`measure`] of moves that need not follow one another: move `i` runs from `starts[i]` (a
+/// program read back may cut one contour in several runs, passes or pieces). The path is
+/// measured against all of them together. `None` when there are no moves or the two lists
+/// differ in length.
+pub fn measure_pieces(
+    starts: &[Point],
+    moves: &[Move],
+    exact: &ExactPath,
+    scrap_left: bool,
+) -> Option<Deviation> {
+    if moves.is_empty() || starts.len() != moves.len() {
         return None;
     }
-    let written = Written::new(start, moves);
+    let written = Written::from_starts(starts, moves);
     let target = Target::of(exact);
     // The signed distance along every written move, sampled once for both figures.
     let signed = sample_signed(&written, &target);
@@ -102,6 +128,7 @@ pub fn measure(
         part_side: part_side.max(0.0),
         worst_move,
         worst_part_move,
+        moves_to_path,
     })
 }
 
@@ -265,21 +292,15 @@ impl Shape {
 }
 
 impl<'a> Written<'a> {
-    fn new(start: Point, moves: &'a [Move]) -> Self {
-        let mut from = Vec::with_capacity(moves.len());
-        let mut at = start;
-        for m in moves {
-            from.push(at);
-            at = m.end();
-        }
+    fn from_starts(from: &[Point], moves: &'a [Move]) -> Self {
         let shapes = moves
             .iter()
-            .zip(&from)
+            .zip(from)
             .map(|(m, &f)| Shape::of(f, m))
             .collect();
         let boxes = moves
             .iter()
-            .zip(&from)
+            .zip(from)
             .map(|(m, &f)| {
                 let (min, max) = box_of(f, m);
                 Bounds { min, max }
@@ -437,6 +458,126 @@ fn exact_to_written(written: &Written, exact: &ExactPath) -> (f64, usize) {
             if b.0 > a.0 { b } else { a }
         });
     (best, written.nearest(worst.1, 0).1)
+}
+
+/// The largest spacing of the path's samples when looking for stretches left uncut (mm): a gap
+/// in the cutting moves longer than this and twice the limit is always found.
+pub const UNCUT_SPACING: f64 = 0.1;
+
+/// A stretch of the exact path farther than a limit from every written move: left uncut.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+pub struct Uncut {
+    /// Where the stretch begins and ends (mm), as sampled.
+    pub from: Point,
+    pub to: Point,
+    /// Its length along the path (mm), from the samples (a chord sum: at most the true length).
+    pub length: f64,
+    /// The largest distance from a sample of the stretch to the moves (mm).
+    pub gap: f64,
+}
+
+/// The stretches of `exact` farther than `limit` from every move (`starts` and `moves` as in
+/// [`measure_pieces`]), and the largest distance from the other samples to the moves; found on
+/// samples of the path at most [`UNCUT_SPACING`] apart (and at least [`MIN_PATH_SAMPLES`],
+/// [`PATH_SAMPLES_PER_MOVE`] per move): a shorter stretch can be missed, and is then within the
+/// deviation [`measure_pieces`] reports.
+pub fn uncut_stretches(
+    starts: &[Point],
+    moves: &[Move],
+    exact: &ExactPath,
+    limit: f64,
+) -> (Vec<Uncut>, f64) {
+    if moves.is_empty() || starts.len() != moves.len() {
+        return (Vec::new(), 0.0);
+    }
+    let written = Written::from_starts(starts, moves);
+    // Samples at most UNCUT_SPACING apart (the path's length from a 64-chord polyline per
+    // piece, a little short of the true length).
+    let length: f64 = path_pieces(exact, 64)
+        .iter()
+        .map(|(piece, n, _)| {
+            (1..=*n)
+                .map(|k| piece((k - 1) as f64 / *n as f64).distance(piece(k as f64 / *n as f64)))
+                .sum::<f64>()
+        })
+        .sum();
+    let count = (PATH_SAMPLES_PER_MOVE * moves.len())
+        .max(MIN_PATH_SAMPLES)
+        .max((length / UNCUT_SPACING).ceil().min(1e7) as usize);
+    // Every sample: its distance along the path, its point, its distance to the moves.
+    let mut samples: Vec<(f64, Point, f64)> = Vec::with_capacity(count + 64);
+    let mut along = 0.0;
+    let mut hint = 0;
+    for (piece, n, _) in path_pieces(exact, count) {
+        for k in 0..=n {
+            let p = piece(k as f64 / n as f64);
+            let (d, i) = written.nearest(p, hint);
+            hint = i;
+            if let Some(&(_, q, _)) = samples.last() {
+                along += q.distance(p);
+            }
+            samples.push((along, p, d));
+        }
+    }
+    let mut out: Vec<Uncut> = Vec::new();
+    let mut spans: Vec<(f64, f64)> = Vec::new();
+    let mut k = 0;
+    while k < samples.len() {
+        if samples[k].2 <= limit {
+            k += 1;
+            continue;
+        }
+        let first = k;
+        while k < samples.len() && samples[k].2 > limit {
+            k += 1;
+        }
+        let run = &samples[first..k];
+        spans.push((run[0].0, run[run.len() - 1].0));
+        out.push(Uncut {
+            from: run[0].1,
+            to: run[run.len() - 1].1,
+            length: run[run.len() - 1].0 - run[0].0,
+            gap: run.iter().map(|r| r.2).fold(0.0, f64::max),
+        });
+    }
+    // The rest of the path, leaving out the shoulders of each stretch (within twice the limit
+    // and a spacing along the path of its ends, where the distance climbs to the limit; a
+    // stretch at one end of the path has its shoulder at the other end too).
+    let shoulder = 2.0 * limit + UNCUT_SPACING;
+    let mut skip = vec![false; samples.len()];
+    let mut mark = |lo: f64, hi: f64| {
+        let from = samples.partition_point(|x| x.0 < lo);
+        let to = samples.partition_point(|x| x.0 <= hi);
+        for m in &mut skip[from..to] {
+            *m = true;
+        }
+    };
+    for &(a, b) in &spans {
+        mark(a - shoulder, b + shoulder);
+        if a <= 0.0 {
+            mark(along - shoulder, along);
+        }
+        if b >= along {
+            mark(0.0, shoulder);
+        }
+    }
+    let covered = samples
+        .iter()
+        .zip(&skip)
+        .filter(|(x, skipped)| x.2 <= limit && !**skipped)
+        .map(|(x, _)| x.2)
+        .fold(0.0, f64::max);
+    // A stretch running through the path's start joins the one that ended it.
+    if out.len() > 1
+        && samples.first().is_some_and(|s| s.2 > limit)
+        && samples.last().is_some_and(|s| s.2 > limit)
+        && let Some(last) = out.pop()
+    {
+        out[0].from = last.from;
+        out[0].length += last.length;
+        out[0].gap = out[0].gap.max(last.gap);
+    }
+    (out, covered)
 }
 
 /// A piece of the exact path as a point function on [0, 1].

@@ -15,13 +15,16 @@
 //! code with the fit's). [`verify`] is the one entry the job calls: it reads the program, measures
 //! every cut, holds it to the tolerance and the one-sided rule, and runs the scrap check.
 
-use crate::geom::units::MM_PER_INCH;
 use crate::geom::{ExactPath, Move, Point};
 use serde::Serialize;
 
+pub mod against;
 pub mod deviation;
+pub mod program;
 pub mod rapids;
+pub mod reader;
 pub mod scrap;
+pub mod time;
 mod verify;
 
 pub use verify::{CutDeviation, Finding, Findings, Verified, VerifyRules, verify};
@@ -46,6 +49,10 @@ pub struct TraceMove {
     pub arc: Option<([f64; 2], bool)>,
     /// Feed rate in mm/min (0 for rapids).
     pub feed: f64,
+    /// Whether the spindle (or the beam, torch or jet) is on during the move.
+    pub on: bool,
+    /// False after a word the reader does not follow: the move may not be where it says.
+    pub measurable: bool,
 }
 
 /// What a program does, read back.
@@ -65,280 +72,29 @@ pub struct Trace {
     pub largest_arc_radius_mismatch: f64,
     /// Smallest and largest X, Y, Z the tool centre reaches (mm), arcs included.
     pub bounds: Option<([f64; 3], [f64; 3])>,
+    /// The dwells (G4), in order.
+    pub dwells: Vec<reader::Dwell>,
+    /// Every spindle speed word (S) with its line.
+    pub speeds: Vec<(usize, f64)>,
+    /// Every time the spindle (or process) comes on or goes off.
+    pub switches: Vec<reader::Switch>,
 }
 
-#[derive(Default)]
-struct State {
-    inch: Option<bool>,
-    pos: [f64; 3],
-    motion: Option<u8>,
-    feed: f64,
-}
-
-/// A number word of a line.
-fn parse_number(text: &str, line: usize) -> Result<f64, CheckError> {
-    let ok = !text.is_empty()
-        && text
-            .chars()
-            .all(|c| c.is_ascii_digit() || c == '.' || c == '-' || c == '+');
-    let v: Option<f64> = if ok { text.parse().ok() } else { None };
-    v.filter(|v| v.is_finite()).ok_or_else(|| CheckError {
-        line,
-        problem: format!("\"{text}\" is not a number"),
-    })
-}
-
-/// The words of a line, each a letter and its value as written.
-type Words = Vec<(char, String)>;
-
-/// The words of one line and its comments.
-fn words(raw: &str, line: usize) -> Result<(Words, Vec<String>), CheckError> {
-    let mut out = Vec::new();
-    let mut comments = Vec::new();
-    let mut chars = raw.chars().peekable();
-    while let Some(c) = chars.next() {
-        match c {
-            '(' => {
-                let mut text = String::new();
-                loop {
-                    match chars.next() {
-                        Some(')') => break,
-                        Some('(') => {
-                            return Err(CheckError {
-                                line,
-                                problem: "a comment inside a comment".into(),
-                            });
-                        }
-                        Some(ch) => text.push(ch),
-                        None => {
-                            return Err(CheckError {
-                                line,
-                                problem: "a comment is not closed on its line".into(),
-                            });
-                        }
-                    }
-                }
-                comments.push(text);
-            }
-            ';' => {
-                comments.push(chars.by_ref().collect());
-            }
-            ' ' | '\t' | '\r' => {}
-            c if c.is_ascii_alphabetic() => {
-                let mut value = String::new();
-                while let Some(&d) = chars.peek() {
-                    if d.is_ascii_digit() || d == '.' || d == '-' || d == '+' {
-                        value.push(d);
-                        chars.next();
-                    } else if d == ' ' || d == '\t' {
-                        chars.next();
-                    } else {
-                        break;
-                    }
-                }
-                out.push((c.to_ascii_uppercase(), value));
-            }
-            other => {
-                return Err(CheckError {
-                    line,
-                    problem: format!("unexpected character '{other}'"),
-                });
-            }
-        }
-    }
-    Ok((out, comments))
-}
-
-/// Reads a program and follows it move by move.
+/// Reads a program and follows it move by move; the first thing that must be fixed (see
+/// [`reader`]) is an error. The job's own check of what it wrote uses this: conicut's programs
+/// must pass every rule.
 pub fn trace(program: &str) -> Result<Trace, CheckError> {
-    let mut reader = Reader::default();
-    for (i, raw) in program.lines().enumerate() {
-        let t = raw.trim();
-        if !(t.is_empty() || t == "%") {
-            reader.line(t, i + 1)?;
-        }
-    }
-    Ok(reader.finish())
-}
-
-/// What one line asks for: its motion word, target coordinates (as written) and arc offsets.
-#[derive(Default)]
-struct Block {
-    motion: Option<u8>,
-    target: [Option<f64>; 3],
-    i_off: Option<f64>,
-    j_off: Option<f64>,
-}
-
-/// The reader's modal state and everything read so far.
-#[derive(Default)]
-struct Reader {
-    st: State,
-    moves: Vec<TraceMove>,
-    features: Vec<(String, usize)>,
-    cut_numbers: Vec<usize>,
-    marks: Vec<(String, usize)>,
-    mismatch: f64,
-}
-
-impl Reader {
-    /// Step 1: one line's words and comments; step 2: the words into a block; step 3: the move.
-    fn line(&mut self, text: &str, line: usize) -> Result<(), CheckError> {
-        let (ws, comments) = words(text, line)?;
-        self.comments(&comments);
-        let block = self.block(&ws, line)?;
-        if let Some(m) = block.motion {
-            self.st.motion = Some(m);
-        }
-        if block.target.iter().any(Option::is_some) {
-            self.motion(&block, line)?;
-        }
-        Ok(())
-    }
-
-    /// Every comment is a mark; a cut comment `(cut K of N: NAME)` also starts a feature.
-    fn comments(&mut self, comments: &[String]) {
-        for c in comments {
-            let c = c.trim();
-            self.marks.push((c.to_string(), self.moves.len()));
-            if let Some((head, name)) = c.strip_prefix("cut ").and_then(|r| r.split_once(": ")) {
-                self.features.push((name.to_string(), self.moves.len()));
-                self.cut_numbers.push(cut_number(head).unwrap_or(0));
-            }
-        }
-    }
-
-    /// The words of a line read into a block; units and feed words change the state at once.
-    fn block(&mut self, ws: &Words, line: usize) -> Result<Block, CheckError> {
-        let mut b = Block::default();
-        for (letter, value) in ws {
-            match letter {
-                'N' | 'S' | 'P' | 'T' | 'M' | 'H' | 'D' => {
-                    parse_number(value, line)?;
-                }
-                'G' => {
-                    if let Some(m) = self.g_word(value, line)? {
-                        b.motion = Some(m);
-                    }
-                }
-                'X' | 'Y' | 'Z' => {
-                    let k = (*letter as u8 - b'X') as usize;
-                    b.target[k] = Some(parse_number(value, line)?);
-                }
-                'I' => b.i_off = Some(parse_number(value, line)?),
-                'J' => b.j_off = Some(parse_number(value, line)?),
-                'F' => self.st.feed = parse_number(value, line)?,
-                'R' => {
-                    return Err(CheckError {
-                        line,
-                        problem: "the R form of arcs is not followed (use I and J)".into(),
-                    });
-                }
-                other => {
-                    return Err(CheckError {
-                        line,
-                        problem: format!("the word {other} is not followed by this reader"),
-                    });
-                }
-            }
-        }
-        Ok(b)
-    }
-
-    /// A G word: the motion mode it sets, if it is one (G0 G1 G2 G3).
-    fn g_word(&mut self, value: &str, line: usize) -> Result<Option<u8>, CheckError> {
-        let g = parse_number(value, line)?;
-        let code = (g * 10.0).round() as i64;
-        match code {
-            0 | 10 | 20 | 30 => return Ok(Some((code / 10) as u8)),
-            40 => {} // dwell
-            170 | 900 | 940 | 400 | 490 | 540..=590 | 610 | 640 => {}
-            200 => self.st.inch = Some(true),
-            210 => self.st.inch = Some(false),
-            _ => {
-                return Err(CheckError {
-                    line,
-                    problem: format!("G{value} is not followed by this reader"),
-                });
-            }
-        }
-        Ok(None)
-    }
-
-    /// The move a block with coordinates makes, in mm, in the motion mode in force.
-    fn motion(&mut self, b: &Block, line: usize) -> Result<(), CheckError> {
-        let Some(inch) = self.st.inch else {
-            return Err(CheckError {
-                line,
-                problem: "a move before the units word (G20 or G21)".into(),
-            });
-        };
-        let scale = if inch { MM_PER_INCH } else { 1.0 };
-        let motion = self.st.motion.ok_or(CheckError {
-            line,
-            problem: "a move with no motion mode (G0, G1, G2 or G3) in force".into(),
-        })?;
-        let from = self.st.pos;
-        let mut to = from;
-        for (axis, target) in to.iter_mut().zip(b.target) {
-            if let Some(v) = target {
-                *axis = v * scale;
-            }
-        }
-        let arc = if motion >= 2 {
-            Some((self.arc_centre(b, from, to, scale, line)?, motion == 3))
-        } else {
-            None
-        };
-        self.moves.push(TraceMove {
-            line,
-            rapid: motion == 0,
-            from,
-            to,
-            arc,
-            feed: if motion == 0 {
-                0.0
-            } else {
-                self.st.feed * scale
-            },
-        });
-        self.st.pos = to;
-        Ok(())
-    }
-
-    /// An arc's centre from its I and J offsets (incremental from the start), noting how far its
-    /// start and end radius differ.
-    fn arc_centre(
-        &mut self,
-        b: &Block,
-        from: [f64; 3],
-        to: [f64; 3],
-        scale: f64,
-        line: usize,
-    ) -> Result<[f64; 2], CheckError> {
-        let (Some(di), Some(dj)) = (b.i_off, b.j_off) else {
-            return Err(CheckError {
-                line,
-                problem: "an arc without both I and J".into(),
-            });
-        };
-        let c = [from[0] + di * scale, from[1] + dj * scale];
-        let r0 = (from[0] - c[0]).hypot(from[1] - c[1]);
-        let r1 = (to[0] - c[0]).hypot(to[1] - c[1]);
-        self.mismatch = self.mismatch.max((r0 - r1).abs());
-        Ok(c)
-    }
-
-    fn finish(self) -> Trace {
-        let bounds = bounds_of(&self.moves);
-        Trace {
-            moves: self.moves,
-            features: self.features,
-            cut_numbers: self.cut_numbers,
-            marks: self.marks,
-            largest_arc_radius_mismatch: self.mismatch,
-            bounds,
-        }
+    let reading = reader::read_program(program, &reader::Dialect::default());
+    match reading
+        .findings
+        .into_iter()
+        .find(|f| f.severity == reader::Severity::MustFix)
+    {
+        Some(f) => Err(CheckError {
+            line: f.line,
+            problem: f.message,
+        }),
+        None => Ok(reading.trace),
     }
 }
 
@@ -370,7 +126,7 @@ fn bounds_of(moves: &[TraceMove]) -> Option<([f64; 3], [f64; 3])> {
 }
 
 /// The number K of a cut comment's head `K of N` (1-based), if it is one.
-fn cut_number(head: &str) -> Option<usize> {
+pub(crate) fn cut_number(head: &str) -> Option<usize> {
     let (k, n) = head.split_once(" of ")?;
     n.trim().parse::<usize>().ok()?;
     k.trim().parse().ok()
@@ -515,15 +271,10 @@ mod tests {
         let t = trace("G20 G90\nG0 X1 Y2\nG1 X2 F10\n").unwrap();
         assert_eq!(t.moves[1].to, [50.8, 50.8, 0.0]);
         assert!((t.moves[1].feed - 254.0).abs() < 1e-12);
-        let e = trace("G21\nG91 G1 X1\n").unwrap_err();
+        let e = trace("G21\nG18 G1 X1\n").unwrap_err();
         assert_eq!(e.line, 2);
+        assert!(e.problem.contains("another plane"), "{}", e.problem);
         assert!(trace("G1 X1\n").unwrap_err().problem.contains("units"));
-        assert!(
-            trace("G21\nG2 X1 Y0 R1\n")
-                .unwrap_err()
-                .problem
-                .contains("R form")
-        );
         assert!(trace("G21 (a (b))\n").is_err());
     }
 }

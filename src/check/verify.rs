@@ -8,7 +8,7 @@
 
 use super::deviation::{self, Deviation};
 use super::scrap::{ScrapRules, check_scrap};
-use super::{CheckError, Trace, cut_contour_lines, trace};
+use super::{CheckError, Trace, cut_contour_lines};
 use crate::plan::PlannedCut;
 use rayon::prelude::*;
 use serde::Serialize;
@@ -62,6 +62,13 @@ pub enum Finding {
     /// The checker cannot read the program.
     #[error("{0}")]
     Unreadable(CheckError),
+    /// The text breaks a rule of the reader's ([`super::reader`]).
+    #[error("program line {line}: {problem}")]
+    TextRule {
+        line: usize,
+        rule: &'static str,
+        problem: String,
+    },
     /// No cut comment with the cut's number, or no contour moves after it reach its path.
     #[error("the cut of \"{feature}\" was not found in the program")]
     NotFound { feature: String },
@@ -122,7 +129,21 @@ pub fn verify(
     cuts: &[PlannedCut],
     rules: &VerifyRules,
 ) -> Result<Verified, Findings> {
-    let trace = trace(program).map_err(|e| Findings(vec![Finding::Unreadable(e)]))?;
+    let reading = super::reader::read_program(program, &super::reader::Dialect::default());
+    // What the reader could not follow stops here; the text rules broken are listed after the
+    // measurement.
+    let (unreadable, rules_broken): (Vec<_>, Vec<_>) = reading
+        .findings
+        .into_iter()
+        .filter(|f| f.severity == super::reader::Severity::MustFix)
+        .partition(|f| super::reader::UNREADABLE.contains(&f.rule));
+    if let Some(f) = unreadable.into_iter().next() {
+        return Err(Findings(vec![Finding::Unreadable(CheckError {
+            line: f.line,
+            problem: f.message,
+        })]));
+    }
+    let trace = reading.trace;
     let mut findings = Vec::new();
     let mut measured = Vec::with_capacity(cuts.len());
     // Measured in parallel (rayon), gathered in cut order.
@@ -140,6 +161,11 @@ pub fn verify(
     if findings.is_empty() {
         findings.extend(scrap_finding(&trace, cuts, rules));
     }
+    findings.extend(rules_broken.into_iter().map(|f| Finding::TextRule {
+        line: f.line,
+        rule: f.rule,
+        problem: f.message,
+    }));
     if !findings.is_empty() {
         return Err(Findings(findings));
     }

@@ -360,47 +360,15 @@ pub fn run_resolved_watched(
     watch: &dyn Fn(Step),
 ) -> Result<JobOutput, JobError> {
     let file = || s.file_name.clone();
-    watch(Step::Solving);
-    let mut solved = read_and_solve(dxf, s)?;
-    refuse_unsolved(&solved, profile, &s.file_name)?;
-    let (mut to_cut, mut infos) = openings(&solved.features);
-    let zero = place_zero(s, &mut solved, &mut to_cut, &mut infos)?;
-    if profile.spindle().is_none() {
-        for f in solved
-            .features
-            .iter()
-            .filter(|f| f.own.depth.is_some() || f.own.stepdown.is_some())
-        {
-            solved.part.warnings.push(format!(
-                "{}: its own depth and stepdown apply to mills and routers only and were \
-                 ignored: a {} cuts through",
-                f.name,
-                profile.kind()
-            ));
-        }
-        for f in solved
-            .features
-            .iter()
-            .filter(|f| f.own.spindle_speed.is_some())
-        {
-            solved.part.warnings.push(format!(
-                "{}: its own spindle_speed applies to mills and routers only and was ignored: \
-                 a {} has no spindle",
-                f.name,
-                profile.kind()
-            ));
-        }
-    }
+    let Planned {
+        solved,
+        to_cut,
+        infos,
+        zero,
+        plan,
+    } = plan_job(dxf, profile, s, resolved, watch)?;
     let mut program_settings = resolved.program.clone();
     program_settings.work_zero = Some(zero.words.clone());
-    watch(Step::Planning(
-        to_cut.len() + solved.part.holes.len() + usize::from(solved.part.outline.is_some()),
-    ));
-    let plan =
-        plan::plan_cuts(&solved.part, &to_cut, &resolved.plan).map_err(|error| JobError::Plan {
-            file: file(),
-            error,
-        })?;
     // The fit gets the tolerance less what rounding may take (`settings::ToleranceBudget`);
     // the checker then measures the program as written against the whole tolerance.
     watch(Step::Fitting(plan.cuts.len()));
@@ -441,6 +409,132 @@ pub fn run_resolved_watched(
         preview,
         report,
     })
+}
+
+/// The job planned: the drawing solved, the work zero placed, every cut's exact path.
+struct Planned {
+    solved: Solved,
+    to_cut: Vec<plan::Opening>,
+    infos: Vec<SolvedInfo>,
+    zero: plan::PlacedZero,
+    plan: plan::Plan,
+}
+
+/// Reads and solves the drawing, places the work zero and plans every cut.
+fn plan_job(
+    dxf: &[u8],
+    profile: &MachineProfile,
+    s: &JobSettings,
+    resolved: &ResolvedJob,
+    watch: &dyn Fn(Step),
+) -> Result<Planned, JobError> {
+    watch(Step::Solving);
+    let mut solved = read_and_solve(dxf, s)?;
+    refuse_unsolved(&solved, profile, &s.file_name)?;
+    let (mut to_cut, mut infos) = openings(&solved.features);
+    let zero = place_zero(s, &mut solved, &mut to_cut, &mut infos)?;
+    if profile.spindle().is_none() {
+        for f in solved
+            .features
+            .iter()
+            .filter(|f| f.own.depth.is_some() || f.own.stepdown.is_some())
+        {
+            solved.part.warnings.push(format!(
+                "{}: its own depth and stepdown apply to mills and routers only and were \
+                 ignored: a {} cuts through",
+                f.name,
+                profile.kind()
+            ));
+        }
+        for f in solved
+            .features
+            .iter()
+            .filter(|f| f.own.spindle_speed.is_some())
+        {
+            solved.part.warnings.push(format!(
+                "{}: its own spindle_speed applies to mills and routers only and was ignored: \
+                 a {} has no spindle",
+                f.name,
+                profile.kind()
+            ));
+        }
+    }
+    watch(Step::Planning(
+        to_cut.len() + solved.part.holes.len() + usize::from(solved.part.outline.is_some()),
+    ));
+    let plan =
+        plan::plan_cuts(&solved.part, &to_cut, &resolved.plan).map_err(|error| JobError::Plan {
+            file: s.file_name.clone(),
+            error,
+        })?;
+    Ok(Planned {
+        solved,
+        to_cut,
+        infos,
+        zero,
+        plan,
+    })
+}
+
+/// `conicut check`: `program` (from anywhere) read on its own and held to the text rules, the
+/// profile's limits and the cuts the drawing and job call for (planned again exactly as `plan`
+/// would, with the same settings).
+pub fn check_job(
+    program: &str,
+    dxf: &[u8],
+    profile: &MachineProfile,
+    s: &JobSettings,
+    resolved: &ResolvedJob,
+) -> Result<check::program::ProgramCheck, JobError> {
+    let planned = plan_job(dxf, profile, s, resolved, &|_| {})?;
+    let part = planned
+        .plan
+        .cuts
+        .iter()
+        .filter_map(|c| c.edge().bounding_box())
+        .reduce(|a, b| a.union(b));
+    let rules = check::against::AgainstRules {
+        tool_radius: resolved.tool_diameter / 2.0,
+        tolerance: s.tolerance,
+        thermal: profile.spindle().is_none(),
+    };
+    Ok(check::program::check_program(
+        program,
+        &machine_rules(profile),
+        &planned.plan.cuts,
+        &rules,
+        part,
+    ))
+}
+
+/// The profile as the checker holds a program to it, in mm.
+pub fn machine_rules(profile: &MachineProfile) -> check::program::MachineRules {
+    let u = profile.units();
+    let t = profile.travel();
+    let words = |w: &str| vec![w.split_whitespace().map(str::to_string).collect::<Vec<_>>()];
+    let (on_words, off_words) = match profile.cutter() {
+        crate::post::Cutter::Spindle(sp) => (words(&sp.on), words(&sp.off)),
+        crate::post::Cutter::Process(p) => (words(&p.on), words(&p.off)),
+    };
+    check::program::MachineRules {
+        profile: profile.name().to_string(),
+        travel: [
+            [u.to_mm(t.x_min), u.to_mm(t.x_max)],
+            [u.to_mm(t.y_min), u.to_mm(t.y_max)],
+            [u.to_mm(t.z_min), u.to_mm(t.z_max)],
+        ],
+        max_feed: u.to_mm(profile.max_feed()),
+        max_spindle_speed: profile.spindle().map(|sp| sp.max_speed),
+        safe_height: u.to_mm(profile.safe_height()),
+        pierce_dwell: profile.process().map(|p| p.pierce_dwell),
+        dialect: check::reader::Dialect {
+            dwell_in_ms: profile.dwell_unit() == crate::post::DwellUnit::Milliseconds,
+            on_words,
+            off_words,
+        },
+        acceleration: u.to_mm(profile.acceleration()),
+        rapid_feed: u.to_mm(profile.rapid_feed()),
+    }
 }
 
 /// What the job has made, for the preview and the report.
