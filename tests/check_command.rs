@@ -271,3 +271,64 @@ fn an_unreadable_input_exits_2() {
     assert_eq!(out.status.code(), Some(2));
     assert!(String::from_utf8_lossy(&out.stderr).contains("cannot read the program missing.ngc"));
 }
+
+#[test]
+fn every_program_plan_writes_passes_check_with_the_same_cycle_time() {
+    let root = env!("CARGO_MANIFEST_DIR");
+    let drawing = format!("{root}/demo-parts/truss-bracket.dxf");
+    for (machine, extra) in [
+        ("metric-mill", vec!["--tool-diameter", "6", "--tabs", "2"]),
+        ("inch-router", vec!["--tool-diameter", "0.25in"]),
+        ("laser", vec!["--tabs", "3"]),
+        ("plasma", vec![]),
+        ("waterjet", vec![]),
+    ] {
+        let dir = tempfile::tempdir().unwrap();
+        Command::cargo_bin("conicut")
+            .unwrap()
+            .current_dir(dir.path())
+            .args(["plan", &drawing, "--machine", machine, "--out", "out"])
+            .args(&extra)
+            .assert()
+            .success();
+        let program = fs::read_to_string(dir.path().join("out/truss-bracket.ngc")).unwrap();
+        let report: serde_json::Value = serde_json::from_str(
+            &fs::read_to_string(dir.path().join("out/truss-bracket-report.json")).unwrap(),
+        )
+        .unwrap();
+        assert!(
+            program.contains("(estimated cycle time: ") && !program.contains("measured when"),
+            "{machine}: the header's cycle time"
+        );
+        let out = Command::cargo_bin("conicut")
+            .unwrap()
+            .current_dir(dir.path())
+            .args(["check", "out/truss-bracket.ngc", "--against", &drawing])
+            .args(["--machine", machine, "--json"])
+            .args(&extra)
+            .output()
+            .unwrap();
+        let stdout = String::from_utf8_lossy(&out.stdout);
+        assert_eq!(out.status.code(), Some(0), "{machine}: {stdout}");
+        let json: serde_json::Value = serde_json::from_str(&stdout).unwrap();
+        assert_eq!(
+            json["features"].as_array().unwrap().len(),
+            report["features"].as_array().unwrap().len(),
+            "{machine}"
+        );
+        for f in json["features"].as_array().unwrap() {
+            assert!(f["moves"].as_u64().unwrap() > 0, "{machine}: {f}");
+            assert!(
+                f["deviation_mm"].as_f64().unwrap() <= 0.01 + 1e-4,
+                "{machine}: {f}"
+            );
+        }
+        // The report's cycle time is the one `check` measures on the same text.
+        let total = json["cycle_time"]["total_s"].as_f64().unwrap();
+        assert!(total > 0.0);
+        assert!(
+            (report["cycle_time"]["total_s"].as_f64().unwrap() - total).abs() < 1e-9 * total,
+            "{machine}"
+        );
+    }
+}

@@ -28,8 +28,11 @@
 //!   longer than its tab's length plus `2 × UNCUT_FLOOR`, are the tabs.
 //! * A **run** is a chain of cutting moves, each starting where the last ended. A run with no
 //!   move on any path cuts something the drawing does not ask for: a finding naming its lines.
-//! * **Gouges**: every cutting move is sampled every [`GOUGE_SPACING`] mm (at most
-//!   [`MAX_GOUGE_SAMPLES`] points a move); a point whose distance to a finished edge is less
+//! * **Gouges**: a feature's contour moves reaching farther onto the part side of its curve than
+//!   the tolerance (the exact part-side deviation: the tool's edge is then that far into the
+//!   finished edge); and every cutting move is sampled every [`GOUGE_SPACING`] mm (at most
+//!   [`MAX_GOUGE_SAMPLES`] points a move); a point whose distance to a finished edge (other than
+//!   its own contour's, held by the deviation) is less
 //!   than the tool radius less the tolerance, or that lies in the material (inside the outline
 //!   and outside every hole and pocket, or inside a boss), is a gouge: one finding per move,
 //!   with the depth. Between samples the distance can dip by at most half the spacing, and only
@@ -99,6 +102,8 @@ pub struct FeatureCheck {
     pub uncut: Vec<Uncut>,
     /// Stretches taken for its tabs.
     pub tabs: usize,
+    /// The program line of the move reaching farthest onto the part side.
+    pub worst_part_line: Option<usize>,
 }
 
 /// The outcome of [`check_against`].
@@ -117,7 +122,12 @@ pub fn check_against(trace: &Trace, cuts: &[PlannedCut], rules: &AgainstRules) -
     let band = (ON_PATH_TOLERANCES * rules.tolerance).max(ON_PATH_FLOOR);
     let paths = BoxGrid::new(
         cuts.iter()
-            .map(|c| grown(c.edge().bounding_box(), rules.tool_radius + band))
+            .map(|c| {
+                grown(
+                    c.edge().bounding_box(),
+                    rules.tool_radius + c.allowance() + band,
+                )
+            })
             .collect(),
     );
     // The feature each cutting move is near, if any, and how far it strays.
@@ -137,7 +147,15 @@ pub fn check_against(trace: &Trace, cuts: &[PlannedCut], rules: &AgainstRules) -
         feature_findings(f, rules, &mut findings);
     }
     stray_runs(trace, &cutting, &owner, &mut findings);
-    findings.extend(gouges(trace, &cutting, &owner, cuts, rules));
+    // Which feature's contour each cutting move is (its own edge is then held by the part-side
+    // deviation, measured exactly, instead of by samples).
+    let mut contour_of = vec![None; trace.moves.len()];
+    for (f, at) in by_feature.iter().enumerate() {
+        for &i in at {
+            contour_of[i] = Some(f);
+        }
+    }
+    findings.extend(gouges(trace, &cutting, &owner, &contour_of, cuts, rules));
     Against { features, findings }
 }
 
@@ -334,6 +352,8 @@ fn measure_feature(trace: &Trace, cut: &PlannedCut, at: &[usize], band: f64) -> 
         part_side_mm: deviation.map(|d| d.part_side),
         uncut,
         tabs,
+        worst_part_line: deviation
+            .and_then(|d| at.get(d.worst_part_move).map(|&i| trace.moves[i].line)),
     }
 }
 
@@ -364,6 +384,21 @@ fn feature_findings(f: &FeatureCheck, rules: &AgainstRules, out: &mut Vec<Progra
                 line,
                 f.lines.map_or(0, |l| l.1),
                 rules.tolerance
+            ),
+        ));
+    }
+    if let Some(p) = f
+        .part_side_mm
+        .filter(|&p| p > rules.tolerance + DEVIATION_ALLOWANCE)
+    {
+        out.push(ProgramFinding::must_fix(
+            f.worst_part_line.unwrap_or(line),
+            "gouge",
+            format!(
+                "gouges \"{}\" by {p:.4} mm: its contour runs {p:.4} mm onto the part side of its \
+                 exact tool-centre curve, so the tool's edge cuts that far into the finished edge \
+                 (more than the tolerance {} mm)",
+                f.name, rules.tolerance
             ),
         ));
     }
@@ -411,23 +446,18 @@ fn gouges(
     trace: &Trace,
     cutting: &[usize],
     owner: &[Option<usize>],
+    contour_of: &[Option<usize>],
     cuts: &[PlannedCut],
     rules: &AgainstRules,
 ) -> Vec<ProgramFinding> {
     let limit = rules.tool_radius - rules.tolerance;
-    let edges = BoxGrid::new(
-        cuts.iter()
-            .map(|c| grown(c.edge().bounding_box(), 0.0))
-            .collect(),
-    );
-    let outline = cuts.iter().position(|c| {
-        c.side() == CutSide::Outside && c.kind() == crate::plan::FeatureKind::Outline
-    });
+    let material = Material::new(cuts, rules.tool_radius);
     let found: Vec<Option<ProgramFinding>> = cutting
         .par_iter()
         .zip(owner)
         .map(|(&i, own)| {
             let m = &trace.moves[i];
+            let skip = contour_of[i];
             let (from, mv) = as_move(m);
             let length = from.distance(mv.end()).max(mv_length(from, &mv));
             let n = ((length / GOUGE_SPACING).ceil() as usize).clamp(1, MAX_GOUGE_SAMPLES);
@@ -435,19 +465,14 @@ fn gouges(
             let mut worst: Option<(f64, Point, usize, bool)> = None;
             for k in 0..=n {
                 let p = mv.point_at(from, k as f64 / n as f64);
-                edges.near(p, limit.max(0.0), &mut near);
-                for &c in &near {
-                    let d = cuts[c].edge().distance_to(p);
-                    if d < limit && worst.is_none_or(|w| d < w.0) {
-                        worst = Some((d, p, c, false));
-                    }
+                if let Some((d, c)) = material.nearest_edge(p, limit.max(0.0), skip, &mut near)
+                    && worst.is_none_or(|w| d < w.0)
+                {
+                    worst = Some((d, p, c, false));
                 }
                 // A move along a path is measured by its deviation; the others (leads,
                 // entries, strays) must stay in the scrap.
-                if worst.is_none()
-                    && own.is_none()
-                    && in_material(p, cuts, &edges, outline, rules.tool_radius, &mut near)
-                {
+                if worst.is_none() && own.is_none() && material.contains(p, &mut near) {
                     worst = Some((0.0, p, usize::MAX, true));
                 }
             }
@@ -485,13 +510,18 @@ fn mv_length(from: Point, mv: &Move) -> f64 {
 }
 
 /// The finished part, to ask whether a point lies in it: inside the outline (when there is
-/// one) and outside every cut made inside its edge, or inside a boss (but not within three tool
-/// radii outside one, where a boss's leads run).
+/// one; a roughing cut of the outline is an outline too) and outside every cut made inside its
+/// edge, or inside a boss (but not within three tool radii outside one, where a boss's leads
+/// run).
 pub struct Material<'a> {
     cuts: &'a [PlannedCut],
     edges: BoxGrid,
-    outline: Option<usize>,
+    has_outline: bool,
     tool_radius: f64,
+}
+
+fn is_outline(c: &PlannedCut) -> bool {
+    c.kind() == crate::plan::FeatureKind::Outline
 }
 
 impl<'a> Material<'a> {
@@ -503,56 +533,53 @@ impl<'a> Material<'a> {
                     .map(|c| grown(c.edge().bounding_box(), 0.0))
                     .collect(),
             ),
-            outline: cuts.iter().position(|c| {
-                c.side() == CutSide::Outside && c.kind() == crate::plan::FeatureKind::Outline
-            }),
+            has_outline: cuts.iter().any(is_outline),
             tool_radius,
         }
     }
 
+    /// Whether `p` lies in the finished part (`near` is scratch space).
     pub fn contains(&self, p: Point, near: &mut Vec<usize>) -> bool {
-        in_material(
-            p,
-            self.cuts,
-            &self.edges,
-            self.outline,
-            self.tool_radius,
-            near,
-        )
-    }
-}
-
-/// Whether `p` lies in the finished part: inside the outline (when there is one) and outside
-/// every cut made inside its edge, or inside a boss (but not within three tool radii outside
-/// one).
-fn in_material(
-    p: Point,
-    cuts: &[PlannedCut],
-    edges: &BoxGrid,
-    outline: Option<usize>,
-    tool_radius: f64,
-    near: &mut Vec<usize>,
-) -> bool {
-    // A boss's leads run outside it in what is material until the cut around it is made:
-    // points within three tool radii outside a boss count as its scrap.
-    edges.near(p, 3.0 * tool_radius, near);
-    let mut in_outline = outline.is_none();
-    let mut in_scrap = false;
-    let mut in_boss = false;
-    for &c in near.iter() {
-        let cut = &cuts[c];
-        if !cut.edge().contains(p) {
-            let boss = Some(c) != outline && cut.side() == CutSide::Outside;
-            if boss && cut.edge().distance_to(p) < 3.0 * tool_radius {
-                return false;
+        // A boss's leads run outside it in what is material until the cut around it is made:
+        // points within three tool radii outside a boss count as its scrap.
+        let reach = 3.0 * self.tool_radius;
+        self.edges.near(p, reach, near);
+        let mut in_outline = !self.has_outline;
+        let mut in_scrap = false;
+        let mut in_boss = false;
+        for &c in near.iter() {
+            let cut = &self.cuts[c];
+            let outline = is_outline(cut);
+            if !cut.edge().contains(p) {
+                let boss = !outline && cut.side() == CutSide::Outside;
+                if boss && cut.edge().distance_to(p) < reach {
+                    return false;
+                }
+                continue;
             }
-            continue;
+            match (outline, cut.side()) {
+                (true, _) => in_outline = true,
+                (false, CutSide::Inside) => in_scrap = true,
+                (false, CutSide::Outside) => in_boss = true,
+            }
         }
-        match (Some(c) == outline, cut.side()) {
-            (true, _) => in_outline = true,
-            (false, CutSide::Inside) => in_scrap = true,
-            (false, CutSide::Outside) => in_boss = true,
-        }
+        in_outline && (!in_scrap || in_boss)
     }
-    in_outline && (!in_scrap || in_boss)
+
+    /// The distance from `p` to the nearest finished edge within `radius` other than `skip`'s,
+    /// with that edge's cut.
+    fn nearest_edge(
+        &self,
+        p: Point,
+        radius: f64,
+        skip: Option<usize>,
+        near: &mut Vec<usize>,
+    ) -> Option<(f64, usize)> {
+        self.edges.near(p, radius, near);
+        near.iter()
+            .filter(|&&c| Some(c) != skip)
+            .map(|&c| (self.cuts[c].edge().distance_to(p), c))
+            .filter(|&(d, _)| d < radius)
+            .min_by(|a, b| a.0.total_cmp(&b.0))
+    }
 }

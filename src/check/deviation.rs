@@ -462,7 +462,7 @@ fn exact_to_written(written: &Written, exact: &ExactPath) -> (f64, usize) {
 
 /// The largest spacing of the path's samples when looking for stretches left uncut (mm): a gap
 /// in the cutting moves longer than this and twice the limit is always found.
-pub const UNCUT_SPACING: f64 = 0.1;
+pub const UNCUT_SPACING: f64 = 0.2;
 
 /// A stretch of the exact path farther than a limit from every written move: left uncut.
 #[derive(Debug, Clone, Copy, PartialEq, Serialize)]

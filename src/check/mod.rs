@@ -98,27 +98,40 @@ pub fn trace(program: &str) -> Result<Trace, CheckError> {
     }
 }
 
+/// The box of every point the moves reach: each move's end and, for an arc, the axis extremes
+/// it sweeps through (exactly, at the larger of its two radii; a helix's Z changes linearly, so
+/// its ends bound it). A move's start is the last one's end, or for the first move the reader's
+/// assumed start (0, 0, 0), which no program states: it is left out.
 fn bounds_of(moves: &[TraceMove]) -> Option<([f64; 3], [f64; 3])> {
     let mut lo = [f64::INFINITY; 3];
     let mut hi = [f64::NEG_INFINITY; 3];
-    for m in moves {
-        let mut pts = vec![m.from, m.to];
-        if let Some((c, ccw)) = m.arc {
-            let mv = Move::Arc {
-                to: Point::new(m.to[0], m.to[1]),
-                centre: Point::new(c[0], c[1]),
-                ccw,
-            };
-            let from = Point::new(m.from[0], m.from[1]);
-            for k in 1..64 {
-                let p = mv.point_at(from, k as f64 / 64.0);
-                pts.push([p.x, p.y, m.from[2]]);
-            }
+    let mut add = |p: [f64; 3]| {
+        for k in 0..3 {
+            lo[k] = lo[k].min(p[k]);
+            hi[k] = hi[k].max(p[k]);
         }
-        for p in pts {
-            for k in 0..3 {
-                lo[k] = lo[k].min(p[k]);
-                hi[k] = hi[k].max(p[k]);
+    };
+    for m in moves {
+        add(m.to);
+        if let Some((c, ccw)) = m.arc {
+            let from = Point::new(m.from[0], m.from[1]);
+            let to = Point::new(m.to[0], m.to[1]);
+            let centre = Point::new(c[0], c[1]);
+            let r = from.distance(centre).max(to.distance(centre));
+            let mv = Move::Arc { to, centre, ccw };
+            let sweep = mv.sweep(from);
+            let a0 = (from - centre).angle();
+            for k in 0..4 {
+                let axis = k as f64 * std::f64::consts::FRAC_PI_2;
+                let rel = if sweep >= 0.0 {
+                    (axis - a0).rem_euclid(std::f64::consts::TAU)
+                } else {
+                    (a0 - axis).rem_euclid(std::f64::consts::TAU)
+                };
+                if rel <= sweep.abs() {
+                    let (sn, cs) = axis.sin_cos();
+                    add([centre.x + r * cs, centre.y + r * sn, m.from[2]]);
+                }
             }
         }
     }

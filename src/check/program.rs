@@ -135,9 +135,20 @@ impl ProgramCheck {
     }
 }
 
-/// Seconds as `3 min 12.4 s` (or `12.4 s`).
+/// Seconds as `2 h 05 min 12 s`, `3 min 12.4 s` or `12.4 s`.
 pub fn minutes(seconds: f64) -> String {
-    if seconds >= 60.0 {
+    if !seconds.is_finite() {
+        return format!("{seconds} s");
+    }
+    if seconds >= 3600.0 {
+        let whole = seconds.round() as u64;
+        format!(
+            "{} h {:02} min {:02} s",
+            whole / 3600,
+            whole % 3600 / 60,
+            whole % 60
+        )
+    } else if seconds >= 60.0 {
         format!("{} min {:.1} s", (seconds / 60.0).floor(), seconds % 60.0)
     } else {
         format!("{seconds:.1} s")

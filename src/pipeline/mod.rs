@@ -387,6 +387,17 @@ pub fn run_resolved_watched(
         })?;
     watch(Step::Checking(plan.cuts.len()));
     let verified = read_back(&program, &plan.cuts, s, resolved, profile)?;
+    // The same check `conicut check` runs, on what was written: anything it must refuse is a
+    // bug here; its cycle time goes into the header and the report.
+    let checked = check_written(&program, &plan.cuts, s, resolved, profile)?;
+    let program = program.replacen(
+        post::CYCLE_TIME_PLACEHOLDER,
+        &format!(
+            "estimated cycle time: {}, its parts in the report",
+            check::program::minutes(checked.cycle_time.total_s)
+        ),
+        1,
+    );
     for (cut, read_back) in cuts.iter_mut().zip(&verified.cuts) {
         cut.measured_deviation = read_back.both_ways;
         cut.part_side_deviation = read_back.part_side;
@@ -403,6 +414,7 @@ pub fn run_resolved_watched(
         cuts: &cuts,
         verified: &verified,
         zero: &zero,
+        cycle_time: checked.cycle_time,
     });
     Ok(JobOutput {
         program,
@@ -507,6 +519,45 @@ pub fn check_job(
     ))
 }
 
+/// `conicut check` on the program just written: must-fix findings are a bug (the job stops,
+/// nothing is written), warnings go to the report.
+fn check_written(
+    program: &str,
+    cuts: &[plan::PlannedCut],
+    s: &JobSettings,
+    resolved: &ResolvedJob,
+    profile: &MachineProfile,
+) -> Result<check::program::ProgramCheck, JobError> {
+    let part = cuts
+        .iter()
+        .filter_map(|c| c.edge().bounding_box())
+        .reduce(|a, b| a.union(b));
+    let rules = check::against::AgainstRules {
+        tool_radius: resolved.tool_diameter / 2.0,
+        tolerance: s.tolerance,
+        thermal: profile.spindle().is_none(),
+    };
+    let checked =
+        check::program::check_program(program, &machine_rules(profile), cuts, &rules, part);
+    let must: Vec<String> = checked
+        .findings
+        .iter()
+        .filter(|f| f.severity == check::reader::Severity::MustFix)
+        .map(|f| format!("line {}: {}", f.line, f.message))
+        .collect();
+    if !must.is_empty() {
+        return Err(JobError::ReadBack {
+            file: s.file_name.clone(),
+            problem: format!(
+                "the program as written fails the check ({}); this is a bug, please report it \
+                 with the drawing",
+                must.join("; ")
+            ),
+        });
+    }
+    Ok(checked)
+}
+
 /// The profile as the checker holds a program to it, in mm.
 pub fn machine_rules(profile: &MachineProfile) -> check::program::MachineRules {
     let u = profile.units();
@@ -549,6 +600,7 @@ struct Finished<'a> {
     cuts: &'a [fit::FittedCut],
     verified: &'a check::Verified,
     zero: &'a plan::PlacedZero,
+    cycle_time: check::time::CycleTime,
 }
 
 /// The preview and the report of a finished job.
@@ -596,6 +648,7 @@ fn present(f: &Finished) -> (String, Report) {
             .filter(|t| t.height > 0.0 && !resolved.cuts_through)
             .map(|t| t.height),
         work_zero: f.zero,
+        cycle_time: Some(f.cycle_time),
     });
     (preview, report)
 }

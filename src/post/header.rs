@@ -10,6 +10,11 @@ use super::writer::{COMMENT_WIDTH, comment_line, sanitize, wrap};
 use crate::fit::FittedCut;
 use crate::plan::{CutSide, FeatureKind};
 
+/// A header line the job replaces, once the program is read back, by the checker's estimate of
+/// the cycle time (one line either way, so that no line moves).
+pub const CYCLE_TIME_PLACEHOLDER: &str =
+    "estimated cycle time: measured when the program is read back";
+
 /// The header comment lines.
 pub(super) fn header(
     cuts: &[FittedCut],
@@ -34,6 +39,7 @@ pub(super) fn header(
         ),
         format!("units: {u}, {}, feeds in {u}/min", units.g_word()),
         zero_line(profile, s),
+        CYCLE_TIME_PLACEHOLDER.to_string(),
     ];
     match profile.cutter() {
         Cutter::Spindle(sp) => text.extend(spindle_lines(sp, s, r, profile, &xy, &z, &fd)),

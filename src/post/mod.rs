@@ -35,6 +35,7 @@ mod writer;
 
 pub use arcs::{MAX_SPLITS, RADIUS_MARGIN};
 pub use error::PostError;
+pub use header::CYCLE_TIME_PLACEHOLDER;
 pub use number::format_number;
 pub(crate) use profile::format_limit;
 pub use profile::{

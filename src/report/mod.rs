@@ -133,6 +133,8 @@ pub struct Report {
     /// plunge points, tabs, the program's box) is a program coordinate: the drawing coordinate
     /// plus `shift_mm`.
     pub work_zero: WorkZeroReport,
+    /// How long the program runs, estimated from the program read back (`check::time`).
+    pub cycle_time: Option<crate::check::time::CycleTime>,
 }
 
 /// The work zero: the rule asked for, the drawing point that is X0 Y0, and the shift.
@@ -185,6 +187,7 @@ pub struct ReportInput<'a> {
     pub tab_height: Option<f64>,
     /// Where the program's X0 Y0 is on the drawing.
     pub work_zero: &'a crate::plan::PlacedZero,
+    pub cycle_time: Option<crate::check::time::CycleTime>,
 }
 
 fn summary(e: &crate::geom::Ellipse) -> EllipseSummary {
@@ -295,6 +298,7 @@ pub fn build_report(input: ReportInput) -> Report {
             lower_bound_mm: r.lower_bound,
         }),
         tab_height_mm: input.tab_height,
+        cycle_time: input.cycle_time,
         work_zero: WorkZeroReport {
             rule: input.work_zero.rule.word(),
             description: input.work_zero.words.clone(),
@@ -468,6 +472,18 @@ impl Report {
         }
         self.write_tabs(&mut s);
         self.write_rapids(&mut s);
+        if let Some(t) = &self.cycle_time {
+            let m = crate::check::program::minutes;
+            let _ = writeln!(
+                s,
+                "\ncycle time (estimated): {} (cutting {}, rapids {}, dwells {}); {:.1} mm cut",
+                m(t.total_s),
+                m(t.cutting_s),
+                m(t.rapid_s),
+                m(t.dwell_s),
+                t.cut_length_mm
+            );
+        }
         self.write_layers(&mut s);
         write_list(&mut s, "warnings", &self.warnings);
         write_list(&mut s, "notes", &self.notes);
