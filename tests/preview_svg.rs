@@ -1,12 +1,16 @@
 //! The SVG preview is well-formed XML, covers the part, draws each solved ellipse exactly, shows
 //! every cut and plunge point, and renders (resvg) with the tool paths and ellipses in place.
+//! Its legend matches the picture (samples drawn as the elements they stand for, entries only
+//! for what is drawn), rapids and bays look different, labels sit in free space (boxes measured
+//! here against the drawn geometry parsed back from the SVG), markers keep to small features,
+//! the cut numbers follow the program's order, and cut-through kinds are worded as such.
 
 use conicut::chain::{Bay, InnerBoundary, InnerShape, Part};
 use conicut::fit::FittedCut;
 use conicut::geom::{ArcSegment, Ellipse, Point, Segment};
 use conicut::geom::{Contour, Element};
 use conicut::plan::{CutSide, FeatureKind};
-use conicut::preview::{PreviewInput, preview_svg};
+use conicut::preview::{PreviewInput, PreviewOptions, Process, preview_svg, preview_svg_with};
 use resvg::tiny_skia;
 use resvg::usvg;
 use resvg::usvg::roxmltree;
@@ -292,7 +296,7 @@ fn ellipse_arcs_end_on_the_major_axis_ends() {
             "{cx} {cy}"
         );
     }
-    // The label gives the full axes and the angle.
+    // The label names the full axes (2a × 2b, one convention everywhere) and the angle.
     let label = by_class(&doc, "ellipse-label")[0];
     let text: Vec<&str> = label
         .descendants()
@@ -300,7 +304,7 @@ fn ellipse_arcs_end_on_the_major_axis_ends() {
         .filter_map(|n| n.text())
         .flat_map(|t| t.split_whitespace())
         .collect();
-    assert_eq!(text.join(" "), "bay 1 110.00 × 70.00 mm at 20.0°");
+    assert_eq!(text.join(" "), "bay 1 axes 110.00 × 70.00 mm at 20.0°");
 }
 
 #[test]
@@ -612,4 +616,841 @@ fn check_arcs_rendered(svg: &str) {
     assert!(is_blue(at(Point::new(120.0, 20.0))));
     assert!(is_blue(at(Point::new(110.0, 30.0))));
     assert!(!is_blue(at(Point::new(127.0, 37.0))));
+}
+
+// ---- The legend, the looks, the labels and the words ----------------------------------------
+
+/// The presentation attributes a legend sample must share with what it stands for.
+const LOOK_ATTRIBUTES: [&str; 10] = [
+    "stroke",
+    "stroke-width",
+    "stroke-dasharray",
+    "stroke-opacity",
+    "stroke-linecap",
+    "stroke-linejoin",
+    "fill",
+    "fill-opacity",
+    "marker-mid",
+    "font-weight",
+];
+
+/// The value of a presentation attribute as it applies to `n`: its own or its nearest
+/// ancestor's (SVG presentation attributes inherit).
+fn effective<'a>(n: roxmltree::Node<'a, 'a>, name: &str) -> Option<&'a str> {
+    n.ancestors()
+        .filter(|a| a.is_element())
+        .find_map(|a| a.attribute(name))
+}
+
+fn look_of(n: roxmltree::Node) -> Vec<(&'static str, Option<String>)> {
+    LOOK_ATTRIBUTES
+        .iter()
+        .map(|&a| (a, effective(n, a).map(str::to_string)))
+        .collect()
+}
+
+fn in_legend(n: &roxmltree::Node) -> bool {
+    n.ancestors()
+        .any(|a| a.attribute("class") == Some("legend"))
+}
+
+/// Drawn elements (outside the legend) with class `class`.
+fn drawn<'a>(doc: &'a roxmltree::Document, class: &str) -> Vec<roxmltree::Node<'a, 'a>> {
+    by_class(doc, class)
+        .into_iter()
+        .filter(|n| !in_legend(n))
+        .collect()
+}
+
+/// The legend's samples and the classes each stands for.
+fn samples<'a>(doc: &'a roxmltree::Document) -> Vec<(roxmltree::Node<'a, 'a>, Vec<String>)> {
+    by_class(doc, "legend-sample")
+        .into_iter()
+        .map(|n| {
+            let classes = n
+                .attribute("data-sample")
+                .expect("a sample names its classes")
+                .split_whitespace()
+                .map(str::to_string)
+                .collect();
+            (n, classes)
+        })
+        .collect()
+}
+
+/// Every class the legend has a sample for.
+fn legend_classes(doc: &roxmltree::Document) -> Vec<String> {
+    samples(doc).into_iter().flat_map(|(_, c)| c).collect()
+}
+
+/// All the text of the elements under `n`, each piece trimmed (the writer puts text on a line
+/// of its own), joined by spaces.
+fn text_of(n: roxmltree::Node) -> String {
+    n.descendants()
+        .filter(|t| t.is_text())
+        .filter_map(|t| t.text())
+        .map(str::trim)
+        .filter(|t| !t.is_empty())
+        .collect::<Vec<_>>()
+        .join(" ")
+}
+
+/// The fixture with everything a preview can show: a pocket's clearing before the bay's lead-in,
+/// an overcut and a lead-out, a tab on the hole's path, a rapid between the cuts, the work zero
+/// at the plate's corner.
+fn full_fixture() -> Fixture {
+    use conicut::geom::Move;
+    let mut f = fixture();
+    let bay = &mut f.cuts[0];
+    let c = opening().centre();
+    bay.clearing = vec![
+        Move::Line {
+            to: Point::new(c.x + 8.0, c.y),
+        },
+        Move::Arc {
+            to: Point::new(c.x - 8.0, c.y),
+            centre: c,
+            ccw: true,
+        },
+        Move::Arc {
+            to: Point::new(c.x + 8.0, c.y),
+            centre: c,
+            ccw: true,
+        },
+    ];
+    bay.overcut = bay.moves[..3].to_vec();
+    bay.lead_out = vec![Move::Line {
+        to: Point::new(c.x + 20.0, c.y + 4.0),
+    }];
+    f.cuts[1].tabs = vec![(8.0, 12.0)];
+    f
+}
+
+fn render_fixture(f: &Fixture, process: Process) -> String {
+    preview_svg_with(
+        &PreviewInput {
+            title: "test plate",
+            part: &f.part,
+            ellipses: &f.ellipses,
+            cuts: &f.cuts,
+            tool_diameter: TOOL,
+            work_zero: "the lower-left corner of the outline's box",
+        },
+        &PreviewOptions { process },
+    )
+}
+
+#[test]
+fn legend_samples_are_drawn_as_what_they_stand_for() {
+    let f = full_fixture();
+    let svg = render_fixture(&f, Process::Tool);
+    let doc = roxmltree::Document::parse(&svg).unwrap();
+    let all = samples(&doc);
+    assert!(all.len() >= 15, "{} samples", all.len());
+    for (sample, classes) in &all {
+        let want = look_of(*sample);
+        assert!(
+            want.iter().any(|(_, v)| v.is_some()),
+            "{classes:?}: the sample has a look"
+        );
+        for class in classes {
+            let elements = drawn(&doc, class);
+            assert!(!elements.is_empty(), "legend shows {class}, not drawn");
+            for e in elements {
+                assert_eq!(look_of(e), want, "{class}: drawn vs legend sample");
+            }
+        }
+    }
+    // Everything the picture holds that the legend explains has its entry, tabs drawn as the
+    // legend shows them (span and diamond) included.
+    let listed = legend_classes(&doc);
+    for class in [
+        "outline",
+        "hole",
+        "bay",
+        "ellipse",
+        "tool-path",
+        "tool-band",
+        "direction",
+        "rapid",
+        "lead-in",
+        "overcut",
+        "lead-out",
+        "clearing",
+        "tab",
+        "tab-marker",
+        "plunge",
+        "cut-order",
+        "work-zero",
+    ] {
+        assert!(!drawn(&doc, class).is_empty(), "{class} drawn");
+        assert!(listed.iter().any(|c| c == class), "{class} in the legend");
+    }
+}
+
+#[test]
+fn the_legend_lists_only_what_is_drawn() {
+    let f = fixture();
+    let svg = render_input(&f);
+    let doc = roxmltree::Document::parse(&svg).unwrap();
+    let listed = legend_classes(&doc);
+    for class in &listed {
+        assert!(
+            !drawn(&doc, class).is_empty(),
+            "the legend lists {class}, the picture has none"
+        );
+    }
+    // This fixture has no tabs, no pocket, no overcut and no lead-out.
+    for class in ["tab", "tab-marker", "clearing", "overcut", "lead-out"] {
+        assert!(drawn(&doc, class).is_empty(), "{class}");
+        assert!(!listed.iter().any(|c| c == class), "{class} listed");
+    }
+    let legend = text_of(by_class(&doc, "legend")[0]);
+    assert!(
+        !legend.contains("tab") && !legend.contains("pocket"),
+        "{legend}"
+    );
+    assert!(
+        legend.contains("lead-in") && !legend.contains("overcut"),
+        "{legend}"
+    );
+    // Without cuts: no path, rapid or plunge entry either.
+    let svg = preview_svg(&PreviewInput {
+        title: "part only",
+        part: &f.part,
+        ellipses: &f.ellipses,
+        cuts: &[],
+        tool_diameter: TOOL,
+        work_zero: "the drawing's origin",
+    });
+    let doc = roxmltree::Document::parse(&svg).unwrap();
+    let listed = legend_classes(&doc);
+    for class in ["tool-path", "tool-band", "rapid", "plunge", "cut-order"] {
+        assert!(
+            !listed.iter().any(|c| c == class),
+            "{class} listed: {listed:?}"
+        );
+    }
+    assert!(listed.iter().any(|c| c == "ellipse"));
+}
+
+#[test]
+fn rapids_and_bays_look_different() {
+    let f = fixture();
+    let svg = render_input(&f);
+    let doc = roxmltree::Document::parse(&svg).unwrap();
+    let rapid = drawn(&doc, "rapid")[0];
+    let bay = drawn(&doc, "bay")[0];
+    let get = |n: roxmltree::Node, a: &str| effective(n, a).map(str::to_string);
+    assert_ne!(get(rapid, "stroke"), get(bay, "stroke"), "colours");
+    assert!(get(rapid, "stroke-dasharray").is_some(), "rapids dashed");
+    assert_eq!(get(bay, "stroke-dasharray"), None, "bays solid");
+    // The rapid's arrowhead: a marker that exists, at the rapid's middle vertex, pointing from
+    // the first cut's end to the second cut's plunge point.
+    let url = get(rapid, "marker-mid").expect("an arrowhead");
+    let id = url
+        .trim_start_matches("url(#")
+        .trim_end_matches(')')
+        .to_string();
+    assert!(
+        doc.descendants()
+            .any(|n| n.tag_name().name() == "marker" && n.attribute("id") == Some(id.as_str())),
+        "{id}"
+    );
+    let pts = polyline(rapid.attribute("d").unwrap());
+    assert_eq!(pts.len(), 3);
+    assert!(pts[0].distance(f.cuts[0].end()) < 1e-4);
+    assert!(pts[1].distance(f.cuts[0].end().midpoint(f.cuts[1].plunge)) < 1e-4);
+    assert!(pts[2].distance(f.cuts[1].plunge) < 1e-4);
+    // Rendered: the bay's edge is not the rapid's colour.
+    let ppm = 8.0;
+    let (pixmap, vb) = raster(&svg, ppm);
+    let on_bay = Point::new(80.0, 10.0);
+    let (r, g, b, _) = colour_at(&pixmap, vb, ppm, on_bay);
+    let teal = |r: u8, g: u8, b: u8| r < 60 && g > 100 && b > 110;
+    assert!(
+        !teal(r, g, b) && r > 150,
+        "bay at {on_bay:?}: {:?}",
+        (r, g, b)
+    );
+}
+
+/// Sample points along an SVG elliptical arc from its endpoint form (W3C SVG 1.1 App. F.6.5).
+#[allow(clippy::too_many_arguments)]
+fn svg_arc_points(
+    x1: f64,
+    y1: f64,
+    rx: f64,
+    ry: f64,
+    phi_deg: f64,
+    fa: bool,
+    fs: bool,
+    x2: f64,
+    y2: f64,
+) -> Vec<(f64, f64)> {
+    let (cx, cy) = svg_arc_centre(x1, y1, rx, ry, phi_deg, fa, fs, x2, y2);
+    let (s, c) = phi_deg.to_radians().sin_cos();
+    // Radii corrected as in F.6.6, from the start point's distance in the arc's frame.
+    let local = |x: f64, y: f64| {
+        let (dx, dy) = (x - cx, y - cy);
+        (c * dx + s * dy, -s * dx + c * dy)
+    };
+    let (u1, v1) = local(x1, y1);
+    let (u2, v2) = local(x2, y2);
+    let scale = ((u1 / rx).powi(2) + (v1 / ry).powi(2)).sqrt().max(1.0);
+    let (rx, ry) = (rx * scale, ry * scale);
+    let t1 = (v1 / ry).atan2(u1 / rx);
+    let mut dt = (v2 / ry).atan2(u2 / rx) - t1;
+    if fs && dt < 0.0 {
+        dt += TAU;
+    } else if !fs && dt > 0.0 {
+        dt -= TAU;
+    }
+    (0..=48)
+        .map(|k| {
+            let t = t1 + dt * k as f64 / 48.0;
+            let (u, v) = (rx * t.cos(), ry * t.sin());
+            (cx + c * u - s * v, cy + s * u + c * v)
+        })
+        .collect()
+}
+
+/// The polylines (SVG coordinates) a path's `d` draws: M, L, A (sampled) and Z.
+fn path_lines(d: &str) -> Vec<Vec<(f64, f64)>> {
+    let mut out: Vec<Vec<(f64, f64)>> = Vec::new();
+    let mut start = (0.0, 0.0);
+    let mut at = (0.0, 0.0);
+    // Commands may be glued to their first number (`M0 0`), as the work-zero mark writes them.
+    let spaced: String = d
+        .chars()
+        .flat_map(|c| {
+            if c.is_ascii_alphabetic() {
+                vec![' ', c, ' ']
+            } else {
+                vec![c]
+            }
+        })
+        .collect();
+    for (c, v) in commands(&spaced) {
+        match c {
+            'M' => {
+                at = (v[0], v[1]);
+                start = at;
+                out.push(vec![at]);
+            }
+            'L' => {
+                at = (v[0], v[1]);
+                out.last_mut().unwrap().push(at);
+            }
+            'A' => {
+                let pts = svg_arc_points(
+                    at.0,
+                    at.1,
+                    v[0],
+                    v[1],
+                    v[2],
+                    v[3] == 1.0,
+                    v[4] == 1.0,
+                    v[5],
+                    v[6],
+                );
+                out.last_mut().unwrap().extend(pts);
+                at = (v[5], v[6]);
+            }
+            'Z' => {
+                out.last_mut().unwrap().push(start);
+                at = start;
+            }
+            other => panic!("unexpected command {other} in {d}"),
+        }
+    }
+    out
+}
+
+/// A box in SVG coordinates: (x0, y0, x1, y1).
+type SvgBox = (f64, f64, f64, f64);
+
+fn grow(b: SvgBox, by: f64) -> SvgBox {
+    (b.0 - by, b.1 - by, b.2 + by, b.3 + by)
+}
+
+fn boxes_meet(a: SvgBox, b: SvgBox) -> bool {
+    a.0 <= b.2 && b.0 <= a.2 && a.1 <= b.3 && b.1 <= a.3
+}
+
+/// Whether the segment p–q meets the box (Liang–Barsky clipping).
+fn segment_meets(p: (f64, f64), q: (f64, f64), b: SvgBox) -> bool {
+    let (dx, dy) = (q.0 - p.0, q.1 - p.1);
+    let (mut t0, mut t1) = (0.0f64, 1.0f64);
+    for (pp, qq) in [
+        (-dx, p.0 - b.0),
+        (dx, b.2 - p.0),
+        (-dy, p.1 - b.1),
+        (dy, b.3 - p.1),
+    ] {
+        if pp == 0.0 {
+            if qq < 0.0 {
+                return false;
+            }
+        } else {
+            let t = qq / pp;
+            if pp < 0.0 {
+                t0 = t0.max(t);
+            } else {
+                t1 = t1.min(t);
+            }
+        }
+    }
+    t0 <= t1
+}
+
+/// A text element's lines: its tspans', or its own text.
+fn label_lines(n: roxmltree::Node) -> Vec<String> {
+    let spans: Vec<String> = n
+        .children()
+        .filter(|c| c.tag_name().name() == "tspan")
+        .map(text_of)
+        .collect();
+    if spans.is_empty() {
+        vec![text_of(n)]
+    } else {
+        spans
+    }
+}
+
+/// A text element's box, estimated here on its own: 0.6 em a character, lines 1.2 em apart,
+/// centred on x and on each line's y (text-anchor and dominant-baseline middle).
+fn text_box(n: roxmltree::Node) -> SvgBox {
+    let attr = |k: &str| -> f64 { n.attribute(k).expect(k).parse().expect(k) };
+    let fs = attr("font-size");
+    let (x, y) = (attr("x"), attr("y"));
+    let spans: Vec<roxmltree::Node> = n
+        .children()
+        .filter(|c| c.tag_name().name() == "tspan")
+        .collect();
+    let lines = label_lines(n);
+    let step: f64 = spans
+        .get(1)
+        .and_then(|s| s.attribute("dy"))
+        .map_or(0.0, |v| v.parse().unwrap());
+    let widest = lines.iter().map(|l| l.chars().count()).max().unwrap_or(0) as f64;
+    let half_w = 0.5 * widest * 0.6 * fs;
+    let last = y + step * (lines.len() as f64 - 1.0);
+    (x - half_w, y - 0.6 * fs, x + half_w, last + 0.6 * fs)
+}
+
+/// What each drawn element covers: polylines with their stroke's half-width, and boxes.
+struct Obstacle {
+    what: String,
+    lines: Vec<Vec<(f64, f64)>>,
+    half_width: f64,
+    boxes: Vec<SvgBox>,
+}
+
+/// Every drawn element of the picture (not the legend, title or scale bar, nor the labels and
+/// leaders themselves), parsed back from the SVG.
+fn obstacles(doc: &roxmltree::Document) -> Vec<Obstacle> {
+    let marker_width: f64 = doc
+        .descendants()
+        .find(|n| n.tag_name().name() == "marker")
+        .and_then(|m| m.attribute("markerWidth"))
+        .map_or(0.0, |v| v.parse().unwrap());
+    let mut out = Vec::new();
+    let picture = doc.descendants().filter(|n| {
+        n.is_element()
+            && n.ancestors().any(|a| {
+                matches!(
+                    a.attribute("class"),
+                    Some("part" | "solved" | "cuts" | "work-zero")
+                )
+            })
+    });
+    for n in picture {
+        let what = format!(
+            "{} {}",
+            effective(n, "class").unwrap_or("?"),
+            n.attribute("data-name").unwrap_or("")
+        );
+        let sw: f64 = effective(n, "stroke-width").map_or(0.0, |v| v.parse().unwrap());
+        let stroked = effective(n, "stroke").is_some_and(|s| s != "none");
+        let half_width = if stroked { 0.5 * sw } else { 0.0 };
+        match n.tag_name().name() {
+            "path" => {
+                let lines = path_lines(n.attribute("d").unwrap());
+                let mut boxes = Vec::new();
+                // The rapid's arrowhead at each inner vertex.
+                if effective(n, "marker-mid").is_some() {
+                    for l in &lines {
+                        for p in &l[1..l.len() - 1] {
+                            let r = 0.5 * marker_width * sw;
+                            boxes.push((p.0 - r, p.1 - r, p.0 + r, p.1 + r));
+                        }
+                    }
+                }
+                // Filled shapes (arrowheads, diamonds) cover their box.
+                if effective(n, "fill").is_some_and(|f| f != "none") {
+                    for l in &lines {
+                        let xs = l.iter().map(|p| p.0);
+                        let ys = l.iter().map(|p| p.1);
+                        boxes.push((
+                            xs.clone().fold(f64::INFINITY, f64::min),
+                            ys.clone().fold(f64::INFINITY, f64::min),
+                            xs.fold(f64::NEG_INFINITY, f64::max),
+                            ys.fold(f64::NEG_INFINITY, f64::max),
+                        ));
+                    }
+                }
+                out.push(Obstacle {
+                    what,
+                    lines,
+                    half_width,
+                    boxes,
+                });
+            }
+            "circle" => {
+                let a = |k: &str| -> f64 { n.attribute(k).unwrap().parse().unwrap() };
+                let r = a("r") + half_width;
+                out.push(Obstacle {
+                    what,
+                    lines: vec![],
+                    half_width: 0.0,
+                    boxes: vec![(a("cx") - r, a("cy") - r, a("cx") + r, a("cy") + r)],
+                });
+            }
+            "text" => out.push(Obstacle {
+                what,
+                lines: vec![],
+                half_width: 0.0,
+                boxes: vec![text_box(n)],
+            }),
+            _ => {}
+        }
+    }
+    out
+}
+
+const LABELS: [&str; 3] = ["ellipse-label", "hole-label", "cut-order"];
+
+/// Every label's box is clear of every drawn line, marker and other label.
+fn check_labels_clear(doc: &roxmltree::Document) -> usize {
+    let things = obstacles(doc);
+    assert!(things.len() > 10, "{} obstacles", things.len());
+    let labels: Vec<(String, SvgBox)> = LABELS
+        .iter()
+        .flat_map(|c| by_class(doc, c))
+        .map(|n| (text_of(n), text_box(n)))
+        .collect();
+    for (text, b) in &labels {
+        for o in &things {
+            let grown = grow(*b, o.half_width);
+            for l in &o.lines {
+                for w in l.windows(2) {
+                    assert!(
+                        !segment_meets(w[0], w[1], grown),
+                        "label {text:?} {b:?} on {} near {:?}",
+                        o.what,
+                        w[0]
+                    );
+                }
+            }
+            for ob in &o.boxes {
+                assert!(!boxes_meet(*b, *ob), "label {text:?} on {}", o.what);
+            }
+        }
+    }
+    for (i, (ta, a)) in labels.iter().enumerate() {
+        for (tb, b) in &labels[i + 1..] {
+            assert!(!boxes_meet(*a, *b), "labels {ta:?} and {tb:?} overlap");
+        }
+    }
+    labels.len()
+}
+
+#[test]
+fn labels_sit_in_free_space_with_leaders_when_moved() {
+    let mut f = full_fixture();
+    // A small opening whose label cannot fit inside it.
+    let small = Ellipse::new(Point::new(178.0, 80.0), 7.0, 4.0, 0.3).unwrap();
+    f.ellipses.push(("bay 2".into(), small));
+    let svg = render_fixture(&f, Process::Tool);
+    let doc = roxmltree::Document::parse(&svg).unwrap();
+    // Two ellipse labels, one hole label, two cut numbers.
+    assert_eq!(check_labels_clear(&doc), 5);
+    // The small ellipse's label went outside it, and a leader runs from its box to the curve.
+    let label = by_class(&doc, "ellipse-label")
+        .into_iter()
+        .find(|n| n.attribute("data-name") == Some("bay 2"))
+        .unwrap();
+    let (x0, y0, x1, y1) = text_box(label);
+    let centre = Point::new(0.5 * (x0 + x1), -0.5 * (y0 + y1));
+    assert!(!small.contains(centre), "{centre:?}");
+    let leader = by_class(&doc, "leader")
+        .into_iter()
+        .find(|n| n.attribute("data-name") == Some("bay 2"))
+        .expect("a leader for the moved label");
+    let ends = polyline(leader.attribute("d").unwrap());
+    assert_eq!(ends.len(), 2);
+    assert!(small.distance_to(ends[1]).0.abs() < 1e-3, "{:?}", ends[1]);
+    // Its other end is at the label's box: within a generous estimate of it (0.7 em a
+    // character and 0.2 em to spare), and clear of the ellipse.
+    let p = (ends[0].x, -ends[0].y);
+    let fs: f64 = label.attribute("font-size").unwrap().parse().unwrap();
+    let chars = label_lines(label)
+        .iter()
+        .map(|l| l.chars().count())
+        .max()
+        .unwrap() as f64;
+    let (mid, half) = (0.5 * (x0 + x1), 0.5 * chars * 0.7 * fs + 0.2 * fs);
+    assert!((p.0 - mid).abs() <= half, "{p:?}");
+    assert!(p.1 >= y0 - 0.2 * fs && p.1 <= y1 + 0.2 * fs, "{p:?}");
+    assert!(!small.contains(ends[0]));
+    // The drawn hole's size: its diameter.
+    let hole = by_class(&doc, "hole-label");
+    assert_eq!(text_of(hole[0]), "Ø16 mm");
+}
+
+#[test]
+fn labels_of_the_demo_part_sit_in_free_space() {
+    for stem in ["metric-mill", "laser"] {
+        let out = demo_output(stem);
+        let doc = roxmltree::Document::parse(&out).unwrap();
+        // 4 ellipse labels, 4 fixing holes' sizes, 9 cut numbers.
+        assert_eq!(check_labels_clear(&doc), 17, "{stem}");
+    }
+}
+
+/// The demo part's preview on the bundled profile `stem`.
+fn demo_output(stem: &str) -> String {
+    let machine = machine(stem);
+    let tool = if stem == "laser" { None } else { Some(6.0) };
+    let s = conicut::pipeline::JobSettings {
+        margin: 4.0,
+        depth: Some(conicut::demo::CUT_DEPTH),
+        tool_diameter: tool,
+        ..conicut::pipeline::JobSettings::new("truss-bracket.dxf", 6.0)
+    };
+    conicut::pipeline::run_job(&conicut::demo::demo_dxf_bytes(), &machine, &s)
+        .expect("the demo runs")
+        .preview
+}
+
+#[path = "support/machine.rs"]
+mod machine_support;
+use machine_support::machine;
+
+#[test]
+fn cut_numbers_follow_the_program_order() {
+    let f = full_fixture();
+    let svg = render_fixture(&f, Process::Tool);
+    let doc = roxmltree::Document::parse(&svg).unwrap();
+    let numbers = drawn(&doc, "cut-order");
+    assert_eq!(numbers.len(), f.cuts.len());
+    for (k, (n, cut)) in numbers.iter().zip(&f.cuts).enumerate() {
+        assert_eq!(text_of(*n), (k + 1).to_string());
+        assert_eq!(
+            n.attribute("data-order"),
+            Some((k + 1).to_string().as_str())
+        );
+        assert_eq!(n.attribute("data-name"), Some(cut.name.as_str()));
+        // Beside the cut's start: within a few text heights of its plunge point.
+        let (x0, y0, x1, y1) = text_box(*n);
+        let at = Point::new(0.5 * (x0 + x1), -0.5 * (y0 + y1));
+        let fs: f64 = n.attribute("font-size").unwrap().parse().unwrap();
+        assert!(at.distance(cut.plunge) < 6.0 * fs, "{}: {at:?}", cut.name);
+    }
+    // A sheet's worth: numbers 1..N, each once, in cut order.
+    let out = demo_output("metric-mill");
+    let doc = roxmltree::Document::parse(&out).unwrap();
+    let got: Vec<usize> = drawn(&doc, "cut-order")
+        .iter()
+        .map(|n| text_of(*n).parse().unwrap())
+        .collect();
+    assert_eq!(got, (1..=9).collect::<Vec<_>>());
+}
+
+/// A `w` × `h` plate with a 9 mm hole at its middle, cut by a 6 mm tool (its centre on a
+/// 3 mm circle).
+fn nine_mm_hole(w: f64, h: f64) -> (Part, FittedCut) {
+    let c = Point::new(0.5 * w, 0.5 * h);
+    let outline = Contour::new(
+        vec![
+            line(Point::new(0.0, 0.0), Point::new(w, 0.0)),
+            line(Point::new(w, 0.0), Point::new(w, h)),
+            line(Point::new(w, h), Point::new(0.0, h)),
+            line(Point::new(0.0, h), Point::new(0.0, 0.0)),
+        ],
+        "CUT",
+        vec![],
+    )
+    .unwrap();
+    let hole = InnerBoundary {
+        name: "hole 1".into(),
+        layer: "CUT".into(),
+        shape: InnerShape::Contour(
+            Contour::new(
+                vec![Element::Arc(ArcSegment::circle(c, 4.5))],
+                "CUT",
+                vec![],
+            )
+            .unwrap(),
+        ),
+    };
+    let path: Vec<Point> = (0..=48)
+        .map(|i| {
+            let t = i as f64 * TAU / 48.0;
+            Point::new(c.x + 1.5 * t.cos(), c.y + 1.5 * t.sin())
+        })
+        .collect();
+    let cut = FittedCut::from_points(
+        "hole 1",
+        FeatureKind::Hole,
+        CutSide::Inside,
+        c,
+        &path,
+        0.05,
+        0.01,
+    );
+    let part = Part {
+        outline: Some(outline),
+        holes: vec![hole],
+        ..Part::default()
+    };
+    (part, cut)
+}
+
+/// The length of an arrowhead `M tip L back+side L back−side Z`: tip to the back's middle.
+fn arrow_length(d: &str) -> f64 {
+    let p = polyline(d);
+    p[0].distance(p[1].midpoint(p[2]))
+}
+
+#[test]
+fn a_nine_mm_hole_keeps_readable_markers_that_fit_it() {
+    // Readable on a 1:1 print: an arrowhead at least 1.5 mm long; fitting the feature: no longer
+    // than the 3 mm circle the tool centre follows, and an entry marker well inside the hole.
+    // On a 1000 mm plate (text at its largest) and on a 40 mm one (text at its smallest).
+    for (w, h) in [(1000.0, 600.0), (40.0, 30.0)] {
+        let (part, cut) = nine_mm_hole(w, h);
+        let cuts = [cut];
+        let svg = preview_svg(&PreviewInput {
+            title: "nine",
+            part: &part,
+            ellipses: &[],
+            cuts: &cuts,
+            tool_diameter: 6.0,
+            work_zero: "the drawing's origin",
+        });
+        let doc = roxmltree::Document::parse(&svg).unwrap();
+        let arrows = drawn(&doc, "direction");
+        assert_eq!(arrows.len(), 2);
+        for a in arrows {
+            let len = arrow_length(a.attribute("d").unwrap());
+            assert!((1.5..=3.0).contains(&len), "{w} mm plate: arrow {len} mm");
+        }
+        let marker = drawn(&doc, "plunge")[0];
+        let r: f64 = marker.attribute("r").unwrap().parse().unwrap();
+        assert!(
+            (0.5..=0.5 * 4.5).contains(&r),
+            "{w} mm plate: marker radius {r}"
+        );
+        let label = drawn(&doc, "hole-label");
+        assert_eq!(text_of(label[0]), "Ø9 mm");
+        let fs: f64 = label[0].attribute("font-size").unwrap().parse().unwrap();
+        assert!(fs >= 1.5, "{fs}");
+    }
+}
+
+#[test]
+fn cut_through_kinds_speak_of_kerf_and_pierce() {
+    let f = full_fixture();
+    let words = |svg: &str| -> String {
+        let doc = roxmltree::Document::parse(svg).unwrap();
+        doc.descendants()
+            .filter(|n| n.is_text())
+            .filter_map(|n| n.text())
+            .collect::<Vec<_>>()
+            .join(" | ")
+    };
+    let thermal = words(&render_fixture(&f, Process::CutThrough));
+    for w in ["kerf path", "pierce point", "kerf width 6.00 mm"] {
+        assert!(thermal.contains(w), "{w}: {thermal}");
+    }
+    for w in ["tool", "plunge"] {
+        assert!(!thermal.contains(w), "{w}: {thermal}");
+    }
+    let mill = words(&render_fixture(&f, Process::Tool));
+    for w in ["tool centre path", "plunge point", "tool diameter 6.00 mm"] {
+        assert!(mill.contains(w), "{w}: {mill}");
+    }
+    assert!(!mill.contains("kerf") && !mill.contains("pierce"), "{mill}");
+}
+
+#[test]
+fn a_kerf_path_is_told_from_the_ellipse_it_sits_on() {
+    // A 0.2 mm kerf: the path runs 0.1 mm inside the ellipse. The ellipse is drawn wide under a
+    // thin path, so both show: the path's colour on the curve's inside, the ellipse's on either
+    // side of it.
+    let e = opening();
+    let n = 360;
+    let path: Vec<Point> = (0..=n)
+        .map(|i| e.inward_offset_point(i as f64 * TAU / n as f64, 0.1))
+        .collect();
+    let cut = FittedCut::from_points(
+        "bay 1",
+        FeatureKind::Opening,
+        CutSide::Inside,
+        e.centre(),
+        &path,
+        0.05,
+        0.01,
+    );
+    let part = plate();
+    let ellipses = [("bay 1".to_string(), e)];
+    let cuts = [cut];
+    let svg = preview_svg_with(
+        &PreviewInput {
+            title: "laser",
+            part: &part,
+            ellipses: &ellipses,
+            cuts: &cuts,
+            tool_diameter: 0.2,
+            work_zero: "the drawing's origin",
+        },
+        &PreviewOptions {
+            process: Process::CutThrough,
+        },
+    );
+    let doc = roxmltree::Document::parse(&svg).unwrap();
+    let width = |class: &str| -> f64 {
+        effective(drawn(&doc, class)[0], "stroke-width")
+            .unwrap()
+            .parse()
+            .unwrap()
+    };
+    let (casing, line) = (width("ellipse"), width("tool-path"));
+    assert!(casing > 3.0 * line, "{casing} vs {line}");
+    // The ellipse comes first in the document, the path over it.
+    let order: Vec<&str> = doc
+        .descendants()
+        .filter_map(|n| n.attribute("class"))
+        .filter(|c| *c == "ellipse" || *c == "tool-path")
+        .collect();
+    assert_eq!(order, ["ellipse", "tool-path"]);
+    let ppm = 16.0;
+    let (pixmap, vb) = raster(&svg, ppm);
+    let is_blue = |(r, g, b, a): (u8, u8, u8, u8)| a == 255 && b > 150 && r < 90 && g < 140;
+    let is_orange = |(r, g, b, a): (u8, u8, u8, u8)| a == 255 && r > 150 && g < 130 && b < 80;
+    for t in [FRAC_PI_2, 3.0 * FRAC_PI_2, 1.0] {
+        let on = e.inward_offset_point(t, 0.1);
+        let out = e.outward_normal(t);
+        assert!(is_blue(colour_at(&pixmap, vb, ppm, on)), "path at t = {t}");
+        for side in [0.45 * casing, -0.35 * casing] {
+            let p = e.point(t) + out * side;
+            assert!(
+                is_orange(colour_at(&pixmap, vb, ppm, p)),
+                "ellipse at t = {t}, {side}: {:?}",
+                colour_at(&pixmap, vb, ppm, p)
+            );
+        }
+    }
 }

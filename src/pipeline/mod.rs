@@ -613,14 +613,23 @@ fn present(f: &Finished) -> (String, Report) {
         .map(|o| (o.name.clone(), o.ellipse))
         .collect();
     ellipses.extend(ellipse_holes.iter().cloned());
-    let preview = preview::preview_svg(&PreviewInput {
-        title: &s.file_name,
-        part: &solved.part,
-        ellipses: &ellipses,
-        cuts: f.cuts,
-        tool_diameter: resolved.tool_diameter,
-        work_zero: &f.zero.words,
-    });
+    let preview = preview::preview_svg_with(
+        &PreviewInput {
+            title: &s.file_name,
+            part: &solved.part,
+            ellipses: &ellipses,
+            cuts: f.cuts,
+            tool_diameter: resolved.tool_diameter,
+            work_zero: &f.zero.words,
+        },
+        &preview::PreviewOptions {
+            process: if resolved.cuts_through {
+                preview::Process::CutThrough
+            } else {
+                preview::Process::Tool
+            },
+        },
+    );
     let mut warnings = solved.part.warnings.clone();
     warnings.extend(unused_warnings(&solved.unused_bays));
     warnings.extend(f.plan.warnings.iter().cloned());

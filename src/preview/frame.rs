@@ -55,22 +55,26 @@ pub struct Frame {
     pub legend_top: f64,
     /// The content bounds (drawing mm).
     pub content: Bounds,
+    /// The free space kept around the content (mm); labels may sit in it.
+    pub margin: f64,
 }
 
-/// Number of legend rows (two columns each).
-pub const LEGEND_ROWS: usize = 6;
-
 impl Frame {
-    /// A page around `content` with room above for the title and below for the legend.
+    /// A page around `content` with room above for the title (three lines) and below for the
+    /// scale bar and a legend of `legend_rows` rows.
     ///
     /// Text is 2.5 % of the drawing's larger side, kept between 1.5 mm and 12 mm so that it stays
     /// readable at 1:1 for small parts and does not swamp large ones.
-    pub fn around(content: Bounds) -> Frame {
+    pub fn around(content: Bounds, legend_rows: usize) -> Frame {
         let size = content.width().max(content.height()).max(1.0);
-        let font = (0.025 * size).clamp(1.5, 12.0);
+        let font = if size.is_finite() {
+            (0.025 * size).clamp(1.5, 12.0)
+        } else {
+            12.0
+        };
         let margin = (0.05 * size).max(2.0 * font);
-        let title_band = 3.2 * font;
-        let legend_band = (2.0 + 1.6 * LEGEND_ROWS as f64) * font + margin;
+        let title_band = 4.4 * font;
+        let legend_band = (2.5 + 1.6 * legend_rows as f64) * font + margin;
         // The legend needs about 2 × 18 font widths; the title about 40.
         let min_width = 40.0 * font;
         let mut view_w = content.width() + 2.0 * margin;
@@ -90,6 +94,21 @@ impl Frame {
             font,
             legend_top,
             content,
+            margin,
+        }
+    }
+
+    /// The area labels may use (drawing mm): the content and its margin.
+    pub fn drawing_area(&self) -> Bounds {
+        Bounds {
+            min: Point::new(
+                self.content.min.x - self.margin,
+                self.content.min.y - self.margin,
+            ),
+            max: Point::new(
+                self.content.max.x + self.margin,
+                self.content.max.y + self.margin,
+            ),
         }
     }
 
@@ -157,12 +176,21 @@ mod tests {
             min: Point::new(-10.0, 5.0),
             max: Point::new(190.0, 105.0),
         };
-        let f = Frame::around(content);
+        let rows = 6;
+        let f = Frame::around(content, rows);
         let (x0, y0) = f.svg_xy(Point::new(-10.0, 105.0));
         let (x1, y1) = f.svg_xy(Point::new(190.0, 5.0));
         assert!(f.view_x < x0 && x1 < f.view_x + f.view_w);
-        assert!(f.view_y + 2.0 * f.font < y0 && y1 < f.legend_top);
-        assert!(f.legend_top + 1.6 * LEGEND_ROWS as f64 * f.font < f.view_y + f.view_h);
+        assert!(f.view_y + 4.0 * f.font < y0 && y1 < f.legend_top);
+        assert!(f.legend_top + (2.5 + 1.6 * rows as f64) * f.font < f.view_y + f.view_h);
         assert!((f.font - 5.0).abs() < 1e-12);
+        // Fewer legend rows, a shorter page; the drawing stays where it is.
+        let g = Frame::around(content, 2);
+        assert!(g.view_h < f.view_h && g.legend_top == f.legend_top && g.view_y == f.view_y);
+        // The drawing area holds the content and its margin, below the title and above the
+        // legend.
+        let area = f.drawing_area();
+        assert!(area.min.x < -10.0 && area.max.y > 105.0);
+        assert!(-area.max.y > f.view_y + 4.0 * f.font && -area.min.y <= f.legend_top);
     }
 }
