@@ -90,6 +90,10 @@ enum Command {
         /// No progress bar (it is shown only on a terminal, and only for work that lasts).
         #[arg(long)]
         quiet: bool,
+        /// Also write `<name>-solved.dxf`: a copy of the drawing (R2000 or later) with every
+        /// solved ellipse as an ELLIPSE entity and its centre as a POINT on layer CONICUT-SOLVED.
+        #[arg(long)]
+        dxf_out: bool,
         #[command(flatten)]
         input: DrawingArgs,
         #[command(flatten)]
@@ -533,6 +537,7 @@ fn run(cli: Cli) -> Result<()> {
             tool_diameter,
             out,
             quiet,
+            dxf_out,
             input,
             cut,
         } => {
@@ -543,6 +548,7 @@ fn run(cli: Cli) -> Result<()> {
                 tool_diameter,
                 input: &input,
                 cut: &cut,
+                dxf_out,
             };
             if let [drawing] = drawings.as_slice() {
                 let progress = Progress::new(quiet, 1);
@@ -568,6 +574,8 @@ struct PlanArgs<'a> {
     tool_diameter: Option<Length>,
     input: &'a DrawingArgs,
     cut: &'a CutArgs,
+    /// Also write the copy of the drawing with the solved ellipses.
+    dxf_out: bool,
 }
 
 /// Plans one drawing and writes its outputs into `dir`; the report.
@@ -582,7 +590,16 @@ fn plan_one(
     request.tool_diameter = mm(plan.tool_diameter);
     let resolved = resolve(&request, plan.machine)?;
     let output = run_resolved_watched(&bytes, &plan.machine.profile, &request, &resolved, watch)?;
-    write_outputs(output, dir, &stem)
+    let drawing = if plan.dxf_out {
+        Some(conicut::pipeline::office::solved_drawing(
+            &bytes,
+            &request,
+            &output.report,
+        )?)
+    } else {
+        None
+    };
+    write_outputs_with(output, dir, &stem, drawing)
 }
 
 /// Plans every drawing, each into its own folder inside `parent`, whatever the others do;
@@ -679,13 +696,26 @@ fn finish(output: JobOutput, dir: &Path, stem: &str) -> Result<()> {
 }
 
 /// Writes the outputs into `dir`, all or none; the report, naming the files.
-fn write_outputs(mut output: JobOutput, dir: &Path, stem: &str) -> Result<conicut::report::Report> {
-    let names = [
+fn write_outputs(output: JobOutput, dir: &Path, stem: &str) -> Result<conicut::report::Report> {
+    write_outputs_with(output, dir, stem, None)
+}
+
+/// [`write_outputs`], with the copy of the drawing (`--dxf-out`) when given.
+fn write_outputs_with(
+    mut output: JobOutput,
+    dir: &Path,
+    stem: &str,
+    drawing: Option<String>,
+) -> Result<conicut::report::Report> {
+    let mut names = vec![
         ("program", format!("{stem}.ngc")),
         ("preview", format!("{stem}.svg")),
         ("report_text", format!("{stem}-report.txt")),
         ("report_json", format!("{stem}-report.json")),
     ];
+    if drawing.is_some() {
+        names.push(("solved_drawing", format!("{stem}-solved.dxf")));
+    }
     output.report.files = names
         .iter()
         .map(|(role, name)| OutputFile {
@@ -695,7 +725,10 @@ fn write_outputs(mut output: JobOutput, dir: &Path, stem: &str) -> Result<conicu
         .collect();
     let text = output.report.to_text();
     let json = output.report.to_json();
-    let contents = [&output.program, &output.preview, &text, &json];
+    let mut contents = vec![&output.program, &output.preview, &text, &json];
+    if let Some(d) = &drawing {
+        contents.push(d);
+    }
     let files: Vec<(PathBuf, &str)> = names
         .iter()
         .zip(contents)

@@ -4,6 +4,7 @@
 
 pub mod features;
 pub mod listing;
+pub mod office;
 
 use crate::chain::{self, ChainError, ChainOptions, InnerShape};
 use crate::check;

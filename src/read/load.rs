@@ -98,6 +98,13 @@ fn scan_text(bytes: &[u8], file: &str) -> Result<RawScan, ReadError> {
     Ok(scan)
 }
 
+/// The drawing as the `dxf` crate loads it (after the same pre-pass and with panics contained),
+/// for writing a copy of it.
+pub fn load_for_copy(bytes: &[u8], file: &str) -> Result<dxf::Drawing, ReadError> {
+    refuse_non_text(bytes, file)?;
+    load_with_crate(bytes, file)
+}
+
 /// The `dxf` crate's load of the file's text as [`prepare`]d: the parts conicut does not use
 /// left out, the crate's line numbers mapped back to the file's, and a panic inside the crate
 /// contained and turned into [`ReadError::LibraryPanic`].

@@ -59,7 +59,7 @@ pub use blocks::{MAX_NESTING, SIMILARITY_TOLERANCE};
 pub use convert::{FLAT_Z_LIMIT, FULL_ARC_SLACK_DEG, FULL_ELLIPSE_SLACK};
 pub use entity::{Drawing, Entity, EntityKind, Layer};
 pub use error::ReadError;
-pub use load::{library_panicking, read_dxf};
+pub use load::{library_panicking, load_for_copy, read_dxf};
 pub use ocs::EXTRUSION_TILT_LIMIT;
 pub use points::{PointsError, PointsProblem, parse_points_csv};
 pub use prepass::{KEPT_HEADER_VARIABLES, KEPT_TABLES};
