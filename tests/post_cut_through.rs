@@ -82,7 +82,7 @@ fn a_kerf_other_than_the_profiles_is_noted_in_the_header() {
     let program = write_program(&[square_cut("a", 10.0, 10.0, 5.0)], &laser, &s).unwrap();
     assert!(
         program.contains(
-            "(kerf width the paths allow for 0.3000 mm; the profile's kerf width is 0.2000 mm)"
+            "(kerf width the paths allow for 0.3000 mm, the profile's kerf width is 0.2000 mm)"
         ),
         "{program}"
     );

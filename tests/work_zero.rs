@@ -193,7 +193,7 @@ fn a_part_far_out_is_refused_as_drawn_and_cut_from_its_corner_with_zero() {
     assert_eq!(z["drawing_point_mm"][0].as_f64(), Some(1000.0));
     assert_eq!(z["shift_mm"][1].as_f64(), Some(-40.0));
     assert!(run.program.contains(
-        "(work zero: X0 Y0 = the lower-left corner of the outline's box; Z0 = top of the stock)"
+        "(work zero: X0 Y0 = the lower-left corner of the outline's box, Z0 = top of the stock)"
     ));
     // The preview is in program coordinates and marks the origin with its axes and legend.
     assert!(run.preview.contains("class=\"work-zero\""));
@@ -319,7 +319,7 @@ fn the_job_file_gives_the_zero_and_offset_and_the_command_line_wins() {
     );
     assert!(
         run.program
-            .contains("(work zero: X0 Y0 = the drawing point at x 990, y 30;")
+            .contains("(work zero: X0 Y0 = the drawing point at x 990, y 30,")
     );
 }
 

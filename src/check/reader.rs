@@ -27,6 +27,7 @@
 //! * an `R` arc within [`R_NEAR_HALF_TURN`] of a half or a whole turn: a warning, since a small
 //!   change of its end moves its centre a lot (§3.5.3.1 advises against such arcs);
 //! * a number with an exponent (`1.5E3`): RS274/NGC numbers have none (§3.3.2);
+//! * a `;` inside a parenthesised comment (a warning: some dialects read it as a comment start);
 //! * a block-delete line that moves the machine: what is cut depends on a switch on the panel
 //!   (a warning when the line does not move it).
 
@@ -289,6 +290,15 @@ impl Reader<'_> {
                                 return None;
                             }
                             Some(&ch) => {
+                                if ch == ';' && !text.contains(';') {
+                                    self.warn(
+                                        line,
+                                        "comment",
+                                        "a ; inside a parenthesised comment: some controllers \
+                                         read it as the start of a comment"
+                                            .into(),
+                                    );
+                                }
                                 text.push(ch);
                                 k += 1;
                             }

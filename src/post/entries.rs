@@ -27,6 +27,7 @@ impl Writer<'_> {
         feed: f64,
     ) -> Result<usize, PostError> {
         let Some(angle) = settings.ramp_angle_deg else {
+            self.comment("entry: straight plunge");
             self.feed_z(z_to, feed);
             return Ok(0);
         };
@@ -39,6 +40,7 @@ impl Writer<'_> {
         if helical(settings, self.profile) {
             let radius = helix_radius(settings.tool_diameter);
             if cut.entry_room >= radius {
+                self.comment("entry: helix");
                 self.helix(cut, radius, z_from, z_to, slope, feed)?;
                 return Ok(0);
             }
@@ -49,6 +51,7 @@ impl Writer<'_> {
         let first = cut.clearing.first().or(cut.lead_in.first()).copied();
         if let Some(first) = first.filter(|m| usable(cut.plunge, m)) {
             // An odd number of legs ends at the move's end: forward, back, forward, ...
+            self.comment("entry: zig-zag ramp");
             self.zig_zag(cut, cut.plunge, first, z_from, z_to, slope, feed, true)?;
             return Ok(1);
         }
@@ -60,9 +63,13 @@ impl Writer<'_> {
         match cut.moves.first().copied() {
             Some(first) if at_start && usable(cut.start, &first) => {
                 // An even number of legs ends back at the contour's start.
+                self.comment("entry: zig-zag ramp");
                 self.zig_zag(cut, cut.start, first, z_from, z_to, slope, feed, false)?;
             }
-            _ => self.feed_z(z_to, feed),
+            _ => {
+                self.comment("entry: straight plunge");
+                self.feed_z(z_to, feed)
+            }
         }
         Ok(0)
     }

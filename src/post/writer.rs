@@ -247,7 +247,8 @@ pub(super) fn dwell_value(unit: DwellUnit, seconds: f64) -> String {
 /// One comment line in the profile's style.
 pub(super) fn comment_line(style: CommentStyle, text: &str) -> String {
     match style {
-        CommentStyle::Parentheses => format!("({text})"),
+        // No `;` inside parentheses: some dialects read it as the start of a comment.
+        CommentStyle::Parentheses => format!("({})", text.replace(';', ",")),
         CommentStyle::Semicolon => format!("; {text}"),
     }
 }

@@ -226,21 +226,35 @@ pub fn sections(trace: &ReadBack, name: &str) -> Vec<(String, Vec<usize>)> {
 /// the next comment, or after the `cut` comment for a cut made in one pass.
 pub fn entries<'t>(trace: &'t ReadBack, name: &str) -> Vec<Vec<&'t ReadMove>> {
     let all = sections(trace, name);
-    let passes: Vec<_> = all.iter().filter(|(t, _)| t.starts_with("pass ")).collect();
-    let chosen: Vec<_> = if passes.is_empty() {
-        all.iter().filter(|(t, _)| t.starts_with("cut ")).collect()
-    } else {
-        passes
+    let has_passes = all.iter().any(|(t, _)| t.starts_with("pass "));
+    let head = |t: &str| {
+        if has_passes {
+            t.starts_with("pass ")
+        } else {
+            t.starts_with("cut ")
+        }
     };
-    chosen
-        .iter()
-        .map(|(_, idx)| {
-            idx.iter()
+    // Each pass (or the cut) with the entry the writer names after it (`entry: …`).
+    let mut out = Vec::new();
+    for (k, (t, idx)) in all.iter().enumerate() {
+        if !head(t) {
+            continue;
+        }
+        let mut moves: Vec<usize> = idx.clone();
+        if let Some((next, more)) = all.get(k + 1)
+            && next.starts_with("entry: ")
+        {
+            moves.extend(more);
+        }
+        out.push(
+            moves
+                .iter()
                 .map(|&i| &trace.moves[i])
                 .filter(|m| !m.rapid)
-                .collect()
-        })
-        .collect()
+                .collect(),
+        );
+    }
+    out
 }
 
 /// The feature's contour runs, one per pass.
