@@ -481,7 +481,12 @@ fn run(cli: Cli) -> Result<()> {
             let resolved = resolve(&request, &machine_read)?;
             let bytes = conicut::demo::demo_dxf_bytes();
             let output = run_resolved(&bytes, &machine_read.profile, &request, &resolved)?;
-            finish(output, &out, &demo_stem(&machine))
+            let ext = machine_read.profile.program_extension().to_string();
+            print!(
+                "{}",
+                write_outputs_with(output, &out, &demo_stem(&machine), &ext, None)?.to_text()
+            );
+            Ok(())
         }
         Command::Solve {
             drawing,
@@ -599,7 +604,8 @@ fn plan_one(
     } else {
         None
     };
-    write_outputs_with(output, dir, &stem, drawing)
+    let ext = plan.machine.profile.program_extension();
+    write_outputs_with(output, dir, &stem, ext, drawing)
 }
 
 /// Plans every drawing, each into its own folder inside `parent`, whatever the others do;
@@ -689,26 +695,18 @@ fn demo_stem(machine: &str) -> String {
     }
 }
 
-/// Writes the outputs into `dir` and prints the summary.
-fn finish(output: JobOutput, dir: &Path, stem: &str) -> Result<()> {
-    print!("{}", write_outputs(output, dir, stem)?.to_text());
-    Ok(())
-}
-
-/// Writes the outputs into `dir`, all or none; the report, naming the files.
-fn write_outputs(output: JobOutput, dir: &Path, stem: &str) -> Result<conicut::report::Report> {
-    write_outputs_with(output, dir, stem, None)
-}
-
-/// [`write_outputs`], with the copy of the drawing (`--dxf-out`) when given.
+/// Writes the outputs into `dir`, all or none (the program as `<stem>.<ext>`, the profile's
+/// extension), with the copy of the drawing (`--dxf-out`) when given; the report, naming the
+/// files.
 fn write_outputs_with(
     mut output: JobOutput,
     dir: &Path,
     stem: &str,
+    ext: &str,
     drawing: Option<String>,
 ) -> Result<conicut::report::Report> {
     let mut names = vec![
-        ("program", format!("{stem}.ngc")),
+        ("program", format!("{stem}.{ext}")),
         ("preview", format!("{stem}.svg")),
         ("report_text", format!("{stem}-report.txt")),
         ("report_json", format!("{stem}-report.json")),

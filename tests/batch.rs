@@ -58,7 +58,7 @@ fn a_folder_and_a_file_give_one_output_folder_each_and_a_summary() {
         ("single", 4 + 2 + 1),
     ] {
         let folder = dir.path().join(format!("out/{stem}-conicut"));
-        for file in [".ngc", ".svg", "-report.txt", "-report.json"] {
+        for file in [".nc", ".svg", "-report.txt", "-report.json"] {
             assert!(
                 folder.join(format!("{stem}{file}")).is_file(),
                 "{stem}{file}"
@@ -106,8 +106,8 @@ fn a_failing_drawing_fails_the_run_but_the_others_are_written() {
     let errors = text(&out.stderr);
     assert!(errors.contains("broken.dxf, line 10"), "{errors}");
     assert!(errors.contains("1 of 3 drawings failed"), "{errors}");
-    assert!(dir.path().join("panel-a-conicut/panel-a.ngc").is_file());
-    assert!(dir.path().join("panel-b-conicut/panel-b.ngc").is_file());
+    assert!(dir.path().join("panel-a-conicut/panel-a.nc").is_file());
+    assert!(dir.path().join("panel-b-conicut/panel-b.nc").is_file());
     assert!(
         !dir.path().join("broken-conicut").exists(),
         "nothing written for it"

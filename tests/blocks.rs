@@ -192,7 +192,7 @@ fn nested_arrayed_mirrored_and_unequally_scaled_blocks_land_where_the_rule_puts_
     // 2 nested + 6 arrayed + 1 ellipse + 1 D.
     assert_eq!(holes.len(), 10, "{}", report["features"]);
     // Each circle's contour is arcs about its centre (read back from the program, f32: 1e-4).
-    let program = fs::read_to_string(dir.path().join("out/b.ngc")).unwrap();
+    let program = fs::read_to_string(dir.path().join("out/b.nc")).unwrap();
     let read = read_back(&program);
     let mut centres: Vec<(i64, i64)> = holes
         .iter()

@@ -291,7 +291,7 @@ fn every_program_plan_writes_passes_check_with_the_same_cycle_time() {
             .args(&extra)
             .assert()
             .success();
-        let program = fs::read_to_string(dir.path().join("out/truss-bracket.ngc")).unwrap();
+        let program = fs::read_to_string(dir.path().join("out/truss-bracket.nc")).unwrap();
         let report: serde_json::Value = serde_json::from_str(
             &fs::read_to_string(dir.path().join("out/truss-bracket-report.json")).unwrap(),
         )
@@ -303,7 +303,7 @@ fn every_program_plan_writes_passes_check_with_the_same_cycle_time() {
         let out = Command::cargo_bin("conicut")
             .unwrap()
             .current_dir(dir.path())
-            .args(["check", "out/truss-bracket.ngc", "--against", &drawing])
+            .args(["check", "out/truss-bracket.nc", "--against", &drawing])
             .args(["--machine", machine, "--json"])
             .args(&extra)
             .output()

@@ -99,7 +99,7 @@ fn feeds_and_speeds_from_the_command_line_and_the_job_file_within_the_profile_li
             .output()
             .unwrap()
     };
-    let program = || fs::read_to_string(dir.path().join("out/d.ngc")).unwrap();
+    let program = || fs::read_to_string(dir.path().join("out/d.nc")).unwrap();
     let out = run(&[
         "--feed",
         "800",

@@ -84,7 +84,7 @@ fn demo_writes_program_preview_and_report() {
     let summary = run_demo(tmp.path());
     let out = tmp.path().join("conicut-demo");
     for name in [
-        "truss-bracket.ngc",
+        "truss-bracket.nc",
         "truss-bracket.svg",
         "truss-bracket-report.txt",
         "truss-bracket-report.json",
@@ -96,7 +96,7 @@ fn demo_writes_program_preview_and_report() {
     }
     assert!(summary.contains("bay 1") && summary.contains("outline"));
 
-    let program = fs::read_to_string(out.join("truss-bracket.ngc")).unwrap();
+    let program = fs::read_to_string(out.join("truss-bracket.nc")).unwrap();
     check_demo_program(&program);
     let json: serde_json::Value =
         serde_json::from_str(&fs::read_to_string(out.join("truss-bracket-report.json")).unwrap())
@@ -223,8 +223,8 @@ fn plan_on_the_bundled_drawing_matches_the_demo() {
         .args(["--out", "mine"])
         .assert()
         .success();
-    let demo = fs::read_to_string(tmp.path().join("conicut-demo/truss-bracket.ngc")).unwrap();
-    let mine = fs::read_to_string(tmp.path().join("mine/truss-bracket.ngc")).unwrap();
+    let demo = fs::read_to_string(tmp.path().join("conicut-demo/truss-bracket.nc")).unwrap();
+    let mine = fs::read_to_string(tmp.path().join("mine/truss-bracket.nc")).unwrap();
     assert_eq!(
         demo, mine,
         "the bundled file and the built-in demo give the same program"
@@ -295,7 +295,7 @@ fn refusals_leave_no_output() {
         ])
         .assert()
         .success();
-    assert!(tmp.path().join("plain-out/plain.ngc").is_file());
+    assert!(tmp.path().join("plain-out/plain.nc").is_file());
 }
 
 #[test]
@@ -321,7 +321,7 @@ fn demo_runs_for_every_bundled_machine_kind() {
             format!("truss-bracket-{machine}")
         };
         let dir = tmp.path().join(machine);
-        let program = fs::read_to_string(dir.join(format!("{stem}.ngc"))).unwrap();
+        let program = fs::read_to_string(dir.join(format!("{stem}.nc"))).unwrap();
         assert!(
             gcode::parse(&program).is_ok(),
             "{machine}: the gcode crate reads it"
@@ -417,7 +417,7 @@ fn depth_passes_are_read_back_within_tolerance() {
         ])
         .assert()
         .success();
-    let program = fs::read_to_string(tmp.path().join("passes/truss-bracket.ngc")).unwrap();
+    let program = fs::read_to_string(tmp.path().join("passes/truss-bracket.nc")).unwrap();
     let floors = program.lines().filter(|l| l.starts_with("G1 Z-")).count();
     assert_eq!(
         floors,
@@ -445,7 +445,7 @@ fn ramps_enter_no_steeper_than_asked_and_end_on_the_contour() {
         .args(["demo", "--stepdown", "1.5", "--out", "ramps"])
         .assert()
         .success();
-    let program = fs::read_to_string(tmp.path().join("ramps/truss-bracket.ngc")).unwrap();
+    let program = fs::read_to_string(tmp.path().join("ramps/truss-bracket.nc")).unwrap();
     let trace = read_back(&program);
     let legs: Vec<_> = trace
         .moves

@@ -26,7 +26,7 @@ fn pockets_keep_their_own_depth_and_holes_the_jobs() {
         ])
         .assert()
         .success();
-    let program = fs::read_to_string(dir.path().join("out/truss-bracket.ngc")).unwrap();
+    let program = fs::read_to_string(dir.path().join("out/truss-bracket.nc")).unwrap();
     let read = read_back(&program);
     // The deepest Z of each feature's contour moves, and how many passes reach the contour.
     let deepest = |name: &str| {
@@ -88,7 +88,7 @@ fn a_feature_keeps_its_own_feeds() {
         .args(["--job", "job.toml", "--out", "out"])
         .assert()
         .success();
-    let program = fs::read_to_string(dir.path().join("out/d.ngc")).unwrap();
+    let program = fs::read_to_string(dir.path().join("out/d.nc")).unwrap();
     let read = read_back(&program);
     let feeds = |name: &str| -> Vec<i64> {
         let mut f: Vec<i64> = marked_moves(&read, name, "contour")
@@ -187,7 +187,7 @@ fn a_feature_keeps_its_own_spindle_speed() {
             .unwrap()
     };
     assert!(plan("job.toml", "out").status.success());
-    let program = fs::read_to_string(dir.path().join("out/d.ngc")).unwrap();
+    let program = fs::read_to_string(dir.path().join("out/d.nc")).unwrap();
     let speeds = speeds_at_first_feed(&program);
     let of = |name: &str| speeds.iter().find(|(n, _)| n == name).map(|s| s.1);
     assert_eq!(of("slow"), Some(6000), "{speeds:?}");
@@ -223,7 +223,7 @@ fn a_feature_keeps_its_own_spindle_speed() {
         message.contains("fast") && message.contains("24000") && message.contains("10000"),
         "{message}"
     );
-    assert!(!dir.path().join("out2/d.ngc").exists());
+    assert!(!dir.path().join("out2/d.nc").exists());
     // A laser has no spindle: the feature's speed is a warning, never silently dropped.
     let out = Command::cargo_bin("conicut")
         .unwrap()

@@ -344,7 +344,7 @@ fn check(out: &std::path::Path, case: &str, travel: [f64; 4], has_ellipse: bool)
     assert_eq!(hidden["role"], "not-cut", "{case}");
     assert_eq!(hidden["reason"], "off", "{case}");
     // Read back: each circle's contour at R − r from its centre; everything within travel.
-    let program = fs::read_to_string(out.join("p.ngc")).unwrap();
+    let program = fs::read_to_string(out.join("p.nc")).unwrap();
     let read = read_back(&program);
     let mut circles = vec![
         ((120.0, 30.0), 8.0),

@@ -152,3 +152,29 @@ fn toml_syntax_error_reports_the_line() {
     let err = MachineProfile::from_toml(&text, "shop.toml").unwrap_err();
     assert_eq!(err.line, Some(line), "{err}");
 }
+
+#[test]
+fn the_program_extension_is_nc_unless_the_profile_names_a_plain_one() {
+    let p = MachineProfile::from_toml(METRIC_MILL_TOML, "shop.toml").unwrap();
+    assert_eq!(p.program_extension(), "nc");
+    let text = METRIC_MILL_TOML.replace(
+        "line_numbers = false",
+        "line_numbers = false\nprogram_extension = \".tap\"",
+    );
+    assert!(text.contains("program_extension"), "the key was added");
+    let p = MachineProfile::from_toml(&text, "shop.toml").unwrap();
+    assert_eq!(p.program_extension(), "tap");
+    for bad in ["", "n/c", "toolongext", "n c"] {
+        let text = METRIC_MILL_TOML.replace(
+            "line_numbers = false",
+            &format!("line_numbers = false\nprogram_extension = \"{bad}\""),
+        );
+        let err = MachineProfile::from_toml(&text, "shop.toml").unwrap_err();
+        assert_eq!(
+            err.key.as_deref(),
+            Some("program_extension"),
+            "{bad}: {err}"
+        );
+        assert!(err.to_string().contains("letters or digits"), "{err}");
+    }
+}

@@ -221,7 +221,7 @@ fn half_circle_holes_are_cut_on_every_kind_at_the_tool_radius() {
         )
         .unwrap();
         let width = report["tool_diameter_mm"].as_f64().unwrap();
-        let program = fs::read_to_string(dir.path().join(format!("{out}/slots.ngc"))).unwrap();
+        let program = fs::read_to_string(dir.path().join(format!("{out}/slots.nc"))).unwrap();
         let read = read_back(&program);
         let hole_names: Vec<String> = read
             .features

@@ -124,7 +124,7 @@ fn closed_and_joined_splines_are_cut_as_holes_in_every_version() {
             ])
             .assert()
             .success();
-        let program = fs::read_to_string(dir.path().join("out/s.ngc")).unwrap();
+        let program = fs::read_to_string(dir.path().join("out/s.nc")).unwrap();
         let read = read_back(&program);
         let holes: Vec<&String> = read
             .features

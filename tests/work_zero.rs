@@ -86,7 +86,7 @@ fn plan(dir: &Path, drawing: &str, extra: &[&str]) -> Run {
     let stem = drawing.trim_end_matches(".dxf");
     let read = |suffix: &str| fs::read_to_string(dir.join(format!("out/{stem}{suffix}"))).unwrap();
     Run {
-        program: read(".ngc"),
+        program: read(".nc"),
         report: serde_json::from_str(&read("-report.json")).unwrap(),
         preview: read(".svg"),
     }
@@ -233,7 +233,7 @@ fn every_corner_the_centre_and_a_point_land_where_asked() {
             ])
             .assert()
             .success();
-        let program = fs::read_to_string(dir.path().join("out/neg.ngc")).unwrap();
+        let program = fs::read_to_string(dir.path().join("out/neg.nc")).unwrap();
         let (lo, hi) = outline_box(&program);
         let want = [
             corner[0] - R,

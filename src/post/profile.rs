@@ -227,6 +227,8 @@ pub struct MachineProfile {
     pub(crate) z_decimals: usize,
     pub(crate) feed_decimals: usize,
     pub(crate) line_numbers: bool,
+    /// The program file's extension, without the dot (`nc` unless the profile says).
+    pub(crate) program_extension: String,
     pub(crate) comment_style: CommentStyle,
     pub(crate) dwell_unit: DwellUnit,
     pub(crate) start_block: Vec<String>,
@@ -273,6 +275,10 @@ impl MachineProfile {
     /// Whether blocks get `N` numbers (N10, N20, …).
     pub fn line_numbers(&self) -> bool {
         self.line_numbers
+    }
+    /// The program file's extension, without the dot.
+    pub fn program_extension(&self) -> &str {
+        &self.program_extension
     }
     /// How comments are written.
     pub fn comment_style(&self) -> CommentStyle {

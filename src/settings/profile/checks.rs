@@ -355,6 +355,23 @@ pub(super) fn check_name(raw: &RawProfile, c: &Checker) -> Result<(), ProfileErr
     Ok(())
 }
 
+/// The program file's extension: `nc` unless given; 1–8 ASCII letters or digits (a leading dot
+/// is dropped), so that it is a plain extension on every file system.
+pub(super) fn check_extension(raw: &RawProfile, c: &Checker) -> Result<String, ProfileError> {
+    let Some(given) = &raw.program_extension else {
+        return Ok("nc".to_string());
+    };
+    let e = given.trim().trim_start_matches('.');
+    if e.is_empty() || e.len() > 8 || !e.chars().all(|ch| ch.is_ascii_alphanumeric()) {
+        return Err(c.fail(
+            "program_extension",
+            format!("\"{given}\" is not a plain file extension"),
+            "give 1 to 8 letters or digits without the dot, such as \"nc\", \"ngc\" or \"tap\"",
+        ));
+    }
+    Ok(e.to_string())
+}
+
 /// The arc form: centre offsets or lines; the radius form is refused.
 pub(super) fn check_arc_form(raw: &RawProfile, c: &Checker) -> Result<ArcForm, ProfileError> {
     Ok(match raw.arc_form.trim() {

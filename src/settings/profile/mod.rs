@@ -20,6 +20,7 @@
 //! | `arc_form` | all | `centre` (G2/G3 with I, J) or `lines` (G1 only) |
 //! | `xy_decimals`, `z_decimals`, `feed_decimals` | all | digits after the point (defaults 4, 3, 1 in mm; 5, 4, 2 in inch) |
 //! | `line_numbers` | all | `N10`, `N20`, … on every block (default false) |
+//! | `program_extension` | all | the program file's extension: 1–8 letters or digits, no dot (default `nc`) |
 //! | `comment_style` | all | `parentheses` (default, NISTIR 6556 §3.3.4) or `semicolon` |
 //! | `dwell_unit` | all | `seconds` (default, NISTIR 6556 §3.5.4) or `milliseconds` for `G4 P` |
 //! | `start_block`, `end_block` | all | blocks after the modal line, and before `M30` |
@@ -45,8 +46,8 @@ use crate::plan::LeadOptions;
 use crate::post::{Cutter, MachineProfile};
 use crate::settings::toml_text::{key_on_line, line_of_offset, qualify_key, table_of_line};
 use checks::{
-    Checker, check_arc_form, check_blocks, check_cutter, check_decimals, check_feeds, check_leads,
-    check_name, check_travel,
+    Checker, check_arc_form, check_blocks, check_cutter, check_decimals, check_extension,
+    check_feeds, check_leads, check_name, check_travel,
 };
 use raw::RawProfile;
 use std::fmt;
@@ -125,6 +126,7 @@ impl Machine {
             z_decimals,
             feed_decimals,
             line_numbers: raw.line_numbers,
+            program_extension: check_extension(&raw, &c)?,
             comment_style: raw.comment_style,
             dwell_unit: raw.dwell_unit,
             start_block: raw

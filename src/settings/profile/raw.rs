@@ -18,6 +18,7 @@ pub(super) struct RawProfile {
     pub(super) feed_decimals: Option<usize>,
     #[serde(default)]
     pub(super) line_numbers: bool,
+    pub(super) program_extension: Option<String>,
     #[serde(default)]
     pub(super) comment_style: CommentStyle,
     #[serde(default)]
