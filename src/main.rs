@@ -120,6 +120,10 @@ enum Command {
         /// Print JSON for scripts instead of the text.
         #[arg(long)]
         json: bool,
+        /// Also draw the program read back over the finished edges, each finding marked where it
+        /// occurs, into this SVG file.
+        #[arg(long, value_name = "FILE")]
+        svg: Option<PathBuf>,
         #[command(flatten)]
         input: DrawingArgs,
         #[command(flatten)]
@@ -509,6 +513,7 @@ fn run(cli: Cli) -> Result<()> {
             machine,
             tool_diameter,
             json,
+            svg,
             input,
             cut,
         } => {
@@ -524,8 +529,22 @@ fn run(cli: Cli) -> Result<()> {
             let mut request = request(file_name, &input, Some(&cut)).map_err(unreadable)?;
             request.tool_diameter = mm(tool_diameter);
             let resolved = resolve(&request, &machine).map_err(|e| unreadable(e.into()))?;
-            let checked = check_job(&text, &bytes, &machine.profile, &request, &resolved)
-                .map_err(|e| unreadable(e.into()))?;
+            let checked = check_job(
+                &text,
+                &bytes,
+                &machine.profile,
+                &request,
+                &resolved,
+                svg.is_some(),
+            )
+            .map_err(|e| unreadable(e.into()))?;
+            if let (Some(path), Some(picture)) = (&svg, &checked.picture) {
+                let dir = path.parent().filter(|d| !d.as_os_str().is_empty());
+                write_all_or_nothing(
+                    dir.unwrap_or(Path::new(".")),
+                    &[(path.clone(), picture.as_str())],
+                )?;
+            }
             if json {
                 println!("{}", checked.to_json());
             } else {

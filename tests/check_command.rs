@@ -332,3 +332,51 @@ fn every_program_plan_writes_passes_check_with_the_same_cycle_time() {
         );
     }
 }
+
+#[test]
+fn the_picture_marks_each_finding_where_it_occurs() {
+    let dir = tempfile::tempdir().unwrap();
+    drawing(&dir.path().join("plate.dxf"));
+    let mut p = with_line(10, "G1 X57.05 Y30 F400");
+    p[10] = "G3 X42.95 Y30 I-7.05 J0".into();
+    p[11] = "G3 X57.05 Y30 I7.05 J0".into();
+    fs::write(dir.path().join("p.ngc"), p.join("\n") + "\n").unwrap();
+    let out = Command::cargo_bin("conicut")
+        .unwrap()
+        .current_dir(dir.path())
+        .args(["check", "p.ngc", "--against", "plate.dxf"])
+        .args(["--machine", "metric-mill", "--tool-diameter", "6"])
+        .args(["--svg", "pics/findings.svg"])
+        .output()
+        .unwrap();
+    assert_eq!(out.status.code(), Some(1));
+    let svg = fs::read_to_string(dir.path().join("pics/findings.svg")).unwrap();
+    // The circle of the gouge on line 11 sits at that move's end, (42.95, 30), drawn at
+    // (x, −y).
+    let at = svg
+        .find("data-line=\"11\"")
+        .unwrap_or_else(|| panic!("no finding at line 11 in {svg}"));
+    let open = svg[..at].rfind('<').unwrap();
+    let close = at + svg[at..].find('>').unwrap();
+    let tag = &svg[open..close];
+    assert!(tag.contains("class=\"finding\""), "{tag}");
+    let attr = |name: &str| -> f64 {
+        let k = tag.find(&format!("{name}=\"")).unwrap() + name.len() + 2;
+        tag[k..k + tag[k..].find('"').unwrap()].parse().unwrap()
+    };
+    assert!((attr("cx") - 42.95).abs() < 1e-4, "{tag}");
+    assert!((attr("cy") + 30.0).abs() < 1e-4, "{tag}");
+    assert!(svg.contains("class=\"edge\"") && svg.contains("class=\"cut\""));
+    // The clean program draws no finding.
+    fs::write(dir.path().join("clean.ngc"), clean().join("\n") + "\n").unwrap();
+    Command::cargo_bin("conicut")
+        .unwrap()
+        .current_dir(dir.path())
+        .args(["check", "clean.ngc", "--against", "plate.dxf"])
+        .args(["--machine", "metric-mill", "--tool-diameter", "6"])
+        .args(["--svg", "clean.svg"])
+        .assert()
+        .success();
+    let svg = fs::read_to_string(dir.path().join("clean.svg")).unwrap();
+    assert!(!svg.contains("class=\"finding\""));
+}

@@ -20,6 +20,7 @@ use serde::Serialize;
 
 pub mod against;
 pub mod deviation;
+pub mod picture;
 pub mod program;
 pub mod rapids;
 pub mod reader;

@@ -54,6 +54,9 @@ pub struct ProgramCheck {
     pub cycle_time: CycleTime,
     /// How many times the spindle or the process comes on.
     pub starts: usize,
+    /// The picture of the program and its findings ([`super::picture`]), when asked for.
+    #[serde(skip)]
+    pub picture: Option<String>,
 }
 
 impl ProgramCheck {
@@ -163,6 +166,7 @@ pub fn check_program(
     cuts: &[PlannedCut],
     rules: &AgainstRules,
     part: Option<Bounds>,
+    picture: bool,
 ) -> ProgramCheck {
     let Reading { trace, findings } = read_program(program, &machine.dialect);
     let mut findings = findings;
@@ -199,6 +203,7 @@ pub fn check_program(
             junction_deviation: DEFAULT_JUNCTION_DEVIATION,
         },
     );
+    let picture = picture.then(|| super::picture::findings_svg(&trace, cuts, &findings));
     ProgramCheck {
         features,
         findings,
@@ -207,6 +212,7 @@ pub fn check_program(
         bounds_mm: trace.bounds,
         cycle_time,
         starts: trace.switches.iter().filter(|s| s.on).count(),
+        picture,
     }
 }
 

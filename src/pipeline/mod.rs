@@ -498,6 +498,7 @@ pub fn check_job(
     profile: &MachineProfile,
     s: &JobSettings,
     resolved: &ResolvedJob,
+    picture: bool,
 ) -> Result<check::program::ProgramCheck, JobError> {
     let planned = plan_job(dxf, profile, s, resolved, &|_| {})?;
     let part = planned
@@ -517,6 +518,7 @@ pub fn check_job(
         &planned.plan.cuts,
         &rules,
         part,
+        picture,
     ))
 }
 
@@ -539,7 +541,7 @@ fn check_written(
         thermal: profile.spindle().is_none(),
     };
     let checked =
-        check::program::check_program(program, &machine_rules(profile), cuts, &rules, part);
+        check::program::check_program(program, &machine_rules(profile), cuts, &rules, part, false);
     let must: Vec<String> = checked
         .findings
         .iter()
