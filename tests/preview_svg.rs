@@ -296,7 +296,8 @@ fn ellipse_arcs_end_on_the_major_axis_ends() {
             "{cx} {cy}"
         );
     }
-    // The label names the full axes (2a × 2b, one convention everywhere) and the angle.
+    // The label names the semi-axes (a and b, as the report does: one convention everywhere)
+    // and the angle.
     let label = by_class(&doc, "ellipse-label")[0];
     let text: Vec<&str> = label
         .descendants()
@@ -304,7 +305,7 @@ fn ellipse_arcs_end_on_the_major_axis_ends() {
         .filter_map(|n| n.text())
         .flat_map(|t| t.split_whitespace())
         .collect();
-    assert_eq!(text.join(" "), "bay 1 axes 110.00 × 70.00 mm at 20.0°");
+    assert_eq!(text.join(" "), "bay 1 a = 55.00, b = 35.00 mm at 20.0°");
 }
 
 #[test]

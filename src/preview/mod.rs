@@ -21,7 +21,7 @@
 //! pierce point, `plunge-centre` its hollow), `tab` (the stretch of the tool-centre path left
 //! uncut, `data-from` and `data-to` its ends in mm along the contour from its start),
 //! `tab-marker` (a diamond at each tab's middle), `work-zero`, and the labels: `ellipse-label`
-//! (name, full axes, angle), `hole-label` (`Ø9 mm` for a circle), `cut-order` (the cut's number
+//! (name, semi-axes a and b, angle), `hole-label` (`Ø9 mm` for a circle), `cut-order` (the cut's number
 //! in the program, beside its entry point, `data-order`), `leader` (from a label set away from
 //! its feature back to it); then `scale-bar`, `legend` and `title`.
 //!
@@ -830,18 +830,15 @@ fn label_group(input: &PreviewInput, starts: &[Start], page: &mut Page) -> Group
         .add(texts)
 }
 
-/// An ellipse's label: its name, full axes and angle. Inside it, small enough to fit across it
+/// An ellipse's label: its name, semi-axes and angle. Inside it, small enough to fit across it
 /// (the half-width of the ellipse along x is ab / sqrt(b² cos²θ + a² sin²θ)); `outside` it, as
 /// large as that or a twentieth of the major axis, up to 0.55 of the page's text. Never below
 /// [`MIN_FONT`] nor above the page's text.
 fn ellipse_block(name: &str, e: &Ellipse, page_font: f64, outside: bool) -> TextBlock {
     let lines = vec![
         name.to_string(),
-        format!(
-            "axes {} × {} mm",
-            fixed(2.0 * e.a(), 2),
-            fixed(2.0 * e.b(), 2)
-        ),
+        // Semi-axes a and b, as the report and its JSON give them: one convention everywhere.
+        format!("a = {}, b = {} mm", fixed(e.a(), 2), fixed(e.b(), 2)),
         format!("at {}°", fixed(e.angle().to_degrees(), 1)),
     ];
     let (s, c) = e.angle().sin_cos();

@@ -470,6 +470,10 @@ impl Report {
                 f.name, kind, side, centre, a, b, ang, f.contour_moves, f.measured_deviation_mm
             );
         }
+        let _ = writeln!(
+            s,
+            "(a, b: the ellipse's semi-axes, half its major and minor axes, as in the preview)"
+        );
         self.write_tabs(&mut s);
         self.write_rapids(&mut s);
         if let Some(t) = &self.cycle_time {
