@@ -297,6 +297,43 @@ fn main() {
     }
 }
 
+/// The largest program `check` reads (bytes): far beyond any real program, and a guard against
+/// a device or a runaway file.
+const MAX_PROGRAM_BYTES: u64 = 1 << 30;
+
+/// The program's text for `check`: a regular file of at most [`MAX_PROGRAM_BYTES`], UTF-8 (the
+/// line of the first byte that is not), a byte-order mark left out, CR-only line ends read as
+/// line ends.
+fn read_program_text(path: &Path) -> std::result::Result<String, CheckUnreadable> {
+    let fail =
+        |why: String| CheckUnreadable(format!("cannot read the program {}: {why}", path.display()));
+    let meta = fs::metadata(path).map_err(|e| fail(e.to_string()))?;
+    if !meta.is_file() {
+        return Err(fail("it is not a regular file".into()));
+    }
+    if meta.len() > MAX_PROGRAM_BYTES {
+        return Err(fail(format!(
+            "it is {} bytes long, more than the {MAX_PROGRAM_BYTES} this checker reads",
+            meta.len()
+        )));
+    }
+    let bytes = fs::read(path).map_err(|e| fail(e.to_string()))?;
+    let text = String::from_utf8(bytes).map_err(|e| {
+        let at = e.utf8_error().valid_up_to();
+        let line = 1 + e.as_bytes()[..at].iter().filter(|&&b| b == b'\n').count();
+        fail(format!(
+            "line {line} holds a byte that is not UTF-8 text (save the program as plain ASCII \
+             or UTF-8)"
+        ))
+    })?;
+    let text = text.strip_prefix('\u{feff}').unwrap_or(&text);
+    Ok(if text.contains('\r') && !text.contains('\n') {
+        text.replace('\r', "\n")
+    } else {
+        text.to_string()
+    })
+}
+
 /// `conicut check` could not read its program, drawing, job or profile (exit code 2).
 #[derive(Debug)]
 struct CheckUnreadable(String);
@@ -517,12 +554,7 @@ fn run(cli: Cli) -> Result<()> {
             input,
             cut,
         } => {
-            let text = fs::read_to_string(&program).map_err(|e| {
-                CheckUnreadable(format!(
-                    "cannot read the program {}: {e}",
-                    program.display()
-                ))
-            })?;
+            let text = read_program_text(&program)?;
             let unreadable = |e: anyhow::Error| CheckUnreadable(format!("{e:#}"));
             let machine = read_profile(&machine).map_err(unreadable)?;
             let (bytes, file_name, _) = read_drawing(&against).map_err(unreadable)?;

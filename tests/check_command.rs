@@ -380,3 +380,104 @@ fn the_picture_marks_each_finding_where_it_occurs() {
     let svg = fs::read_to_string(dir.path().join("clean.svg")).unwrap();
     assert!(!svg.contains("class=\"finding\""));
 }
+
+#[test]
+fn whole_turns_truncation_and_repeated_words_are_caught() {
+    // A whole circle (end = start) cut through the plate at depth: read as its two halves, so
+    // it is seen, off every path and in the part.
+    let mut p = clean();
+    for (k, line) in [
+        "G0 X30 Y45",
+        "G1 Z-1 F100",
+        "G3 X30 Y45 I5 J0 F400",
+        "G0 Z15",
+    ]
+    .into_iter()
+    .enumerate()
+    {
+        p.insert(26 + k, line.into());
+    }
+    let (code, json, _) = check(&p);
+    assert_eq!(code, 1);
+    let found = must_fix(&json);
+    assert!(found.contains(&(29, "gouge".to_string())), "{found:?}");
+    assert!(found.contains(&(29, "stray".to_string())), "{found:?}");
+    // The same circle past the travel (X −10…400): the travel check sees its far side.
+    let mut p = clean();
+    for (k, line) in [
+        "G0 X30 Y45",
+        "G1 Z-1 F100",
+        "G3 X30 Y45 I-30 J0 F400",
+        "G0 Z15",
+    ]
+    .into_iter()
+    .enumerate()
+    {
+        p.insert(26 + k, line.into());
+    }
+    let (_, json, _) = check(&p);
+    assert!(
+        must_fix(&json).contains(&(29, "travel".to_string())),
+        "{json}"
+    );
+    // Cut short before its end: no M30.
+    let mut p = clean();
+    p.truncate(CLEAN.len() - 2);
+    let (code, json, _) = check(&p);
+    assert_eq!(code, 1);
+    assert!(
+        must_fix(&json).iter().any(|(_, r)| r == "program-end"),
+        "{json}"
+    );
+    // A word twice on one line.
+    let (code, json, _) = check(&with_line(14, "G0 X-5 X200 Y-8"));
+    assert_eq!(code, 1);
+    assert!(must_fix(&json).contains(&(14, "repeated-word".to_string())));
+}
+
+#[test]
+fn a_pierce_dwell_on_the_beam_on_line_counts_and_a_missing_one_is_caught() {
+    let root = env!("CARGO_MANIFEST_DIR");
+    let drawing = format!("{root}/demo-parts/truss-bracket.dxf");
+    let dir = tempfile::tempdir().unwrap();
+    Command::cargo_bin("conicut")
+        .unwrap()
+        .current_dir(dir.path())
+        .args(["plan", &drawing, "--machine", "laser", "--out", "out"])
+        .assert()
+        .success();
+    let program = fs::read_to_string(dir.path().join("out/truss-bracket.nc")).unwrap();
+    assert!(
+        program.contains("M3\nG4 P0.50\n"),
+        "the laser's pierce as written"
+    );
+    let run = |text: &str| {
+        fs::write(dir.path().join("t.nc"), text).unwrap();
+        let out = Command::cargo_bin("conicut")
+            .unwrap()
+            .current_dir(dir.path())
+            .args([
+                "check",
+                "t.nc",
+                "--against",
+                &drawing,
+                "--machine",
+                "laser",
+                "--json",
+            ])
+            .output()
+            .unwrap();
+        let json: serde_json::Value =
+            serde_json::from_slice(&out.stdout).unwrap_or(serde_json::Value::Null);
+        (out.status.code(), json)
+    };
+    // NISTIR 6556 §3.8: on one line the spindle (here the beam) comes on before the dwell.
+    let (code, json) = run(&program.replace("M3\nG4 P0.50\n", "M3 G4 P0.50\n"));
+    assert_eq!(code, Some(0), "{json}");
+    let (code, json) = run(&program.replacen("M3\nG4 P0.50\n", "M3\n", 1));
+    assert_eq!(code, Some(1));
+    assert!(
+        must_fix(&json).iter().any(|(_, r)| r == "pierce-dwell"),
+        "{json}"
+    );
+}

@@ -104,6 +104,8 @@ pub struct FeatureCheck {
     pub tabs: usize,
     /// The program line of the move reaching farthest onto the part side.
     pub worst_part_line: Option<usize>,
+    /// The program line of the move at the largest deviation either way.
+    pub worst_line: Option<usize>,
 }
 
 /// The outcome of [`check_against`].
@@ -143,8 +145,10 @@ pub fn check_against(trace: &Trace, cuts: &[PlannedCut], rules: &AgainstRules) -
         .zip(&by_feature)
         .map(|(cut, at)| measure_feature(trace, cut, at, band))
         .collect();
+    // From here on the reader could not follow the program: nothing after it is measured.
+    let lost = trace.moves.iter().find(|m| !m.measurable).map(|m| m.line);
     for f in &features {
-        feature_findings(f, rules, &mut findings);
+        feature_findings(f, rules, lost, &mut findings);
     }
     stray_runs(trace, &cutting, &owner, &mut findings);
     // Which feature's contour each cutting move is (its own edge is then held by the part-side
@@ -352,22 +356,33 @@ fn measure_feature(trace: &Trace, cut: &PlannedCut, at: &[usize], band: f64) -> 
         part_side_mm: deviation.map(|d| d.part_side),
         uncut,
         tabs,
+        worst_line: deviation.and_then(|d| at.get(d.worst_move).map(|&i| trace.moves[i].line)),
         worst_part_line: deviation
             .and_then(|d| at.get(d.worst_part_move).map(|&i| trace.moves[i].line)),
     }
 }
 
-fn feature_findings(f: &FeatureCheck, rules: &AgainstRules, out: &mut Vec<ProgramFinding>) {
+fn feature_findings(
+    f: &FeatureCheck,
+    rules: &AgainstRules,
+    lost: Option<usize>,
+    out: &mut Vec<ProgramFinding>,
+) {
     let line = f.lines.map_or(0, |l| l.0);
     if f.moves == 0 {
-        out.push(ProgramFinding::must_fix(
-            0,
-            "not-cut",
-            format!(
+        let message = match lost {
+            Some(l) => format!(
+                "\"{}\" is not measured: no cutting move the checker could follow runs along its \
+                 path, and the moves from line {l} on are not followed (see the finding before \
+                 them)",
+                f.name
+            ),
+            None => format!(
                 "\"{}\" is not cut: no cutting move runs along its path",
                 f.name
             ),
-        ));
+        };
+        out.push(ProgramFinding::must_fix(0, "not-cut", message));
         return;
     }
     if let Some(d) = f
@@ -375,7 +390,7 @@ fn feature_findings(f: &FeatureCheck, rules: &AgainstRules, out: &mut Vec<Progra
         .filter(|&d| d > rules.tolerance + DEVIATION_ALLOWANCE)
     {
         out.push(ProgramFinding::must_fix(
-            line,
+            f.worst_line.unwrap_or(line),
             "deviation",
             format!(
                 "\"{}\" (lines {}–{}) strays {d:.4} mm from its exact tool-centre curve, more \

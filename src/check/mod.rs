@@ -79,6 +79,8 @@ pub struct Trace {
     pub speeds: Vec<(usize, f64)>,
     /// Every time the spindle (or process) comes on or goes off.
     pub switches: Vec<reader::Switch>,
+    /// The line of the program's end (M2 or M30), if it has one.
+    pub end_line: Option<usize>,
 }
 
 /// Reads a program and follows it move by move; the first thing that must be fixed (see

@@ -183,6 +183,15 @@ pub fn check_program(
     if let Some(dwell) = machine.pierce_dwell {
         pierce_dwells(&trace, dwell, &mut findings);
     }
+    if trace.end_line.is_none() {
+        findings.push(ProgramFinding::must_fix(
+            program.lines().count(),
+            "program-end",
+            "the program has no end (M2 or M30): it may have been cut short, and the spindle or \
+             process would be left as it is; write the program again or end it"
+                .into(),
+        ));
+    }
     let Against {
         features,
         findings: measured,
@@ -343,7 +352,7 @@ fn rapids(
                 "rapid-cutting",
                 "a rapid (G0) in XY with the beam, torch or jet on".into(),
             ));
-        } else if low < machine.safe_height - 1e-9 && over_part(m) {
+        } else if low < machine.safe_height - HEIGHT_ROUNDING && over_part(m) {
             out.push(ProgramFinding::warning(
                 m.line,
                 "rapid-height",
@@ -356,6 +365,10 @@ fn rapids(
         }
     }
 }
+
+/// How far below the safe height a rapid may be by the rounding of its written Z alone (mm): a
+/// height written to 3 decimals of a millimetre or 4 of an inch (0.00005 in = 0.00127 mm).
+pub const HEIGHT_ROUNDING: f64 = 0.002;
 
 /// The spacing of the points at which a low rapid is tested for passing over the part (mm).
 pub const RAPID_SPACING: f64 = 0.5;
@@ -370,22 +383,32 @@ fn over(part: Option<Bounds>, m: &TraceMove) -> bool {
     x1 >= b.min.x && x0 <= b.max.x && y1 >= b.min.y && y0 <= b.max.y
 }
 
-/// Each time the process comes on, a dwell of at least `dwell` seconds after it and before the
-/// first XY feed move.
+/// Each time the process comes on, a dwell of at least `dwell` seconds after it (on its line or
+/// later) and before the first XY feed move. One pass over the switches, dwells and moves
+/// together.
 fn pierce_dwells(trace: &Trace, dwell: f64, out: &mut Vec<ProgramFinding>) {
+    let mut next_dwell = 0;
+    let mut next_move = 0;
     for s in trace.switches.iter().filter(|s| s.on) {
-        let Some(first) = (s.before_move..trace.moves.len())
-            .find(|&j| !trace.moves[j].rapid && moves_xy(&trace.moves[j]))
-        else {
-            continue;
+        next_move = next_move.max(s.before_move);
+        while next_move < trace.moves.len()
+            && (trace.moves[next_move].rapid || !moves_xy(&trace.moves[next_move]))
+        {
+            next_move += 1;
+        }
+        let Some(first) = trace.moves.get(next_move) else {
+            break;
         };
-        let until = trace.moves[first].line;
-        let waited: f64 = trace
-            .dwells
-            .iter()
-            .filter(|d| d.line > s.line && d.line < until)
-            .map(|d| d.seconds)
-            .sum();
+        let until = first.line;
+        while next_dwell < trace.dwells.len() && trace.dwells[next_dwell].line < s.line {
+            next_dwell += 1;
+        }
+        let mut waited = 0.0;
+        let mut k = next_dwell;
+        while k < trace.dwells.len() && trace.dwells[k].line < until {
+            waited += trace.dwells[k].seconds;
+            k += 1;
+        }
         if waited + 1e-9 < dwell {
             out.push(ProgramFinding::must_fix(
                 s.line,

@@ -5,8 +5,10 @@
 //! and Messina, "The NIST RS274NGC Interpreter – Version 3", 2000; section numbers below are
 //! that report's):
 //!
-//! * `%` lines, comments in parentheses and after `;`, `N` line numbers, block delete `/` at the
-//!   start of a line (§3.3; the block is followed as if the switch were off, and reported);
+//! * `%` lines, comments in parentheses and after `;`, `N` line numbers, `O` program numbers,
+//!   block delete `/` at the start of a line (§3.3; the block is followed as if the switch were
+//!   off, and reported); a whole turn (an arc ending where it starts) is read as its two halves;
+//!   `G80` and `G49` (cancelling what the reader never follows) are taken as no change;
 //! * `G0 G1 G2 G3` (arcs by `I J`, or by `R`: §3.5.3), `G4 P` (dwell, in seconds, or in
 //!   milliseconds where the profile says so), `G17`, `G20 G21`, `G90 G91` (distance mode),
 //!   `G90.1 G91.1` (arc centre absolute or incremental; incremental unless told), `G40`,
@@ -19,7 +21,9 @@
 //! * a word it does not follow (another plane, cutter compensation in the controller, canned
 //!   cycles, a rotary axis, an unknown letter or code): the moves after it cannot be measured;
 //!   an unknown `M` code is a warning;
-//! * two words of one modal group on a line (§3.4, Table 4; M7 with M8 is allowed);
+//! * two words of one modal group on a line (§3.4, Table 4; M7 with M8 is allowed), or two of
+//!   one letter among X Y Z I J R F S P;
+//! * a feed rate that is not positive, a spindle speed below zero;
 //! * a move before the units word (G20 or G21): the reader would have to guess the units;
 //! * a feed move (G1, G2, G3) with no feed rate in force (§3.5.1);
 //! * an arc whose start and end radius differ by more than 0.002 mm, or 0.0002 in in inch mode
@@ -148,6 +152,7 @@ pub fn read_program(program: &str, dialect: &Dialect) -> Reading {
         speeds: Vec::new(),
         switches: Vec::new(),
         findings: Vec::new(),
+        end_line: None,
     };
     for (i, raw) in program.lines().enumerate() {
         let t = raw.trim();
@@ -194,6 +199,7 @@ struct Reader<'d> {
     speeds: Vec<(usize, f64)>,
     switches: Vec<Switch>,
     findings: Vec<ProgramFinding>,
+    end_line: Option<usize>,
 }
 
 /// A modal group, for the two-in-a-line rule (NISTIR 6556 Table 4).
@@ -279,6 +285,7 @@ impl Reader<'_> {
             match c {
                 '(' => {
                     let mut text = String::new();
+                    let mut told_semicolon = false;
                     loop {
                         match chars.get(k) {
                             Some(')') => {
@@ -290,7 +297,8 @@ impl Reader<'_> {
                                 return None;
                             }
                             Some(&ch) => {
-                                if ch == ';' && !text.contains(';') {
+                                if ch == ';' && !told_semicolon {
+                                    told_semicolon = true;
                                     self.warn(
                                         line,
                                         "comment",
@@ -398,15 +406,38 @@ impl Reader<'_> {
         let mut p_word = None;
         let mut groups: Vec<(&'static str, String)> = Vec::new();
         let mut m_codes = Vec::new();
+        let mut seen = String::new();
         for w in words {
             let Some(v) = w.value else {
+                let shown: String = w.text.chars().take(24).collect();
+                let more = if w.text.chars().count() > 24 {
+                    "…"
+                } else {
+                    ""
+                };
                 self.must_fix(
                     line,
                     "number",
-                    format!("\"{}{}\" is not a number", w.letter, w.text),
+                    format!("\"{}{shown}{more}\" is not a number", w.letter),
                 );
                 return;
             };
+            // One word of each letter a line (NISTIR 6556 §3.4): which one a controller takes
+            // is not to be guessed.
+            if "XYZIJRFSP".contains(w.letter) {
+                if seen.contains(w.letter) {
+                    self.must_fix(
+                        line,
+                        "repeated-word",
+                        format!(
+                            "the word {} appears twice on this line; a controller may refuse \
+                             the line or take either",
+                            w.letter
+                        ),
+                    );
+                }
+                seen.push(w.letter);
+            }
             match w.letter {
                 'N' => {}
                 'G' => {
@@ -417,7 +448,9 @@ impl Reader<'_> {
                     match code {
                         0 | 10 | 20 | 30 => motion = Some((code / 10) as u8),
                         40 => dwell = true,
-                        170 | 400 | 610 | 611 | 640 | 940 | 540..=590 => {}
+                        // G80 and G49 cancel what the reader never follows (cycles,
+                        // length offsets): the state it assumes.
+                        170 | 400 | 490 | 610 | 611 | 640 | 800 | 940 | 540..=590 => {}
                         200 => self.st.inch = Some(true),
                         210 => self.st.inch = Some(false),
                         900 => self.st.incremental = false,
@@ -472,13 +505,30 @@ impl Reader<'_> {
                     "K is not used by arcs in the XY plane (G17) and was ignored".into(),
                 ),
                 'R' => radius = Some(v),
-                'F' => self.st.feed = v,
+                'F' => {
+                    if v <= 0.0 {
+                        self.must_fix(
+                            line,
+                            "feed",
+                            format!("F{} is not a feed rate: give a positive one", w.text),
+                        );
+                    }
+                    self.st.feed = v;
+                }
                 'S' => {
+                    if v < 0.0 {
+                        self.must_fix(
+                            line,
+                            "spindle-speed",
+                            format!("S{} is not a spindle speed: give zero or more", w.text),
+                        );
+                    }
                     self.st.speed = v;
                     self.speeds.push((line, v));
                 }
                 'P' => p_word = Some(v),
-                'T' | 'H' | 'D' => {}
+                // O: a program number; T, H, D: tool numbers and offsets' registers.
+                'O' | 'T' | 'H' | 'D' => {}
                 other => {
                     self.must_fix(
                         line,
@@ -557,7 +607,12 @@ impl Reader<'_> {
             match code {
                 3 | 4 => self.st.on = true,
                 5 => self.st.on = false,
-                2 | 30 => self.st.ended = true,
+                2 | 30 => {
+                    if !self.st.ended {
+                        self.end_line = Some(line);
+                    }
+                    self.st.ended = true
+                }
                 0 | 1 => self.warn(
                     line,
                     "stop",
@@ -665,7 +720,7 @@ impl Reader<'_> {
         } else {
             None
         };
-        self.moves.push(TraceMove {
+        let mv = |from: [f64; 3], to: [f64; 3]| TraceMove {
             line,
             rapid: motion == 0,
             from,
@@ -678,7 +733,25 @@ impl Reader<'_> {
             },
             on: self.st.on,
             measurable: !self.st.lost,
-        });
+        };
+        match arc {
+            // A whole turn (the end is the start in X and Y) is read as its two halves, so that
+            // every later measure sees a turn and not a point.
+            Some((c, _)) if from[0] == to[0] && from[1] == to[1] => {
+                let half = [
+                    2.0 * c[0] - from[0],
+                    2.0 * c[1] - from[1],
+                    0.5 * (from[2] + to[2]),
+                ];
+                let (first, second) = (mv(from, half), mv(half, to));
+                self.moves.push(first);
+                self.moves.push(second);
+            }
+            _ => {
+                let m = mv(from, to);
+                self.moves.push(m);
+            }
+        }
         self.st.pos = to;
     }
 
@@ -814,6 +887,7 @@ impl Reader<'_> {
                 dwells: self.dwells,
                 speeds: self.speeds,
                 switches: self.switches,
+                end_line: self.end_line,
             },
             findings: self.findings,
         }

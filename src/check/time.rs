@@ -132,7 +132,11 @@ pub struct CycleTime {
 /// does not stop for them (see [`cycle_time_with_stops`]).
 pub fn cycle_time(moves: &[TraceMove], dwells_s: &[f64], limits: &TimeLimits) -> CycleTime {
     let mut time = plan(moves, &[], limits);
-    time.dwell_s = dwells_s.iter().copied().filter(|d| *d >= 0.0).sum();
+    time.dwell_s = dwells_s
+        .iter()
+        .copied()
+        .filter(|d| *d >= 0.0)
+        .fold(0.0, |a, d| a + d);
     time.total_s = time.cutting_s + time.rapid_s + time.dwell_s;
     time
 }
@@ -148,7 +152,11 @@ pub fn cycle_time_with_stops(
     let mut stops: Vec<usize> = dwells.iter().map(|d| d.0).collect();
     stops.sort_unstable();
     let mut time = plan(moves, &stops, limits);
-    time.dwell_s = dwells.iter().map(|d| d.1).filter(|d| *d >= 0.0).sum();
+    time.dwell_s = dwells
+        .iter()
+        .map(|d| d.1)
+        .filter(|d| *d >= 0.0)
+        .fold(0.0, |a, d| a + d);
     time.total_s = time.cutting_s + time.rapid_s + time.dwell_s;
     time
 }
