@@ -270,32 +270,70 @@ pub fn sanitize(text: &str) -> String {
     mapped.split_whitespace().collect::<Vec<_>>().join(" ")
 }
 
-/// Splits `text` into pieces of at most `width` characters, at spaces where possible.
+/// Splits `text` into pieces of at most `width` characters: at clause boundaries (after a `,`,
+/// `;`, `:` or `.` and its space) where the clauses fit, so that no figure is left alone on a
+/// line; a clause longer than `width` is split at spaces, and a word longer than `width` cut.
 pub(super) fn wrap(text: &str, width: usize) -> Vec<String> {
     let mut lines = Vec::new();
     let mut current = String::new();
-    for word in text.split(' ').filter(|w| !w.is_empty()) {
-        let mut word = word.to_string();
-        while word.len() > width {
+    for clause in clauses(text) {
+        let fits = if current.is_empty() {
+            clause.len() <= width
+        } else {
+            current.len() + 1 + clause.len() <= width
+        };
+        if fits {
             if !current.is_empty() {
-                lines.push(std::mem::take(&mut current));
+                current.push(' ');
             }
-            let rest = word.split_off(width);
-            lines.push(word);
-            word = rest;
-        }
-        if !current.is_empty() && current.len() + 1 + word.len() > width {
-            lines.push(std::mem::take(&mut current));
+            current.push_str(&clause);
+            continue;
         }
         if !current.is_empty() {
-            current.push(' ');
+            lines.push(std::mem::take(&mut current));
         }
-        current.push_str(&word);
+        // The clause alone: word by word.
+        for word in clause.split(' ').filter(|w| !w.is_empty()) {
+            let mut word = word.to_string();
+            while word.len() > width {
+                if !current.is_empty() {
+                    lines.push(std::mem::take(&mut current));
+                }
+                let rest = word.split_off(width);
+                lines.push(word);
+                word = rest;
+            }
+            if !current.is_empty() && current.len() + 1 + word.len() > width {
+                lines.push(std::mem::take(&mut current));
+            }
+            if !current.is_empty() {
+                current.push(' ');
+            }
+            current.push_str(&word);
+        }
     }
     if !current.is_empty() || lines.is_empty() {
         lines.push(current);
     }
     lines
+}
+
+/// The clauses of `text`, each ending with its punctuation (`,` `;` `:` `.`) where it has one,
+/// spaces between words made single.
+fn clauses(text: &str) -> Vec<String> {
+    let mut out = Vec::new();
+    let mut current: Vec<&str> = Vec::new();
+    for word in text.split(' ').filter(|w| !w.is_empty()) {
+        current.push(word);
+        if word.ends_with([',', ';', ':', '.']) {
+            out.push(current.join(" "));
+            current.clear();
+        }
+    }
+    if !current.is_empty() {
+        out.push(current.join(" "));
+    }
+    out
 }
 
 #[cfg(test)]
@@ -319,5 +357,24 @@ mod tests {
         );
         assert_eq!(lines.concat().matches('x').count(), 250);
         assert_eq!(wrap("", 10), vec![String::new()]);
+    }
+
+    #[test]
+    fn wrap_breaks_at_clauses_and_leaves_no_figure_alone() {
+        let text = "2 bay 1: elliptical opening, tool inside, 18 feed moves: 0 lines and 18 arcs, \
+                    fitted deviation 0.0086 mm";
+        let lines = wrap(text, 90);
+        assert_eq!(
+            lines,
+            [
+                "2 bay 1: elliptical opening, tool inside, 18 feed moves: 0 lines and 18 arcs,",
+                "fitted deviation 0.0086 mm"
+            ]
+        );
+        // A clause longer than the width still splits at spaces, losing nothing.
+        let long = format!("{}, end", "w ".repeat(80).trim_end());
+        let lines = wrap(&long, 50);
+        assert!(lines.iter().all(|l| l.len() <= 50), "{lines:?}");
+        assert_eq!(lines.join(" "), long);
     }
 }
