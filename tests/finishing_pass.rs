@@ -62,6 +62,7 @@ fn finishing_pass_roughs_at_r_plus_s_in_every_pass_and_finishes_once_at_full_dep
         out.program
             .contains("(finishing pass: the roughing cuts leave 0.3000 mm of radial stock,")
     );
+    assert!(out.program.contains("9 finishing cuts then"));
     let trace = read_back(&out.program);
     let names = feature_names(&trace);
     assert_eq!(names.len(), 18, "{names:?}");
