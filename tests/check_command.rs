@@ -255,6 +255,12 @@ fn the_gouge_is_measured_and_uncut_and_stray_cuts_are_found() {
     let (code, json, _) = check(&p);
     assert_eq!(code, 1);
     assert_eq!(must_fix(&json), [(29, "stray".to_string())], "{json}");
+    // The same stray cut with a move that goes nowhere in its middle is still one run.
+    p.insert(29, "G1 X210 Y20".into());
+    p.insert(30, "G1 X210 Y20 Z-1".into());
+    p.insert(31, "G1 X220 Y20".into());
+    let (_, json, _) = check(&p);
+    assert_eq!(must_fix(&json), [(29, "stray".to_string())], "{json}");
 }
 
 #[test]

@@ -170,16 +170,24 @@ fn runs(trace: &Trace, cutting: &[usize]) -> Vec<std::ops::Range<usize>> {
     let mut k = 0;
     while k < cutting.len() {
         let mut end = k + 1;
-        while end < cutting.len()
-            && cutting[end] == cutting[end - 1] + 1
-            && trace.moves[cutting[end]].from == trace.moves[cutting[end - 1]].to
-        {
+        while end < cutting.len() && joined(trace, cutting[end - 1], cutting[end]) {
             end += 1;
         }
         out.push(k..end);
         k = end;
     }
     out
+}
+
+/// Whether the cutting moves `a` and `b` (trace indices, `a < b`) are one chain: `b` starts in
+/// XY where `a` ends, and the moves between them (if any) are feed moves that stay there (a move
+/// only in Z, or one that rounds to no movement).
+fn joined(trace: &Trace, a: usize, b: usize) -> bool {
+    let xy = |p: [f64; 3]| (p[0], p[1]);
+    xy(trace.moves[b].from) == xy(trace.moves[a].to)
+        && trace.moves[a + 1..b]
+            .iter()
+            .all(|m| !m.rapid && xy(m.from) == xy(m.to))
 }
 
 /// Each feature's contour moves (trace indices, in order): the moves within the tight band of
@@ -488,7 +496,9 @@ fn gouges(
                 // A move along a path is measured by its deviation; the others (leads,
                 // entries, strays) must stay in the scrap.
                 if worst.is_none() && own.is_none() && material.contains(p, &mut near) {
+                    // In the part: that is the finding; the rest of the move adds nothing.
                     worst = Some((0.0, p, usize::MAX, true));
+                    break;
                 }
             }
             worst.map(|(d, p, c, material)| {
