@@ -293,6 +293,7 @@ pub(super) fn wrap(text: &str, width: usize) -> Vec<String> {
             lines.push(std::mem::take(&mut current));
         }
         // The clause alone: word by word.
+        let first_line = lines.len();
         for word in clause.split(' ').filter(|w| !w.is_empty()) {
             let mut word = word.to_string();
             while word.len() > width {
@@ -310,6 +311,16 @@ pub(super) fn wrap(text: &str, width: usize) -> Vec<String> {
                 current.push(' ');
             }
             current.push_str(&word);
+        }
+        // No lone word at the clause's end: the line before gives it its last word.
+        if lines.len() > first_line
+            && !current.contains(' ')
+            && let Some(prev) = lines.last_mut()
+            && let Some((keep, moved)) = prev.rsplit_once(' ')
+            && moved.len() + 1 + current.len() <= width
+        {
+            current = format!("{moved} {current}");
+            *prev = keep.to_string();
         }
     }
     if !current.is_empty() || lines.is_empty() {
@@ -376,5 +387,12 @@ mod tests {
         let lines = wrap(&long, 50);
         assert!(lines.iter().all(|l| l.len() <= 50), "{lines:?}");
         assert_eq!(lines.join(" "), long);
+        // No lone word at a long clause's end.
+        let lines = wrap("one two three four five six seven eight nine ten.", 20);
+        assert!(lines.last().unwrap().contains(' '), "{lines:?}");
+        assert_eq!(
+            lines.join(" "),
+            "one two three four five six seven eight nine ten."
+        );
     }
 }
