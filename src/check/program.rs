@@ -138,10 +138,20 @@ impl ProgramCheck {
     }
 }
 
+/// A number for a message: three decimals, or in exponent form past a billion (a program's
+/// absurd values stay readable).
+pub fn shown(v: f64) -> String {
+    if v.abs() >= 1e9 {
+        format!("{v:.3e}")
+    } else {
+        format!("{v:.3}")
+    }
+}
+
 /// Seconds as `2 h 05 min 12 s`, `3 min 12.4 s` or `12.4 s`.
 pub fn minutes(seconds: f64) -> String {
-    if !seconds.is_finite() {
-        return format!("{seconds} s");
+    if !seconds.is_finite() || seconds >= 1e9 {
+        return format!("{} s", shown(seconds));
     }
     if seconds >= 3600.0 {
         let whole = seconds.round() as u64;
@@ -245,9 +255,10 @@ fn travel(trace: &Trace, machine: &MachineRules, out: &mut Vec<ProgramFinding>) 
                         m.line,
                         "travel",
                         format!(
-                            "the tool reaches {}{value:.3} mm, past the {} travel limit {limit} mm \
+                            "the tool reaches {}{} mm, past the {} travel limit {limit} mm \
                              of profile \"{}\" (later moves past it are not listed)",
                             axes[k],
+                            shown(value),
                             if side == 0 { "lower" } else { "upper" },
                             machine.profile
                         ),
@@ -269,8 +280,10 @@ fn limits(trace: &Trace, machine: &MachineRules, out: &mut Vec<ProgramFinding>) 
                 m.line,
                 "feed-limit",
                 format!(
-                    "the feed {:.1} mm/min is above the largest {} mm/min of profile \"{}\"",
-                    m.feed, machine.max_feed, machine.profile
+                    "the feed {} mm/min is above the largest {} mm/min of profile \"{}\"",
+                    shown(m.feed),
+                    machine.max_feed,
+                    machine.profile
                 ),
             ));
         }

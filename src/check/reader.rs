@@ -43,6 +43,9 @@ use serde::Serialize;
 /// past them (the others are broken rules of a program that can still be measured).
 pub const UNREADABLE: [&str; 5] = ["comment", "character", "number", "unsupported", "motion"];
 
+/// The most findings of one rule listed for one line.
+pub const MAX_SAME_FINDINGS: usize = 3;
+
 /// An `R` arc whose sweep is within this many degrees of 180° or 360° is a warning.
 pub const R_NEAR_HALF_TURN: f64 = 1.0;
 
@@ -233,13 +236,30 @@ fn group_of_m(code: i64) -> Option<&'static str> {
 
 impl Reader<'_> {
     fn must_fix(&mut self, line: usize, rule: &'static str, message: String) {
-        self.findings
-            .push(ProgramFinding::must_fix(line, rule, message));
+        if self.room_for(line, rule) {
+            self.findings
+                .push(ProgramFinding::must_fix(line, rule, message));
+        }
     }
 
     fn warn(&mut self, line: usize, rule: &'static str, message: String) {
-        self.findings
-            .push(ProgramFinding::warning(line, rule, message));
+        if self.room_for(line, rule) {
+            self.findings
+                .push(ProgramFinding::warning(line, rule, message));
+        }
+    }
+
+    /// Whether another finding of `rule` on `line` is listed: at most [`MAX_SAME_FINDINGS`] a
+    /// line and rule (a line of 300,000 words would otherwise give as many findings).
+    fn room_for(&mut self, line: usize, rule: &'static str) -> bool {
+        let recent = self
+            .findings
+            .iter()
+            .rev()
+            .take_while(|f| f.line == line)
+            .filter(|f| f.rule == rule)
+            .count();
+        recent < MAX_SAME_FINDINGS
     }
 
     fn line(&mut self, text: &str, line: usize) {
@@ -481,6 +501,13 @@ impl Reader<'_> {
                             self.st.lost = true;
                         }
                     }
+                }
+                'M' if !(0.0..=9999.0).contains(&v) || v.fract() != 0.0 => {
+                    self.warn(
+                        line,
+                        "unknown-m",
+                        format!("M{} is not an M code this checker knows", w.text),
+                    );
                 }
                 'M' => {
                     let code = v.round() as i64;
@@ -995,6 +1022,24 @@ mod tests {
         let r = read("G21 G91 G1 X1 Y1 F100\nX2 Y0\nG90 G90.1 G2 X5 Y1 I4 J1\n");
         assert_eq!(r.trace.moves[1].to, [3.0, 1.0, 0.0]);
         assert_eq!(r.trace.moves[2].arc.unwrap().0, [4.0, 1.0]);
+    }
+
+    #[test]
+    fn findings_per_line_are_capped_and_absurd_m_codes_quoted() {
+        let line = format!("G21 {}", "G0 ".repeat(1000));
+        let r = read(&line);
+        assert_eq!(
+            r.findings.len(),
+            MAX_SAME_FINDINGS,
+            "{:?}",
+            r.findings.len()
+        );
+        let r = read("G21\nM99999999999999999999\n");
+        assert!(
+            r.findings[0].message.contains("M99999999999999999999"),
+            "{:?}",
+            r.findings
+        );
     }
 
     #[test]
