@@ -85,6 +85,10 @@ pub struct AgainstRules {
     pub tolerance: f64,
     /// Laser, plasma or waterjet: every feed move with the process on cuts.
     pub thermal: bool,
+    /// Each cut's contour has been measured already, both ways and on the part side, by the same
+    /// measurement (`check::verify`, as the job does on what it writes): it is not measured again
+    /// here, and features carry no deviation.
+    pub contours_measured: bool,
 }
 
 /// One feature as the program cuts it.
@@ -143,7 +147,7 @@ pub fn check_against(trace: &Trace, cuts: &[PlannedCut], rules: &AgainstRules) -
     let features: Vec<FeatureCheck> = cuts
         .par_iter()
         .zip(&by_feature)
-        .map(|(cut, at)| measure_feature(trace, cut, at, band))
+        .map(|(cut, at)| measure_feature(trace, cut, at, band, rules.contours_measured))
         .collect();
     // From here on the reader could not follow the program: nothing after it is measured.
     let lost = trace.moves.iter().find(|m| !m.measurable).map(|m| m.line);
@@ -325,10 +329,20 @@ fn on_path(m: &TraceMove, cuts: &[PlannedCut], paths: &BoxGrid, band: f64) -> Op
     best.map(|(d, c)| (c, d))
 }
 
-fn measure_feature(trace: &Trace, cut: &PlannedCut, at: &[usize], band: f64) -> FeatureCheck {
+fn measure_feature(
+    trace: &Trace,
+    cut: &PlannedCut,
+    at: &[usize],
+    band: f64,
+    measured: bool,
+) -> FeatureCheck {
     let (starts, moves): (Vec<Point>, Vec<Move>) =
         at.iter().map(|&i| as_move(&trace.moves[i])).unzip();
-    let deviation = measure_pieces(&starts, &moves, cut.path(), cut.scrap_left());
+    let deviation = if measured {
+        None
+    } else {
+        measure_pieces(&starts, &moves, cut.path(), cut.scrap_left())
+    };
     let (mut uncut, covered) = uncut_stretches(&starts, &moves, cut.path(), band);
     // The tabs: as many stretches as the cut has tabs, each no longer than its tab.
     let mut tabs = 0;

@@ -511,6 +511,7 @@ pub fn check_job(
         tool_radius: resolved.tool_diameter / 2.0,
         tolerance: s.tolerance,
         thermal: profile.spindle().is_none(),
+        contours_measured: false,
     };
     Ok(check::program::check_program(
         program,
@@ -539,6 +540,8 @@ fn check_written(
         tool_radius: resolved.tool_diameter / 2.0,
         tolerance: s.tolerance,
         thermal: profile.spindle().is_none(),
+        // `read_back` (check::verify) has just measured every contour.
+        contours_measured: true,
     };
     let checked =
         check::program::check_program(program, &machine_rules(profile), cuts, &rules, part, false);
