@@ -41,10 +41,10 @@
 //! Edges and paths are found through grids over their boxes (`geom::BoxGrid`), so the cost is
 //! linear in the moves and the features.
 
-use super::deviation::{Uncut, measure_pieces, uncut_stretches};
+use super::deviation::{Uncut, measure_pieces, path_distance, uncut_stretches};
 use super::reader::ProgramFinding;
 use super::{Trace, TraceMove};
-use crate::geom::{Bounds, BoxGrid, Element, ExactPath, Move, Point};
+use crate::geom::{Bounds, BoxGrid, Move, Point};
 use crate::plan::{CutSide, PlannedCut};
 use rayon::prelude::*;
 use serde::Serialize;
@@ -266,39 +266,6 @@ fn is_cutting(m: &TraceMove, rules: &AgainstRules, findings: &mut Vec<ProgramFin
     below && m.on
 }
 
-/// The move as the checker's deviation measure takes it: its start and its XY move.
-fn as_move(m: &TraceMove) -> (Point, Move) {
-    let to = Point::new(m.to[0], m.to[1]);
-    let mv = match m.arc {
-        Some((c, ccw)) => Move::Arc {
-            to,
-            centre: Point::new(c[0], c[1]),
-            ccw,
-        },
-        None => Move::Line { to },
-    };
-    (Point::new(m.from[0], m.from[1]), mv)
-}
-
-/// The unsigned distance from `p` to the exact path.
-fn path_distance(path: &ExactPath, p: Point) -> f64 {
-    match path {
-        ExactPath::EllipseParallel { ellipse, inset, .. } => {
-            let (d, _) = ellipse.distance_to(p);
-            let inside = if ellipse.contains(p) { d } else { -d };
-            (inside - inset).abs()
-        }
-        ExactPath::Contour(c) => c
-            .elements()
-            .iter()
-            .map(|e| match e {
-                Element::Line(s) => s.distance_to(p),
-                Element::Arc(a) => a.distance_to(p),
-            })
-            .fold(f64::INFINITY, f64::min),
-    }
-}
-
 /// The feature whose path the whole move lies near (within `band`), the nearest if several, and
 /// the largest distance of the move's samples from it.
 fn on_path(m: &TraceMove, cuts: &[PlannedCut], paths: &BoxGrid, band: f64) -> Option<(usize, f64)> {
@@ -306,7 +273,7 @@ fn on_path(m: &TraceMove, cuts: &[PlannedCut], paths: &BoxGrid, band: f64) -> Op
     if m.from[2] != m.to[2] {
         return None;
     }
-    let (from, mv) = as_move(m);
+    let (from, mv) = m.xy();
     let points: Vec<Point> = (0..MOVE_SAMPLES)
         .map(|k| mv.point_at(from, k as f64 / (MOVE_SAMPLES - 1) as f64))
         .collect();
@@ -336,8 +303,7 @@ fn measure_feature(
     band: f64,
     measured: bool,
 ) -> FeatureCheck {
-    let (starts, moves): (Vec<Point>, Vec<Move>) =
-        at.iter().map(|&i| as_move(&trace.moves[i])).unzip();
+    let (starts, moves): (Vec<Point>, Vec<Move>) = at.iter().map(|&i| trace.moves[i].xy()).unzip();
     let deviation = if measured {
         None
     } else {
@@ -495,8 +461,8 @@ fn gouges(
         .map(|(&i, own)| {
             let m = &trace.moves[i];
             let skip = contour_of[i];
-            let (from, mv) = as_move(m);
-            let length = from.distance(mv.end()).max(mv_length(from, &mv));
+            let (from, mv) = m.xy();
+            let length = from.distance(mv.end()).max(mv.length(from));
             let n = ((length / GOUGE_SPACING).ceil() as usize).clamp(1, MAX_GOUGE_SAMPLES);
             let mut near = Vec::new();
             let mut worst: Option<(f64, Point, usize, bool)> = None;
@@ -539,13 +505,6 @@ fn gouges(
         })
         .collect();
     found.into_iter().flatten().collect()
-}
-
-fn mv_length(from: Point, mv: &Move) -> f64 {
-    match *mv {
-        Move::Line { to } => from.distance(to),
-        Move::Arc { centre, .. } => from.distance(centre) * mv.sweep(from).abs(),
-    }
 }
 
 /// The finished part, to ask whether a point lies in it: inside the outline (when there is

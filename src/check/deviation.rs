@@ -132,6 +132,11 @@ pub fn measure_pieces(
     })
 }
 
+/// The distance from `p` to the exact path (the measure's own, unsigned).
+pub fn path_distance(exact: &ExactPath, p: Point) -> f64 {
+    Target::of(exact).signed_left(p).abs()
+}
+
 /// The exact path as a signed distance: positive on the left of travel.
 enum Target<'a> {
     Parallel {
@@ -343,7 +348,7 @@ impl<'a> Written<'a> {
 
 /// The bounding box of move `m` from `from`: its ends and, for an arc, the axis extremes it
 /// sweeps through (at the larger of its two radii).
-fn box_of(from: Point, m: &Move) -> (Point, Point) {
+pub(super) fn box_of(from: Point, m: &Move) -> (Point, Point) {
     let mut pts = vec![from, m.end()];
     if let Move::Arc { to, centre, .. } = *m {
         let r = from.distance(centre).max(to.distance(centre));

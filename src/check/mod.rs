@@ -56,6 +56,22 @@ pub struct TraceMove {
     pub measurable: bool,
 }
 
+impl TraceMove {
+    /// The move in the XY plane: its start and the line or arc to its end.
+    pub fn xy(&self) -> (Point, Move) {
+        let to = Point::new(self.to[0], self.to[1]);
+        let mv = match self.arc {
+            Some((c, ccw)) => Move::Arc {
+                to,
+                centre: Point::new(c[0], c[1]),
+                ccw,
+            },
+            None => Move::Line { to },
+        };
+        (Point::new(self.from[0], self.from[1]), mv)
+    }
+}
+
 /// What a program does, read back.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct Trace {
@@ -102,8 +118,8 @@ pub fn trace(program: &str) -> Result<Trace, CheckError> {
 }
 
 /// The box of every point the moves reach: each move's end and, for an arc, the axis extremes
-/// it sweeps through (exactly, at the larger of its two radii; a helix's Z changes linearly, so
-/// its ends bound it). A move's start is the last one's end, or for the first move the reader's
+/// it sweeps through (`deviation::box_of`: exactly, at the larger of its two radii; a helix's Z
+/// changes linearly, so its ends bound it). A move's start is the last one's end, or for the first move the reader's
 /// assumed start (0, 0, 0), which no program states: it is left out.
 fn bounds_of(moves: &[TraceMove]) -> Option<([f64; 3], [f64; 3])> {
     let mut lo = [f64::INFINITY; 3];
@@ -116,26 +132,11 @@ fn bounds_of(moves: &[TraceMove]) -> Option<([f64; 3], [f64; 3])> {
     };
     for m in moves {
         add(m.to);
-        if let Some((c, ccw)) = m.arc {
-            let from = Point::new(m.from[0], m.from[1]);
-            let to = Point::new(m.to[0], m.to[1]);
-            let centre = Point::new(c[0], c[1]);
-            let r = from.distance(centre).max(to.distance(centre));
-            let mv = Move::Arc { to, centre, ccw };
-            let sweep = mv.sweep(from);
-            let a0 = (from - centre).angle();
-            for k in 0..4 {
-                let axis = k as f64 * std::f64::consts::FRAC_PI_2;
-                let rel = if sweep >= 0.0 {
-                    (axis - a0).rem_euclid(std::f64::consts::TAU)
-                } else {
-                    (a0 - axis).rem_euclid(std::f64::consts::TAU)
-                };
-                if rel <= sweep.abs() {
-                    let (sn, cs) = axis.sin_cos();
-                    add([centre.x + r * cs, centre.y + r * sn, m.from[2]]);
-                }
-            }
+        if m.arc.is_some() {
+            let (from, mv) = m.xy();
+            let (min, max) = deviation::box_of(from, &mv);
+            add([min.x, min.y, m.from[2]]);
+            add([max.x, max.y, m.from[2]]);
         }
     }
     lo[0].is_finite().then_some((lo, hi))
@@ -236,21 +237,7 @@ fn contour_of(trace: &Trace, at: &[usize]) -> (Point, Vec<Move>) {
     let start = at.first().map_or(Point::ORIGIN, |&i| {
         Point::new(trace.moves[i].from[0], trace.moves[i].from[1])
     });
-    let moves = at
-        .iter()
-        .map(|&i| {
-            let m = &trace.moves[i];
-            let to = Point::new(m.to[0], m.to[1]);
-            match m.arc {
-                Some((c, ccw)) => Move::Arc {
-                    to,
-                    centre: Point::new(c[0], c[1]),
-                    ccw,
-                },
-                None => Move::Line { to },
-            }
-        })
-        .collect();
+    let moves = at.iter().map(|&i| trace.moves[i].xy().1).collect();
     (start, moves)
 }
 

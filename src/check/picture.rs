@@ -68,23 +68,15 @@ pub fn findings_svg(trace: &Trace, cuts: &[PlannedCut], findings: &[ProgramFindi
     let mut rapids = Data::new();
     let mut cuts_d = Data::new();
     for m in &trace.moves {
-        let from = Point::new(m.from[0], m.from[1]);
-        let to = Point::new(m.to[0], m.to[1]);
-        if from == to {
+        let (from, mv) = m.xy();
+        if from == mv.end() {
             continue;
         }
-        let pts: Vec<Point> = match m.arc {
-            Some((c, ccw)) => {
-                let mv = Move::Arc {
-                    to,
-                    centre: Point::new(c[0], c[1]),
-                    ccw,
-                };
-                (0..=ARC_POINTS)
-                    .map(|k| mv.point_at(from, k as f64 / ARC_POINTS as f64))
-                    .collect()
-            }
-            None => vec![from, to],
+        let pts: Vec<Point> = match mv {
+            Move::Arc { .. } => (0..=ARC_POINTS)
+                .map(|k| mv.point_at(from, k as f64 / ARC_POINTS as f64))
+                .collect(),
+            Move::Line { to } => vec![from, to],
         };
         let target = if m.rapid { &mut rapids } else { &mut cuts_d };
         *target = append(std::mem::take(target), &pts);

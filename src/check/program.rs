@@ -168,16 +168,19 @@ pub fn minutes(seconds: f64) -> String {
     }
 }
 
-/// Checks `program` (see the module docs). `part` is the box the part occupies (mm), for the
-/// rapids' rule.
+/// Checks `program` (see the module docs) against `cuts`; `picture`: draw it too.
 pub fn check_program(
     program: &str,
     machine: &MachineRules,
     cuts: &[PlannedCut],
     rules: &AgainstRules,
-    part: Option<Bounds>,
     picture: bool,
 ) -> ProgramCheck {
+    // The box the part occupies (mm), for the rapids' rule.
+    let part = cuts
+        .iter()
+        .filter_map(|c| c.edge().bounding_box())
+        .reduce(|a, b| a.union(b));
     let Reading { trace, findings } = read_program(program, &machine.dialect);
     let mut findings = findings;
     travel(&trace, machine, &mut findings);

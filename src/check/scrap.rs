@@ -34,7 +34,7 @@
 //! spacing, and only where a move runs along an edge.
 
 use crate::check::{self, Trace, TraceMove};
-use crate::geom::{Bounds, BoxGrid, Edge, Move, Point};
+use crate::geom::{Bounds, BoxGrid, Edge, Point};
 use crate::plan::{CutSide, FeatureKind, GOUGE_MARGIN, PlannedCut};
 use rayon::prelude::*;
 
@@ -247,16 +247,7 @@ fn part_of(trace: &Trace, i: usize) -> String {
 /// Points along a move (XY in mm, with the height), every [`SAMPLE_SPACING`] mm or closer, both
 /// ends included; arcs along the arc.
 fn sample_move(m: &TraceMove) -> Vec<(Point, f64)> {
-    let from = Point::new(m.from[0], m.from[1]);
-    let to = Point::new(m.to[0], m.to[1]);
-    let mv = match m.arc {
-        Some((c, ccw)) => Move::Arc {
-            to,
-            centre: Point::new(c[0], c[1]),
-            ccw,
-        },
-        None => Move::Line { to },
-    };
+    let (from, mv) = m.xy();
     let length = mv.length(from);
     let n = if length.is_finite() {
         ((length / SAMPLE_SPACING).ceil() as usize).clamp(1, MAX_SAMPLES)

@@ -501,26 +501,29 @@ pub fn check_job(
     picture: bool,
 ) -> Result<check::program::ProgramCheck, JobError> {
     let planned = plan_job(dxf, profile, s, resolved, &|_| {})?;
-    let part = planned
-        .plan
-        .cuts
-        .iter()
-        .filter_map(|c| c.edge().bounding_box())
-        .reduce(|a, b| a.union(b));
-    let rules = check::against::AgainstRules {
-        tool_radius: resolved.tool_diameter / 2.0,
-        tolerance: s.tolerance,
-        thermal: profile.spindle().is_none(),
-        contours_measured: false,
-    };
     Ok(check::program::check_program(
         program,
         &machine_rules(profile),
         &planned.plan.cuts,
-        &rules,
-        part,
+        &against_rules(s, resolved, profile, false),
         picture,
     ))
+}
+
+/// What the check holds the cutting moves to; `contours_measured` when the job's own read-back
+/// has measured every contour already.
+fn against_rules(
+    s: &JobSettings,
+    resolved: &ResolvedJob,
+    profile: &MachineProfile,
+    contours_measured: bool,
+) -> check::against::AgainstRules {
+    check::against::AgainstRules {
+        tool_radius: resolved.tool_diameter / 2.0,
+        tolerance: s.tolerance,
+        thermal: profile.spindle().is_none(),
+        contours_measured,
+    }
 }
 
 /// `conicut check` on the program just written: must-fix findings are a bug (the job stops,
@@ -532,19 +535,10 @@ fn check_written(
     resolved: &ResolvedJob,
     profile: &MachineProfile,
 ) -> Result<check::program::ProgramCheck, JobError> {
-    let part = cuts
-        .iter()
-        .filter_map(|c| c.edge().bounding_box())
-        .reduce(|a, b| a.union(b));
-    let rules = check::against::AgainstRules {
-        tool_radius: resolved.tool_diameter / 2.0,
-        tolerance: s.tolerance,
-        thermal: profile.spindle().is_none(),
-        // `read_back` (check::verify) has just measured every contour.
-        contours_measured: true,
-    };
+    // `read_back` (check::verify) has just measured every contour.
+    let rules = against_rules(s, resolved, profile, true);
     let checked =
-        check::program::check_program(program, &machine_rules(profile), cuts, &rules, part, false);
+        check::program::check_program(program, &machine_rules(profile), cuts, &rules, false);
     let must: Vec<String> = checked
         .findings
         .iter()
