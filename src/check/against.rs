@@ -30,7 +30,8 @@
 //!   move on any path cuts something the drawing does not ask for: a finding naming its lines.
 //! * **Gouges**: a feature's contour moves reaching farther onto the part side of its curve than
 //!   the tolerance (the exact part-side deviation: the tool's edge is then that far into the
-//!   finished edge); and every cutting move is sampled every [`GOUGE_SPACING`] mm (at most
+//!   finished edge); and every cutting move is sampled, every [`GOUGE_SPACING`] mm near an edge
+//!   and in steps bounded by the distance to the nearest edge elsewhere (at most
 //!   [`MAX_GOUGE_SAMPLES`] points a move); a point whose distance to a finished edge (other than
 //!   its own contour's, held by the deviation) is less
 //!   than the tool radius less the tolerance, or that lies in the material (inside the outline
@@ -70,8 +71,14 @@ pub const UNCUT_FLOOR: f64 = 0.01;
 /// elsewhere may not.
 pub const DEVIATION_ALLOWANCE: f64 = 1e-4;
 
-/// The spacing of the gouge check's points along each cutting move (mm).
+/// The least spacing of the gouge check's points along each cutting move (mm): the spacing
+/// where a move is within the limit of an edge; elsewhere each step is as long as the distance
+/// to the nearest edge allows (`d − limit`, at most [`GOUGE_LOOKAHEAD`]).
 pub const GOUGE_SPACING: f64 = 0.05;
+
+/// How far beyond the limit the gouge check looks for edges at each point (mm), and so its
+/// longest step.
+pub const GOUGE_LOOKAHEAD: f64 = 5.0;
 
 /// The most points the gouge check takes on one move.
 pub const MAX_GOUGE_SAMPLES: usize = 20_000;
@@ -463,12 +470,15 @@ fn gouges(
             let skip = contour_of[i];
             let (from, mv) = m.xy();
             let length = from.distance(mv.end()).max(mv.length(from));
-            let n = ((length / GOUGE_SPACING).ceil() as usize).clamp(1, MAX_GOUGE_SAMPLES);
+            let lookahead = limit.max(0.0) + GOUGE_LOOKAHEAD;
             let mut near = Vec::new();
             let mut worst: Option<(f64, Point, usize, bool)> = None;
-            for k in 0..=n {
-                let p = mv.point_at(from, k as f64 / n as f64);
-                if let Some((d, c)) = material.nearest_edge(p, limit.max(0.0), skip, &mut near)
+            let mut t = 0.0f64;
+            for _ in 0..MAX_GOUGE_SAMPLES {
+                let p = mv.point_at(from, t);
+                let nearest = material.nearest_edge(p, lookahead, skip, &mut near);
+                if let Some((d, c)) = nearest
+                    && d < limit
                     && worst.is_none_or(|w| d < w.0)
                 {
                     worst = Some((d, p, c, false));
@@ -480,6 +490,14 @@ fn gouges(
                     worst = Some((0.0, p, usize::MAX, true));
                     break;
                 }
+                if t >= 1.0 || length.is_nan() || length <= 0.0 {
+                    break;
+                }
+                // The distance to an edge changes no faster than the tool moves along the move,
+                // so no point before `d − limit` further on can come nearer than the limit (nor
+                // cross an edge into the part).
+                let d = nearest.map_or(lookahead, |n| n.0);
+                t = (t + (d - limit).max(GOUGE_SPACING) / length).min(1.0);
             }
             worst.map(|(d, p, c, material)| {
                 let message = if material {
