@@ -74,20 +74,7 @@ fn a_feature_keeps_its_own_feeds() {
          [[feature]]\nname = \"usual\"\nbay = \"bay 2\"\n",
     )
     .unwrap();
-    Command::cargo_bin("conicut")
-        .unwrap()
-        .current_dir(dir.path())
-        .args([
-            "plan",
-            "d.dxf",
-            "--machine",
-            "metric-mill",
-            "--tool-diameter",
-            "6",
-        ])
-        .args(["--job", "job.toml", "--out", "out"])
-        .assert()
-        .success();
+    assert!(plan_on_mill(dir.path(), "job.toml", "out").status.success());
     let program = fs::read_to_string(dir.path().join("out/d.nc")).unwrap();
     let read = read_back(&program);
     let feeds = |name: &str| -> Vec<i64> {
@@ -108,26 +95,25 @@ fn a_feature_keeps_its_own_feeds() {
         "units = \"mm\"\n[[feature]]\nname = \"fast\"\nbay = \"bay 1\"\nfeed = 9000\n",
     )
     .unwrap();
-    let out = Command::cargo_bin("conicut")
-        .unwrap()
-        .current_dir(dir.path())
-        .args([
-            "plan",
-            "d.dxf",
-            "--machine",
-            "metric-mill",
-            "--tool-diameter",
-            "6",
-        ])
-        .args(["--job", "fast.toml", "--out", "out2"])
-        .output()
-        .unwrap();
+    let out = plan_on_mill(dir.path(), "fast.toml", "out2");
     assert!(!out.status.success());
     let message = String::from_utf8_lossy(&out.stderr);
     assert!(
         message.contains("feature's cut feed") && message.contains("2500"),
         "{message}"
     );
+}
+
+/// `conicut plan d.dxf` in `dir` on the bundled metric mill with a 6 mm tool and `job`, into
+/// `out`.
+fn plan_on_mill(dir: &std::path::Path, job: &str, out: &str) -> std::process::Output {
+    Command::cargo_bin("conicut")
+        .unwrap()
+        .current_dir(dir)
+        .args(["plan", "d.dxf", "--machine", "metric-mill"])
+        .args(["--tool-diameter", "6", "--job", job, "--out", out])
+        .output()
+        .unwrap()
 }
 
 /// The spindle speed in force at the first feed move of each cut, by the cut's name (from the
@@ -170,23 +156,7 @@ fn a_feature_keeps_its_own_spindle_speed() {
          [[feature]]\nname = \"usual\"\nbay = \"bay 2\"\n",
     )
     .unwrap();
-    let plan = |job: &str, out: &str| {
-        Command::cargo_bin("conicut")
-            .unwrap()
-            .current_dir(dir.path())
-            .args([
-                "plan",
-                "d.dxf",
-                "--machine",
-                "metric-mill",
-                "--tool-diameter",
-                "6",
-            ])
-            .args(["--job", job, "--out", out])
-            .output()
-            .unwrap()
-    };
-    assert!(plan("job.toml", "out").status.success());
+    assert!(plan_on_mill(dir.path(), "job.toml", "out").status.success());
     let program = fs::read_to_string(dir.path().join("out/d.nc")).unwrap();
     let speeds = speeds_at_first_feed(&program);
     let of = |name: &str| speeds.iter().find(|(n, _)| n == name).map(|s| s.1);
@@ -216,7 +186,7 @@ fn a_feature_keeps_its_own_spindle_speed() {
         "units = \"mm\"\n[[feature]]\nname = \"fast\"\nbay = \"bay 1\"\nspindle_speed = 24000\n",
     )
     .unwrap();
-    let out = plan("fast.toml", "out2");
+    let out = plan_on_mill(dir.path(), "fast.toml", "out2");
     assert!(!out.status.success());
     let message = String::from_utf8_lossy(&out.stderr);
     assert!(

@@ -13,14 +13,15 @@
 //! Reference values: the rectangle bay's largest ellipse has semi-axes w/2 and h/2 at its
 //! centre (docs/sources.md M2, the rectangle row); the triangle's is its Steiner inellipse, of
 //! area π/(3√3) times the triangle's (docs/sources.md M3); a circle of radius R cut inside with
-//! a tool of radius r leaves the contour at R − r. The spline circle: nine control points on the
-//! square round the circle, weights 1 and √2/2 in turn, knots 0,0,0,¼,¼,½,½,¾,¾,1,1,1 (Piegl and
-//! Tiller, The NURBS Book, 2nd ed., 1997, §7.5, from memory). The extruded circle: under the
+//! a tool of radius r leaves the contour at R − r. The spline circle is that of
+//! tests/support/nurbs_circle.rs (its source named there). The extruded circle: under the
 //! arbitrary axis algorithm (docs/sources.md P2.3) the normal (0, 0, −1) has OCS x = −WCS x, so
 //! the centre is written as (−x, y).
 
 #[path = "support/gcode_read.rs"]
 mod gcode_read;
+#[path = "support/nurbs_circle.rs"]
+mod nurbs_circle;
 
 use assert_cmd::Command;
 use dxf::entities::{
@@ -138,28 +139,14 @@ fn part(v: AcadVersion, place: Place) -> dxf::Drawing {
     }
     if v != AcadVersion::R12 {
         // A circle of radius 6 about (60, 95) as a rational quadratic spline.
-        let w = std::f64::consts::FRAC_1_SQRT_2;
-        let square = [
-            (1.0, 0.0),
-            (1.0, 1.0),
-            (0.0, 1.0),
-            (-1.0, 1.0),
-            (-1.0, 0.0),
-            (-1.0, -1.0),
-            (0.0, -1.0),
-            (1.0, -1.0),
-            (1.0, 0.0),
-        ];
         let mut sp = Spline {
             degree_of_curve: 2,
-            control_points: square
-                .iter()
-                .map(|&(x, y)| at(60.0 + 6.0 * x, 95.0 + 6.0 * y))
+            control_points: nurbs_circle::control(60.0, 95.0, 6.0)
+                .into_iter()
+                .map(|(x, y)| at(x, y))
                 .collect(),
-            weight_values: (0..9).map(|i| if i % 2 == 0 { 1.0 } else { w }).collect(),
-            knot_values: vec![
-                0.0, 0.0, 0.0, 0.25, 0.25, 0.5, 0.5, 0.75, 0.75, 1.0, 1.0, 1.0,
-            ],
+            weight_values: nurbs_circle::weights(),
+            knot_values: nurbs_circle::KNOTS.to_vec(),
             ..Default::default()
         };
         sp.set_is_rational(true);

@@ -2,15 +2,15 @@
 //! closed by a LINE, in drawings written by the outside `dxf` crate as R2000, R2010 and R2018
 //! (mm), each program read back by the outside `gcode` crate (tests/support/gcode_read.rs).
 //!
-//! Reference values: the rational quadratic B-spline of nine control points on the square
-//! round a circle of radius R, weights 1 and √2/2 in turn, knots 0,0,0,¼,¼,½,½,¾,¾,1,1,1, is that
-//! circle exactly (L. Piegl and W. Tiller, *The NURBS Book*, 2nd ed., §7.5; from memory, and
-//! checked in `read::spline`'s tests by every point lying on the circle). Cut inside with a
+//! Reference values: the rational quadratic B-spline circle of tests/support/nurbs_circle.rs
+//! (its source named there) is a circle of radius R exactly. Cut inside with a
 //! 3 mm tool, its contour lies at R − 1.5 from the centre, to the tolerance (0.01 mm), the
 //! spline's arcs (1e-5 mm, `conicut::read::SPLINE_TOLERANCE`) and the read-back's f32 (1e-4 mm).
 
 #[path = "support/gcode_read.rs"]
 mod gcode_read;
+#[path = "support/nurbs_circle.rs"]
+mod nurbs_circle;
 
 use assert_cmd::Command;
 use dxf::entities::{Entity, EntityType, Line, Spline};
@@ -59,30 +59,11 @@ fn drawing(version: AcadVersion) -> dxf::Drawing {
     for i in 0..4 {
         d.add_entity(line("PLATE", plate[i], plate[(i + 1) % 4]));
     }
-    let (cx, cy, r) = (60.0, 50.0, 12.0);
-    let square = [
-        (1.0, 0.0),
-        (1.0, 1.0),
-        (0.0, 1.0),
-        (-1.0, 1.0),
-        (-1.0, 0.0),
-        (-1.0, -1.0),
-        (0.0, -1.0),
-        (1.0, -1.0),
-        (1.0, 0.0),
-    ];
-    let control: Vec<(f64, f64)> = square
-        .iter()
-        .map(|&(x, y)| (cx + r * x, cy + r * y))
-        .collect();
-    let s = std::f64::consts::FRAC_1_SQRT_2;
     d.add_entity(spline(
         2,
-        &control,
-        &[1.0, s, 1.0, s, 1.0, s, 1.0, s, 1.0],
-        &[
-            0.0, 0.0, 0.0, 0.25, 0.25, 0.5, 0.5, 0.75, 0.75, 1.0, 1.0, 1.0,
-        ],
+        &nurbs_circle::control(60.0, 50.0, 12.0),
+        &nurbs_circle::weights(),
+        &nurbs_circle::KNOTS,
     ));
     d.add_entity(spline(
         3,
