@@ -394,7 +394,7 @@ pub fn run_resolved_watched(
     let program = program.replacen(
         post::CYCLE_TIME_PLACEHOLDER,
         &format!(
-            "estimated cycle time: {}, its parts in the report",
+            "estimated cycle time: {}, from the profile's feeds and acceleration",
             check::program::minutes(checked.cycle_time.total_s)
         ),
         1,
