@@ -99,11 +99,13 @@ enum Command {
         #[command(flatten)]
         cut: CutArgs,
     },
-    /// Check a program (conicut's or any RS274/NGC-style program) against its drawing: the
-    /// text's rules, the machine's limits, and every cut measured against the exact curves
-    /// solved again from the drawing and job (give the same options as to `plan`). Exit codes:
-    /// 0 no finding that must be fixed (warnings may be listed), 1 findings that must be fixed,
-    /// 2 the program, drawing, job or profile could not be read.
+    /// Check a program against its drawing before it runs.
+    ///
+    /// Any RS274/NGC-style program (conicut's, or one from elsewhere) is read on its own and held
+    /// to the text's rules, the machine's limits, and every cut measured against the exact
+    /// curves solved again from the drawing and job (give the same options as to `plan`). Exit
+    /// codes: 0 no finding that must be fixed (warnings may be listed), 1 findings that must be
+    /// fixed, 2 the program, drawing, job or profile could not be read.
     Check {
         /// The program to check.
         program: PathBuf,
