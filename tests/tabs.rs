@@ -24,7 +24,7 @@ use conicut::plan::LeadKind;
 use conicut::post::MachineProfile;
 use conicut::settings::Machine;
 use conicut::settings::SettingsError;
-use gcode_read::{ReadBack, ReadMove, marked_moves, read_back};
+use gcode_read::{ReadBack, ReadMove, contour_runs, marked_moves, read_back};
 use machine::{machine, profile};
 use resvg::usvg::roxmltree;
 use std::f64::consts::TAU;
@@ -77,28 +77,13 @@ fn run(stem: &str, tabs: TabRequest, stepdown: Option<f64>) -> (MachineProfile, 
     (m.profile, out)
 }
 
-/// The moves of the outline after each of its `(contour)` comments, one run per pass.
+/// The moves of the outline's contour, one run per pass (tabs included).
 fn outline_contour_runs(trace: &ReadBack) -> Vec<Vec<ReadMove>> {
-    let k = trace
-        .features
-        .iter()
-        .position(|(n, _)| n == "outline")
-        .expect("the outline is cut");
-    let first = trace.features[k].1;
-    let last = trace.features.get(k + 1).map_or(trace.moves.len(), |f| f.1);
-    let mut runs = Vec::new();
-    for (i, (text, at)) in trace.marks.iter().enumerate() {
-        if text != "contour" || *at < first || *at >= last {
-            continue;
-        }
-        let end = trace
-            .marks
-            .get(i + 1)
-            .map_or(trace.moves.len(), |m| m.1)
-            .min(last);
-        runs.push(trace.moves[*at..end].to_vec());
-    }
-    runs
+    let runs = contour_runs(trace, "outline");
+    assert!(!runs.is_empty(), "the outline is cut");
+    runs.into_iter()
+        .map(|run| run.into_iter().map(|i| trace.moves[i].clone()).collect())
+        .collect()
 }
 
 /// The XY length of a move (an arc by its radius and the angle it turns, in its sense).
@@ -295,6 +280,35 @@ fn block(line: &str) -> &str {
     }
 }
 
+/// The program text names each tab: a `(tab)` comment between the last move in the plane before
+/// the stretch `s` of `run` and its first move, and a `(contour)` comment between its last move
+/// and the next move in the plane, when the contour goes on after it.
+fn check_tab_comments(program: &str, run: &[ReadMove], stretches: &[Stretch], stem: &str) {
+    let lines: Vec<&str> = program.lines().map(block).collect();
+    // Program lines strictly between 1-based lines a and b.
+    let between = |a: usize, b: usize| lines[a..b - 1].to_vec();
+    for s in stretches {
+        let before = run[..s.moves.0]
+            .iter()
+            .rev()
+            .find(|m| xy_length(m) > 0.0)
+            .expect("the contour is cut before each tab");
+        let text = between(before.line, run[s.moves.0].line);
+        assert!(
+            text.contains(&"(tab)"),
+            "{stem}: no (tab) before {s:?}: {text:?}"
+        );
+        assert!(!text.contains(&"(contour)"), "{stem}: {text:?}");
+        if let Some(after) = run[s.moves.1 + 1..].iter().find(|m| xy_length(m) > 0.0) {
+            let text = between(run[s.moves.1].line, after.line);
+            assert!(
+                text.contains(&"(contour)"),
+                "{stem}: no (contour) after {s:?}: {text:?}"
+            );
+        }
+    }
+}
+
 #[test]
 fn mill_tabs_rise_to_the_tab_height_on_the_last_pass_only() {
     // Defaults for mills: 4 mm wide, 1 mm high (common practice, §4.3).
@@ -338,6 +352,7 @@ fn mill_tabs_rise_to_the_tab_height_on_the_last_pass_only() {
             "{stem}: floor {floor_length} + tabs = {total}"
         );
         check_tab_places(&raised, last, d, &trace, stem);
+        check_tab_comments(&out.program, last, &raised, stem);
     }
 }
 
@@ -373,6 +388,7 @@ fn thermal_tabs_are_gaps_with_the_process_off() {
             .sum();
         assert!((cutting + n as f64 * (0.5 + d) - run_length(run)).abs() < n as f64 * READ_BACK);
         check_tab_places(&gaps, run, d, &trace, stem);
+        check_tab_comments(&out.program, run, &gaps, stem);
         // In the text: between the last cutting move before a gap and the gap, the process is
         // switched off (and not on again); between the gap and the next cutting move it is
         // switched on, with a pierce dwell (G4).

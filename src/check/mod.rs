@@ -9,8 +9,8 @@
 //! guess.
 //!
 //! Measuring: the program's cut comments `(cut N of M: NAME)` mark where each feature starts, and
-//! the comments `(contour)`, `(lead-in)`, … the parts of its cut; the feed moves after each
-//! `(contour)` comment, from the first one that reaches the exact tool-centre curve, are compared
+//! the comments `(contour)`, `(tab)`, `(lead-in)`, … the parts of its cut; the feed moves after each
+//! `(contour)` or `(tab)` comment, from the first one that reaches the exact tool-centre curve, are compared
 //! with that curve both ways by the checker's own measurement ([`deviation`], which shares no
 //! code with the fit's). [`verify`] is the one entry the job calls: it reads the program, measures
 //! every cut, holds it to the tolerance and the one-sided rule, and runs the scrap check.
@@ -172,8 +172,13 @@ pub fn cut_range(trace: &Trace, number: usize) -> Option<std::ops::Range<usize>>
     Some(range_at(trace, idx))
 }
 
-/// The indices of the moves in `range` that follow a comment `mark` (up to the next comment).
-fn marked_in(trace: &Trace, range: std::ops::Range<usize>, mark: &str) -> Vec<usize> {
+/// The comments that mark a cut's contour: `(contour)`, and `(tab)` over each tab (the moves
+/// there rise to the tab top and follow the contour in XY).
+const CONTOUR_MARKS: [&str; 2] = ["contour", "tab"];
+
+/// The indices of the moves in `range` that follow one of the comments `marks` (up to the next
+/// comment).
+fn marked_in(trace: &Trace, range: std::ops::Range<usize>, marks: &[&str]) -> Vec<usize> {
     let mut out = Vec::new();
     // The marks are in program order: start at the first one inside the range.
     let first = trace.marks.partition_point(|(_, at)| *at < range.start);
@@ -181,7 +186,7 @@ fn marked_in(trace: &Trace, range: std::ops::Range<usize>, mark: &str) -> Vec<us
         if *at >= range.end {
             break;
         }
-        if text != mark {
+        if !marks.contains(&text.as_str()) {
             continue;
         }
         let end = trace
@@ -197,7 +202,7 @@ fn marked_in(trace: &Trace, range: std::ops::Range<usize>, mark: &str) -> Vec<us
 /// The moves in `range` that are not its contour.
 fn off_contour_in(trace: &Trace, range: std::ops::Range<usize>) -> Vec<usize> {
     // `marked_in` gives indices in increasing order.
-    let contour = marked_in(trace, range.clone(), "contour");
+    let contour = marked_in(trace, range.clone(), &CONTOUR_MARKS);
     range
         .filter(|i| contour.binary_search(i).is_err())
         .collect()
@@ -218,7 +223,7 @@ fn contour_indices(
     reach: f64,
 ) -> Option<Vec<usize>> {
     let start_exact = exact.start_point();
-    let feeds: Vec<usize> = marked_in(trace, range, "contour")
+    let feeds: Vec<usize> = marked_in(trace, range, &CONTOUR_MARKS)
         .into_iter()
         .filter(|&i| {
             let m = &trace.moves[i];

@@ -104,14 +104,18 @@ impl Writer<'_> {
                 let mut done = Written::default();
                 let (pieces, inside) = tab_pieces(cut);
                 let mut from = cut.start;
-                for (piece, in_tab) in pieces.iter().zip(inside) {
-                    if in_tab {
+                for (k, (piece, in_tab)) in pieces.iter().zip(&inside).enumerate() {
+                    if *in_tab {
+                        // The tab: rise to its top, follow the contour over it, go back down.
+                        self.comment("tab");
                         self.feed_z(top, feed);
+                    } else if k > 0 && inside[k - 1] {
+                        self.comment("contour");
                     }
                     let w = self.run(name, from, piece, feed, None)?;
                     done.lines += w.lines;
                     done.arcs += w.arcs;
-                    if in_tab {
+                    if *in_tab {
                         self.feed_z(floor, feed);
                     }
                     from = piece.last().map_or(from, Move::end);

@@ -52,10 +52,14 @@ impl Writer<'_> {
                 let mut done = Written::default();
                 let (pieces, inside) = tab_pieces(cut);
                 let mut from = cut.start;
-                for (piece, in_tab) in pieces.iter().zip(inside) {
+                for (k, (piece, &in_tab)) in pieces.iter().zip(&inside).enumerate() {
                     if in_tab {
+                        // The tab: the process off across it, pierced again after it.
+                        self.comment("tab");
                         self.block(p.off.clone());
                         self.rapid_z(p.pierce_height);
+                    } else if k > 0 && inside[k - 1] {
+                        self.comment("contour");
                     }
                     let w = self.run(name, from, piece, feed, None)?;
                     done.lines += w.lines;

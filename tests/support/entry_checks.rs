@@ -6,7 +6,7 @@
 #![allow(dead_code)]
 
 use crate::demo_job;
-use crate::gcode_read::{ReadBack, ReadMove, read_back};
+use crate::gcode_read::{ReadBack, ReadMove, contour_runs, read_back};
 use crate::machine::machine;
 use conicut::geom::{Contour, Element};
 use conicut::geom::{Point, Segment};
@@ -259,10 +259,9 @@ pub fn entries<'t>(trace: &'t ReadBack, name: &str) -> Vec<Vec<&'t ReadMove>> {
 
 /// The feature's contour runs, one per pass.
 pub fn contours<'t>(trace: &'t ReadBack, name: &str) -> Vec<Vec<&'t ReadMove>> {
-    sections(trace, name)
+    contour_runs(trace, name)
         .into_iter()
-        .filter(|(t, _)| t == "contour")
-        .map(|(_, idx)| idx.iter().map(|&i| &trace.moves[i]).collect())
+        .map(|run| run.into_iter().map(|i| &trace.moves[i]).collect())
         .collect()
 }
 

@@ -147,3 +147,32 @@ pub fn marked_moves(read: &ReadBack, name: &str, mark: &str) -> Vec<usize> {
     }
     out
 }
+
+/// The moves of feature `name`'s contour, one run per pass: each run from a `(contour)` comment
+/// through the `(tab)` and `(contour)` comments that continue it (a tab interrupts the contour
+/// and the contour goes on after it), up to the next other comment.
+pub fn contour_runs(read: &ReadBack, name: &str) -> Vec<Vec<usize>> {
+    let Some(idx) = read.features.iter().position(|(n, _)| n == name) else {
+        return Vec::new();
+    };
+    let range = feature_range_at(read, idx);
+    let marks: Vec<&(String, usize)> = read
+        .marks
+        .iter()
+        .filter(|(_, at)| range.contains(at))
+        .collect();
+    let mut runs: Vec<Vec<usize>> = Vec::new();
+    let mut previous = "";
+    for (k, (text, at)) in marks.iter().enumerate() {
+        let end = marks.get(k + 1).map_or(range.end, |m| m.1).min(range.end);
+        let continues = (text == "tab" && (previous == "contour" || previous == "tab"))
+            || (text == "contour" && previous == "tab");
+        match runs.last_mut() {
+            Some(run) if continues => run.extend(*at..end),
+            _ if text == "contour" => runs.push((*at..end).collect()),
+            _ => {}
+        }
+        previous = text.as_str();
+    }
+    runs
+}
