@@ -131,7 +131,7 @@ pub struct CycleTime {
 /// (seconds, added) under `limits`. The dwells are not placed in the sequence, so the machine
 /// does not stop for them (see [`cycle_time_with_stops`]).
 pub fn cycle_time(moves: &[TraceMove], dwells_s: &[f64], limits: &TimeLimits) -> CycleTime {
-    let mut time = plan(moves, &[], limits);
+    let mut time = plan(moves, &[], limits, &mut []);
     time.dwell_s = dwells_s
         .iter()
         .copied()
@@ -151,7 +151,7 @@ pub fn cycle_time_with_stops(
 ) -> CycleTime {
     let mut stops: Vec<usize> = dwells.iter().map(|d| d.0).collect();
     stops.sort_unstable();
-    let mut time = plan(moves, &stops, limits);
+    let mut time = plan(moves, &stops, limits, &mut []);
     time.dwell_s = dwells
         .iter()
         .map(|d| d.1)
@@ -159,6 +159,35 @@ pub fn cycle_time_with_stops(
         .fold(0.0, |a, d| a + d);
     time.total_s = time.cutting_s + time.rapid_s + time.dwell_s;
     time
+}
+
+/// The time from the program's start to the end of each move of `moves`, seconds, as
+/// [`cycle_time_with_stops`] plans it (each dwell counted before its move): the last one is that
+/// function's `total_s` up to the dwells after the last move, and the running total follows the
+/// program move by move (for the interactive view's clock).
+pub fn move_end_times(
+    moves: &[TraceMove],
+    dwells: &[(usize, f64)],
+    limits: &TimeLimits,
+) -> Vec<f64> {
+    let mut stops: Vec<usize> = dwells.iter().map(|d| d.0).collect();
+    stops.sort_unstable();
+    let mut each = vec![0.0; moves.len()];
+    plan(moves, &stops, limits, &mut each);
+    let mut before = vec![0.0; moves.len()];
+    for &(k, seconds) in dwells {
+        if let Some(b) = before.get_mut(k)
+            && seconds >= 0.0
+        {
+            *b += seconds;
+        }
+    }
+    let mut clock = 0.0;
+    for (t, wait) in each.iter_mut().zip(before) {
+        clock += wait + *t;
+        *t = clock;
+    }
+    each
 }
 
 /// A move's shape as the planner needs it.
@@ -172,6 +201,8 @@ struct Shape {
 
 /// One move of the stretch being planned.
 struct Step {
+    /// The move's index in the program's moves.
+    index: usize,
     length: f64,
     /// Cruise speed, mm/s (∞: none).
     cruise: f64,
@@ -196,8 +227,8 @@ fn speed_limit(per_minute: f64) -> f64 {
 }
 
 /// Time on every move; the dwells are left for the caller. `stops` are sorted move indices the
-/// machine stops before.
-fn plan(moves: &[TraceMove], stops: &[usize], limits: &TimeLimits) -> CycleTime {
+/// machine stops before. `each`, when as long as `moves`, receives each move's own time.
+fn plan(moves: &[TraceMove], stops: &[usize], limits: &TimeLimits, each: &mut [f64]) -> CycleTime {
     let a = limits.acceleration;
     let model = Model {
         accel: (a.is_finite() && a > 0.0).then_some(a),
@@ -245,9 +276,10 @@ fn plan(moves: &[TraceMove], stops: &[usize], limits: &TimeLimits) -> CycleTime 
             _ => 0.0,
         };
         if entry == 0.0 {
-            finish_stretch(&mut stretch, model.accel, &mut out);
+            finish_stretch(&mut stretch, model.accel, &mut out, each);
         }
         stretch.push(Step {
+            index: k,
             length: shape.length,
             cruise,
             entry,
@@ -256,14 +288,19 @@ fn plan(moves: &[TraceMove], stops: &[usize], limits: &TimeLimits) -> CycleTime 
         prev = Some((shape.end_dir, m.rapid, cruise));
         stop_pending = false;
     }
-    finish_stretch(&mut stretch, model.accel, &mut out);
+    finish_stretch(&mut stretch, model.accel, &mut out, each);
     out.total_s = out.cutting_s + out.rapid_s;
     out
 }
 
 /// Plans a stretch that starts and ends at rest (the backward and forward passes), adds its
 /// moves' times to `out` and empties it.
-fn finish_stretch(stretch: &mut Vec<Step>, accel: Option<f64>, out: &mut CycleTime) {
+fn finish_stretch(
+    stretch: &mut Vec<Step>,
+    accel: Option<f64>,
+    out: &mut CycleTime,
+    each: &mut [f64],
+) {
     match accel {
         Some(a) => {
             // Backward: each entry no faster than the rest can decelerate from to rest.
@@ -287,11 +324,14 @@ fn finish_stretch(stretch: &mut Vec<Step>, accel: Option<f64>, out: &mut CycleTi
                     0.0
                 };
                 let s = &stretch[i];
-                add_time(
+                let t = add_time(
                     out,
                     s.rapid,
                     trapezoid_time(s.length, entry, exit, s.cruise, a),
                 );
+                if let Some(e) = each.get_mut(s.index) {
+                    *e = t;
+                }
                 entry = exit;
             }
         }
@@ -302,14 +342,18 @@ fn finish_stretch(stretch: &mut Vec<Step>, accel: Option<f64>, out: &mut CycleTi
                 } else {
                     0.0
                 };
-                add_time(out, s.rapid, t);
+                let t = add_time(out, s.rapid, t);
+                if let Some(e) = each.get_mut(s.index) {
+                    *e = t;
+                }
             }
         }
     }
     stretch.clear();
 }
 
-fn add_time(out: &mut CycleTime, rapid: bool, t: f64) {
+/// Adds `t` to the rapid or the cutting time; the time counted.
+fn add_time(out: &mut CycleTime, rapid: bool, t: f64) -> f64 {
     // A time that is not finite can only come from figures near the f64 range's end: nothing.
     let t = if t.is_finite() { t.max(0.0) } else { 0.0 };
     if rapid {
@@ -317,6 +361,7 @@ fn add_time(out: &mut CycleTime, rapid: bool, t: f64) {
     } else {
         out.cutting_s += t;
     }
+    t
 }
 
 /// Time along `length` from `v0` to `v1` with cruise speed `cruise` (∞: none) and acceleration
@@ -697,6 +742,27 @@ mod tests {
         let ends = cycle_time_with_stops(&pair, &[(2, 0.25), (0, 0.5)], &limits());
         assert_close(ends.cutting_s, long_line_time(200.0, V));
         assert_eq!(ends.dwell_s, 0.75);
+    }
+
+    #[test]
+    fn the_running_clock_adds_each_move_and_dwell_in_order() {
+        // The pair with a stop above: move 1 ends at 100/50 + 50/500 = 2.1 s; the dwell of
+        // 0.25 s before move 2, then its 2.1 s: 4.45 s, the total of `cycle_time_with_stops`.
+        let pair = [
+            line([0.0; 3], [100.0, 0.0, 0.0]),
+            line([100.0, 0.0, 0.0], [200.0, 0.0, 0.0]),
+        ];
+        let clock = move_end_times(&pair, &[(1, 0.25)], &limits());
+        assert_eq!(clock.len(), 2);
+        assert_close(clock[0], long_line_time(100.0, V));
+        assert_close(clock[1], 2.0 * long_line_time(100.0, V) + 0.25);
+        let total = cycle_time_with_stops(&pair, &[(1, 0.25)], &limits()).total_s;
+        assert_close(clock[1], total);
+        // A move that takes no time keeps the clock where it was.
+        let with_still = [pair[0], line([100.0, 0.0, 0.0], [100.0, 0.0, 0.0]), pair[1]];
+        let clock = move_end_times(&with_still, &[], &limits());
+        assert_eq!(clock[0], clock[1]);
+        assert_close(clock[2], long_line_time(200.0, V));
     }
 
     #[test]
