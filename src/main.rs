@@ -7,10 +7,9 @@ use clap::{Args, Parser, Subcommand};
 use cli::batch;
 use cli::progress::Progress;
 use conicut::chain::{DEFAULT_BAY_LAYER, DEFAULT_MAX_GAP};
+use conicut::check::program::Pictures;
 use conicut::geom::Point;
-use conicut::pipeline::{
-    JobOutput, Step, check_job, resolve, run_resolved, run_resolved_watched, solve_job,
-};
+use conicut::pipeline::{JobOutput, Step, check_job, resolve, run_resolved_viewed, solve_job};
 use conicut::plan::{Direction, LeadKind, WorkZero};
 use conicut::post::WorkOffset;
 use conicut::read::Units;
@@ -57,6 +56,12 @@ enum Command {
         /// A job file saying which ellipse each bay gets (see demo-parts/truss-bracket-job.toml).
         #[arg(long)]
         job: Option<PathBuf>,
+        /// Also write `<name>.html`: one self-contained page (no network needed) to look
+        /// through the program: zoom and pan, a slider and play button that draw it move by
+        /// move, the line of the move under the cursor, the move of a clicked line, a switch per
+        /// feature, the check's findings and the time estimate along the way.
+        #[arg(long)]
+        html: bool,
     },
     /// Solve every feature of a drawing and list every candidate, without cutting anything.
     Solve {
@@ -94,6 +99,12 @@ enum Command {
         /// solved ellipse as an ELLIPSE entity and its centre as a POINT on layer CONICUT-SOLVED.
         #[arg(long)]
         dxf_out: bool,
+        /// Also write `<name>.html`: one self-contained page (no network needed) to look
+        /// through the program: zoom and pan, a slider and play button that draw it move by
+        /// move, the line of the move under the cursor, the move of a clicked line, a switch per
+        /// feature, the check's findings and the time estimate along the way.
+        #[arg(long)]
+        html: bool,
         #[command(flatten)]
         input: DrawingArgs,
         #[command(flatten)]
@@ -126,6 +137,12 @@ enum Command {
         /// occurs, into this SVG file.
         #[arg(long, value_name = "FILE")]
         svg: Option<PathBuf>,
+        /// Also write one self-contained HTML page (no network needed) to look through the
+        /// program: zoom and pan, a slider and play button that draw it move by move, the line
+        /// of the move under the cursor, the move of a clicked line, a switch per feature, the
+        /// findings and the time estimate along the way.
+        #[arg(long, value_name = "FILE")]
+        html: Option<PathBuf>,
         #[command(flatten)]
         input: DrawingArgs,
         #[command(flatten)]
@@ -505,6 +522,7 @@ fn run(cli: Cli) -> Result<()> {
             margin,
             tool_diameter,
             job,
+            html,
         } => {
             let machine_read = bundled_profile(&machine)?;
             let input = DrawingArgs {
@@ -523,11 +541,20 @@ fn run(cli: Cli) -> Result<()> {
             request.depth = Some(mm(cut.depth).unwrap_or(conicut::demo::CUT_DEPTH));
             let resolved = resolve(&request, &machine_read)?;
             let bytes = conicut::demo::demo_dxf_bytes();
-            let output = run_resolved(&bytes, &machine_read.profile, &request, &resolved)?;
+            let stem = demo_stem(&machine);
+            let title = format!("conicut: {stem}");
+            let output = run_resolved_viewed(
+                &bytes,
+                &machine_read.profile,
+                &request,
+                &resolved,
+                &|_| {},
+                html.then_some(title.as_str()),
+            )?;
             let ext = machine_read.profile.program_extension().to_string();
             print!(
                 "{}",
-                write_outputs_with(output, &out, &demo_stem(&machine), &ext, None)?.to_text()
+                write_outputs_with(output, &out, &stem, &ext, None)?.to_text()
             );
             Ok(())
         }
@@ -553,6 +580,7 @@ fn run(cli: Cli) -> Result<()> {
             tool_diameter,
             json,
             svg,
+            html,
             input,
             cut,
         } => {
@@ -569,15 +597,26 @@ fn run(cli: Cli) -> Result<()> {
                 &machine.profile,
                 &request,
                 &resolved,
-                svg.is_some(),
+                &Pictures {
+                    svg: svg.is_some(),
+                    html: html
+                        .as_ref()
+                        .map(|_| format!("conicut check: {}", program.display())),
+                },
             )
             .map_err(|e| unreadable(e.into()))?;
-            if let (Some(path), Some(picture)) = (&svg, &checked.picture) {
+            let files: Vec<(PathBuf, &str)> = [(&svg, &checked.picture), (&html, &checked.view)]
+                .into_iter()
+                .filter_map(|(path, body)| Some((path.clone()?, body.as_deref()?)))
+                .collect();
+            for (path, _) in &files {
                 let dir = path.parent().filter(|d| !d.as_os_str().is_empty());
-                write_all_or_nothing(
-                    dir.unwrap_or(Path::new(".")),
-                    &[(path.clone(), picture.as_str())],
-                )?;
+                fs::create_dir_all(dir.unwrap_or(Path::new(".")))
+                    .with_context(|| format!("cannot create the folder of {}", path.display()))?;
+            }
+            if let Some((first, _)) = files.first() {
+                let dir = first.parent().filter(|d| !d.as_os_str().is_empty());
+                write_all_or_nothing(dir.unwrap_or(Path::new(".")), &files)?;
             }
             if json {
                 println!("{}", checked.to_json());
@@ -596,6 +635,7 @@ fn run(cli: Cli) -> Result<()> {
             out,
             quiet,
             dxf_out,
+            html,
             input,
             cut,
         } => {
@@ -607,6 +647,7 @@ fn run(cli: Cli) -> Result<()> {
                 input: &input,
                 cut: &cut,
                 dxf_out,
+                html,
             };
             if let [drawing] = drawings.as_slice() {
                 let progress = Progress::new(quiet, 1);
@@ -634,6 +675,8 @@ struct PlanArgs<'a> {
     cut: &'a CutArgs,
     /// Also write the copy of the drawing with the solved ellipses.
     dxf_out: bool,
+    /// Also write the interactive page.
+    html: bool,
 }
 
 /// Plans one drawing and writes its outputs into `dir`; the report.
@@ -647,7 +690,15 @@ fn plan_one(
     let mut request = request(file_name, plan.input, Some(plan.cut))?;
     request.tool_diameter = mm(plan.tool_diameter);
     let resolved = resolve(&request, plan.machine)?;
-    let output = run_resolved_watched(&bytes, &plan.machine.profile, &request, &resolved, watch)?;
+    let title = format!("conicut: {}", drawing.display());
+    let output = run_resolved_viewed(
+        &bytes,
+        &plan.machine.profile,
+        &request,
+        &resolved,
+        watch,
+        plan.html.then_some(title.as_str()),
+    )?;
     let drawing = if plan.dxf_out {
         Some(conicut::pipeline::office::solved_drawing(
             &bytes,
@@ -767,6 +818,9 @@ fn write_outputs_with(
     if drawing.is_some() {
         names.push(("solved_drawing", format!("{stem}-solved.dxf")));
     }
+    if output.view.is_some() {
+        names.push(("view", format!("{stem}.html")));
+    }
     output.report.files = names
         .iter()
         .map(|(role, name)| OutputFile {
@@ -779,6 +833,9 @@ fn write_outputs_with(
     let mut contents = vec![&output.program, &output.preview, &text, &json];
     if let Some(d) = &drawing {
         contents.push(d);
+    }
+    if let Some(v) = &output.view {
+        contents.push(v);
     }
     let files: Vec<(PathBuf, &str)> = names
         .iter()

@@ -82,7 +82,7 @@ fn outline_contour_runs(trace: &ReadBack) -> Vec<Vec<ReadMove>> {
     let runs = contour_runs(trace, "outline");
     assert!(!runs.is_empty(), "the outline is cut");
     runs.into_iter()
-        .map(|run| run.into_iter().map(|i| trace.moves[i].clone()).collect())
+        .map(|run| run.into_iter().map(|i| trace.moves[i]).collect())
         .collect()
 }
 

@@ -27,6 +27,7 @@ pub mod reader;
 pub mod scrap;
 pub mod time;
 mod verify;
+pub mod view;
 
 pub use verify::{CutDeviation, Finding, Findings, Verified, VerifyRules, verify};
 

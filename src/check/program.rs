@@ -57,6 +57,18 @@ pub struct ProgramCheck {
     /// The picture of the program and its findings ([`super::picture`]), when asked for.
     #[serde(skip)]
     pub picture: Option<String>,
+    /// The interactive page ([`super::view`]), when asked for.
+    #[serde(skip)]
+    pub view: Option<String>,
+}
+
+/// The pictures `check_program` makes besides its findings.
+#[derive(Debug, Clone, Default, PartialEq, Eq)]
+pub struct Pictures {
+    /// The SVG of the program and its findings (`--svg`).
+    pub svg: bool,
+    /// The interactive HTML page, headed by this title (`--html`).
+    pub html: Option<String>,
 }
 
 impl ProgramCheck {
@@ -168,13 +180,13 @@ pub fn minutes(seconds: f64) -> String {
     }
 }
 
-/// Checks `program` (see the module docs) against `cuts`; `picture`: draw it too.
+/// Checks `program` (see the module docs) against `cuts`, and makes the `pictures` asked for.
 pub fn check_program(
     program: &str,
     machine: &MachineRules,
     cuts: &[PlannedCut],
     rules: &AgainstRules,
-    picture: bool,
+    pictures: &Pictures,
 ) -> ProgramCheck {
     // The box the part occupies (mm), for the rapids' rule.
     let part = cuts
@@ -216,16 +228,14 @@ pub fn check_program(
         .iter()
         .map(|d| (d.before_move, d.seconds))
         .collect();
-    let cycle_time = cycle_time_with_stops(
-        &trace.moves,
-        &stops,
-        &TimeLimits {
-            acceleration: machine.acceleration,
-            rapid_feed: machine.rapid_feed,
-            junction_deviation: DEFAULT_JUNCTION_DEVIATION,
-        },
-    );
-    let picture = picture.then(|| super::picture::findings_svg(&trace, cuts, &findings));
+    let time_limits = time_limits(machine);
+    let cycle_time = cycle_time_with_stops(&trace.moves, &stops, &time_limits);
+    let picture = pictures
+        .svg
+        .then(|| super::picture::findings_svg(&trace, cuts, &findings));
+    let view = pictures.html.as_ref().map(|title| {
+        super::view::program_html(title, program, &trace, cuts, &findings, &time_limits)
+    });
     ProgramCheck {
         features,
         findings,
@@ -235,6 +245,37 @@ pub fn check_program(
         cycle_time,
         starts: trace.switches.iter().filter(|s| s.on).count(),
         picture,
+        view,
+    }
+}
+
+/// The interactive page ([`super::view`]) of `program` with the `findings` a check of it made
+/// (`plan --html`: the program as finally written, its findings from the check run before the
+/// header took the cycle time, which moves no line).
+pub fn view_page(
+    title: &str,
+    program: &str,
+    machine: &MachineRules,
+    cuts: &[PlannedCut],
+    findings: &[ProgramFinding],
+) -> String {
+    let Reading { trace, .. } = read_program(program, &machine.dialect);
+    super::view::program_html(
+        title,
+        program,
+        &trace,
+        cuts,
+        findings,
+        &time_limits(machine),
+    )
+}
+
+/// What limits the machine's motion for the cycle time.
+fn time_limits(machine: &MachineRules) -> TimeLimits {
+    TimeLimits {
+        acceleration: machine.acceleration,
+        rapid_feed: machine.rapid_feed,
+        junction_deviation: DEFAULT_JUNCTION_DEVIATION,
     }
 }
 

@@ -27,6 +27,8 @@ pub struct JobOutput {
     pub program: String,
     pub preview: String,
     pub report: Report,
+    /// The interactive page of the program (`--html`), when asked for.
+    pub view: Option<String>,
 }
 
 /// Why the job stopped; every message names the drawing.
@@ -360,6 +362,19 @@ pub fn run_resolved_watched(
     resolved: &ResolvedJob,
     watch: &dyn Fn(Step),
 ) -> Result<JobOutput, JobError> {
+    run_resolved_viewed(dxf, profile, s, resolved, watch, None)
+}
+
+/// [`run_resolved_watched`], and with `view_title` the interactive page of the program written
+/// ([`check::view`]) headed by it.
+pub fn run_resolved_viewed(
+    dxf: &[u8],
+    profile: &MachineProfile,
+    s: &JobSettings,
+    resolved: &ResolvedJob,
+    watch: &dyn Fn(Step),
+    view_title: Option<&str>,
+) -> Result<JobOutput, JobError> {
     let file = || s.file_name.clone();
     let Planned {
         solved,
@@ -417,10 +432,20 @@ pub fn run_resolved_watched(
         zero: &zero,
         cycle_time: checked.cycle_time,
     });
+    let view = view_title.map(|title| {
+        check::program::view_page(
+            title,
+            &program,
+            &machine_rules(profile),
+            &plan.cuts,
+            &checked.findings,
+        )
+    });
     Ok(JobOutput {
         program,
         preview,
         report,
+        view,
     })
 }
 
@@ -498,7 +523,7 @@ pub fn check_job(
     profile: &MachineProfile,
     s: &JobSettings,
     resolved: &ResolvedJob,
-    picture: bool,
+    pictures: &check::program::Pictures,
 ) -> Result<check::program::ProgramCheck, JobError> {
     let planned = plan_job(dxf, profile, s, resolved, &|_| {})?;
     Ok(check::program::check_program(
@@ -506,7 +531,7 @@ pub fn check_job(
         &machine_rules(profile),
         &planned.plan.cuts,
         &against_rules(s, resolved, profile, false),
-        picture,
+        pictures,
     ))
 }
 
@@ -537,8 +562,13 @@ fn check_written(
 ) -> Result<check::program::ProgramCheck, JobError> {
     // `read_back` (check::verify) has just measured every contour.
     let rules = against_rules(s, resolved, profile, true);
-    let checked =
-        check::program::check_program(program, &machine_rules(profile), cuts, &rules, false);
+    let checked = check::program::check_program(
+        program,
+        &machine_rules(profile),
+        cuts,
+        &rules,
+        &check::program::Pictures::default(),
+    );
     let must: Vec<String> = checked
         .findings
         .iter()
