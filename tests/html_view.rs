@@ -236,10 +236,28 @@ fn in_a_browser_scrubbing_to_move_n_shows_its_line() {
     let read: ReadBack = read_back(&program);
     let lines: Vec<&str> = program.lines().collect();
     let m = read.moves.len();
+    let data = page_data(&fs::read_to_string(&page).unwrap());
+    let time = numbers(&data["moves"]["time"]);
+    let total = data["total"].as_f64().unwrap();
+    // The page's clock: minutes:seconds, rounded to the second.
+    let clock = |t: f64| {
+        let s = t.round() as u64;
+        format!("{}:{:02}", s / 60, s % 60)
+    };
     for n in [1, m / 3, m / 2 + 1, m] {
         let (dom, console) = run_page(&chromium, &page, &format!("move={n}"));
         assert_clean(&dom, &console, &format!("move {n}"));
         assert_eq!(element(&dom, "where").1, format!("move {n} of {m}"));
+        assert_eq!(
+            element(&dom, "clock").1,
+            format!("t = {} of {} (estimate)", clock(time[n - 1]), clock(total))
+        );
+        // One switch per feature.
+        assert_eq!(
+            dom.matches("data-feature=").count(),
+            read.features.len(),
+            "move {n}"
+        );
         let line = read.moves[n - 1].line;
         let (tag, text) = element(&dom, "current-line");
         assert_eq!(
