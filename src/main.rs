@@ -5,6 +5,7 @@ mod cli;
 use anyhow::{Context, Result, bail};
 use clap::{Args, Parser, Subcommand};
 use cli::batch;
+use cli::outputs::{self, OutputBody};
 use cli::progress::Progress;
 use conicut::chain::{DEFAULT_BAY_LAYER, DEFAULT_MAX_GAP};
 use conicut::check::program::Pictures;
@@ -62,6 +63,11 @@ enum Command {
         /// feature, the check's findings and the time estimate along the way.
         #[arg(long)]
         html: bool,
+        /// Replace files under the output names that an earlier conicut run did not write
+        /// (files its report in the folder lists are replaced anyway, and the new report says
+        /// which were).
+        #[arg(long)]
+        force: bool,
     },
     /// Solve every feature of a drawing and list every candidate, without cutting anything.
     Solve {
@@ -105,6 +111,11 @@ enum Command {
         /// feature, the check's findings and the time estimate along the way.
         #[arg(long)]
         html: bool,
+        /// Replace files under the output names that an earlier conicut run did not write
+        /// (files its report in the folder lists are replaced anyway, and the new report says
+        /// which were).
+        #[arg(long)]
+        force: bool,
         #[command(flatten)]
         input: DrawingArgs,
         #[command(flatten)]
@@ -523,6 +534,7 @@ fn run(cli: Cli) -> Result<()> {
             tool_diameter,
             job,
             html,
+            force,
         } => {
             let machine_read = bundled_profile(&machine)?;
             let input = DrawingArgs {
@@ -554,7 +566,7 @@ fn run(cli: Cli) -> Result<()> {
             let ext = machine_read.profile.program_extension().to_string();
             print!(
                 "{}",
-                write_outputs_with(output, &out, &stem, &ext, None)?.to_text()
+                write_outputs_with(output, &out, &stem, &ext, None, force)?.to_text()
             );
             Ok(())
         }
@@ -609,15 +621,7 @@ fn run(cli: Cli) -> Result<()> {
                 .into_iter()
                 .filter_map(|(path, body)| Some((path.clone()?, body.as_deref()?)))
                 .collect();
-            for (path, _) in &files {
-                let dir = path.parent().filter(|d| !d.as_os_str().is_empty());
-                fs::create_dir_all(dir.unwrap_or(Path::new(".")))
-                    .with_context(|| format!("cannot create the folder of {}", path.display()))?;
-            }
-            if let Some((first, _)) = files.first() {
-                let dir = first.parent().filter(|d| !d.as_os_str().is_empty());
-                write_all_or_nothing(dir.unwrap_or(Path::new(".")), &files)?;
-            }
+            write_named_files(&files)?;
             if json {
                 println!("{}", checked.to_json());
             } else {
@@ -636,6 +640,7 @@ fn run(cli: Cli) -> Result<()> {
             quiet,
             dxf_out,
             html,
+            force,
             input,
             cut,
         } => {
@@ -648,6 +653,7 @@ fn run(cli: Cli) -> Result<()> {
                 cut: &cut,
                 dxf_out,
                 html,
+                force,
             };
             if let [drawing] = drawings.as_slice() {
                 let progress = Progress::new(quiet, 1);
@@ -677,6 +683,8 @@ struct PlanArgs<'a> {
     dxf_out: bool,
     /// Also write the interactive page.
     html: bool,
+    /// Replace files under the output names that no earlier run wrote.
+    force: bool,
 }
 
 /// Plans one drawing and writes its outputs into `dir`; the report.
@@ -709,7 +717,7 @@ fn plan_one(
         None
     };
     let ext = plan.machine.profile.program_extension();
-    write_outputs_with(output, dir, &stem, ext, drawing)
+    write_outputs_with(output, dir, &stem, ext, drawing, plan.force)
 }
 
 /// Plans every drawing, each into its own folder inside `parent`, whatever the others do;
@@ -808,6 +816,7 @@ fn write_outputs_with(
     stem: &str,
     ext: &str,
     drawing: Option<String>,
+    force: bool,
 ) -> Result<conicut::report::Report> {
     let mut names = vec![
         ("program", format!("{stem}.{ext}")),
@@ -821,13 +830,19 @@ fn write_outputs_with(
     if output.view.is_some() {
         names.push(("view", format!("{stem}.html")));
     }
+    let file_names: Vec<String> = names.iter().map(|(_, n)| n.clone()).collect();
+    let prepared = outputs::prepare(dir, &file_names, Some(&names[3].1), force)?;
     output.report.files = names
         .iter()
         .map(|(role, name)| OutputFile {
             role: role.to_string(),
             path: dir.join(name).display().to_string(),
+            replaced: prepared.replaced.contains(name),
         })
         .collect();
+    if let Some(note) = prepared.recovered {
+        output.report.notes.push(note);
+    }
     let text = output.report.to_text();
     let json = output.report.to_json();
     let mut contents = vec![&output.program, &output.preview, &text, &json];
@@ -837,40 +852,38 @@ fn write_outputs_with(
     if let Some(v) = &output.view {
         contents.push(v);
     }
-    let files: Vec<(PathBuf, &str)> = names
+    let files: Vec<OutputBody> = names
         .iter()
         .zip(contents)
-        .map(|((_, name), body)| (dir.join(name), body.as_str()))
+        .map(|((_, name), body)| OutputBody {
+            name: name.clone(),
+            body: body.as_bytes(),
+        })
         .collect();
-    write_all_or_nothing(dir, &files)?;
+    outputs::commit(dir, &files)?;
     Ok(output.report)
 }
 
-/// Writes every file beside its final name, then renames them all into place; on any failure the
-/// files already written beside are removed and nothing is renamed, so no output is left half
-/// written.
-fn write_all_or_nothing(dir: &Path, files: &[(PathBuf, &str)]) -> Result<()> {
-    fs::create_dir_all(dir)
-        .with_context(|| format!("cannot create the output folder {}", dir.display()))?;
-    let temp = |p: &Path| {
-        let mut name = p.file_name().unwrap_or_default().to_os_string();
-        name.push(".partial");
-        p.with_file_name(name)
-    };
-    let mut written = Vec::new();
+/// Writes files the user named one by one (`check --svg FILE --html FILE`): each replaces what
+/// is under its name, all or nothing within its folder.
+fn write_named_files(files: &[(PathBuf, &str)]) -> Result<()> {
     for (path, body) in files {
-        let t = temp(path);
-        if let Err(e) = fs::write(&t, body) {
-            let _ = fs::remove_file(&t);
-            for w in &written {
-                let _ = fs::remove_file(w);
-            }
-            bail!("cannot write {}: {e}", t.display());
-        }
-        written.push(t);
-    }
-    for ((path, _), t) in files.iter().zip(&written) {
-        fs::rename(t, path).with_context(|| format!("cannot write {}", path.display()))?;
+        let dir = path
+            .parent()
+            .filter(|d| !d.as_os_str().is_empty())
+            .unwrap_or(Path::new("."));
+        let Some(name) = path.file_name() else {
+            bail!("{} names no file", path.display());
+        };
+        let name = name.to_string_lossy().into_owned();
+        outputs::prepare(dir, std::slice::from_ref(&name), None, true)?;
+        outputs::commit(
+            dir,
+            &[OutputBody {
+                name,
+                body: body.as_bytes(),
+            }],
+        )?;
     }
     Ok(())
 }

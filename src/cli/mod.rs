@@ -1,5 +1,6 @@
 //! The command line's own helpers (part of the binary, not of the library): the progress bar,
-//! and running `plan` on several drawings.
+//! running `plan` on several drawings, and writing each output set all or nothing.
 
 pub mod batch;
+pub mod outputs;
 pub mod progress;

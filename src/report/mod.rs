@@ -162,6 +162,9 @@ pub struct ProgramBounds {
 pub struct OutputFile {
     pub role: String,
     pub path: String,
+    /// Whether a file of an earlier run (or, with `--force`, any file) was under that name and
+    /// was replaced.
+    pub replaced: bool,
 }
 
 /// What the report is built from.
@@ -494,7 +497,8 @@ impl Report {
         if !self.files.is_empty() {
             let _ = writeln!(s, "\nfiles:");
             for f in &self.files {
-                let _ = writeln!(s, "  {:<12} {}", f.role, f.path);
+                let replaced = if f.replaced { " (replaced)" } else { "" };
+                let _ = writeln!(s, "  {:<12} {}{replaced}", f.role, f.path);
             }
         }
         s
