@@ -185,7 +185,9 @@ fn group_ends(ends: &[Point], max_gap: f64) -> Vec<Vec<usize>> {
         let (cx, cy) = key(p);
         for dx in -1..=1 {
             for dy in -1..=1 {
-                let Some(cands) = grid.get(&(cx + dx, cy + dy)) else {
+                // Saturating: a coordinate near the f64 range's end has a key at i64's end.
+                let near = (cx.saturating_add(dx), cy.saturating_add(dy));
+                let Some(cands) = grid.get(&near) else {
                     continue;
                 };
                 for &j in cands {

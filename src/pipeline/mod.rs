@@ -525,19 +525,30 @@ pub fn check_job(
     resolved: &ResolvedJob,
     pictures: &check::program::Pictures,
 ) -> Result<check::program::ProgramCheck, JobError> {
-    let planned = plan_job(dxf, profile, s, resolved, &|_| {})?;
+    let cuts = planned_cuts(dxf, profile, s, resolved)?;
     Ok(check::program::check_program(
         program,
         &machine_rules(profile),
-        &planned.plan.cuts,
+        &cuts,
         &against_rules(s, resolved, profile, false),
         pictures,
     ))
 }
 
+/// The cuts `plan` would make of the drawing with these settings, each with its exact path:
+/// what [`check_job`] holds a program to.
+pub fn planned_cuts(
+    dxf: &[u8],
+    profile: &MachineProfile,
+    s: &JobSettings,
+    resolved: &ResolvedJob,
+) -> Result<Vec<plan::PlannedCut>, JobError> {
+    Ok(plan_job(dxf, profile, s, resolved, &|_| {})?.plan.cuts)
+}
+
 /// What the check holds the cutting moves to; `contours_measured` when the job's own read-back
 /// has measured every contour already.
-fn against_rules(
+pub fn against_rules(
     s: &JobSettings,
     resolved: &ResolvedJob,
     profile: &MachineProfile,
