@@ -64,7 +64,13 @@ pub(crate) fn band_polygon(
         };
         if t1 >= t_end {
             // The outer edge at the end is reachable but the given last point is not: split the
-            // rest in two.
+            // rest in two, until what is left is too short to matter. Then `last` (which lies
+            // off the band when it is not reachable, by less than a given point's allowance)
+            // is joined by a chord as short as that rest: no vertex more changes it.
+            if t_end - tv <= LAST_STRETCH * (1.0 + t_end.abs()) {
+                points.push(last);
+                return points;
+            }
             t1 = 0.5 * (tv + t_end);
         }
         t1 = t1.max(tv + 1e-9);
@@ -75,6 +81,11 @@ pub(crate) fn band_polygon(
     points.push(last);
     points
 }
+
+/// The parameter span (relative) under which the rest of the curve is closed by one chord to the
+/// given last point when that point cannot be reached from the band (the last point of a lead
+/// that starts off a one-sided band, say): 1e-9, a chord of 1e-9 of the radius.
+const LAST_STRETCH: f64 = 1e-9;
 
 /// Whether the chord from `v` (at parameter `tv`) to `q` (at `tq`) stays clear of the inner
 /// edge `s = lo` of the band: the inner edge's arc between the two parameters lies on the chord's
@@ -92,3 +103,32 @@ fn chord_clears(curve: &impl ConvexCurve, lo: f64, v: Point, tv: f64, q: Point, 
 /// How far (mm) a chord may seem to cross the inner edge before it counts as crossing: rounding
 /// in the point arithmetic, for a chord that starts on the edge itself.
 const ROUNDING_SLACK: f64 = 1e-12;
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::fit::band::CircleCurve;
+
+    #[test]
+    fn a_last_point_off_the_band_ends_the_polygon_without_crowding_it() {
+        // A quarter of a 4 mm circle, one-sided band [0, 0.01] outside it; the last point lies
+        // 0.005 mm inside the circle, off the band (as the end of a lead can, when it meets a
+        // contour fitted on the other side): the chords cannot reach it, and the polygon must
+        // still end there after about as many vertices as a reachable end needs.
+        let curve = CircleCurve {
+            centre: Point::new(0.0, 0.0),
+            radius: 4.0,
+        };
+        let band = Band::new(0.01, true, false, 4.0);
+        let first = Point::new(4.0, 0.0);
+        let reachable = band_polygon(&curve, band, 0.0, FRAC_PI_2, first, Point::new(0.0, 4.0));
+        let off = band_polygon(&curve, band, 0.0, FRAC_PI_2, first, Point::new(0.0, 3.995));
+        assert_eq!(off.last(), Some(&Point::new(0.0, 3.995)));
+        assert!(
+            off.len() <= reachable.len() + 64,
+            "{} vertices for an unreachable end, {} for a reachable one",
+            off.len(),
+            reachable.len()
+        );
+    }
+}
