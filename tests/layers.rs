@@ -261,17 +261,34 @@ fn the_job_file_names_layers_and_the_command_line_wins() {
 }
 
 #[test]
-fn a_bay_layer_that_holds_no_bays_is_a_warning_naming_the_layers() {
+fn a_bay_layer_that_holds_no_bays_is_a_warning_and_one_that_does_not_exist_a_refusal() {
     let dir = tempfile::tempdir().unwrap();
     write(&dir.path().join("layers.dxf"));
-    let report = plan(dir.path(), &["--bay-layer", "BAYS"]);
+    // A layer the drawing has (layer 0, empty here), without closed loops of straight sides:
+    // a warning.
+    let report = plan(dir.path(), &["--bay-layer", "0"]);
     let warnings = report["warnings"].to_string();
     assert!(
-        warnings.contains("no bays were found (the drawing has no layer \\\"BAYS\\\")"),
+        warnings.contains("no bays were found (layer \\\"0\\\" holds no closed loop"),
         "{warnings}"
     );
     assert!(
         warnings.contains("OPENING-BAYS"),
         "the layers listed: {warnings}"
     );
+    // A layer it does not have: a misspelling, refused with the layers listed (the bays would
+    // otherwise be cut as sharp-cornered holes), nothing written.
+    let machine = mill();
+    let run = conicut()
+        .current_dir(dir.path())
+        .args(["plan", "layers.dxf", "--machine", &machine, "--tool-diameter", "3"])
+        .args(["--out", "refused", "--bay-layer", "BAYS"])
+        .assert()
+        .failure();
+    let message = String::from_utf8_lossy(&run.get_output().stderr).into_owned();
+    assert!(
+        message.contains("no layer \"BAYS\"") && message.contains("OPENING-BAYS"),
+        "{message}"
+    );
+    assert!(!dir.path().join("refused").exists());
 }

@@ -61,6 +61,18 @@ pub enum JobError {
         missing: String,
         known: String,
     },
+    #[error(
+        "{file}: the drawing has no layer \"{layer}\" to take the bays from (asked for by \
+         {asked}); its layers are {known}. Check the spelling, or leave it out to use the \
+         default layer \"{default}\"; nothing was written"
+    )]
+    UnknownBayLayer {
+        file: String,
+        layer: String,
+        asked: &'static str,
+        known: String,
+        default: &'static str,
+    },
     #[error("{file}: the edge margin must be zero or a positive number of mm (got {margin})")]
     BadMargin { file: String, margin: f64 },
     #[error(
@@ -126,11 +138,30 @@ fn read_and_solve(dxf: &[u8], s: &JobSettings) -> Result<Solved, JobError> {
         },
     )?;
     let layer_warnings = check_layer_names(&drawing, s)?;
-    let bay_layer = s
-        .job
-        .as_ref()
-        .and_then(|j| j.bay_layer.clone())
-        .unwrap_or_else(|| s.bay_layer.clone());
+    let from_job = s.job.as_ref().and_then(|j| j.bay_layer.clone());
+    let asked = if from_job.is_some() {
+        Some("the job file's bay_layer")
+    } else if !s.bay_layer.eq_ignore_ascii_case(chain::DEFAULT_BAY_LAYER) {
+        Some("--bay-layer")
+    } else {
+        None
+    };
+    let bay_layer = from_job.unwrap_or_else(|| s.bay_layer.clone());
+    // A bay layer named by the user that the drawing lacks is a misspelling: refused, since the
+    // bays would otherwise be cut as sharp-cornered holes. The default layer may be missing (a
+    // drawing of holes and an outline only): that is a warning below.
+    if let Some(asked) = asked {
+        let names = layer_names(&drawing);
+        if !names.iter().any(|n| n.eq_ignore_ascii_case(&bay_layer)) {
+            return Err(JobError::UnknownBayLayer {
+                file: file(),
+                layer: bay_layer,
+                asked,
+                known: names.join(", "),
+                default: chain::DEFAULT_BAY_LAYER,
+            });
+        }
+    }
     let part = chain::build_part(
         &drawing,
         &ChainOptions {

@@ -21,4 +21,4 @@ pub mod words;
 
 pub use profile::{BUNDLED_PROFILES, METRIC_MILL_TOML, Machine, MachineDefaults, ProfileError};
 pub use request::{JobSettings, LeadRequest, TabRequest};
-pub use resolve::{ResolvedJob, SettingsError, ToleranceBudget, resolve};
+pub use resolve::{ResolvedJob, SettingsError, ToleranceBudget, ranges, resolve};

@@ -82,6 +82,121 @@ pub enum SettingsError {
     FinishCutsThrough { allowance: f64, machine: String },
     #[error("tabs on the outline: {problem}")]
     BadTabs { problem: String },
+    /// A number outside the range conicut can cut with ([`ranges`] states each).
+    #[error("{setting} is {value} mm: {reason}. Give {range}")]
+    OutOfRange {
+        setting: &'static str,
+        /// The value as the message shows it (exponent form when very large or small).
+        value: String,
+        range: String,
+        reason: &'static str,
+    },
+}
+
+/// The ranges every length setting is held to before anything is planned, with the reason for
+/// each bound (the numbers are ours, chosen wide: they refuse only what no shop means).
+pub mod ranges {
+    /// The finest tool or kerf, mm: below any end mill or kerf made (the finest are about 0.1 mm,
+    /// from memory).
+    pub const MIN_TOOL_MM: f64 = 0.01;
+    /// The coarsest tolerance, mm: a path allowed further from the curve than this is no longer
+    /// a fit of it (common practice asks 0.001–0.1 mm).
+    pub const MAX_TOLERANCE_MM: f64 = 1.0;
+    /// The thinnest pass, mm.
+    pub const MIN_STEPDOWN_MM: f64 = 0.01;
+    /// The most passes one cut may take.
+    pub const MAX_PASSES: f64 = 1000.0;
+    /// The longest lead, lead radius or overcut, mm (common practice: a few mm).
+    pub const MAX_LEAD_MM: f64 = 100.0;
+    /// The most tabs on the outline.
+    pub const MAX_TABS: usize = 1000;
+    /// The closest tab spacing along the outline, mm.
+    pub const MIN_TAB_SPACING_MM: f64 = 1.0;
+}
+
+/// Holds the request's lengths to [`ranges`].
+fn check_ranges(
+    s: &JobSettings,
+    tool_diameter: f64,
+    depth: f64,
+    leads: &LeadOptions,
+) -> Result<(), SettingsError> {
+    use ranges::*;
+    let out = |setting, value: f64, range: String, reason| {
+        let value = if value != 0.0 && !(1e-3..1e6).contains(&value.abs()) {
+            format!("{value:e}")
+        } else {
+            format!("{value}")
+        };
+        Err(SettingsError::OutOfRange {
+            setting,
+            value,
+            range,
+            reason,
+        })
+    };
+    if tool_diameter.is_nan() || tool_diameter < MIN_TOOL_MM {
+        return out(
+            "the tool diameter (or kerf)",
+            tool_diameter,
+            format!("at least {MIN_TOOL_MM} mm with --tool-diameter (or --kerf)"),
+            "no cutter or kerf is that narrow; check the number and its unit",
+        );
+    }
+    if s.tolerance.is_nan() || s.tolerance <= 0.0 {
+        return out(
+            "the tolerance",
+            s.tolerance,
+            format!("a positive --tolerance, at most {MAX_TOLERANCE_MM} mm (0.01 is usual)"),
+            "it is how far the path may stray from the exact curve, so it must be above zero",
+        );
+    }
+    if s.tolerance > MAX_TOLERANCE_MM {
+        return out(
+            "the tolerance",
+            s.tolerance,
+            format!("--tolerance {MAX_TOLERANCE_MM} mm or less (0.01 is usual)"),
+            "a path allowed to stray that far from the curve is no longer a fit of it",
+        );
+    }
+    if let Some(step) = s.stepdown {
+        if step.is_nan() || step < MIN_STEPDOWN_MM {
+            return out(
+                "the stepdown",
+                step,
+                format!("--stepdown of at least {MIN_STEPDOWN_MM} mm"),
+                "passes that thin cut nothing a machine can hold and would take without end",
+            );
+        }
+        if depth / step > MAX_PASSES {
+            return out(
+                "the stepdown",
+                step,
+                format!(
+                    "--stepdown of at least {} mm for this depth of {depth} mm",
+                    depth / MAX_PASSES
+                ),
+                "that would be more than 1000 passes per cut",
+            );
+        }
+    }
+    for (setting, value) in [
+        ("the lead length", leads.length),
+        ("the lead radius", leads.radius),
+        ("the overcut", leads.overcut),
+    ] {
+        if value > MAX_LEAD_MM {
+            return out(
+                setting,
+                value,
+                format!(
+                    "at most {MAX_LEAD_MM} mm (--lead-length, --lead-radius, --overcut, the job file's [leads] or the profile)"
+                ),
+                "leads and overcuts are a few mm; one that long leaves the part's scrap",
+            );
+        }
+    }
+    Ok(())
 }
 
 /// Resolves `s` against `profile`.
@@ -94,6 +209,8 @@ pub fn resolve(s: &JobSettings, machine: &Machine) -> Result<ResolvedJob, Settin
     } else {
         requested_depth(s, profile)
     };
+    let leads = resolve_leads(&s.leads, s.job.as_ref(), machine.defaults.leads);
+    check_ranges(s, tool_diameter, depth, &leads)?;
     let budget = tolerance_budget(s, profile)?;
     let tabs = s
         .tabs
@@ -104,7 +221,7 @@ pub fn resolve(s: &JobSettings, machine: &Machine) -> Result<ResolvedJob, Settin
     warnings.extend(deep_pass_warning(s, profile, tool_diameter, depth));
     let plan = PlanOptions {
         tool_diameter,
-        leads: resolve_leads(&s.leads, s.job.as_ref(), machine.defaults.leads),
+        leads,
         direction,
         tabs,
         finish_allowance: s.finish_allowance,
@@ -240,6 +357,18 @@ fn resolve_tabs(
             ));
         }
         (Some(0), None) => return Err(bad("the count must be at least 1 (got 0)".into())),
+        (Some(n), None) if n > ranges::MAX_TABS => {
+            return Err(bad(format!(
+                "{n} tabs are more than the {} an outline may take; give fewer (4 to 8 is usual)",
+                ranges::MAX_TABS
+            )));
+        }
+        (None, Some(sp)) if sp > 0.0 && sp < ranges::MIN_TAB_SPACING_MM => {
+            return Err(bad(format!(
+                "a spacing of {sp} mm would put the tabs on top of each other; give at least {} mm (a few hundred mm is usual)",
+                ranges::MIN_TAB_SPACING_MM
+            )));
+        }
         (Some(_), None) => 0.0,
         (None, Some(sp)) if sp > 0.0 && sp.is_finite() => sp,
         (None, Some(sp)) => {

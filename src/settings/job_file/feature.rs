@@ -54,7 +54,20 @@ impl Context<'_> {
             .transpose()?;
         let stepdown = entries
             .get("stepdown")
-            .map(|e| self.size(e, scale, "the stepdown"))
+            .map(|e| {
+                let step = self.size(e, scale, "the stepdown")?;
+                let least = crate::settings::ranges::MIN_STEPDOWN_MM;
+                if step < least {
+                    return Err(self.at(
+                        e,
+                        Kind::BadValue,
+                        format!(
+                            "the stepdown is {step} mm: passes that thin cut nothing a machine                              can hold and would take without end; give at least {least} mm"
+                        ),
+                    ));
+                }
+                Ok(step)
+            })
             .transpose()?;
         let feed = entries
             .get("feed")

@@ -410,25 +410,33 @@ pub(super) fn check_decimals(
     let xy_decimals = raw.xy_decimals.unwrap_or(xy_default);
     let z_decimals = raw.z_decimals.unwrap_or(z_default);
     let feed_decimals = raw.feed_decimals.unwrap_or(feed_default);
-    for (key, value) in [
-        ("xy_decimals", xy_decimals),
-        ("z_decimals", z_decimals),
-        ("feed_decimals", feed_decimals),
-    ] {
-        if value > MAX_DECIMALS {
-            return Err(c.fail(
-                key,
-                format!("{value} decimals is more than the {MAX_DECIMALS} allowed"),
-                "use 0 to 6 (4 for mm and 5 for inch suit most controllers)",
-            ));
-        }
-    }
     // docs/sources.md P1.6: with fewer decimals the two radii of an arc cannot be
     // kept within 0.002 mm (0.0002 in) of each other.
     let min_arc_decimals = match raw.units {
         ProgramUnits::Millimetres => 3,
         ProgramUnits::Inches => 4,
     };
+    for (key, value) in [
+        ("xy_decimals", xy_decimals),
+        ("z_decimals", z_decimals),
+        ("feed_decimals", feed_decimals),
+    ] {
+        if value > MAX_DECIMALS {
+            // The same range the smallest-count check below holds X and Y to.
+            let least = if key == "xy_decimals" && arc_form == ArcForm::CentreOffsets {
+                min_arc_decimals
+            } else {
+                0
+            };
+            return Err(c.fail(
+                key,
+                format!("{value} decimals is more than the {MAX_DECIMALS} allowed"),
+                &format!(
+                    "use {least} to {MAX_DECIMALS} (4 for mm and 5 for inch suit most controllers)"
+                ),
+            ));
+        }
+    }
     if arc_form == ArcForm::CentreOffsets && xy_decimals < min_arc_decimals {
         return Err(c.fail(
             "xy_decimals",

@@ -222,10 +222,33 @@ impl fmt::Display for ProfileError {
 
 impl std::error::Error for ProfileError {}
 
+/// The TOML library's names of Rust types in a message, said in the user's words (`expected
+/// usize` is "expected a whole number, 0 or more").
+fn in_plain_words(message: &str) -> String {
+    let mut m = message.to_string();
+    for (rust, plain) in [
+        ("usize", "a whole number, 0 or more"),
+        ("u64", "a whole number, 0 or more"),
+        ("u32", "a whole number, 0 or more"),
+        ("u16", "a whole number, 0 or more"),
+        ("u8", "a whole number, 0 or more"),
+        ("i64", "a whole number"),
+        ("i32", "a whole number"),
+        ("f64", "a number"),
+        ("f32", "a number"),
+    ] {
+        m = m.replace(&format!("expected {rust}"), &format!("expected {plain}"));
+    }
+    m.replace("integer `", "the whole number `")
+        .replace("invalid type: string", "the text")
+        .replace("invalid type: ", "")
+        .replace("invalid value: ", "")
+}
+
 /// Turns a TOML or serde error into a [`ProfileError`], using the error's span for the line and
 /// the message or the line's text for the key.
 fn from_toml_error(e: &toml::de::Error, text: &str, file_name: &str) -> ProfileError {
-    let message = e.message().trim().to_string();
+    let message = in_plain_words(e.message().trim());
     let line = e.span().map(|span| line_of_offset(text, span.start));
     let quoted = message.split('`').nth(1).map(str::to_string);
     if message.starts_with("missing field") {

@@ -1,0 +1,333 @@
+//! A catalogue of bad inputs, each given to `conicut plan` as a user would: every one is
+//! refused with a message that says what is wrong in the user's words (the setting, file, line
+//! or feature, and what to give instead), never as an internal error, and the output folder is
+//! left as it was (here: an earlier run's set, byte for byte).
+
+use assert_cmd::Command;
+use std::collections::BTreeMap;
+use std::fs;
+use std::path::{Path, PathBuf};
+
+fn demo_drawing() -> PathBuf {
+    Path::new(env!("CARGO_MANIFEST_DIR")).join("demo-parts/truss-bracket.dxf")
+}
+
+fn profile_text(stem: &str) -> String {
+    fs::read_to_string(
+        Path::new(env!("CARGO_MANIFEST_DIR")).join(format!("machine-profiles/{stem}.toml")),
+    )
+    .unwrap()
+}
+
+fn files(dir: &Path) -> BTreeMap<String, Vec<u8>> {
+    fs::read_dir(dir)
+        .unwrap()
+        .filter_map(|e| e.ok())
+        .map(|e| {
+            (
+                e.file_name().to_string_lossy().into_owned(),
+                fs::read(e.path()).unwrap_or_default(),
+            )
+        })
+        .collect()
+}
+
+/// One bad input: a name, the drawing (a path, or the bytes of a drawing to write), the
+/// arguments after it, and words the message must hold.
+struct Case {
+    name: &'static str,
+    drawing: Option<Vec<u8>>,
+    args: Vec<String>,
+    says: &'static [&'static str],
+}
+
+fn args(a: &str) -> Vec<String> {
+    a.split_whitespace().map(str::to_string).collect()
+}
+
+fn option(name: &'static str, a: &str, says: &'static [&'static str]) -> Case {
+    Case {
+        name,
+        drawing: None,
+        args: args(&format!("--machine metric-mill {a}")),
+        says,
+    }
+}
+
+fn cases(tmp: &Path) -> Vec<Case> {
+    let mill = profile_text("metric-mill");
+    let profile = |name: &str, from: &str, to: &str| -> String {
+        assert!(mill.contains(from), "{from}");
+        let path = tmp.join(format!("{name}.toml"));
+        fs::write(&path, mill.replacen(from, to, 1)).unwrap();
+        path.display().to_string()
+    };
+    let demo = fs::read(demo_drawing()).unwrap();
+    let truncated = demo[..demo.len() / 2].to_vec();
+    let mut out = vec![
+        // Absurd numbers on the command line.
+        option(
+            "stepdown 1e-9",
+            "--tool-diameter 6 --depth 3 --stepdown 1e-9",
+            &["stepdown", "at least 0.01 mm"],
+        ),
+        option(
+            "stepdown 0.001",
+            "--tool-diameter 6 --depth 3 --stepdown 0.001",
+            &["stepdown", "at least 0.01 mm"],
+        ),
+        option(
+            "a million tabs",
+            "--tool-diameter 6 --tabs 1000000",
+            &["1000000 tabs", "give fewer"],
+        ),
+        option(
+            "tab spacing 1e-6",
+            "--tool-diameter 6 --tab-spacing 1e-6",
+            &["spacing", "at least 1 mm"],
+        ),
+        option(
+            "negative tolerance",
+            "--tool-diameter 6 --tolerance -1",
+            &["tolerance", "above zero"],
+        ),
+        option(
+            "zero tolerance",
+            "--tool-diameter 6 --tolerance 0",
+            &["tolerance", "above zero"],
+        ),
+        option(
+            "tolerance 5 mm",
+            "--tool-diameter 6 --tolerance 5",
+            &["tolerance", "1 mm or less"],
+        ),
+        option(
+            "tolerance 1e300",
+            "--tool-diameter 6 --tolerance 1e300",
+            &["1e300 mm", "1 mm or less"],
+        ),
+        option(
+            "tolerance NaN",
+            "--tool-diameter 6 --tolerance nan",
+            &["\"nan\" is not a length"],
+        ),
+        option(
+            "tolerance too fine",
+            "--tool-diameter 6 --tolerance 1e-12",
+            &["too fine", "decimals"],
+        ),
+        option(
+            "lead length 1e9",
+            "--tool-diameter 6 --lead line --lead-length 1e9",
+            &["lead length", "at most 100 mm"],
+        ),
+        option(
+            "lead radius 1e9",
+            "--tool-diameter 6 --lead-radius 1e9",
+            &["lead radius", "at most 100 mm"],
+        ),
+        option(
+            "overcut 1e9",
+            "--tool-diameter 6 --overcut 1e9",
+            &["overcut", "at most 100 mm"],
+        ),
+        option(
+            "tool 1e-9 mm",
+            "--tool-diameter 1e-9",
+            &["tool diameter", "at least 0.01 mm"],
+        ),
+        option(
+            "tool 1e9 mm",
+            "--tool-diameter 1e9",
+            &["gouge", "smaller than"],
+        ),
+        option(
+            "ramp angle 0",
+            "--tool-diameter 6 --ramp-angle 0",
+            &["ramp angle", "between 0 and 45"],
+        ),
+        option(
+            "ramp angle 90",
+            "--tool-diameter 6 --ramp-angle 90",
+            &["ramp angle", "between 0 and 45"],
+        ),
+        option("no tool on a mill", "", &["--tool-diameter"]),
+        option(
+            "tabs both ways",
+            "--tool-diameter 6 --tabs 4 --tab-spacing 100",
+            &["not both"],
+        ),
+        option("zero tabs", "--tool-diameter 6 --tabs 0", &["at least 1"]),
+        // Profiles.
+        Case {
+            name: "profile: decimals as text",
+            drawing: None,
+            args: args(&format!(
+                "--tool-diameter 6 --machine {}",
+                profile("words", "xy_decimals = 4 ", "xy_decimals = \"four\" ")
+            )),
+            says: &["line 14", "xy_decimals", "a whole number"],
+        },
+        Case {
+            name: "profile: negative decimals",
+            drawing: None,
+            args: args(&format!(
+                "--tool-diameter 6 --machine {}",
+                profile("negative", "xy_decimals = 4 ", "xy_decimals = -3 ")
+            )),
+            says: &["xy_decimals", "a whole number, 0 or more"],
+        },
+        Case {
+            name: "profile: 20 decimals",
+            drawing: None,
+            args: args(&format!(
+                "--tool-diameter 6 --machine {}",
+                profile("twenty", "xy_decimals = 4 ", "xy_decimals = 20 ")
+            )),
+            says: &["20 decimals", "use 3 to 6"],
+        },
+        Case {
+            name: "profile: zero decimals",
+            drawing: None,
+            args: args(&format!(
+                "--tool-diameter 6 --machine {}",
+                profile("zero", "xy_decimals = 4 ", "xy_decimals = 0 ")
+            )),
+            says: &["0 decimals", "at least 3"],
+        },
+        Case {
+            name: "profile: unknown key",
+            drawing: None,
+            args: args(&format!(
+                "--tool-diameter 6 --machine {}",
+                profile(
+                    "unknown",
+                    "spindle_off = \"M5\"",
+                    "spindle_off = \"M5\"\nspindel_delay = 2"
+                )
+            )),
+            says: &["spindel_delay", "spelling"],
+        },
+        Case {
+            name: "profile: negative feed",
+            drawing: None,
+            args: args(&format!(
+                "--tool-diameter 6 --machine {}",
+                profile("feed", "cut_feed = 400.0", "cut_feed = -400.0")
+            )),
+            says: &["cut_feed"],
+        },
+        Case {
+            name: "profile: inverted envelope",
+            drawing: None,
+            args: args(&format!(
+                "--tool-diameter 6 --machine {}",
+                profile("inverted", "x_max = 400.0", "x_max = -400.0")
+            )),
+            says: &["x_max"],
+        },
+        // Drawings.
+        Case {
+            name: "empty drawing",
+            drawing: Some(Vec::new()),
+            args: args("--machine metric-mill --tool-diameter 6"),
+            says: &["bad.dxf"],
+        },
+        Case {
+            name: "binary junk",
+            drawing: Some(
+                (0..4096u32)
+                    .map(|i| (i.wrapping_mul(2_654_435_761) >> 24) as u8)
+                    .collect(),
+            ),
+            args: args("--machine metric-mill --tool-diameter 6"),
+            says: &["bad.dxf"],
+        },
+        Case {
+            name: "truncated drawing",
+            drawing: Some(truncated),
+            args: args("--machine metric-mill --tool-diameter 6"),
+            says: &["bad.dxf"],
+        },
+        Case {
+            name: "no such bay layer",
+            drawing: None,
+            args: args("--machine metric-mill --tool-diameter 6 --bay-layer NOSUCH"),
+            says: &["NOSUCH", "OPENING-BAYS"],
+        },
+    ];
+    for c in &mut out {
+        if c.drawing.is_none() {
+            c.drawing = Some(demo.clone());
+        }
+    }
+    out
+}
+
+#[test]
+fn every_bad_input_is_refused_in_plain_words_and_changes_nothing() {
+    let tmp = tempfile::tempdir().unwrap();
+    let out = tmp.path().join("out");
+    // An earlier, good run's set in the output folder.
+    Command::cargo_bin("conicut")
+        .unwrap()
+        .arg("plan")
+        .arg(demo_drawing())
+        .args(["--machine", "metric-mill", "--tool-diameter", "6", "--out"])
+        .arg(&out)
+        .assert()
+        .success();
+    let before = files(&out);
+    let mut failures = Vec::new();
+    for case in cases(tmp.path()) {
+        // Each drawing under the same name, so that its outputs would land on the earlier set.
+        let dir = tmp.path().join(case.name.replace([' ', ':'], "-"));
+        fs::create_dir_all(&dir).unwrap();
+        let drawing = dir.join(
+            if case.name.contains("drawing") || case.name == "binary junk" {
+                "bad.dxf"
+            } else {
+                "truss-bracket.dxf"
+            },
+        );
+        fs::write(&drawing, case.drawing.as_ref().unwrap()).unwrap();
+        let run = Command::cargo_bin("conicut")
+            .unwrap()
+            .arg("plan")
+            .arg(&drawing)
+            .args(&case.args)
+            .arg("--out")
+            .arg(&out)
+            .timeout(std::time::Duration::from_secs(120))
+            .output()
+            .unwrap();
+        let message = String::from_utf8_lossy(&run.stderr).into_owned();
+        let problems: Vec<String> = [
+            (run.status.success()).then(|| "it was not refused".to_string()),
+            (run.status.code() == Some(101)).then(|| "it panicked".to_string()),
+            (message.contains("bug") || message.contains("fault in conicut"))
+                .then(|| "it blames conicut".to_string()),
+        ]
+        .into_iter()
+        .flatten()
+        .chain(
+            case.says
+                .iter()
+                .filter(|w| !message.contains(*w))
+                .map(|w| format!("the message lacks {w:?}")),
+        )
+        .collect();
+        if !problems.is_empty() {
+            failures.push(format!(
+                "{}: {}\n    {}",
+                case.name,
+                problems.join("; "),
+                message.trim()
+            ));
+        }
+        if files(&out) != before {
+            failures.push(format!("{}: the output folder changed", case.name));
+        }
+    }
+    assert!(failures.is_empty(), "\n{}", failures.join("\n"));
+}
