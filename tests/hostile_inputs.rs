@@ -54,6 +54,19 @@ fn option(name: &'static str, a: &str, says: &'static [&'static str]) -> Case {
     }
 }
 
+/// The demo's job file with its first hole renamed `name`, written into `tmp`; its path.
+fn job_with_name(tmp: &Path, file: &str, name: &str) -> String {
+    let job = fs::read_to_string(
+        Path::new(env!("CARGO_MANIFEST_DIR")).join("demo-parts/truss-bracket-job.toml"),
+    )
+    .unwrap();
+    let from = "name = \"lightening hole 1\"";
+    assert!(job.contains(from));
+    let path = tmp.join(format!("{file}.toml"));
+    fs::write(&path, job.replacen(from, &format!("name = \"{name}\""), 1)).unwrap();
+    path.display().to_string()
+}
+
 fn cases(tmp: &Path) -> Vec<Case> {
     let mill = profile_text("metric-mill");
     let profile = |name: &str, from: &str, to: &str| -> String {
@@ -250,6 +263,15 @@ fn cases(tmp: &Path) -> Vec<Case> {
             says: &["bad.dxf"],
         },
         Case {
+            name: "job: a name of 201 characters",
+            drawing: None,
+            args: args(&format!(
+                "--machine metric-mill --tool-diameter 6 --job {}",
+                job_with_name(tmp, "long-name", &"L".repeat(201))
+            )),
+            says: &["line 16", "`name`", "201 characters", "at most 200"],
+        },
+        Case {
             name: "no such bay layer",
             drawing: None,
             args: args("--machine metric-mill --tool-diameter 6 --bay-layer NOSUCH"),
@@ -330,4 +352,40 @@ fn every_bad_input_is_refused_in_plain_words_and_changes_nothing() {
         }
     }
     assert!(failures.is_empty(), "\n{}", failures.join("\n"));
+}
+
+/// A long name (once, 89 characters or more wrapped the cut's heading over two lines, and the
+/// checker then measured the wrong moves): planned, its heading one line.
+#[test]
+fn a_long_feature_name_heads_its_cut_on_one_line() {
+    let tmp = tempfile::tempdir().unwrap();
+    let name = "L".repeat(200);
+    let job = job_with_name(tmp.path(), "job", &name);
+    let out = tmp.path().join("out");
+    Command::cargo_bin("conicut")
+        .unwrap()
+        .arg("plan")
+        .arg(demo_drawing())
+        .args([
+            "--machine",
+            "metric-mill",
+            "--tool-diameter",
+            "6",
+            "--job",
+            &job,
+            "--out",
+        ])
+        .arg(&out)
+        .assert()
+        .success();
+    let program = fs::read_to_string(out.join("truss-bracket.nc")).unwrap();
+    let heading = program
+        .lines()
+        .find(|l| l.starts_with("(cut ") && l.contains(&name))
+        .expect("the cut's heading names it");
+    assert!(heading.ends_with(&format!(": {name})")), "{heading}");
+    assert!(
+        program.lines().all(|l| l.len() <= 256),
+        "every line within 256 characters"
+    );
 }

@@ -281,7 +281,14 @@ fn a_bay_layer_that_holds_no_bays_is_a_warning_and_one_that_does_not_exist_a_ref
     let machine = mill();
     let run = conicut()
         .current_dir(dir.path())
-        .args(["plan", "layers.dxf", "--machine", &machine, "--tool-diameter", "3"])
+        .args([
+            "plan",
+            "layers.dxf",
+            "--machine",
+            &machine,
+            "--tool-diameter",
+            "3",
+        ])
         .args(["--out", "refused", "--bay-layer", "BAYS"])
         .assert()
         .failure();

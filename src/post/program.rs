@@ -114,7 +114,7 @@ fn write_body(
     w.opening(r, settings.work_offset);
     let mut written = Vec::new();
     for (i, cut) in cuts.iter().enumerate() {
-        w.comment(&format!(
+        w.heading(&format!(
             "cut {} of {}: {}",
             i + 1,
             cuts.len(),

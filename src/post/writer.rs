@@ -52,6 +52,15 @@ impl<'p> Writer<'p> {
         }
     }
 
+    /// A comment on one line whatever its length: a cut's heading `(cut K of N: NAME)`, which
+    /// the checker reads as one line (job file names are held to
+    /// `settings::job_file::MAX_NAME_CHARS`, so that the line stays within the 256 characters
+    /// of a program line, NISTIR 6556, from memory).
+    pub(super) fn heading(&mut self, text: &str) {
+        self.lines
+            .push(comment_line(self.profile.comment_style(), text));
+    }
+
     pub(super) fn comment(&mut self, text: &str) {
         for line in wrap(text, COMMENT_WIDTH) {
             self.lines

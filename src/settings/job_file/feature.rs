@@ -38,6 +38,18 @@ impl Context<'_> {
             ));
         };
         let name = self.string(name_entry)?;
+        let chars = name.chars().count();
+        if chars > super::MAX_NAME_CHARS {
+            return Err(self.at(
+                name_entry,
+                Kind::BadValue,
+                format!(
+                    "the name is {chars} characters long; give one of at most {} (it heads the \
+                     feature's cut in the program, on one line)",
+                    super::MAX_NAME_CHARS
+                ),
+            ));
+        }
         let cut = self.cut_kind(&entries)?;
 
         let source = self.source(line, &entries, &name, scale)?;

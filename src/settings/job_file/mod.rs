@@ -103,6 +103,11 @@ use crate::read::Units;
 pub use crate::solve::Rule;
 pub use parse::parse_job_file;
 
+/// The longest feature name, in characters: the program's cut heading `(cut K of N: NAME)`
+/// stays one line well within the 256 characters a program line may hold (NISTIR 6556, from
+/// memory).
+pub const MAX_NAME_CHARS: usize = 200;
+
 /// A parsed job file, every length in mm.
 #[derive(Debug, Clone, PartialEq)]
 pub struct JobFile {
