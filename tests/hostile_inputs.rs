@@ -54,6 +54,31 @@ fn option(name: &'static str, a: &str, says: &'static [&'static str]) -> Case {
     }
 }
 
+/// The demo drawing with every coordinate and radius of its entities (group codes 10, 20, 11,
+/// 21, 40 in the ENTITIES section) multiplied by `factor`.
+fn scaled_demo(factor: f64) -> Vec<u8> {
+    let text = fs::read_to_string(demo_drawing()).unwrap();
+    let lines: Vec<&str> = text.lines().collect();
+    let mut out = Vec::with_capacity(lines.len());
+    let mut in_entities = false;
+    for pair in lines.chunks(2) {
+        let (code, value) = (pair[0], pair.get(1).copied().unwrap_or(""));
+        if code.trim() == "2" && value.trim() == "ENTITIES" {
+            in_entities = true;
+        }
+        if code.trim() == "0" && value.trim() == "ENDSEC" {
+            in_entities = false;
+        }
+        out.push(code.to_string());
+        let scaled = matches!(code.trim(), "10" | "20" | "11" | "21" | "40") && in_entities;
+        out.push(match value.trim().parse::<f64>() {
+            Ok(v) if scaled => format!("{:e}", v * factor),
+            _ => value.to_string(),
+        });
+    }
+    (out.join("\n") + "\n").into_bytes()
+}
+
 /// The demo's job file with its first hole renamed `name`, written into `tmp`; its path.
 fn job_with_name(tmp: &Path, file: &str, name: &str) -> String {
     let job = fs::read_to_string(
@@ -270,6 +295,18 @@ fn cases(tmp: &Path) -> Vec<Case> {
                 job_with_name(tmp, "long-name", &"L".repeat(201))
             )),
             says: &["line 16", "`name`", "201 characters", "at most 200"],
+        },
+        Case {
+            name: "drawing scaled by 1e200",
+            drawing: Some(scaled_demo(1e200)),
+            args: args("--machine metric-mill --tool-diameter 6"),
+            says: &["bad.dxf", "farther than any machine travels", "units"],
+        },
+        Case {
+            name: "drawing scaled by 1e6",
+            drawing: Some(scaled_demo(1e6)),
+            args: args("--machine metric-mill --tool-diameter 6"),
+            says: &["bad.dxf", "outside the machine's travel"],
         },
         Case {
             name: "no such bay layer",

@@ -102,6 +102,19 @@ pub enum JobError {
         finding: check::Finding,
     },
     #[error(
+        "{file}: entity {handle} (line {line}, layer {layer}) reaches {reach} mm from the \
+         drawing's origin, farther than any machine travels ({limit} mm): the drawing is scaled \
+         or its units are wrong. Check $INSUNITS or --units and the drawing's scale"
+    )]
+    TooFar {
+        file: String,
+        handle: String,
+        line: usize,
+        layer: String,
+        reach: String,
+        limit: String,
+    },
+    #[error(
         "{file}: feature \"{feature}\" is a pocket, but a {machine} cuts through the sheet and \
          cannot clear a pocket to a depth. Cut it as a hole (cut = \"hole\") on this machine, or \
          use a mill or router profile for the pocket"
@@ -111,6 +124,38 @@ pub enum JobError {
         feature: String,
         machine: String,
     },
+}
+
+/// How far from the drawing's origin any point may lie, mm (1000 km): past this no machine
+/// travels, and the arithmetic of chaining and solving would lose every digit that matters (a
+/// drawing scaled by mistake, or with units misread).
+pub const MAX_REACH_MM: f64 = 1e9;
+
+/// The entity that reaches farthest from the origin (the largest |x| or |y|, radii added), with
+/// that reach; `None` for a drawing without entities.
+fn farthest(drawing: &read::Drawing) -> Option<(&read::Entity, f64)> {
+    use read::EntityKind;
+    let reach = |p: crate::geom::Point| p.x.abs().max(p.y.abs());
+    // NaN counts as infinitely far (f64::max would drop it).
+    let far = |v: f64| if v.is_nan() { f64::INFINITY } else { v };
+    drawing
+        .entities
+        .iter()
+        .map(|e| {
+            let r = match &e.kind {
+                EntityKind::Line(l) => far(reach(l.start)).max(far(reach(l.end))),
+                EntityKind::Arc(a) => far(reach(a.centre) + a.radius.abs()),
+                EntityKind::Circle { centre, radius } => far(reach(*centre) + radius.abs()),
+                EntityKind::Polyline { vertices, .. } => vertices
+                    .iter()
+                    .map(|(p, _)| far(reach(*p)))
+                    .fold(0.0, f64::max),
+                EntityKind::Ellipse { ellipse, .. } => far(reach(ellipse.centre()) + ellipse.a()),
+                EntityKind::Point(p) => far(reach(*p)),
+            };
+            (e, r)
+        })
+        .max_by(|a, b| a.1.total_cmp(&b.1))
 }
 
 /// The drawing read and sorted, and every feature solved.
@@ -137,6 +182,22 @@ fn read_and_solve(dxf: &[u8], s: &JobSettings) -> Result<Solved, JobError> {
             units: s.units,
         },
     )?;
+    if let Some((e, reach)) = farthest(&drawing)
+        && reach > MAX_REACH_MM
+    {
+        return Err(JobError::TooFar {
+            file: file(),
+            handle: e.handle.clone(),
+            line: e.line,
+            layer: e.layer.clone(),
+            reach: if reach.is_finite() {
+                format!("{reach:.3e}")
+            } else {
+                "an endless distance".into()
+            },
+            limit: format!("{MAX_REACH_MM:e}"),
+        });
+    }
     let layer_warnings = check_layer_names(&drawing, s)?;
     let from_job = s.job.as_ref().and_then(|j| j.bay_layer.clone());
     let asked = if from_job.is_some() {
@@ -536,6 +597,12 @@ fn plan_job(
             file: s.file_name.clone(),
             error,
         })?;
+    edges_in_travel(&plan.cuts, profile, resolved.tool_diameter / 2.0).map_err(|error| {
+        JobError::Post {
+            file: s.file_name.clone(),
+            error,
+        }
+    })?;
     Ok(Planned {
         solved,
         to_cut,
@@ -543,6 +610,66 @@ fn plan_job(
         zero,
         plan,
     })
+}
+
+/// Refuses, before anything is fitted, a finished edge that the tool (its radius outside the
+/// edge) cannot reach within the profile's X and Y travel: the same refusal the program's own
+/// envelope check gives later, but before the fit spends its time (or its digits: a part placed
+/// kilometres away) on a path that cannot run.
+fn edges_in_travel(
+    cuts: &[plan::PlannedCut],
+    profile: &MachineProfile,
+    tool_radius: f64,
+) -> Result<(), post::PostError> {
+    let u = profile.units();
+    let t = profile.travel();
+    let limits = [
+        ('X', u.to_mm(t.x_min), u.to_mm(t.x_max)),
+        ('Y', u.to_mm(t.y_min), u.to_mm(t.y_max)),
+    ];
+    let d = profile.xy_decimals();
+    for c in cuts {
+        let Some(b) = c.edge().bounding_box() else {
+            continue;
+        };
+        let ends = [(b.min.x, b.max.x), (b.min.y, b.max.y)];
+        for ((axis, min, max), (lo, hi)) in limits.into_iter().zip(ends) {
+            // The edge, and for a cut outside it (the outline) the tool centre a radius beyond.
+            let r = if c.side() == plan::CutSide::Outside {
+                tool_radius
+            } else {
+                0.0
+            };
+            let (lo, hi) = (lo - r, hi + r);
+            let past = if lo < min {
+                Some(lo)
+            } else if hi > max {
+                Some(hi)
+            } else {
+                None
+            };
+            if let Some(value) = past.or_else(|| (!lo.is_finite() || !hi.is_finite()).then_some(lo))
+            {
+                return Err(post::PostError::OutsideEnvelope {
+                    feature: c.name().to_string(),
+                    what: if r > 0.0 {
+                        "the tool beside its finished edge"
+                    } else {
+                        "its finished edge"
+                    },
+                    axis,
+                    value: post::format_number(u.from_mm(value), d),
+                    limits: format!(
+                        "{} .. {}",
+                        post::format_number(u.from_mm(min), d),
+                        post::format_number(u.from_mm(max), d)
+                    ),
+                    units: u,
+                });
+            }
+        }
+    }
+    Ok(())
 }
 
 /// `conicut check`: `program` (from anywhere) read on its own and held to the text rules, the
