@@ -102,15 +102,14 @@ pub enum JobError {
         finding: check::Finding,
     },
     #[error(
-        "{file}: entity {handle} (line {line}, layer {layer}) reaches {reach} mm from the \
-         drawing's origin, farther than any machine travels ({limit} mm): the drawing is scaled \
-         or its units are wrong. Check $INSUNITS or --units and the drawing's scale"
+        "{file}: {entity} reaches {reach} mm from the drawing's origin, farther than any \
+         machine travels ({limit} mm): the drawing is scaled or its units are wrong. Check \
+         $INSUNITS or --units and the drawing's scale"
     )]
     TooFar {
         file: String,
-        handle: String,
-        line: usize,
-        layer: String,
+        /// `entity H (line N, layer L)`.
+        entity: String,
         reach: String,
         limit: String,
     },
@@ -187,9 +186,7 @@ fn read_and_solve(dxf: &[u8], s: &JobSettings) -> Result<Solved, JobError> {
     {
         return Err(JobError::TooFar {
             file: file(),
-            handle: e.handle.clone(),
-            line: e.line,
-            layer: e.layer.clone(),
+            entity: format!("entity {} (line {}, layer {})", e.handle, e.line, e.layer),
             reach: if reach.is_finite() {
                 format!("{reach:.3e}")
             } else {
