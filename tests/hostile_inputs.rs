@@ -79,6 +79,42 @@ fn scaled_demo(factor: f64) -> Vec<u8> {
     (out.join("\n") + "\n").into_bytes()
 }
 
+/// The demo drawing with `entities` (DXF text) added at the end of its ENTITIES section.
+fn demo_with(entities: &str) -> Vec<u8> {
+    let text = fs::read_to_string(demo_drawing())
+        .unwrap()
+        .replace("\r\n", "\n");
+    let start = text.find("ENTITIES").unwrap();
+    let end = start + text[start..].find("  0\nENDSEC").unwrap();
+    format!("{}{entities}{}", &text[..end], &text[end..]).into_bytes()
+}
+
+/// A closed LWPOLYLINE bay on the bay layer through `corners`.
+fn bay(handle: &str, corners: &[(f64, f64)]) -> String {
+    let mut s = format!(
+        "  0\nLWPOLYLINE\n  5\n{handle}\n  8\nOPENING-BAYS\n 90\n{}\n 70\n1\n",
+        corners.len()
+    );
+    for (x, y) in corners {
+        s.push_str(&format!(" 10\n{x}\n 20\n{y}\n"));
+    }
+    s
+}
+
+/// A copy of the demo's first bay (the LWPOLYLINE with handle 14) under handle `handle`.
+fn first_bay_again(handle: &str) -> String {
+    let text = fs::read_to_string(demo_drawing())
+        .unwrap()
+        .replace("\r\n", "\n");
+    let start = text
+        .find("  0\nLWPOLYLINE\n  5\n14\n")
+        .expect("the first bay");
+    let end = start + 1 + text[start + 1..].find("\n  0\n").unwrap() + 1;
+    let copy = &text[start..end];
+    assert!(copy.contains("OPENING-BAYS"), "{copy}");
+    copy.replacen("  5\n14\n", &format!("  5\n{handle}\n"), 1)
+}
+
 /// The demo's job file with its first hole renamed `name`, written into `tmp`; its path.
 fn job_with_name(tmp: &Path, file: &str, name: &str) -> String {
     let job = fs::read_to_string(
@@ -307,6 +343,43 @@ fn cases(tmp: &Path) -> Vec<Case> {
             drawing: Some(scaled_demo(1e6)),
             args: args("--machine metric-mill --tool-diameter 6"),
             says: &["bad.dxf", "outside the machine's travel"],
+        },
+        Case {
+            name: "drawing with a bay across the outline",
+            drawing: Some(demo_with(&bay(
+                "FFF1",
+                &[(218.0, 50.0), (260.0, 50.0), (260.0, 90.0), (218.0, 90.0)],
+            ))),
+            args: args("--machine metric-mill --tool-diameter 6"),
+            says: &["bay 5", "breaks through the part's outline", "mm"],
+        },
+        Case {
+            name: "drawing with a bay outside the outline",
+            drawing: Some(demo_with(&bay(
+                "FFF1",
+                &[(300.0, 40.0), (340.0, 40.0), (340.0, 100.0), (300.0, 100.0)],
+            ))),
+            args: args("--machine metric-mill --tool-diameter 6"),
+            says: &[
+                "bay 5",
+                "outside the part's outline",
+                "(320.000, 70.000) mm",
+            ],
+        },
+        Case {
+            name: "drawing with overlapping bays",
+            drawing: Some(demo_with(&bay(
+                "FFF1",
+                &[(50.0, 50.0), (68.0, 50.0), (68.0, 90.0), (50.0, 90.0)],
+            ))),
+            args: args("--machine metric-mill --tool-diameter 6"),
+            says: &["bay 1 and bay 2 overlap near"],
+        },
+        Case {
+            name: "drawing with a bay drawn twice",
+            drawing: Some(demo_with(&first_bay_again("FFF2"))),
+            args: args("--machine metric-mill --tool-diameter 6"),
+            says: &["are the same opening", "drawn twice"],
         },
         Case {
             name: "no such bay layer",

@@ -43,6 +43,12 @@ pub enum JobError {
     Chain { file: String, error: ChainError },
     #[error("{file}: {error}")]
     Plan { file: String, error: PlanError },
+    /// Openings through or outside the outline, or overlapping (see [`plan::check_layout`]).
+    #[error("{file}: {error}; nothing was written")]
+    Layout {
+        file: String,
+        error: plan::LayoutError,
+    },
     #[error("{file}: {error}")]
     Fit { file: String, error: FitError },
     #[error("{file}: {error}")]
@@ -589,6 +595,10 @@ fn plan_job(
     watch(Step::Planning(
         to_cut.len() + solved.part.holes.len() + usize::from(solved.part.outline.is_some()),
     ));
+    plan::check_layout(&solved.part, &to_cut).map_err(|error| JobError::Layout {
+        file: s.file_name.clone(),
+        error,
+    })?;
     let plan =
         plan::plan_cuts(&solved.part, &to_cut, &resolved.plan).map_err(|error| JobError::Plan {
             file: s.file_name.clone(),

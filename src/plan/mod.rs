@@ -32,6 +32,7 @@ pub enum CutSide {
 mod cut;
 mod error;
 mod finishing;
+mod layout;
 mod lead_room;
 mod lead_shape;
 mod leads;
@@ -45,6 +46,7 @@ pub mod zero;
 
 pub use cut::{OwnSettings, PlannedCut, Tab};
 pub use error::PlanError;
+pub use layout::{EDGE_SAMPLES, LayoutError, check_layout};
 pub use options::{
     Direction, LeadKind, LeadOptions, POCKET_STEPOVER_PER_DIAMETER, PlanOptions, TabOptions,
 };
