@@ -128,6 +128,46 @@ fn job_with_name(tmp: &Path, file: &str, name: &str) -> String {
     path.display().to_string()
 }
 
+/// A job file holding `features` (TOML `[[feature]]` tables) written into `tmp` as `file`; its
+/// path.
+fn job(tmp: &Path, file: &str, features: &str) -> String {
+    let path = tmp.join(format!("{file}.toml"));
+    fs::write(&path, format!("units = \"mm\"\n\n{features}")).unwrap();
+    path.display().to_string()
+}
+
+/// A CSV of points written into `tmp`; its path.
+fn csv(tmp: &Path, file: &str, text: &str) -> String {
+    let path = tmp.join(format!("{file}.csv"));
+    fs::write(&path, text).unwrap();
+    path.display().to_string()
+}
+
+fn with_job(name: &'static str, job_path: String, says: &'static [&'static str]) -> Case {
+    Case {
+        name,
+        drawing: None,
+        args: args(&format!(
+            "--machine metric-mill --tool-diameter 6 --job {job_path}"
+        )),
+        says,
+    }
+}
+
+fn on_drawing(name: &'static str, drawing: Vec<u8>, says: &'static [&'static str]) -> Case {
+    Case {
+        name,
+        drawing: Some(drawing),
+        args: args("--machine metric-mill --tool-diameter 6"),
+        says,
+    }
+}
+
+/// A LINE on the plate's layer from (x0, y0) to (x1, y1), written as given.
+fn line(x0: &str, y0: &str, x1: &str, y1: &str) -> String {
+    format!("  0\nLINE\n  5\nFFF3\n  8\nPLATE-EDGE\n 10\n{x0}\n 20\n{y0}\n 11\n{x1}\n 21\n{y1}\n")
+}
+
 fn cases(tmp: &Path) -> Vec<Case> {
     let mill = profile_text("metric-mill");
     let profile = |name: &str, from: &str, to: &str| -> String {
@@ -381,6 +421,235 @@ fn cases(tmp: &Path) -> Vec<Case> {
             args: args("--machine metric-mill --tool-diameter 6"),
             says: &["are the same opening", "drawn twice"],
         },
+        // More drawings.
+        on_drawing(
+            "drawing without its EOF",
+            {
+                let t = String::from_utf8(demo_with("")).unwrap();
+                t[..t.rfind("EOF").unwrap()].as_bytes().to_vec()
+            },
+            &["bad.dxf"],
+        ),
+        on_drawing(
+            "drawing cut off inside its entities",
+            {
+                let t = String::from_utf8(demo_with("")).unwrap();
+                t[..t.find("OPENING-BAYS").unwrap() + 40]
+                    .as_bytes()
+                    .to_vec()
+            },
+            &["bad.dxf"],
+        ),
+        on_drawing(
+            "drawing with a NaN coordinate",
+            demo_with(&line("nan", "0", "10", "10")),
+            &["bad.dxf"],
+        ),
+        on_drawing(
+            "drawing with an infinite coordinate",
+            demo_with(&line("inf", "0", "10", "10")),
+            &["bad.dxf"],
+        ),
+        on_drawing(
+            "drawing with a coordinate of 1e308",
+            demo_with(&line("1e308", "0", "10", "10")),
+            &["bad.dxf", "FFF3"],
+        ),
+        on_drawing(
+            "drawing with an open bay",
+            demo_with(
+                &bay("FFF1", &[(100.0, 20.0), (120.0, 20.0), (120.0, 30.0)])
+                    .replace(" 70\n1\n", " 70\n0\n"),
+            ),
+            &["bad.dxf", "OPENING-BAYS"],
+        ),
+        on_drawing(
+            "drawing with a self-crossing bay",
+            demo_with(&bay(
+                "FFF1",
+                &[(100.0, 15.0), (130.0, 28.0), (130.0, 15.0), (100.0, 28.0)],
+            )),
+            &["bad.dxf", "bay"],
+        ),
+        on_drawing(
+            "drawing with a bay that is not convex",
+            demo_with(&bay(
+                "FFF1",
+                &[
+                    (100.0, 12.0),
+                    (140.0, 12.0),
+                    (120.0, 18.0),
+                    (140.0, 28.0),
+                    (100.0, 28.0),
+                ],
+            )),
+            &["bad.dxf", "convex"],
+        ),
+        on_drawing(
+            "drawing with a bay smaller than the tool",
+            demo_with(&bay(
+                "FFF1",
+                &[(110.0, 15.0), (113.0, 15.0), (113.0, 18.0), (110.0, 18.0)],
+            )),
+            &["bad.dxf", "tool"],
+        ),
+        on_drawing(
+            "drawing without units",
+            {
+                let t = String::from_utf8(demo_with("")).unwrap();
+                let at = t.find("$INSUNITS").expect("the demo states its units");
+                let end = at + t[at..].find("\n  9\n").unwrap();
+                format!("{}{}", &t[..at - 4], &t[end + 1..]).into_bytes()
+            },
+            &["bad.dxf", "--units"],
+        ),
+        // Job files.
+        with_job(
+            "job: an unknown rule",
+            job(
+                tmp,
+                "rule",
+                "[[feature]]\nname = \"a\"\nbay = \"bay 1\"\nrule = \"biggest-possible\"\n",
+            ),
+            &["rule", "biggest-possible"],
+        ),
+        with_job(
+            "job: a rule without its value",
+            job(
+                tmp,
+                "area",
+                "[[feature]]\nname = \"a\"\nbay = \"bay 1\"\nrule = \"area\"\n",
+            ),
+            &["area"],
+        ),
+        with_job(
+            "job: an impossible area",
+            job(
+                tmp,
+                "huge",
+                "[[feature]]\nname = \"a\"\nbay = \"bay 1\"\nrule = \"area\"\narea = 1e7\n",
+            ),
+            &["a", "area"],
+        ),
+        with_job(
+            "job: a point inside no bay",
+            job(
+                tmp,
+                "nowhere",
+                "[[feature]]\nname = \"a\"\ninside = [5000.0, 5000.0]\n",
+            ),
+            &["5000"],
+        ),
+        with_job(
+            "job: a bay the drawing lacks",
+            job(
+                tmp,
+                "missing",
+                "[[feature]]\nname = \"a\"\nbay = \"bay 99\"\n",
+            ),
+            &["bay 99"],
+        ),
+        with_job(
+            "job: an unknown key",
+            job(
+                tmp,
+                "key",
+                "[[feature]]\nname = \"a\"\nbay = \"bay 1\"\nmarginn = 2.0\n",
+            ),
+            &["marginn"],
+        ),
+        with_job(
+            "job: a TOML syntax error",
+            job(tmp, "syntax", "[[feature]\nname = \"a\"\n"),
+            &["line"],
+        ),
+        with_job(
+            "job: a negative margin",
+            job(
+                tmp,
+                "margin",
+                "[[feature]]\nname = \"a\"\nbay = \"bay 1\"\nmargin = -2.0\n",
+            ),
+            &["margin"],
+        ),
+        with_job(
+            "job: two features of one name",
+            job(
+                tmp,
+                "twice",
+                "[[feature]]\nname = \"a\"\nbay = \"bay 1\"\n\n[[feature]]\nname = \"a\"\nbay = \"bay 2\"\n",
+            ),
+            &["\"a\""],
+        ),
+        with_job(
+            "job: a CSV of two points",
+            {
+                let c = csv(tmp, "two", "x,y\n60,70\n70,75\n");
+                job(
+                    tmp,
+                    "csv2",
+                    &format!("[[feature]]\nname = \"scan\"\nfit_csv = \"{c}\"\n"),
+                )
+            },
+            &["scan", "at least 5 points"],
+        ),
+        with_job(
+            "job: a CSV with NaN",
+            {
+                let c = csv(
+                    tmp,
+                    "nan",
+                    "x,y\n60,70\n70,nan\n80,72\n75,60\n65,62\n62,66\n",
+                );
+                job(
+                    tmp,
+                    "csvnan",
+                    &format!("[[feature]]\nname = \"scan\"\nfit_csv = \"{c}\"\n"),
+                )
+            },
+            &["nan.csv", "line 3"],
+        ),
+        with_job(
+            "job: a CSV with text",
+            {
+                let c = csv(
+                    tmp,
+                    "text",
+                    "x,y\n60,70\nseventy,75\n80,72\n75,60\n65,62\n62,66\n",
+                );
+                job(
+                    tmp,
+                    "csvtext",
+                    &format!("[[feature]]\nname = \"scan\"\nfit_csv = \"{c}\"\n"),
+                )
+            },
+            &["text.csv", "line 3"],
+        ),
+        with_job(
+            "job: a CSV of collinear points",
+            {
+                let c = csv(
+                    tmp,
+                    "line",
+                    "x,y\n60,70\n62,70\n64,70\n66,70\n68,70\n70,70\n",
+                );
+                job(
+                    tmp,
+                    "csvline",
+                    &format!("[[feature]]\nname = \"scan\"\nfit_csv = \"{c}\"\n"),
+                )
+            },
+            &["scan"],
+        ),
+        with_job(
+            "job: a CSV that does not exist",
+            job(
+                tmp,
+                "csvgone",
+                "[[feature]]\nname = \"scan\"\nfit_csv = \"no-such-scan.csv\"\n",
+            ),
+            &["no-such-scan.csv"],
+        ),
         Case {
             name: "no such bay layer",
             drawing: None,
@@ -411,7 +680,14 @@ fn every_bad_input_is_refused_in_plain_words_and_changes_nothing() {
         .success();
     let before = files(&out);
     let mut failures = Vec::new();
-    for case in cases(tmp.path()) {
+    let catalogue = cases(tmp.path());
+    eprintln!("{} bad inputs", catalogue.len());
+    assert!(
+        catalogue.len() >= 60,
+        "the catalogue holds {} inputs",
+        catalogue.len()
+    );
+    for case in catalogue {
         // Each drawing under the same name, so that its outputs would land on the earlier set.
         let dir = tmp.path().join(case.name.replace([' ', ':'], "-"));
         fs::create_dir_all(&dir).unwrap();

@@ -206,3 +206,17 @@ fn a_run_killed_at_any_moment_leaves_whole_files() {
         }
     }
 }
+
+#[test]
+fn an_output_folder_under_a_regular_file_is_refused() {
+    let tmp = tempfile::tempdir().unwrap();
+    let file = tmp.path().join("notes.txt");
+    fs::write(&file, "the shop's notes\n").unwrap();
+    let run = plan(&demo_drawing(), &file.join("out"), &[]).failure();
+    let message = stderr(&run);
+    assert!(
+        message.contains("cannot create the output folder") && message.contains("notes.txt"),
+        "{message}"
+    );
+    assert_eq!(fs::read_to_string(&file).unwrap(), "the shop's notes\n");
+}
