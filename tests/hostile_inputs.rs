@@ -426,7 +426,7 @@ fn cases(tmp: &Path) -> Vec<Case> {
             "drawing without its EOF",
             {
                 let t = String::from_utf8(demo_with("")).unwrap();
-                t[..t.rfind("EOF").unwrap()].as_bytes().to_vec()
+                t.as_bytes()[..t.rfind("EOF").unwrap()].to_vec()
             },
             &["bad.dxf"],
         ),
@@ -434,9 +434,7 @@ fn cases(tmp: &Path) -> Vec<Case> {
             "drawing cut off inside its entities",
             {
                 let t = String::from_utf8(demo_with("")).unwrap();
-                t[..t.find("OPENING-BAYS").unwrap() + 40]
-                    .as_bytes()
-                    .to_vec()
+                t.as_bytes()[..t.find("OPENING-BAYS").unwrap() + 40].to_vec()
             },
             &["bad.dxf"],
         ),
