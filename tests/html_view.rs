@@ -432,3 +432,113 @@ fn plan_and_demo_write_the_page_beside_the_program_when_asked() {
     let data = page_data(&fs::read_to_string(pages[0].path()).unwrap());
     assert!(!data["moves"]["line"].as_array().unwrap().is_empty());
 }
+
+/// `text` as a `data:` address (every byte outside letters and digits percent-encoded).
+fn data_url(mime: &str, text: &str) -> String {
+    let mut out = format!("data:{mime},");
+    for b in text.bytes() {
+        if b.is_ascii_alphanumeric() {
+            out.push(b as char);
+        } else {
+            out.push_str(&format!("%{b:02X}"));
+        }
+    }
+    out
+}
+
+/// The preview SVG drawn by the browser: every solved ellipse's stroke is found in the pixels
+/// where the report puts the ellipse (its centre, semi-axes and angle), and not at its centre.
+#[test]
+fn in_a_browser_the_preview_draws_each_ellipse_where_the_report_puts_it() {
+    let Some(chromium) = browser() else { return };
+    let dir = tempfile::tempdir().unwrap();
+    plan_and_view(dir.path());
+    let svg = fs::read_to_string(dir.path().join("out/truss-bracket.svg")).unwrap();
+    let report: serde_json::Value = serde_json::from_str(
+        &fs::read_to_string(dir.path().join("out/truss-bracket-report.json")).unwrap(),
+    )
+    .unwrap();
+    let view_box: Vec<f64> = {
+        let at = svg.find("viewBox=\"").unwrap() + 9;
+        svg[at..at + svg[at..].find('"').unwrap()]
+            .split_whitespace()
+            .map(|v| v.parse().unwrap())
+            .collect()
+    };
+    // Probes in SVG units (mm, y drawn as −y): eight points on each ellipse, then each centre.
+    let mut on = Vec::new();
+    let mut centres = Vec::new();
+    for f in report["features"].as_array().unwrap() {
+        let e = &f["ellipse"];
+        if e.is_null() {
+            continue;
+        }
+        let c = numbers(&e["center_mm"]);
+        let (a, b) = (
+            e["semi_major_mm"].as_f64().unwrap(),
+            e["semi_minor_mm"].as_f64().unwrap(),
+        );
+        let phi = e["angle_deg"].as_f64().unwrap().to_radians();
+        for k in 0..8 {
+            let t = std::f64::consts::TAU * (k as f64 + 0.25) / 8.0;
+            let (u, v) = (a * t.cos(), b * t.sin());
+            let (x, y) = (
+                c[0] + u * phi.cos() - v * phi.sin(),
+                c[1] + u * phi.sin() + v * phi.cos(),
+            );
+            on.push([x, -y]);
+        }
+        centres.push([c[0], -c[1]]);
+    }
+    assert!(on.len() >= 32, "the demo's four ellipses");
+    let probes: Vec<[f64; 2]> = on.iter().chain(&centres).copied().collect();
+    let page = format!(
+        r#"<!DOCTYPE html><html><body><pre id="errors" hidden></pre><pre id="out"></pre>
+<script>
+window.addEventListener('error', function (e) {{ var b = document.getElementById('errors'); b.hidden = false; b.textContent += e.message; }});
+var box = {box:?}, probes = {probes:?}, S = 6;
+var img = new Image();
+img.onload = function () {{
+  var c = document.createElement('canvas');
+  c.width = Math.round(box[2] * S); c.height = Math.round(box[3] * S);
+  var g = c.getContext('2d', {{ willReadFrequently: true }});
+  g.drawImage(img, 0, 0, c.width, c.height);
+  // The ellipse stroke's colour, #c0531a; for each probe the nearest colour within 3 px.
+  var want = [0xc0, 0x53, 0x1a], out = [];
+  probes.forEach(function (p) {{
+    var px = Math.round((p[0] - box[0]) * S), py = Math.round((p[1] - box[1]) * S), best = 1e9;
+    var d = g.getImageData(px - 3, py - 3, 7, 7).data;
+    for (var i = 0; i < d.length; i += 4) {{
+      var e = Math.hypot(d[i] - want[0], d[i + 1] - want[1], d[i + 2] - want[2]);
+      if (e < best) best = e;
+    }}
+    out.push(Math.round(best));
+  }});
+  document.getElementById('out').textContent = JSON.stringify(out);
+  document.body.dataset.ready = '1';
+}};
+img.onerror = function () {{ var b = document.getElementById('errors'); b.hidden = false; b.textContent += 'the SVG did not load'; }};
+img.src = "{src}";
+</script></body></html>"#,
+        box = view_box,
+        probes = probes,
+        src = data_url("image/svg+xml", &svg),
+    );
+    let path = dir.path().join("pixels.html");
+    fs::write(&path, page).unwrap();
+    let (dom, console) = run_page(&chromium, &path, "");
+    assert_clean(&dom, &console, "the preview");
+    let found: Vec<f64> = serde_json::from_str(&unescape(element(&dom, "out").1)).unwrap();
+    // Near the stroke's colour (antialiasing mixes it with what lies under and beside it).
+    const NEAR: f64 = 60.0;
+    let hits = found[..on.len()].iter().filter(|&&d| d <= NEAR).count();
+    assert!(
+        hits * 8 >= on.len() * 7,
+        "only {hits} of {} points on the ellipses show the stroke: {found:?}",
+        on.len()
+    );
+    assert!(
+        found[on.len()..].iter().all(|&d| d > NEAR),
+        "an ellipse's colour at a centre: {found:?}"
+    );
+}
