@@ -865,7 +865,8 @@ fn write_outputs_with(
 }
 
 /// Writes files the user named one by one (`check --svg FILE --html FILE`): each replaces what
-/// is under its name, all or nothing within its folder.
+/// is under its name and is written whole or not at all; the second may fail after the first
+/// was written.
 fn write_named_files(files: &[(PathBuf, &str)]) -> Result<()> {
     for (path, body) in files {
         let dir = path

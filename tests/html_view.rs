@@ -8,7 +8,9 @@
 //! The browser is Debian's `chromium`, headless (`--dump-dom` after the page has run, with
 //! `--enable-logging=stderr`, which prints every console message as an `INFO:CONSOLE` line).
 //! When it is not installed the browser tests say so loudly and pass; `.ci/run` installs it
-//! and sets `CONICUT_REQUIRE_BROWSER=1`, which turns a missing browser into a failure there.
+//! when missing and, once it is there, sets `CONICUT_REQUIRE_BROWSER=1`, which turns a browser
+//! that cannot be found into a failure (when the install fails, the tests skip loudly, as the
+//! issue allows).
 //! `CONICUT_BROWSER` names another binary of the same kind.
 
 #[path = "support/gcode_read.rs"]
@@ -541,4 +543,33 @@ img.src = "{src}";
         found[on.len()..].iter().all(|&d| d > NEAR),
         "an ellipse's colour at a centre: {found:?}"
     );
+}
+
+/// An empty program, and one with moves but no cut comments: the page still loads cleanly,
+/// shows its moves (none, or all without a feature) and lists the findings.
+#[test]
+fn in_a_browser_an_empty_program_and_one_without_features_load_cleanly() {
+    let Some(chromium) = browser() else { return };
+    let dir = tempfile::tempdir().unwrap();
+    for (name, text, moves) in [
+        ("empty.nc", "", 0),
+        ("bare.nc", "G21 G90\nG0 X10 Y10\nG1 X20 F300\nM30\n", 2),
+    ] {
+        let program = dir.path().join(name);
+        fs::write(&program, text).unwrap();
+        let page = dir.path().join(format!("{name}.html"));
+        view(&program, &page).code(1);
+        let (dom, console) = run_page(&chromium, &page, "");
+        assert_clean(&dom, &console, name);
+        assert_eq!(
+            element(&dom, "where").1,
+            format!("move {moves} of {moves}"),
+            "{name}"
+        );
+        assert_eq!(dom.matches("data-feature=").count(), 0, "{name}");
+        assert!(
+            dom.contains("<li class=\"must-fix\">"),
+            "{name}: the findings listed"
+        );
+    }
 }

@@ -102,7 +102,7 @@ fn an_earlier_set_is_replaced_and_the_report_says_so() {
     assert!(
         fs::read_to_string(out.join("truss-bracket.nc"))
             .unwrap()
-            .contains("0.02")
+            .contains("tolerance 0.0200 mm")
     );
 }
 

@@ -50,10 +50,11 @@ pub fn program_html(
             .filter(|(k, s)| *k >= trace.moves.len() && *s >= 0.0)
             .map(|d| d.1)
             .sum::<f64>();
-    let page = PAGE.replacen("/*TITLE*/", &html_text(title), 1);
-    let (head, tail) = page.split_once("/*DATA*/").unwrap_or((&page, ""));
+    // Split first: the title (a path) may itself hold the marker text.
+    let (head, tail) = PAGE.split_once("/*DATA*/").unwrap_or((PAGE, ""));
+    let head = head.replacen("/*TITLE*/", &html_text(title), 1);
     let mut out = String::with_capacity(PAGE.len() + 400 * trace.moves.len() + 2 * program.len());
-    out.push_str(head);
+    out.push_str(&head);
     out.push_str("{\"title\":");
     out.push_str(&json_string(title));
     write!(out, ",\"total\":{}", number(total)).ok();

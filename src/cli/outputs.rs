@@ -7,16 +7,20 @@
 //! * A file already under a final name is replaced when an earlier conicut run wrote it: when
 //!   the report of the same name in that folder (`NAME-report.json`) lists it. Any other file is
 //!   replaced only with `--force`. The new report says which files it replaced.
-//! * Every file is first written whole into the folder `.conicut-writing` inside the output
-//!   folder (the same file system, so that each rename is atomic), the old files are linked
-//!   there as `old/NAME`, and a marker `COMMITTED` listing the final names is put there last.
-//!   Only then is each file renamed into place. Should a rename fail, the files already moved
-//!   are put back from `old/`; the folder is as it was.
+//! * Every file is first written whole into `.conicut-writing/new/` inside the output folder
+//!   (the same file system, so that each rename is atomic), the old files are linked as
+//!   `.conicut-writing/old/NAME`, and a marker `COMMITTED` listing the final names (and which
+//!   had an old file) is written last. Only then is each file renamed into place. Should a
+//!   rename fail, the marker becomes `ROLLING-BACK` and the files already moved are put back
+//!   from `old/`; the folder is as it was (if a file cannot be put back, the message says where
+//!   the old ones are kept).
 //! * A run stopped (killed) before the marker leaves the old set untouched and a
 //!   `.conicut-writing` folder that the next run into the folder removes; one stopped after
 //!   the marker, while renaming (a window of a few system calls), leaves the renames to be
-//!   finished: the next run into the folder finishes them first and says so. No file under a
-//!   final name is ever half written.
+//!   finished: the next run into the folder finishes them first (after `ROLLING-BACK`, it
+//!   finishes putting the old files back) and says so. No file under a final name is ever half
+//!   written. Another run writing into the same folder at the same time is told apart by its
+//!   process id where `/proc` shows it (Linux); elsewhere, do not run two into one folder.
 
 use anyhow::{Context, Result, bail};
 use std::fs;
@@ -27,6 +31,10 @@ use std::path::Path;
 pub const STAGING: &str = ".conicut-writing";
 /// The marker that the staged set is whole, with the final names one per line.
 const COMMITTED: &str = "COMMITTED";
+/// The marker, renamed from [`COMMITTED`], that a failed rename is being undone.
+const ROLLING_BACK: &str = "ROLLING-BACK";
+/// The staged files' folder inside the staging folder (apart from the markers).
+const NEW: &str = "new";
 /// The process writing the staged set (its id), to tell a stopped run from a running one.
 const OWNER: &str = "OWNER";
 
@@ -59,6 +67,15 @@ pub fn prepare(
         .with_context(|| format!("cannot create the output folder {}", dir.display()))?;
     if !dir.is_dir() {
         bail!("the output folder {} is not a folder", dir.display());
+    }
+    for (k, name) in names.iter().enumerate() {
+        if names[..k].iter().any(|n| n.eq_ignore_ascii_case(name)) {
+            bail!(
+                "two outputs would both be named {name} in {}; give the program another \
+                 extension (program_extension in the profile) (nothing was written)",
+                dir.display()
+            );
+        }
     }
     let recovered = recover(dir)?;
     let ours = previous_report.map_or_else(Vec::new, |r| files_listed(&dir.join(r)));
@@ -146,33 +163,55 @@ fn recover(dir: &Path) -> Result<Option<String>> {
             staging.display()
         );
     }
-    let note = match fs::read_to_string(staging.join(COMMITTED)) {
-        Ok(list) => {
-            // The set was whole: finish moving it into place.
-            let names: Vec<&str> = list.lines().filter(|l| !l.is_empty()).collect();
-            for name in &names {
-                let staged = staging.join(name);
-                if staged.exists() {
-                    fs::rename(&staged, dir.join(name)).with_context(|| {
-                        format!(
-                            "cannot finish the output set an earlier run left in {}",
-                            staging.display()
-                        )
-                    })?;
-                }
+    let staged = staging.join(NEW);
+    let note = if let Ok(list) = fs::read_to_string(staging.join(ROLLING_BACK)) {
+        // A failed rename was being undone: finish putting the old set back.
+        for line in list.lines().filter(|l| !l.is_empty()) {
+            let (name, had_old) = line.split_once('\t').unwrap_or((line, "true"));
+            let kept = staging.join("old").join(name);
+            if kept.exists() {
+                fs::rename(&kept, dir.join(name))
+                    .with_context(|| format!("cannot put back {}", dir.join(name).display()))?;
+            } else if had_old == "false" && !staged.join(name).exists() {
+                // Moved in new, where there was no file before.
+                let _ = fs::remove_file(dir.join(name));
             }
-            format!(
-                "an earlier run into {} was stopped while moving its outputs into place; its \
-                 set ({}) was finished first",
-                dir.display(),
-                names.join(", ")
-            )
         }
-        Err(_) => format!(
+        format!(
+            "an earlier run into {} was stopped while putting its old files back after a \
+             failure; they were put back first",
+            dir.display()
+        )
+    } else if let Ok(list) = fs::read_to_string(staging.join(COMMITTED)) {
+        // The set was whole: finish moving it into place.
+        let names: Vec<&str> = list
+            .lines()
+            .filter(|l| !l.is_empty())
+            .map(|l| l.split('\t').next().unwrap_or(l))
+            .collect();
+        for name in &names {
+            let from = staged.join(name);
+            if from.exists() {
+                fs::rename(&from, dir.join(name)).with_context(|| {
+                    format!(
+                        "cannot finish the output set an earlier run left in {}",
+                        staging.display()
+                    )
+                })?;
+            }
+        }
+        format!(
+            "an earlier run into {} was stopped while moving its outputs into place; its \
+             set ({}) was finished first",
+            dir.display(),
+            names.join(", ")
+        )
+    } else {
+        format!(
             "an earlier run into {} was stopped before its outputs were complete; its unfinished \
              files were removed and the folder's files were left as they were",
             dir.display()
-        ),
+        )
     };
     fs::remove_dir_all(&staging).with_context(|| format!("cannot remove {}", staging.display()))?;
     Ok(Some(note))
@@ -191,6 +230,7 @@ fn commit_with(
 ) -> Result<()> {
     let staging = dir.join(STAGING);
     let old = staging.join("old");
+    let staged = staging.join(NEW);
     let undo_staging = |e: anyhow::Error| {
         let _ = fs::remove_dir_all(&staging);
         e
@@ -199,38 +239,60 @@ fn commit_with(
     let stage = || -> Result<()> {
         fs::write(staging.join(OWNER), std::process::id().to_string())?;
         fs::create_dir(&old)?;
+        fs::create_dir(&staged)?;
         for f in files {
-            let path = staging.join(&f.name);
+            let path = staged.join(&f.name);
             let mut out = fs::File::create(&path)
                 .with_context(|| format!("cannot write {}", path.display()))?;
             out.write_all(f.body)
                 .and_then(|_| out.sync_all())
                 .with_context(|| format!("cannot write {}", path.display()))?;
             let existing = dir.join(&f.name);
-            if existing.is_file() {
-                fs::hard_link(&existing, old.join(&f.name))
-                    .or_else(|_| fs::copy(&existing, old.join(&f.name)).map(|_| ()))
+            let kept = old.join(&f.name);
+            if existing.is_file() && !kept.exists() {
+                // A link where the file system allows one, else a copy (never onto a link of
+                // the file itself: `prepare` refuses two outputs of one name).
+                fs::hard_link(&existing, &kept)
+                    .or_else(|_| fs::copy(&existing, &kept).map(|_| ()))
                     .with_context(|| format!("cannot keep a copy of {}", existing.display()))?;
             }
         }
-        let names: String = files.iter().map(|f| format!("{}\n", f.name)).collect();
+        // One line per file: its name, a tab, and whether an old file was kept for it.
+        let names: String = files
+            .iter()
+            .map(|f| format!("{}\t{}\n", f.name, old.join(&f.name).exists()))
+            .collect();
         let marker = staging.join("COMMITTING");
-        fs::write(&marker, names)?;
+        let mut m = fs::File::create(&marker)?;
+        m.write_all(names.as_bytes()).and_then(|_| m.sync_all())?;
         fs::rename(&marker, staging.join(COMMITTED))?;
         Ok(())
     };
     stage().map_err(undo_staging)?;
     for (k, f) in files.iter().enumerate() {
-        if let Err(e) = rename(&staging.join(&f.name), &dir.join(&f.name)) {
+        if let Err(e) = rename(&staged.join(&f.name), &dir.join(&f.name)) {
             // Put back what was there: the old files from their links, and no new file where
-            // there was none.
+            // there was none. The marker says so first, so that a run stopped now is undone by
+            // the next one, not finished.
+            let _ = fs::rename(staging.join(COMMITTED), staging.join(ROLLING_BACK));
+            let mut all_back = true;
             for g in &files[..k] {
                 let kept = old.join(&g.name);
-                if kept.exists() {
-                    let _ = fs::rename(&kept, dir.join(&g.name));
+                let back = if kept.exists() {
+                    fs::rename(&kept, dir.join(&g.name))
                 } else {
-                    let _ = fs::remove_file(dir.join(&g.name));
-                }
+                    fs::remove_file(dir.join(&g.name))
+                };
+                all_back &= back.is_ok();
+            }
+            if !all_back {
+                bail!(
+                    "cannot write {}: {e}; and not every old file could be put back: they are \
+                     kept in {} (move them back by hand; the next run into the folder tries \
+                     again)",
+                    dir.join(&f.name).display(),
+                    old.display()
+                );
             }
             let _ = fs::remove_dir_all(&staging);
             bail!(
@@ -305,7 +367,8 @@ mod tests {
         fs::create_dir_all(staging.join("old")).unwrap();
         fs::write(staging.join("old/a.nc"), "old a").unwrap();
         fs::write(staging.join("old/a.svg"), "old svg").unwrap();
-        fs::write(staging.join("a.svg"), "new svg").unwrap();
+        fs::create_dir_all(staging.join(NEW)).unwrap();
+        fs::write(staging.join(NEW).join("a.svg"), "new svg").unwrap();
         fs::write(staging.join(COMMITTED), "a.nc\na.svg\n").unwrap();
         // No process has this id (above the largest Linux allows).
         fs::write(staging.join(OWNER), "4294967295").unwrap();
@@ -317,13 +380,51 @@ mod tests {
     }
 
     #[test]
+    fn a_run_stopped_while_undoing_is_undone_by_the_next() {
+        let dir = tempfile::tempdir().unwrap();
+        let d = dir.path();
+        // Killed while putting back after a failed third rename: a.nc already put back (its
+        // link gone), a.svg still new with its old one kept, b.txt new where there was none.
+        fs::write(d.join("a.nc"), "old a").unwrap();
+        fs::write(d.join("a.svg"), "new svg").unwrap();
+        fs::write(d.join("b.txt"), "new b").unwrap();
+        let staging = d.join(STAGING);
+        fs::create_dir_all(staging.join("old")).unwrap();
+        fs::create_dir_all(staging.join(NEW)).unwrap();
+        fs::write(staging.join("old/a.svg"), "old svg").unwrap();
+        fs::write(staging.join(NEW).join("c.json"), "new c").unwrap();
+        fs::write(
+            staging.join(ROLLING_BACK),
+            "a.nc\ttrue\na.svg\ttrue\nb.txt\tfalse\nc.json\tfalse\n",
+        )
+        .unwrap();
+        fs::write(staging.join(OWNER), "4294967295").unwrap();
+        let p = prepare(d, &names(&["a.nc"]), None, true).unwrap();
+        assert!(p.recovered.unwrap().contains("put back first"));
+        assert_eq!(read(d, "a.nc"), "old a");
+        assert_eq!(read(d, "a.svg"), "old svg");
+        assert_eq!(read(d, "b.txt"), "<missing>");
+        assert_eq!(read(d, "c.json"), "<missing>");
+        assert!(!staging.exists());
+    }
+
+    #[test]
+    fn two_outputs_of_one_name_are_refused() {
+        let dir = tempfile::tempdir().unwrap();
+        let err = prepare(dir.path(), &names(&["a.svg", "a.SVG"]), None, true)
+            .unwrap_err()
+            .to_string();
+        assert!(err.contains("both be named"), "{err}");
+    }
+
+    #[test]
     fn a_run_stopped_before_the_marker_leaves_the_old_set() {
         let dir = tempfile::tempdir().unwrap();
         let d = dir.path();
         commit(d, &[body("a.nc", "old a")]).unwrap();
         let staging = d.join(STAGING);
-        fs::create_dir_all(&staging).unwrap();
-        fs::write(staging.join("a.nc"), "half of a new").unwrap();
+        fs::create_dir_all(staging.join(NEW)).unwrap();
+        fs::write(staging.join(NEW).join("a.nc"), "half of a new").unwrap();
         let p = prepare(d, &names(&["a.nc"]), None, true).unwrap();
         assert!(p.recovered.unwrap().contains("removed"));
         assert_eq!(read(d, "a.nc"), "old a");

@@ -64,9 +64,11 @@ pub(crate) fn band_polygon(
         };
         if t1 >= t_end {
             // The outer edge at the end is reachable but the given last point is not: split the
-            // rest in two, until what is left is too short to matter. Then `last` (which lies
-            // off the band when it is not reachable, by less than a given point's allowance)
-            // is joined by a chord as short as that rest: no vertex more changes it.
+            // rest in two, until what is left is too short to matter. Then `last` is joined by
+            // one chord: it lies off the band when it is not reachable, and that chord leaves
+            // the band by as much as `last` does (an end given off the band, such as a lead's
+            // end on a contour fitted to its other side; the caller's own measurement holds
+            // the result to the tolerance). This is the one exception to the bound above.
             if t_end - tv <= LAST_STRETCH * (1.0 + t_end.abs()) {
                 points.push(last);
                 return points;

@@ -6,10 +6,11 @@
 //!
 //! Each shape's edge is taken at [`EDGE_SAMPLES`] points (ellipses evenly in the eccentric
 //! anomaly, contours per element) and tested against the other shape's inside (its exact
-//! implicit test). Two shapes overlap when a point of either lies inside the other; a crossing
-//! thinner than the gap between samples (at most 1/8 of a sample step's sagitta, about 2e-4 of
-//! the ellipse's size) can slip through, and the checker's gouge test on the written program
-//! catches it then. Pairs are found through a [`BoxGrid`] of the shapes' boxes: no shape is
+//! implicit test). Two shapes overlap when a point of either lies inside the other. A crossing
+//! that no sample of either shape falls into can slip through: a shallow one (thinner than a
+//! sample step's sagitta), or two slender shapes crossing between samples (the samples are
+//! about 2π·a/192 ≈ 0.033·a apart, so shapes narrower than that, aspect ratios over about 30:1,
+//! may cross unseen). The checker's gouge test on the written program catches those then. Pairs are found through a [`BoxGrid`] of the shapes' boxes: no shape is
 //! compared with every other.
 
 use super::Opening;

@@ -180,6 +180,28 @@ fn check_ranges(
             );
         }
     }
+    // A feature's own passes (job file), with the job's depth or stepdown where it has none.
+    if let Some(job) = &s.job {
+        for f in &job.features {
+            let (Some(step), d) = (f.stepdown.or(s.stepdown), f.depth.unwrap_or(depth)) else {
+                continue;
+            };
+            if d / step > MAX_PASSES {
+                return out(
+                    "the stepdown",
+                    step,
+                    format!(
+                        "a stepdown of at least {} mm for feature \"{}\" (job file line {}), \
+                         {d} mm deep",
+                        d / MAX_PASSES,
+                        f.name,
+                        f.line
+                    ),
+                    "that would be more than 1000 passes for that feature",
+                );
+            }
+        }
+    }
     for (setting, value) in [
         ("the lead length", leads.length),
         ("the lead radius", leads.radius),

@@ -74,7 +74,7 @@ impl Context<'_> {
                         e,
                         Kind::BadValue,
                         format!(
-                            "the stepdown is {step} mm: passes that thin cut nothing a machine                              can hold and would take without end; give at least {least} mm"
+                            "the stepdown is {step} mm: passes that thin cut nothing a machine can hold and would take without end; give at least {least} mm"
                         ),
                     ));
                 }

@@ -369,6 +369,17 @@ pub(super) fn check_extension(raw: &RawProfile, c: &Checker) -> Result<String, P
             "give 1 to 8 letters or digits without the dot, such as \"nc\", \"ngc\" or \"tap\"",
         ));
     }
+    // The other outputs' extensions: the program would take their names.
+    if ["svg", "html", "json", "txt", "dxf"]
+        .iter()
+        .any(|o| e.eq_ignore_ascii_case(o))
+    {
+        return Err(c.fail(
+            "program_extension",
+            format!("\"{given}\" is the extension of another output (the preview, page, reports or drawing)"),
+            "give another, such as \"nc\", \"ngc\" or \"tap\"",
+        ));
+    }
     Ok(e.to_string())
 }
 
