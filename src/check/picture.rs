@@ -138,7 +138,8 @@ pub fn findings_svg(trace: &Trace, cuts: &[PlannedCut], findings: &[ProgramFindi
     doc.add(marks).to_string()
 }
 
-fn edge_points(edge: &Edge) -> Vec<Point> {
+/// A finished edge as a run of points (also the interactive page's, [`super::view`]).
+pub(super) fn edge_points(edge: &Edge) -> Vec<Point> {
     match edge {
         Edge::Ellipse(e) => (0..=EDGE_POINTS)
             .map(|k| e.point(std::f64::consts::TAU * k as f64 / EDGE_POINTS as f64))

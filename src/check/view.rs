@@ -14,7 +14,7 @@
 use super::Trace;
 use super::reader::{ProgramFinding, Severity};
 use super::time::{TimeLimits, move_end_times};
-use crate::geom::{Edge, Element, Move, Point};
+use crate::geom::{Move, Point};
 use crate::plan::PlannedCut;
 use std::collections::HashMap;
 use std::fmt::Write;
@@ -24,9 +24,6 @@ const PAGE: &str = include_str!("view.html");
 
 /// The angle between the chords an arc move is drawn with, degrees.
 pub const ARC_STEP_DEGREES: f64 = 5.0;
-
-/// Points per finished ellipse drawn, and per arc of a finished contour.
-const EDGE_POINTS: usize = 120;
 
 /// The page for `program` (its text), read into `trace`, checked against `cuts` with
 /// `findings`, timed under `limits`; `title` heads it.
@@ -84,7 +81,7 @@ pub fn program_html(
             json_string(c.name())
         )
         .ok();
-        push_points(&mut out, &edge_points(c.edge()));
+        push_points(&mut out, &super::picture::edge_points(c.edge()));
         out.push_str("]}");
     }
     out.push(']');
@@ -268,26 +265,6 @@ fn move_points(m: &super::TraceMove) -> Vec<Point> {
                 .map(|k| mv.point_at(from, k as f64 / n as f64))
                 .collect()
         }
-    }
-}
-
-/// A finished edge as a closed run of points.
-fn edge_points(edge: &Edge) -> Vec<Point> {
-    match edge {
-        Edge::Ellipse(e) => (0..EDGE_POINTS)
-            .map(|k| e.point(std::f64::consts::TAU * k as f64 / EDGE_POINTS as f64))
-            .collect(),
-        Edge::Contour(c) => c
-            .elements()
-            .iter()
-            .flat_map(|el| {
-                let n = match el {
-                    Element::Line(_) => 1,
-                    Element::Arc(_) => EDGE_POINTS / 4,
-                };
-                (0..n).map(move |k| el.point_at(k as f64 / n as f64))
-            })
-            .collect(),
     }
 }
 
