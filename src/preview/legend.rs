@@ -4,10 +4,11 @@
 
 use super::frame::{Frame, num};
 use super::look::{Looks, Words, palette};
+use super::line;
 use super::shapes::arrow_d;
 use crate::geom::{Point, Vec2};
 use svg::Node;
-use svg::node::element::{Circle, ClipPath, Group, Line, Path, Rectangle, Text};
+use svg::node::element::{Circle, ClipPath, Group, Path, Rectangle, Text};
 
 /// What the picture holds, recorded as it is drawn.
 #[derive(Debug, Clone, Copy, Default)]
@@ -43,14 +44,6 @@ fn tagged<T: Node>(mut el: T, classes: &str) -> T {
     el.assign("class", "legend-sample");
     el.assign("data-sample", classes);
     el
-}
-
-fn line(x1: f64, y1: f64, x2: f64, y2: f64) -> Line {
-    Line::new()
-        .set("x1", num(x1))
-        .set("y1", num(y1))
-        .set("x2", num(x2))
-        .set("y2", num(y2))
 }
 
 /// The entries for what is present, in a fixed order.

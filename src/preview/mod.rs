@@ -1000,7 +1000,8 @@ fn scale_bar(frame: &Frame) -> Group {
     )
 }
 
-fn line(x1: f64, y1: f64, x2: f64, y2: f64) -> Line {
+/// An SVG line from (x1, y1) to (x2, y2), numbers as the frame writes them.
+pub(super) fn line(x1: f64, y1: f64, x2: f64, y2: f64) -> Line {
     Line::new()
         .set("x1", num(x1))
         .set("y1", num(y1))
