@@ -604,7 +604,7 @@ fn plan_job(
             file: s.file_name.clone(),
             error,
         })?;
-    edges_in_travel(&plan.cuts, profile, resolved.tool_diameter / 2.0).map_err(|error| {
+    post::edges_in_travel(&plan.cuts, profile, resolved.tool_diameter / 2.0).map_err(|error| {
         JobError::Post {
             file: s.file_name.clone(),
             error,
@@ -617,66 +617,6 @@ fn plan_job(
         zero,
         plan,
     })
-}
-
-/// Refuses, before anything is fitted, a finished edge that the tool (its radius outside the
-/// edge) cannot reach within the profile's X and Y travel: the same refusal the program's own
-/// envelope check gives later, but before the fit spends its time (or its digits: a part placed
-/// kilometres away) on a path that cannot run.
-fn edges_in_travel(
-    cuts: &[plan::PlannedCut],
-    profile: &MachineProfile,
-    tool_radius: f64,
-) -> Result<(), post::PostError> {
-    let u = profile.units();
-    let t = profile.travel();
-    let limits = [
-        ('X', u.to_mm(t.x_min), u.to_mm(t.x_max)),
-        ('Y', u.to_mm(t.y_min), u.to_mm(t.y_max)),
-    ];
-    let d = profile.xy_decimals();
-    for c in cuts {
-        let Some(b) = c.edge().bounding_box() else {
-            continue;
-        };
-        let ends = [(b.min.x, b.max.x), (b.min.y, b.max.y)];
-        for ((axis, min, max), (lo, hi)) in limits.into_iter().zip(ends) {
-            // The edge, and for a cut outside it (the outline) the tool centre a radius beyond.
-            let r = if c.side() == plan::CutSide::Outside {
-                tool_radius
-            } else {
-                0.0
-            };
-            let (lo, hi) = (lo - r, hi + r);
-            let past = if lo < min {
-                Some(lo)
-            } else if hi > max {
-                Some(hi)
-            } else {
-                None
-            };
-            if let Some(value) = past.or_else(|| (!lo.is_finite() || !hi.is_finite()).then_some(lo))
-            {
-                return Err(post::PostError::OutsideEnvelope {
-                    feature: c.name().to_string(),
-                    what: if r > 0.0 {
-                        "the tool beside its finished edge"
-                    } else {
-                        "its finished edge"
-                    },
-                    axis,
-                    value: post::format_number(u.from_mm(value), d),
-                    limits: format!(
-                        "{} .. {}",
-                        post::format_number(u.from_mm(min), d),
-                        post::format_number(u.from_mm(max), d)
-                    ),
-                    units: u,
-                });
-            }
-        }
-    }
-    Ok(())
 }
 
 /// `conicut check`: `program` (from anywhere) read on its own and held to the text rules, the

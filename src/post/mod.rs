@@ -43,6 +43,7 @@ pub use profile::{
     MachineProfile, Process, ProgramUnits, Spindle, TravelEnvelope, radius_rule,
 };
 pub use program::write_program;
+pub use refusals::edges_in_travel;
 pub use safety::{PRECEDENCE, SAFETY_HEADING, cautions};
 pub use setup::{ProgramSettings, WorkOffset, pass_depths};
 pub use writer::sanitize;

@@ -1,6 +1,7 @@
 //! Refusals before anything is written: bad settings, feeds and speeds above the profile's limits,
 //! arcs for a lines-only profile, numbers that are not finite, and any position outside the
-//! travel envelope (every run, arcs by their extremes, the helix).
+//! travel envelope (every run, arcs by their extremes, the helix); and, before any fitting, the
+//! planned finished edges the tool cannot reach within the travel ([`edges_in_travel`]).
 
 use super::arcs::arc_extremes;
 use super::entries::helix_radius;
@@ -12,6 +13,7 @@ use super::writer::units_point;
 use crate::fit::FittedCut;
 use crate::geom::Move;
 use crate::geom::Point;
+use crate::plan::{CutSide, PlannedCut};
 
 pub(super) fn check_settings(s: &ProgramSettings, cutter: &Cutter) -> Result<(), PostError> {
     let positive = |setting, value: f64, hint| {
@@ -342,4 +344,64 @@ impl Envelope<'_> {
         }
         Ok(())
     }
+}
+
+/// Refuses, before anything is fitted, a finished edge that the tool (its radius outside the
+/// edge) cannot reach within the profile's X and Y travel: the same refusal the program's own
+/// envelope check gives later, but before the fit spends its time (or its digits: a part placed
+/// kilometres away) on a path that cannot run.
+pub fn edges_in_travel(
+    cuts: &[PlannedCut],
+    profile: &MachineProfile,
+    tool_radius: f64,
+) -> Result<(), PostError> {
+    let u = profile.units();
+    let t = profile.travel();
+    let limits = [
+        ('X', u.to_mm(t.x_min), u.to_mm(t.x_max)),
+        ('Y', u.to_mm(t.y_min), u.to_mm(t.y_max)),
+    ];
+    let d = profile.xy_decimals();
+    for c in cuts {
+        let Some(b) = c.edge().bounding_box() else {
+            continue;
+        };
+        let ends = [(b.min.x, b.max.x), (b.min.y, b.max.y)];
+        for ((axis, min, max), (lo, hi)) in limits.into_iter().zip(ends) {
+            // The edge, and for a cut outside it (the outline) the tool centre a radius beyond.
+            let r = if c.side() == CutSide::Outside {
+                tool_radius
+            } else {
+                0.0
+            };
+            let (lo, hi) = (lo - r, hi + r);
+            let past = if lo < min {
+                Some(lo)
+            } else if hi > max {
+                Some(hi)
+            } else {
+                None
+            };
+            if let Some(value) = past.or_else(|| (!lo.is_finite() || !hi.is_finite()).then_some(lo))
+            {
+                return Err(PostError::OutsideEnvelope {
+                    feature: c.name().to_string(),
+                    what: if r > 0.0 {
+                        "the tool beside its finished edge"
+                    } else {
+                        "its finished edge"
+                    },
+                    axis,
+                    value: format_number(u.from_mm(value), d),
+                    limits: format!(
+                        "{} .. {}",
+                        format_number(u.from_mm(min), d),
+                        format_number(u.from_mm(max), d)
+                    ),
+                    units: u,
+                });
+            }
+        }
+    }
+    Ok(())
 }

@@ -3,8 +3,8 @@
 //! class `legend-sample` and, in `data-sample`, the classes of the drawn elements it stands for.
 
 use super::frame::{Frame, num};
-use super::look::{Looks, Words, palette};
 use super::line;
+use super::look::{Looks, Words, palette};
 use super::shapes::arrow_d;
 use crate::geom::{Point, Vec2};
 use svg::Node;
