@@ -136,33 +136,6 @@ pub enum JobError {
 /// drawing scaled by mistake, or with units misread).
 pub const MAX_REACH_MM: f64 = 1e9;
 
-/// The entity that reaches farthest from the origin (the largest |x| or |y|, radii added), with
-/// that reach; `None` for a drawing without entities.
-fn farthest(drawing: &read::Drawing) -> Option<(&read::Entity, f64)> {
-    use read::EntityKind;
-    let reach = |p: crate::geom::Point| p.x.abs().max(p.y.abs());
-    // NaN counts as infinitely far (f64::max would drop it).
-    let far = |v: f64| if v.is_nan() { f64::INFINITY } else { v };
-    drawing
-        .entities
-        .iter()
-        .map(|e| {
-            let r = match &e.kind {
-                EntityKind::Line(l) => far(reach(l.start)).max(far(reach(l.end))),
-                EntityKind::Arc(a) => far(reach(a.centre) + a.radius.abs()),
-                EntityKind::Circle { centre, radius } => far(reach(*centre) + radius.abs()),
-                EntityKind::Polyline { vertices, .. } => vertices
-                    .iter()
-                    .map(|(p, _)| far(reach(*p)))
-                    .fold(0.0, f64::max),
-                EntityKind::Ellipse { ellipse, .. } => far(reach(ellipse.centre()) + ellipse.a()),
-                EntityKind::Point(p) => far(reach(*p)),
-            };
-            (e, r)
-        })
-        .max_by(|a, b| a.1.total_cmp(&b.1))
-}
-
 /// The drawing read and sorted, and every feature solved.
 struct Solved {
     drawing: read::Drawing,
@@ -187,7 +160,7 @@ fn read_and_solve(dxf: &[u8], s: &JobSettings) -> Result<Solved, JobError> {
             units: s.units,
         },
     )?;
-    if let Some((e, reach)) = farthest(&drawing)
+    if let Some((e, reach)) = drawing.farthest()
         && reach > MAX_REACH_MM
     {
         return Err(JobError::TooFar {

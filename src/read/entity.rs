@@ -20,6 +20,35 @@ pub struct Drawing {
     pub layers: Vec<Layer>,
 }
 
+impl Drawing {
+    /// The entity that reaches farthest from the origin (the largest |x| or |y|, radii added), with
+    /// that reach; `None` for a drawing without entities.
+    pub fn farthest(&self) -> Option<(&Entity, f64)> {
+        let reach = |p: Point| p.x.abs().max(p.y.abs());
+        // NaN counts as infinitely far (f64::max would drop it).
+        let far = |v: f64| if v.is_nan() { f64::INFINITY } else { v };
+        self.entities
+            .iter()
+            .map(|e| {
+                let r = match &e.kind {
+                    EntityKind::Line(l) => far(reach(l.start)).max(far(reach(l.end))),
+                    EntityKind::Arc(a) => far(reach(a.centre) + a.radius.abs()),
+                    EntityKind::Circle { centre, radius } => far(reach(*centre) + radius.abs()),
+                    EntityKind::Polyline { vertices, .. } => vertices
+                        .iter()
+                        .map(|(p, _)| far(reach(*p)))
+                        .fold(0.0, f64::max),
+                    EntityKind::Ellipse { ellipse, .. } => {
+                        far(reach(ellipse.centre()) + ellipse.a())
+                    }
+                    EntityKind::Point(p) => far(reach(*p)),
+                };
+                (e, r)
+            })
+            .max_by(|a, b| a.1.total_cmp(&b.1))
+    }
+}
+
 /// A layer of the LAYER table and whether it is shown and plotted.
 #[derive(Debug, Clone, PartialEq, Eq, Serialize)]
 pub struct Layer {
