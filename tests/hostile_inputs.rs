@@ -416,10 +416,18 @@ fn cases(tmp: &Path) -> Vec<Case> {
             says: &["bay 1 and bay 2 overlap near"],
         },
         Case {
-            name: "drawing with a bay drawn twice",
+            name: "drawing with a bay drawn twice, the copy cut as a boss",
             drawing: Some(demo_with(&first_bay_again("FFF2"))),
-            args: args("--machine metric-mill --tool-diameter 6"),
-            says: &["are the same opening", "drawn twice"],
+            args: args(&format!(
+                "--machine metric-mill --tool-diameter 6 --job {}",
+                job(
+                    tmp,
+                    "twocuts",
+                    "[[feature]]\nname = \"left\"\nbay = \"bay 1\"\n\n\
+                     [[feature]]\nname = \"copy\"\nbay = \"bay 2\"\ncut = \"boss\"\n"
+                )
+            )),
+            says: &["left and copy are the same opening", "two different cuts"],
         },
         // More drawings.
         on_drawing(
@@ -772,4 +780,98 @@ fn a_long_feature_name_heads_its_cut_on_one_line() {
         program.lines().all(|l| l.len() <= 256),
         "every line within 256 characters"
     );
+}
+
+/// The demo drawing as text with "\n" line ends, its sections (HEADER, TABLES, ENTITIES,
+/// OBJECTS) in reverse order: the DXF reference lists them in a fixed order, but nothing in a
+/// section depends on where it stands.
+fn sections_reversed() -> Vec<u8> {
+    let text = fs::read_to_string(demo_drawing())
+        .unwrap()
+        .replace("\r\n", "\n");
+    let lines: Vec<&str> = text.lines().collect();
+    let mut sections: Vec<Vec<&str>> = Vec::new();
+    let mut rest = Vec::new();
+    let mut current: Option<Vec<&str>> = None;
+    for pair in lines.chunks(2) {
+        let (code, value) = (pair[0].trim(), pair.get(1).map_or("", |v| v.trim()));
+        match current.as_mut() {
+            None if code == "0" && value == "SECTION" => current = Some(pair.to_vec()),
+            None => rest.extend_from_slice(pair),
+            Some(section) => {
+                section.extend_from_slice(pair);
+                if code == "0" && value == "ENDSEC" {
+                    sections.push(current.take().unwrap());
+                }
+            }
+        }
+    }
+    assert_eq!(sections.len(), 4, "the demo's four sections");
+    assert_eq!(rest, ["  0", "EOF"]);
+    let out: Vec<&str> = sections.into_iter().rev().flatten().chain(rest).collect();
+    (out.join("\n") + "\n").into_bytes()
+}
+
+fn plan_in(dir: &Path, drawing: &[u8]) -> (BTreeMap<String, Vec<u8>>, String) {
+    fs::create_dir_all(dir).unwrap();
+    let path = dir.join("truss-bracket.dxf");
+    fs::write(&path, drawing).unwrap();
+    let out = dir.join("out");
+    let run = Command::cargo_bin("conicut")
+        .unwrap()
+        .arg("plan")
+        .arg(&path)
+        .args(["--machine", "metric-mill", "--tool-diameter", "6", "--out"])
+        .arg(&out)
+        .output()
+        .unwrap();
+    let said =
+        String::from_utf8_lossy(&run.stdout).into_owned() + &String::from_utf8_lossy(&run.stderr);
+    assert!(run.status.success(), "{}: {said}", dir.display());
+    (files(&out), said)
+}
+
+/// Drawings that are odd but unambiguous are read as what they mean: a byte-order mark, CRLF
+/// line ends and sections out of order give the plain demo's program byte for byte; a bay drawn
+/// twice is cut once, with a warning naming both copies and the place.
+#[test]
+fn odd_but_unambiguous_drawings_plan_as_the_plain_one() {
+    let tmp = tempfile::tempdir().unwrap();
+    let plain_text = fs::read_to_string(demo_drawing())
+        .unwrap()
+        .replace("\r\n", "\n");
+    let (plain, _) = plan_in(&tmp.path().join("plain"), plain_text.as_bytes());
+    let program = &plain["truss-bracket.nc"];
+    let odd = [
+        ("bom", format!("\u{feff}{plain_text}").into_bytes()),
+        ("crlf", plain_text.replace('\n', "\r\n").into_bytes()),
+        ("sections reversed", sections_reversed()),
+    ];
+    for (name, drawing) in odd {
+        let (got, _) = plan_in(&tmp.path().join(name), &drawing);
+        assert!(
+            got["truss-bracket.nc"] == *program,
+            "{name}: the program differs from the plain drawing's"
+        );
+    }
+    let (twice, said) = plan_in(
+        &tmp.path().join("twice"),
+        &demo_with(&first_bay_again("FFF2")),
+    );
+    let text = String::from_utf8(twice["truss-bracket.nc"].clone()).unwrap();
+    let plain_text_program = String::from_utf8(program.clone()).unwrap();
+    let cuts = |p: &str| p.lines().filter(|l| l.starts_with("(cut ")).count();
+    assert_eq!(
+        cuts(&text),
+        cuts(&plain_text_program),
+        "the copy is not cut"
+    );
+    let report = String::from_utf8(twice["truss-bracket-report.json"].clone()).unwrap();
+    for says in [&report, &said] {
+        assert!(
+            says.contains("bay 2 is the same opening as bay 1 (centre (")
+                && says.contains("It is cut once"),
+            "{says}"
+        );
+    }
 }

@@ -568,10 +568,11 @@ fn plan_job(
     watch(Step::Planning(
         to_cut.len() + solved.part.holes.len() + usize::from(solved.part.outline.is_some()),
     ));
-    plan::check_layout(&solved.part, &to_cut).map_err(|error| JobError::Layout {
+    let twins = plan::check_layout(&solved.part, &to_cut).map_err(|error| JobError::Layout {
         file: s.file_name.clone(),
         error,
     })?;
+    drop_twins(&twins, &mut solved, &mut to_cut, &mut infos);
     let plan =
         plan::plan_cuts(&solved.part, &to_cut, &resolved.plan).map_err(|error| JobError::Plan {
             file: s.file_name.clone(),
@@ -590,6 +591,28 @@ fn plan_job(
         zero,
         plan,
     })
+}
+
+/// Openings drawn twice are cut once: the later copies leave the cuts and the listing, and the
+/// plan warns of each.
+fn drop_twins(
+    twins: &[plan::Twin],
+    solved: &mut Solved,
+    to_cut: &mut Vec<plan::Opening>,
+    infos: &mut Vec<SolvedInfo>,
+) {
+    if twins.is_empty() {
+        return;
+    }
+    let mut keep = vec![true; to_cut.len()];
+    for t in twins {
+        solved.part.warnings.push(t.warning(to_cut));
+        keep[t.dropped] = false;
+    }
+    let mut k = keep.iter();
+    to_cut.retain(|_| *k.next().unwrap_or(&true));
+    let mut k = keep.iter();
+    infos.retain(|_| *k.next().unwrap_or(&true));
 }
 
 /// `conicut check`: `program` (from anywhere) read on its own and held to the text rules, the

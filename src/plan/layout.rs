@@ -1,8 +1,11 @@
 //! The openings' layout on the part, checked before any cut is planned: an opening that breaks
 //! through the outline or lies outside it, and openings that overlap each other or a drawn hole
-//! (a duplicate bay included), are refused with the features and a place, since a shop would
-//! scrap such a part (the web between two openings, or between an opening and the edge, would
-//! be cut away).
+//! are refused with the features and a place, since a shop would scrap such a part (the web
+//! between two openings, or between an opening and the edge, would be cut away). A bay drawn
+//! twice (a copy left on top of itself, common in drawings from the office) gives the same
+//! opening twice: it is cut once, and the plan says which copy was left out and where
+//! ([`Twin`]); the same opening asked for as two different cuts (a hole and a boss, say) is
+//! refused.
 //!
 //! Each shape's edge is taken at [`EDGE_SAMPLES`] points (ellipses evenly in the eccentric
 //! anomaly, contours per element) and tested against the other shape's inside (its exact
@@ -46,10 +49,33 @@ pub enum LayoutError {
     )]
     Overlap { a: String, b: String, at: String },
     #[error(
-        "{a} and {b} are the same opening (centre {at}): a bay drawn twice. Delete one of them \
-         from the drawing"
+        "{a} and {b} are the same opening (centre {at}) asked for as two different cuts (a bay \
+         drawn twice, or two rules giving one ellipse). Delete one of the bays, or give one of \
+         them another rule in the job file"
     )]
     Duplicate { a: String, b: String, at: String },
+}
+
+/// An opening drawn twice: the later copy (`dropped`, an index into the openings) is the same
+/// ellipse with the same cut as `kept`, and is left out.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Twin {
+    pub kept: usize,
+    pub dropped: usize,
+    pub centre: Point,
+}
+
+impl Twin {
+    /// The plan's warning: which copy was left out, and where.
+    pub fn warning(&self, openings: &[Opening]) -> String {
+        format!(
+            "{} is the same opening as {} (centre {}): a bay drawn twice. It is cut once; \
+             delete the copy from the drawing to quiet this warning",
+            openings[self.dropped].name,
+            openings[self.kept].name,
+            at(self.centre)
+        )
+    }
 }
 
 fn at(p: Point) -> String {
@@ -113,8 +139,9 @@ fn same(a: &Ellipse, b: &Ellipse) -> bool {
         && (angle_off <= SAME_MM || (a.a() - a.b()).abs() <= SAME_MM)
 }
 
-/// Checks the openings against the outline, each other and the drawn holes (module docs).
-pub fn check_layout(part: &Part, openings: &[Opening]) -> Result<(), LayoutError> {
+/// Checks the openings against the outline, each other and the drawn holes (module docs); the
+/// openings drawn twice, in the order found, each to be cut once.
+pub fn check_layout(part: &Part, openings: &[Opening]) -> Result<Vec<Twin>, LayoutError> {
     let mut shapes: Vec<Shape> = openings
         .iter()
         .map(|o| {
@@ -158,21 +185,40 @@ pub fn check_layout(part: &Part, openings: &[Opening]) -> Result<(), LayoutError
     }
     let grid = BoxGrid::new(shapes.iter().map(|s| s.bounds).collect());
     let mut near = Vec::new();
+    let mut twins = Vec::new();
+    let mut dropped = vec![false; openings.len()];
     for (i, o) in openings.iter().enumerate() {
+        if dropped[i] {
+            continue;
+        }
         grid.overlapping(&shapes[i].bounds, &mut near);
+        near.sort_unstable();
         // Openings with a later opening, and every hole; holes among themselves are the
         // drawing's own business (chaining keeps them apart).
         for &j in near.iter().filter(|&&j| j > i) {
+            if j < openings.len() && dropped[j] {
+                continue;
+            }
             let (a, b) = (&shapes[i], &shapes[j]);
             if let Inside::Ellipse(e) = b.inside
                 && j < openings.len()
                 && same(&o.ellipse, e)
             {
-                return Err(LayoutError::Duplicate {
-                    a: a.name.to_string(),
-                    b: b.name.to_string(),
-                    at: at(o.ellipse.centre()),
+                let twin = &openings[j];
+                if twin.side != o.side || twin.pocket != o.pocket {
+                    return Err(LayoutError::Duplicate {
+                        a: a.name.to_string(),
+                        b: b.name.to_string(),
+                        at: at(o.ellipse.centre()),
+                    });
+                }
+                dropped[j] = true;
+                twins.push(Twin {
+                    kept: i,
+                    dropped: j,
+                    centre: o.ellipse.centre(),
                 });
+                continue;
             }
             let hit = a
                 .edge
@@ -188,7 +234,7 @@ pub fn check_layout(part: &Part, openings: &[Opening]) -> Result<(), LayoutError
             }
         }
     }
-    Ok(())
+    Ok(twins)
 }
 
 #[cfg(test)]
@@ -234,7 +280,7 @@ mod tests {
             opening("bay 1", 50.0, 50.0, 30.0, 15.0),
             opening("bay 2", 150.0, 50.0, 30.0, 15.0),
         ];
-        assert_eq!(check_layout(&part, &ok), Ok(()));
+        assert_eq!(check_layout(&part, &ok), Ok(Vec::new()));
         let through = [opening("bay 1", 190.0, 50.0, 30.0, 15.0)];
         assert!(matches!(
             check_layout(&part, &through),
@@ -253,13 +299,32 @@ mod tests {
             check_layout(&part, &overlap),
             Err(LayoutError::Overlap { a, b, .. }) if a == "bay 1" && b == "bay 2"
         ));
+        // Drawn twice, or three times: cut once, the copies named.
         let twice = [
             opening("bay 1", 50.0, 50.0, 30.0, 15.0),
-            opening("bay 2", 50.0, 50.0, 30.0, 15.0),
+            opening("bay 2", 150.0, 50.0, 30.0, 15.0),
+            opening("bay 3", 50.0, 50.0, 30.0, 15.0),
+            opening("bay 4", 50.0, 50.0, 30.0, 15.0),
         ];
+        let twins = check_layout(&part, &twice).unwrap();
+        assert_eq!(
+            twins
+                .iter()
+                .map(|t| (t.kept, t.dropped))
+                .collect::<Vec<_>>(),
+            [(0, 2), (0, 3)]
+        );
+        assert!(
+            twins[0]
+                .warning(&twice)
+                .starts_with("bay 3 is the same opening as bay 1")
+        );
+        // The same ellipse as a hole and as a boss: refused.
+        let mut two_cuts = twice[..3].to_vec();
+        two_cuts[2].side = CutSide::Outside;
         assert!(matches!(
-            check_layout(&part, &twice),
-            Err(LayoutError::Duplicate { .. })
+            check_layout(&part, &two_cuts),
+            Err(LayoutError::Duplicate { a, b, .. }) if a == "bay 1" && b == "bay 3"
         ));
         // One inside the other, edges apart: still an overlap.
         let nested = [

@@ -46,7 +46,7 @@ pub mod zero;
 
 pub use cut::{OwnSettings, PlannedCut, Tab};
 pub use error::PlanError;
-pub use layout::{EDGE_SAMPLES, LayoutError, check_layout};
+pub use layout::{EDGE_SAMPLES, LayoutError, Twin, check_layout};
 pub use options::{
     Direction, LeadKind, LeadOptions, POCKET_STEPOVER_PER_DIAMETER, PlanOptions, TabOptions,
 };
