@@ -1,78 +1,30 @@
-//! The largest ellipse that fits inside a convex bay, whether or not it touches every side.
-//!
-//! The largest ellipse inside a convex polygon (its John ellipse) is unique and touches at least
-//! three sides (John's theorem: at least n + 1 = 3 contact points in the plane). If it touches
-//! exactly three, it is the largest ellipse inside the triangle those three side lines bound,
-//! i.e. that triangle's Steiner inellipse (the maximum-area inellipse of a triangle); if it
-//! touches four or more, it is the largest ellipse touching those four sides. So it is found
-//! exactly by trying every set of three and four sides whose lines bound a triangle or a
-//! quadrilateral, keeping the candidates that lie inside the whole bay, and taking the largest.
-//! Sources: John ellipse as maximum-volume inscribed ellipsoid, Boyd & Vandenberghe, Convex
-//! Optimization §8.4.2; Steiner inellipse as the John ellipse of a triangle, Wikipedia "Steiner
-//! inellipse"; the worked cases in docs/sources.md M2 (corner-cut warning cases).
+//! The largest ellipse that fits inside a convex bay, whether or not it touches every side: the
+//! polygon's John ellipse ([`super::john`]), which touches three, four or five sides.
 
-use super::quad_family::TangentFamily;
-use super::triangle::steiner_inellipse;
+use super::john::{JohnResiduals, john_ellipse};
 use crate::geom::{Ellipse, Line, Point};
 
 /// How far outside a side an ellipse may reach and still count as inside (relative to the bay's
 /// size): covers rounding in the support function.
 pub const INSIDE_RELATIVE: f64 = 1e-9;
 
-/// The largest contained ellipse and which sides it touches (indices of the sides, side `i`
-/// running from corner `i` to corner `i + 1`).
+/// The largest contained ellipse, which sides it touches (indices of the sides, side `i`
+/// running from corner `i` to corner `i + 1`) and how well it meets its conditions.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Contained {
     pub ellipse: Ellipse,
     pub touching: Vec<usize>,
+    pub residuals: JohnResiduals,
 }
 
 /// The largest ellipse inside the counter-clockwise convex polygon `corners`.
 pub fn largest_contained(corners: &[Point]) -> Option<Contained> {
-    let n = corners.len();
-    let lines: Vec<Line> = (0..n)
-        .filter_map(|i| Line::through(corners[i], corners[(i + 1) % n]))
-        .collect();
-    if lines.len() != n || n < 3 {
-        return None;
-    }
-    let size = corners
-        .iter()
-        .map(|p| p.distance(corners[0]))
-        .fold(0.0, f64::max);
-    let mut best: Option<Ellipse> = None;
-    let mut consider = |e: Ellipse| {
-        if fits(&e, &lines, size) && best.is_none_or(|b| e.area() > b.area()) {
-            best = Some(e);
-        }
-    };
-    for i in 0..n {
-        for j in i + 1..n {
-            for k in j + 1..n {
-                if let Some(Ok(e)) = bounded_region(&lines, &[i, j, k])
-                    .map(|t| steiner_inellipse([t[0], t[1], t[2]]))
-                {
-                    consider(e);
-                }
-                for l in k + 1..n {
-                    if let Some(q) = bounded_region(&lines, &[i, j, k, l]) {
-                        let fam = TangentFamily::new([q[0], q[1], q[2], q[3]]);
-                        if let Some(e) = fam
-                            .largest_area_parameter()
-                            .and_then(|t| fam.ellipse(t).ok())
-                        {
-                            consider(e);
-                        }
-                    }
-                }
-            }
-        }
-    }
-    let ellipse = best?;
-    let touching = (0..n)
-        .filter(|&i| slack(&ellipse, &lines[i]) <= 1e-7 * size)
-        .collect();
-    Some(Contained { ellipse, touching })
+    let j = john_ellipse(corners)?;
+    Some(Contained {
+        ellipse: j.ellipse,
+        touching: j.touching,
+        residuals: j.residuals,
+    })
 }
 
 /// How far the ellipse stays inside the line's half-plane (the line's normal points in):
@@ -97,41 +49,6 @@ pub fn lies_inside(e: &Ellipse, corners: &[Point]) -> bool {
 
 fn fits(e: &Ellipse, lines: &[Line], size: f64) -> bool {
     lines.iter().all(|l| slack(e, l) >= -INSIDE_RELATIVE * size)
-}
-
-/// The corners of the region bounded by the chosen side lines (taken in polygon order), when
-/// it is a bounded polygon with exactly that many sides: consecutive lines meet at a corner that
-/// lies strictly inside every other chosen half-plane.
-fn bounded_region(lines: &[Line], chosen: &[usize]) -> Option<Vec<Point>> {
-    let m = chosen.len();
-    let mut pts = Vec::with_capacity(m);
-    for s in 0..m {
-        let (a, b) = (&lines[chosen[s]], &lines[chosen[(s + 1) % m]]);
-        pts.push(a.intersection(b)?);
-    }
-    // Corner s lies on lines s and s+1; it must be strictly inside all the others.
-    for (s, p) in pts.iter().enumerate() {
-        for (r, &li) in chosen.iter().enumerate() {
-            if r == s || r == (s + 1) % m {
-                continue;
-            }
-            if lines[li].signed_distance(*p) <= 0.0 {
-                return None;
-            }
-        }
-    }
-    // Counter-clockwise and convex with positive area.
-    let area: f64 = (0..m)
-        .map(|s| pts[s].to_vec().cross(pts[(s + 1) % m].to_vec()))
-        .sum();
-    if area <= 0.0 {
-        return None;
-    }
-    // The corners are listed line by line; the region's corner between lines s and s+1 comes
-    // after side s, so rotate to start the polygon at the corner that begins side 0.
-    let mut q = pts.clone();
-    q.rotate_right(1);
-    Some(q)
 }
 
 #[cfg(test)]

@@ -148,10 +148,23 @@ fn largest_inside(corners: &[Point]) -> Result<Solution, Failure> {
         candidates: vec![],
     })?;
     let sides: Vec<String> = c.touching.iter().map(|i| (i + 1).to_string()).collect();
+    let r = c.residuals;
     let mut cand = ellipse_candidate(
         c.ellipse,
         corners,
-        &format!("touches sides {} of {}", sides.join(", "), corners.len()),
+        &format!(
+            "touches sides {} of {}; {}, optimality residual {:.1e} (John's conditions), \
+             least weight {:.3}",
+            sides.join(", "),
+            corners.len(),
+            if r.polished {
+                "exact on those sides"
+            } else {
+                "the convex program's answer (no exact polish fitted)"
+            },
+            r.optimality,
+            r.least_weight
+        ),
     );
     // The residual of the sides it touches (the others are clear by construction).
     cand.residual = c
@@ -164,8 +177,8 @@ fn largest_inside(corners: &[Point]) -> Result<Solution, Failure> {
         .fold(0.0, f64::max);
     single(
         cand,
-        "the largest ellipse inside the bay (it touches at least three sides; the largest of those \
-         touching every three or four sides that stays inside)"
+        "the largest ellipse inside the bay (its John ellipse, touching three, four or five \
+         sides: a convex program solved to convergence, then exact on the sides it touches)"
             .into(),
     )
 }

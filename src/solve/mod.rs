@@ -9,6 +9,7 @@ mod conic;
 mod constraints;
 mod contained;
 mod feature;
+mod john;
 mod least_squares;
 mod pentagon;
 mod quad_family;
@@ -25,6 +26,7 @@ pub use conic::{
 };
 pub use constraints::{ConicSolution, ConstraintError, conics_through_and_tangent};
 pub use feature::{BaySolution, Failure, solve_bay};
+pub use john::{John, JohnResiduals, john_ellipse};
 pub use least_squares::{LeastSquaresEllipse, LeastSquaresError, least_squares_ellipse};
 pub use quad_family::TangentFamily;
 pub use quad_rules::Rule;
