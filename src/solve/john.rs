@@ -101,7 +101,7 @@ fn slacks(sides: &Sides, x: &V5, out: &mut Vec<f64>) -> bool {
     for (a, beta) in sides.a.iter().zip(&sides.beta) {
         let w = Vec2::new(p * a.x + q * a.y, q * a.x + r * a.y);
         let s = beta - a.x * x[3] - a.y * x[4] - w.length();
-        if !(s > 0.0) {
+        if s.is_nan() || s <= 0.0 {
             return false;
         }
         out.push(s);
@@ -169,7 +169,7 @@ fn barrier_method(sides: &Sides, start: V5) -> (V5, usize) {
             };
             let decrement = -grad.dot(&step);
             steps += 1;
-            if !(decrement > 2e-14) {
+            if decrement.is_nan() || decrement <= 2e-14 {
                 break;
             }
             let Some(f0) = barrier(sides, &x, t, &mut buf) else {
@@ -236,7 +236,7 @@ fn bounded(lines: &[Line], chosen: &[usize]) -> Option<Vec<Point>> {
     let area: f64 = (0..m)
         .map(|s| pts[s].to_vec().cross(pts[(s + 1) % m].to_vec()))
         .sum();
-    if !(area > 0.0) {
+    if area.is_nan() || area <= 0.0 {
         return None;
     }
     pts.rotate_right(1);
@@ -350,7 +350,7 @@ pub fn john_ellipse(corners: &[Point]) -> Option<John> {
     };
     // The corners' mean (the local origin) is strictly inside a convex polygon.
     let clear = sides.beta.iter().copied().fold(f64::INFINITY, f64::min);
-    if !(clear > 0.0) {
+    if clear.is_nan() || clear <= 0.0 {
         return None;
     }
     let start = V5::new(0.5 * clear, 0.0, 0.5 * clear, 0.0, 0.0);
