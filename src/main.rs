@@ -403,6 +403,7 @@ fn read_job(path: &Path) -> Result<(JobFile, BTreeMap<String, Vec<Point>>)> {
     for f in &job.features {
         if let FeatureSource::Fit {
             points: FitPoints::Csv(name),
+            ..
         } = &f.source
         {
             let p = base.join(name);

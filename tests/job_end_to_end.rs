@@ -249,7 +249,37 @@ fn check_scan(v: &serde_json::Value) {
     // b = 15.014726264521, angle 25.00141389547°.
     let scan = feature(v, "scan");
     assert_eq!(scan["fit_points"], 20);
-    let c = chosen(&scan);
+    assert_eq!(scan["fit_method"], "geometric");
+    // Cut: the geometric fit. Computed (docs/reference/geometric_fit.py, SciPy's least_squares
+    // on the parametric form): centre (230.054979058142, 138.033214990826), a 40.061744482668,
+    // b 14.984929749531, angle 0.436440617101 rad, RMS distance 0.346048431004 mm (parameters to
+    // 1e-6: the minimum is flat along one direction).
+    let g = chosen(&scan);
+    for (key, want) in [
+        ("semi_major_mm", 40.061744482668),
+        ("semi_minor_mm", 14.984929749531),
+        ("angle_deg", 0.436440617101f64.to_degrees()),
+    ] {
+        assert!(close(g[key].as_f64().unwrap(), want, 1e-6), "{key}: {g}");
+    }
+    assert!(close(
+        g["center_mm"][0].as_f64().unwrap(),
+        230.054979058142,
+        1e-6
+    ));
+    assert!(close(
+        g["center_mm"][1].as_f64().unwrap(),
+        138.033214990826,
+        1e-6
+    ));
+    assert!(close(
+        scan["fit_rms_mm"].as_f64().unwrap(),
+        0.346048431004,
+        1e-10
+    ));
+    // Listed second: the algebraic fit, against its 50-digit reference.
+    let c = scan["candidates"][1].clone();
+    assert_eq!(c["chosen"], false);
     assert!(close(
         c["center_mm"][0].as_f64().unwrap(),
         230.016369280775,
@@ -284,6 +314,17 @@ fn check_solve_table(dir: &Path) {
     let text = String::from_utf8(text).unwrap();
     println!("{text}");
     assert!(text.contains("probe: 3 points and 2 lines"), "{text}");
+    // Measured points: both fits listed, the geometric one cut.
+    assert!(
+        text.contains("geometric fit to 20 points")
+            && text
+                .lines()
+                .any(|l| l.trim_start().starts_with("*  1 ellipse") && l.contains("geometric fit"))
+            && text
+                .lines()
+                .any(|l| l.trim_start().starts_with("2 ellipse") && l.contains("algebraic fit")),
+        "{text}"
+    );
     assert!(
         text.lines()
             .any(|l| l.trim_start().starts_with("*  2 ellipse")),

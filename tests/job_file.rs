@@ -9,7 +9,7 @@ use conicut::geom::Point;
 use conicut::plan::LeadKind;
 use conicut::read::Units;
 use conicut::settings::job_file::{
-    BaySelect, CutKind, FeatureSource, FeatureSpec, FitPoints, JobFile, JobFileError,
+    BaySelect, CutKind, FeatureSource, FeatureSpec, FitMethod, FitPoints, JobFile, JobFileError,
     JobFileErrorKind as Kind, LeadSpec, LineSource, PointSource, Rule, parse_job_file,
 };
 
@@ -357,14 +357,18 @@ fn constraint_and_fit_features_parse() {
     assert_eq!(
         f[3].source,
         FeatureSource::Fit {
-            points: FitPoints::Csv("scan.csv".into())
+            points: FitPoints::Csv("scan.csv".into()),
+            method: FitMethod::Geometric,
+            reject_outliers: false,
         }
     );
     assert_eq!(f[3].cut, CutKind::Pocket);
     assert_eq!(
         f[4].source,
         FeatureSource::Fit {
-            points: FitPoints::Layer("SCAN".into())
+            points: FitPoints::Layer("SCAN".into()),
+            method: FitMethod::Geometric,
+            reject_outliers: false,
         }
     );
     assert!(f.iter().all(|f| f.margin.is_none()));
@@ -611,4 +615,48 @@ fn a_syntax_error_names_its_line() {
     );
     let e = refusal(&["units = \"mm\"", "units = \"in\""]);
     assert_eq!((e.kind, e.line), (Kind::Syntax, Some(2)));
+}
+
+#[test]
+fn a_fit_chooses_its_method_and_outlier_rejection() {
+    let text = "units = \"mm\"\n[[feature]]\nname = \"a\"\nfit_csv = \"s.csv\"\nfit = \"algebraic\"\n\n\
+                [[feature]]\nname = \"b\"\nfit_layer = \"SCAN\"\nreject_outliers = true\n";
+    let job = parse_job_file(text, "job.toml").unwrap();
+    assert_eq!(
+        job.features[0].source,
+        FeatureSource::Fit {
+            points: FitPoints::Csv("s.csv".into()),
+            method: FitMethod::Algebraic,
+            reject_outliers: false,
+        }
+    );
+    assert_eq!(
+        job.features[1].source,
+        FeatureSource::Fit {
+            points: FitPoints::Layer("SCAN".into()),
+            method: FitMethod::Geometric,
+            reject_outliers: true,
+        }
+    );
+    let e = feature_refusal(&["fit_csv = \"s.csv\"", "fit = \"best\""]);
+    assert_at(&e, Kind::BadValue, Some(5), Some("fit"));
+    assert!(
+        e.message.contains("\"geometric\"") && e.message.contains("\"algebraic\""),
+        "{e}"
+    );
+    let e = feature_refusal(&[
+        "fit_csv = \"s.csv\"",
+        "fit = \"algebraic\"",
+        "reject_outliers = true",
+    ]);
+    assert_at(&e, Kind::Conflict, Some(6), Some("reject_outliers"));
+    let e = feature_refusal(&["bay = \"bay 1\"", "fit = \"geometric\""]);
+    assert_at(&e, Kind::Conflict, Some(5), Some("fit"));
+    let e = feature_refusal(&[
+        "through = [[0, 1], [1, 1], [2, 3], [4, 4], [5, 0]]",
+        "reject_outliers = true",
+    ]);
+    assert_at(&e, Kind::Conflict, Some(5), Some("reject_outliers"));
+    let e = feature_refusal(&["fit_csv = \"s.csv\"", "reject_outliers = \"yes\""]);
+    assert_eq!(e.key.as_deref(), Some("reject_outliers"), "{e}");
 }

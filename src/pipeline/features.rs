@@ -5,19 +5,25 @@ use crate::chain::{Bay, Part};
 use crate::geom::{Bounds, BoxGrid, Line, Point};
 use crate::read::{Drawing, EntityKind};
 use crate::settings::job_file::{
-    BaySelect, CutKind, FeatureSource, FeatureSpec, FitPoints, LineSource, PointSource, Rule,
+    BaySelect, CutKind, FeatureSource, FeatureSpec, FitMethod, FitPoints, LineSource, PointSource,
+    Rule,
 };
 use crate::solve::conics_through_and_tangent;
-use crate::solve::least_squares_ellipse;
 use crate::solve::{Candidate, Solution};
 use crate::solve::{Failure, solve_bay};
+use crate::solve::{geometric_fit, least_squares_ellipse};
 use serde::Serialize;
 use std::collections::{BTreeMap, HashMap};
 
-/// How well a least-squares fit matches its points.
+/// How well the least-squares fit cut matches its points.
 #[derive(Debug, Clone, Copy, PartialEq, Serialize)]
 pub struct FitQuality {
+    /// The points the fit used (outliers rejected left out).
     pub points: usize,
+    /// Whether it is the geometric fit (otherwise the algebraic one).
+    pub geometric: bool,
+    /// How many points were rejected as outliers.
+    pub rejected: usize,
     /// Root-mean-square geometric distance of the points from the fitted ellipse (mm).
     pub rms_residual_mm: f64,
     /// Largest geometric distance of a point from the fitted ellipse (mm).
@@ -152,7 +158,11 @@ fn solve_one(spec: &FeatureSpec, inputs: &FeatureInputs, bays: &BayLookup) -> So
             touching,
             choose,
         } => constraints_feature(&mut out, inputs, through, touching, *choose),
-        FeatureSource::Fit { points } => fit_feature(&mut out, inputs, points),
+        FeatureSource::Fit {
+            points,
+            method,
+            reject_outliers,
+        } => fit_feature(&mut out, inputs, points, *method, *reject_outliers),
     }
     out
 }
@@ -226,7 +236,13 @@ fn constraints_feature(
 }
 
 /// A least-squares fit to measured points (a CSV the job names, or a layer).
-fn fit_feature(out: &mut SolvedFeature, inputs: &FeatureInputs, points: &FitPoints) {
+fn fit_feature(
+    out: &mut SolvedFeature,
+    inputs: &FeatureInputs,
+    points: &FitPoints,
+    method: FitMethod,
+    reject_outliers: bool,
+) {
     let pts = match points {
         FitPoints::Csv(path) => inputs
             .csv_points
@@ -240,33 +256,87 @@ fn fit_feature(out: &mut SolvedFeature, inputs: &FeatureInputs, points: &FitPoin
         Err(_) => "fit to measured points".into(),
     };
     out.outcome = pts.map_err(failure).and_then(|p| {
-        let f = least_squares_ellipse(&p).map_err(|e| failure(e.to_string()))?;
-        out.fit = Some(FitQuality {
-            points: f.points,
-            rms_residual_mm: f.rms_residual,
-            max_residual_mm: f.max_residual,
-        });
-        let c = Candidate {
-            kind: if (f.ellipse.a() - f.ellipse.b()) <= 1e-9 * f.ellipse.a() {
+        let algebraic = least_squares_ellipse(&p).map_err(|e| failure(e.to_string()))?;
+        let geometric = geometric_fit(&p, &algebraic.ellipse, reject_outliers);
+        let kind = |e: &crate::geom::Ellipse| {
+            if (e.a() - e.b()) <= 1e-9 * e.a() {
                 crate::solve::ConicKind::Circle
             } else {
                 crate::solve::ConicKind::Ellipse
-            },
-            ellipse: Some(f.ellipse),
-            parameter: None,
-            cuttable: true,
-            note: format!(
-                "least-squares fit: RMS distance {:.4} mm, largest {:.4} mm",
-                f.rms_residual, f.max_residual
-            ),
-            residual: f.max_residual,
+            }
         };
-        Solution::new(
-            vec![c],
-            0,
-            "the direct least-squares ellipse fit (Halíř–Flusser) to the points".into(),
-        )
-        .ok_or_else(|| failure("the fit gave no ellipse".into()))
+        let rejected = if geometric.rejected.is_empty() {
+            String::new()
+        } else {
+            let list: Vec<String> = geometric
+                .rejected
+                .iter()
+                .map(|i| (i + 1).to_string())
+                .collect();
+            format!(
+                "; point{} {} (counting from 1) rejected as outlier{} (farther than 3 scaled \
+                 median absolute deviations)",
+                if list.len() == 1 { "" } else { "s" },
+                list.join(", "),
+                if list.len() == 1 { "" } else { "s" }
+            )
+        };
+        let candidates = vec![
+            Candidate {
+                kind: kind(&geometric.ellipse),
+                ellipse: Some(geometric.ellipse),
+                parameter: None,
+                cuttable: true,
+                note: format!(
+                    "geometric fit (least squared orthogonal distances): RMS distance {:.4} mm, \
+                     largest {:.4} mm{rejected}",
+                    geometric.rms_distance, geometric.max_distance
+                ),
+                residual: geometric.max_distance,
+            },
+            Candidate {
+                kind: kind(&algebraic.ellipse),
+                ellipse: Some(algebraic.ellipse),
+                parameter: None,
+                cuttable: true,
+                note: format!(
+                    "algebraic fit (direct, Halíř–Flusser): RMS distance {:.4} mm, largest {:.4} \
+                     mm",
+                    algebraic.rms_residual, algebraic.max_residual
+                ),
+                residual: algebraic.max_residual,
+            },
+        ];
+        let (chosen, reason) = match method {
+            FitMethod::Geometric => (
+                0,
+                "the geometric least-squares ellipse: the least sum of squared distances from \
+                 the points (Levenberg–Marquardt from the algebraic fit, listed second)",
+            ),
+            FitMethod::Algebraic => (
+                1,
+                "the direct algebraic least-squares fit (Halíř–Flusser), as the job file asks \
+                 (`fit = \"algebraic\"`)",
+            ),
+        };
+        out.fit = Some(match method {
+            FitMethod::Geometric => FitQuality {
+                points: p.len() - geometric.rejected.len(),
+                rms_residual_mm: geometric.rms_distance,
+                max_residual_mm: geometric.max_distance,
+                geometric: true,
+                rejected: geometric.rejected.len(),
+            },
+            FitMethod::Algebraic => FitQuality {
+                points: algebraic.points,
+                rms_residual_mm: algebraic.rms_residual,
+                max_residual_mm: algebraic.max_residual,
+                geometric: false,
+                rejected: 0,
+            },
+        });
+        Solution::new(candidates, chosen, reason.into())
+            .ok_or_else(|| failure("the fit gave no ellipse".into()))
     });
 }
 

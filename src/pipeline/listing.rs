@@ -46,6 +46,8 @@ pub struct FeatureListing {
     pub fit_points: Option<usize>,
     pub fit_rms_mm: Option<f64>,
     pub fit_max_mm: Option<f64>,
+    /// For a fit: `geometric` or `algebraic`, the one cut.
+    pub fit_method: Option<String>,
 }
 
 /// The whole listing.
@@ -123,6 +125,14 @@ pub fn build(
                 fit_points: f.fit.map(|q| q.points),
                 fit_rms_mm: f.fit.map(|q| q.rms_residual_mm),
                 fit_max_mm: f.fit.map(|q| q.max_residual_mm),
+                fit_method: f.fit.map(|q| {
+                    if q.geometric {
+                        "geometric"
+                    } else {
+                        "algebraic"
+                    }
+                    .to_string()
+                }),
             }
         })
         .collect();
@@ -165,9 +175,11 @@ impl SolveListing {
             let _ = write!(head, ", cut as {}", f.cut.as_str());
             let _ = writeln!(s, "{head}");
             if let (Some(n), Some(rms), Some(max)) = (f.fit_points, f.fit_rms_mm, f.fit_max_mm) {
+                let method = f.fit_method.as_deref().unwrap_or("least-squares");
                 let _ = writeln!(
                     s,
-                    "  fit to {n} points: RMS distance {rms:.4} mm, largest {max:.4} mm"
+                    "  {method} fit to {n} points: RMS distance {rms:.4} mm, largest {max:.4} mm \
+                     (both fits listed below)"
                 );
             }
             if !f.candidates.is_empty() {

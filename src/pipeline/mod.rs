@@ -894,6 +894,8 @@ fn openings(features: &[SolvedFeature]) -> (Vec<plan::Opening>, Vec<SolvedInfo>)
             residual: sol.candidates()[sol.chosen()].residual,
             fit: f.fit.map(|q| FitSummary {
                 points: q.points,
+                geometric: q.geometric,
+                rejected: q.rejected,
                 rms_residual_mm: q.rms_residual_mm,
                 max_residual_mm: q.max_residual_mm,
             }),

@@ -75,7 +75,12 @@ pub struct TabReport {
 /// How well a least-squares fit matches its points (mm).
 #[derive(Debug, Clone, Copy, PartialEq, Serialize)]
 pub struct FitSummary {
+    /// The points the fit used (outliers rejected left out).
     pub points: usize,
+    /// Whether the geometric fit was cut (otherwise the algebraic one).
+    pub geometric: bool,
+    /// Points rejected as outliers.
+    pub rejected: usize,
     pub rms_residual_mm: f64,
     pub max_residual_mm: f64,
 }

@@ -9,6 +9,7 @@ mod conic;
 mod constraints;
 mod contained;
 mod feature;
+mod geometric_fit;
 mod john;
 mod least_squares;
 mod pentagon;
@@ -26,6 +27,7 @@ pub use conic::{
 };
 pub use constraints::{ConicSolution, ConstraintError, conics_through_and_tangent};
 pub use feature::{BaySolution, Failure, solve_bay};
+pub use geometric_fit::{GeometricFit, geometric_fit};
 pub use john::{John, JohnResiduals, john_ellipse};
 pub use least_squares::{LeastSquaresEllipse, LeastSquaresError, least_squares_ellipse};
 pub use quad_family::TangentFamily;

@@ -3,10 +3,11 @@
 
 use super::context::{Context, Entries, Entry, plural};
 use super::keys::{
-    BAY_ONLY, BAY_SOURCE, CONSTRAINT_COUNT, CONSTRAINT_SOURCE, FEATURE_KEYS, FIT_SOURCE, RULES,
+    BAY_ONLY, BAY_SOURCE, CONSTRAINT_COUNT, CONSTRAINT_SOURCE, FEATURE_KEYS, FIT_ONLY, FIT_SOURCE,
+    RULES,
 };
 use super::{
-    BaySelect, CutKind, FeatureSource, FeatureSpec, FitPoints, JobFileError,
+    BaySelect, CutKind, FeatureSource, FeatureSpec, FitMethod, FitPoints, JobFileError,
     JobFileErrorKind as Kind, LineSource, PointSource, Rule,
 };
 use toml::de::{DeTable, DeValue};
@@ -230,6 +231,14 @@ impl Context<'_> {
                  bay feature, which picks its ellipse by `rule`. Remove `choose`"
             ),
         )?;
+        self.refuse_foreign(
+            entries,
+            &FIT_ONLY,
+            &format!(
+                "belongs to fit features (`fit_csv`, `fit_layer`); {what} is a bay feature. \
+                 Remove it"
+            ),
+        )?;
         self.refuse_both(entries, "bay", "inside", &format!("the bay of {what}"))?;
         let select = match (entries.get("bay"), entries.get("inside")) {
             (Some(e), _) => BaySelect::Name(self.string(e)?),
@@ -362,6 +371,14 @@ impl Context<'_> {
                 "belongs to bay features; {what} is fixed by its five points and lines \
                  (`through`, `touching`), so it takes no rule, rule value or margin. Remove it, \
                  and use `choose` to pick among several solutions"
+            ),
+        )?;
+        self.refuse_foreign(
+            entries,
+            &FIT_ONLY,
+            &format!(
+                "belongs to fit features (`fit_csv`, `fit_layer`); {what} passes exactly \
+                 through its points, so there is nothing to fit. Remove it"
             ),
         )?;
         self.refuse_both(
@@ -511,6 +528,44 @@ impl Context<'_> {
             (None, Some(e)) => FitPoints::Layer(self.string(e)?),
             (None, None) => return Err(self.no_source(what, "`fit_csv` or `fit_layer`")),
         };
-        Ok(FeatureSource::Fit { points })
+        let method = match entries.get("fit") {
+            None => FitMethod::Geometric,
+            Some(e) => match self.string(e)?.as_str() {
+                "geometric" => FitMethod::Geometric,
+                "algebraic" => FitMethod::Algebraic,
+                other => {
+                    return Err(self.at(
+                        e,
+                        Kind::BadValue,
+                        format!(
+                            "`fit = \"{other}\"` is not a fit; write \"geometric\" (the least \
+                             sum of squared distances, the default) or \"algebraic\" (the \
+                             direct fit)"
+                        ),
+                    ));
+                }
+            },
+        };
+        let reject_outliers = match entries.get("reject_outliers") {
+            None => false,
+            Some(e) => {
+                let on = self.boolean(e)?;
+                if on && method == FitMethod::Algebraic {
+                    return Err(self.at(
+                        e,
+                        Kind::Conflict,
+                        "`reject_outliers` applies to the geometric fit; with `fit = \
+                         \"algebraic\"` remove it, or drop `fit` to use the geometric fit"
+                            .into(),
+                    ));
+                }
+                on
+            }
+        };
+        Ok(FeatureSource::Fit {
+            points,
+            method,
+            reject_outliers,
+        })
     }
 }

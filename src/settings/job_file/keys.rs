@@ -21,7 +21,7 @@ pub(super) const TOP_KEYS: [&str; 16] = [
 ];
 
 /// Keys allowed in a `[[feature]]` table.
-pub(super) const FEATURE_KEYS: [&str; 23] = [
+pub(super) const FEATURE_KEYS: [&str; 25] = [
     "name",
     "cut",
     "depth",
@@ -45,12 +45,17 @@ pub(super) const FEATURE_KEYS: [&str; 23] = [
     "choose",
     "fit_csv",
     "fit_layer",
+    "fit",
+    "reject_outliers",
 ];
 
 pub(super) const BAY_SOURCE: [&str; 2] = ["bay", "inside"];
 pub(super) const CONSTRAINT_SOURCE: [&str; 4] =
     ["through", "touching", "through_layer", "touching_layer"];
 pub(super) const FIT_SOURCE: [&str; 2] = ["fit_csv", "fit_layer"];
+
+/// Keys that belong to fit features only.
+pub(super) const FIT_ONLY: [&str; 2] = ["fit", "reject_outliers"];
 
 /// Keys that belong to bay features only.
 pub(super) const BAY_ONLY: [&str; 7] = [

@@ -52,6 +52,8 @@
 //! name = "scanned opening"
 //! fit_csv = "scan.csv"          # least-squares fit to the x,y points of a CSV file …
 //! # fit_layer = "SCAN"          # … or to the POINT entities on a DXF layer
+//! # fit = "algebraic"           # the direct fit instead of the geometric (orthogonal) one
+//! # reject_outliers = true      # drop points far from the fit (3 scaled MADs) and fit again
 //! ```
 //!
 //! Each feature has exactly one **source**: a bay (`bay` or `inside`), constraints
@@ -181,6 +183,7 @@ impl JobFile {
                 }
                 FeatureSource::Fit {
                     points: FitPoints::Layer(l),
+                    ..
                 } => out.push(l.clone()),
                 _ => {}
             }
@@ -226,8 +229,13 @@ pub enum FeatureSource {
         touching: LineSource,
         choose: Option<usize>,
     },
-    /// A least-squares ellipse fit to measured points.
-    Fit { points: FitPoints },
+    /// A least-squares ellipse fit to measured points: the geometric fit unless `method` says
+    /// algebraic; outliers rejected when `reject_outliers` is set.
+    Fit {
+        points: FitPoints,
+        method: FitMethod,
+        reject_outliers: bool,
+    },
 }
 
 /// Which bay of the drawing.
@@ -265,6 +273,16 @@ pub enum FitPoints {
     Csv(String),
     /// The POINT entities on this DXF layer.
     Layer(String),
+}
+
+/// Which least-squares ellipse a fit feature cuts (both are listed by `conicut solve`).
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
+pub enum FitMethod {
+    /// The least sum of squared orthogonal distances (`fit = "geometric"`, the default).
+    #[default]
+    Geometric,
+    /// The direct algebraic fit (`fit = "algebraic"`).
+    Algebraic,
 }
 
 /// How the ellipse is cut.
