@@ -6,12 +6,17 @@
 //!   the worked example of docs/sources.md M5 (four real ellipses).
 //! * `least_squares_100`: the least-squares ellipse through 100 points measured round a 40 × 15 mm
 //!   ellipse with ±0.02 mm of deterministic scatter (docs/sources.md M9's method).
+//! * `geometric_fit_100`: the geometric (orthogonal-distance) fit of the same points, started
+//!   from the algebraic one.
+//! * `john_6` and `john_64`: the largest ellipse inside a convex hexagon and 64-gon (corners on
+//!   a 50 × 20 mm ellipse at uneven angles): barrier method and exact polish.
 
 use conicut::chain::Bay;
 use conicut::geom::{Line, Point};
 use conicut::solve::conics_through_and_tangent;
 use conicut::solve::largest_tangent_ellipse;
 use conicut::solve::least_squares_ellipse;
+use conicut::solve::{geometric_fit, john_ellipse};
 use criterion::{Criterion, criterion_group, criterion_main};
 use std::hint::black_box;
 
@@ -64,10 +69,47 @@ fn least_squares_100(c: &mut Criterion) {
     });
 }
 
+fn geometric_fit_100(c: &mut Criterion) {
+    let points: Vec<Point> = (0..100)
+        .map(|k| {
+            let t = std::f64::consts::TAU * k as f64 / 100.0;
+            let wobble = 0.02 * (7.3 * k as f64).sin();
+            Point::new(
+                12.0 + (40.0 + wobble) * t.cos(),
+                -3.0 + (15.0 + wobble) * t.sin(),
+            )
+        })
+        .collect();
+    let start = least_squares_ellipse(&points).unwrap().ellipse;
+    c.bench_function("geometric_fit_100", |b| {
+        b.iter(|| geometric_fit(black_box(&points), black_box(&start), false))
+    });
+}
+
+fn polygon(n: usize) -> Vec<Point> {
+    (0..n)
+        .map(|k| {
+            let t = std::f64::consts::TAU * (k as f64 + 0.3 * (1.7 * k as f64).sin()) / n as f64;
+            Point::new(50.0 * t.cos(), 20.0 * t.sin())
+        })
+        .collect()
+}
+
+fn john(c: &mut Criterion) {
+    for n in [6, 64] {
+        let p = polygon(n);
+        c.bench_function(&format!("john_{n}"), |b| {
+            b.iter(|| john_ellipse(black_box(&p)).unwrap())
+        });
+    }
+}
+
 criterion_group!(
     benches,
     four_sided_largest,
     three_points_two_lines,
-    least_squares_100
+    least_squares_100,
+    geometric_fit_100,
+    john
 );
 criterion_main!(benches);

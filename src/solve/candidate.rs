@@ -62,6 +62,23 @@ impl Solution {
         &self.reason
     }
 
+    /// The same solution moved by `v`: every candidate's ellipse and the chosen one.
+    pub fn translated(&self, v: crate::geom::Vec2) -> Solution {
+        Solution {
+            candidates: self
+                .candidates
+                .iter()
+                .map(|c| Candidate {
+                    ellipse: c.ellipse.map(|e| e.translated(v)),
+                    ..c.clone()
+                })
+                .collect(),
+            chosen: self.chosen,
+            ellipse: self.ellipse.translated(v),
+            reason: self.reason.clone(),
+        }
+    }
+
     /// A solution choosing `candidates[chosen]`; `None` unless that candidate is a cuttable
     /// ellipse.
     pub fn new(candidates: Vec<Candidate>, chosen: usize, reason: String) -> Option<Solution> {

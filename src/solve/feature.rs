@@ -43,22 +43,57 @@ pub struct BaySolution {
 /// | 4 | every rule |
 /// | 5 | `largest` (the one conic touching all five sides, if it is an ellipse inside the bay), `largest-inside` |
 /// | 6 or more | `largest-inside` |
+///
+/// The bay is solved in coordinates local to it (its first corner at the origin) and the answer
+/// moved back, so that a bay far from the drawing's origin keeps every digit the bay near it
+/// would (the closed forms subtract coordinates of the size of the bay's distance from the
+/// origin otherwise). A bay with no answer is solved again where it lies, so that the places
+/// its message names are the drawing's.
 pub fn solve_bay(bay: &Bay, rule: &Rule, margin: f64) -> Result<BaySolution, Failure> {
+    let Some(shift) = bay
+        .corners()
+        .first()
+        .map(|p| p.to_vec())
+        .filter(|v| v.x.is_finite() && v.y.is_finite())
+    else {
+        return solve_in_place(bay.name(), bay.corners(), rule, margin);
+    };
+    let local: Vec<Point> = bay.corners().iter().map(|p| *p - shift).collect();
+    let local_rule = match rule {
+        Rule::CentreNear(p) => Rule::CentreNear(*p - shift),
+        other => *other,
+    };
+    match solve_in_place(bay.name(), &local, &local_rule, margin) {
+        Ok(s) => Ok(BaySolution {
+            solved_corners: s.solved_corners.iter().map(|p| *p + shift).collect(),
+            solution: s.solution.translated(shift),
+        }),
+        Err(_) => solve_in_place(bay.name(), bay.corners(), rule, margin),
+    }
+}
+
+/// [`solve_bay`] on the corners as given.
+fn solve_in_place(
+    name: &str,
+    corners: &[Point],
+    rule: &Rule,
+    margin: f64,
+) -> Result<BaySolution, Failure> {
     if !(margin >= 0.0 && margin.is_finite()) {
         return Err(Failure {
             reason: format!("the edge margin must be zero or positive (got {margin})"),
             candidates: vec![],
         });
     }
-    let corners = ccw_convex_corners(bay.name(), bay.corners())?;
+    let corners = ccw_convex_corners(name, corners)?;
     let corners = if margin > 0.0 {
-        inset_convex_polygon(bay.name(), &corners, margin)?
+        inset_convex_polygon(name, &corners, margin)?
     } else {
         corners
     };
     let n = corners.len();
     let unsupported = |what: &str| Failure {
-        reason: format!("{}: rule \"{}\" {what}", bay.name(), rule.describe()),
+        reason: format!("{}: rule \"{}\" {what}", name, rule.describe()),
         candidates: vec![],
     };
     let solution = match (n, rule) {
@@ -78,7 +113,7 @@ pub fn solve_bay(bay: &Bay, rule: &Rule, margin: f64) -> Result<BaySolution, Fai
         (3, Rule::CentreNear(c)) => {
             let t = [corners[0], corners[1], corners[2]];
             let e = tangent_ellipse_with_centre(t, *c).map_err(|e| Failure {
-                reason: format!("{}: {e}", bay.name()),
+                reason: format!("{}: {e}", name),
                 candidates: vec![],
             })?;
             single(
@@ -96,12 +131,12 @@ pub fn solve_bay(bay: &Bay, rule: &Rule, margin: f64) -> Result<BaySolution, Fai
             let family = TangentFamily::new(q);
             quad_rules::choose(&family, &corners, rule).map_err(
                 |RuleFailure { reason, candidates }| Failure {
-                    reason: format!("{}: {reason}", bay.name()),
+                    reason: format!("{}: {reason}", name),
                     candidates,
                 },
             )?
         }
-        (5, Rule::Largest) => five_sided(bay.name(), &corners)?,
+        (5, Rule::Largest) => five_sided(name, &corners)?,
         (5, _) => {
             return Err(unsupported(
                 "needs a four-sided bay; in a five-sided bay use largest (the one ellipse touching all five sides) or largest-inside",
