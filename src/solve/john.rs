@@ -13,12 +13,16 @@
 //! (Boyd & Vandenberghe, *Convex Optimization*, CUP 2004, §8.4.2: the maximum-volume ellipsoid
 //! in a polyhedron). It is solved here by the barrier method of the same book (§11.3): Newton's
 //! method with a backtracking line search on `−t log det B − Σ log(βᵢ − aᵢ·d − |B aᵢ|)` for `t`
-//! growing tenfold until the duality gap `n/t` is below [`BARRIER_GAP`].
+//! growing fiftyfold until the duality gap `n/t` is below [`BARRIER_GAP`].
 //!
 //! The optimum touches three, four or five sides (five unknowns; at least three contacts by
-//! John's theorem). On the sides it touches it is one of three closed forms, so the barrier's
-//! answer is polished exactly: the sides whose barrier slack is below [`ACTIVE_SLACK`] (at least
-//! the three nearest, at most [`MOST_NEAR`]) are tried three, four and five at a time, each set
+//! John's theorem). On the sides it touches it is one of three closed forms. A polygon of up to
+//! [`FEW_SIDES`] sides is therefore solved by trying every set of three, four and five sides
+//! exactly and keeping the largest that lies inside (no convex program needed). On more sides
+//! the barrier's answer is polished exactly: the sides whose barrier slack is below
+//! [`ACTIVE_SLACK`] (at least the three nearest, at most the [`MOST_NEAR`] nearest; when more
+//! touch, also that many spread evenly around the polygon) are tried three, four and five at a
+//! time, each set
 //! solved exactly (three sides: the Steiner inellipse of their triangle, the largest ellipse in
 //! it; four: the largest ellipse touching all four, along the Newton line; five: the one conic
 //! touching all five), and the largest that lies inside the whole polygon is kept. John's
@@ -45,6 +49,10 @@ pub const ACTIVE_SLACK: f64 = 1e-4;
 
 /// The most sides the polish tries sets of (the nearest by slack).
 pub const MOST_NEAR: usize = 8;
+
+/// Polygons of up to this many sides are solved by trying every set of three, four and five
+/// sides exactly (41 sets for six), without the convex program.
+pub const FEW_SIDES: usize = 6;
 
 /// The most sides a polygon may have.
 pub const MOST_SIDES: usize = 256;
@@ -156,7 +164,7 @@ fn barrier_method(sides: &Sides, start: V5) -> (V5, usize) {
     let mut x = start;
     let mut steps = 0;
     let mut buf = Vec::with_capacity(sides.a.len());
-    let mut t = 1.0;
+    let mut t = 10.0;
     loop {
         for _ in 0..100 {
             let (grad, hess) = derivatives(sides, &x, t);
@@ -169,7 +177,9 @@ fn barrier_method(sides: &Sides, start: V5) -> (V5, usize) {
             };
             let decrement = -grad.dot(&step);
             steps += 1;
-            if decrement.is_nan() || decrement <= 2e-14 {
+            // Each centre only roughly on the way; the last one to the full.
+            let enough = if n / t <= BARRIER_GAP { 2e-14 } else { 1e-6 };
+            if decrement.is_nan() || decrement <= enough {
                 break;
             }
             let Some(f0) = barrier(sides, &x, t, &mut buf) else {
@@ -195,7 +205,7 @@ fn barrier_method(sides: &Sides, start: V5) -> (V5, usize) {
         if n / t <= BARRIER_GAP {
             return (x, steps);
         }
-        t *= 10.0;
+        t *= 50.0;
     }
 }
 
@@ -353,41 +363,77 @@ pub fn john_ellipse(corners: &[Point]) -> Option<John> {
     if clear.is_nan() || clear <= 0.0 {
         return None;
     }
+    let largest_exact = |near: &[usize]| {
+        let mut best: Option<Ellipse> = None;
+        for k in 3..=5.min(near.len()) {
+            subsets(near, k, &mut |chosen| {
+                if let Some(e) = exact(&lines, chosen)
+                    && (0..n).all(|i| slack_of(&e, &sides, i) >= -INSIDE_RELATIVE)
+                    && best.is_none_or(|b| e.area() > b.area())
+                {
+                    best = Some(e);
+                }
+            });
+        }
+        best
+    };
+    // Few sides: every set of three, four and five is tried exactly (at most 41 for six sides),
+    // and one of them is the optimum; the convex program is only needed when none fits.
+    if n <= FEW_SIDES {
+        let all: Vec<usize> = (0..n).collect();
+        if let Some(e) = largest_exact(&all) {
+            return finish(e, true, 0, &sides, mean, size);
+        }
+    }
     let start = V5::new(0.5 * clear, 0.0, 0.5 * clear, 0.0, 0.0);
     let (x, newton_steps) = barrier_method(&sides, start);
     let found = ellipse_of(&x)?;
     let mut buf = Vec::new();
     slacks(&sides, &x, &mut buf);
+    // The sides it touches: those within ACTIVE_SLACK (at least the three nearest). When more
+    // than MOST_NEAR touch (a regular polygon's incircle touches every side), MOST_NEAR of them
+    // spread evenly around the polygon, so that three or more of them bound a region.
+    let active: Vec<usize> = (0..n).filter(|&i| buf[i] <= ACTIVE_SLACK).collect();
     let mut order: Vec<usize> = (0..n).collect();
     order.sort_by(|&i, &j| buf[i].total_cmp(&buf[j]));
-    let near_count = order
-        .iter()
-        .take_while(|&&i| buf[i] <= ACTIVE_SLACK)
-        .count()
-        .clamp(3, MOST_NEAR.min(n));
-    let mut near: Vec<usize> = order[..near_count].to_vec();
-    near.sort_unstable();
-    let mut best: Option<Ellipse> = None;
-    for k in 3..=5.min(near.len()) {
-        subsets(&near, k, &mut |chosen| {
-            if let Some(e) = exact(&lines, chosen)
-                && (0..n).all(|i| slack_of(&e, &sides, i) >= -INSIDE_RELATIVE)
-                && best.is_none_or(|b| e.area() > b.area())
-            {
-                best = Some(e);
-            }
-        });
+    let mut nearest = order[..active.len().clamp(3, MOST_NEAR)].to_vec();
+    nearest.sort_unstable();
+    let mut best = largest_exact(&nearest);
+    if active.len() > MOST_NEAR {
+        let spread: Vec<usize> = (0..MOST_NEAR)
+            .map(|k| active[k * active.len() / MOST_NEAR])
+            .collect();
+        if let Some(e) = largest_exact(&spread)
+            && best.is_none_or(|b| e.area() > b.area())
+        {
+            best = Some(e);
+        }
     }
     // The exact candidate is kept when it is at least as large as the barrier's (which is
     // inside and within the gap of the largest); otherwise the barrier's answer stands.
-    let (local_e, polished) = match best {
-        Some(e) if e.area() >= found.area() * (1.0 - 1e-9) => (e, true),
-        _ => (found, false),
-    };
-    let slack: Vec<f64> = (0..n).map(|i| slack_of(&local_e, &sides, i)).collect();
+    match best {
+        Some(e) if e.area() >= found.area() * (1.0 - 1e-9) => {
+            finish(e, true, newton_steps, &sides, mean, size)
+        }
+        _ => finish(found, false, newton_steps, &sides, mean, size),
+    }
+}
+
+/// The answer in local coordinates measured (which sides it touches, John's conditions) and
+/// mapped back to the polygon's.
+fn finish(
+    local_e: Ellipse,
+    polished: bool,
+    newton_steps: usize,
+    sides: &Sides,
+    mean: Vec2,
+    size: f64,
+) -> Option<John> {
+    let n = sides.a.len();
+    let slack: Vec<f64> = (0..n).map(|i| slack_of(&local_e, sides, i)).collect();
     let touch_limit = if polished { 1e-7 } else { 1e-4 };
     let touching: Vec<usize> = (0..n).filter(|&i| slack[i] <= touch_limit).collect();
-    let (optimality, least_weight) = optimality(&local_e, &sides, &touching);
+    let (optimality, least_weight) = optimality(&local_e, sides, &touching);
     let ellipse = Ellipse::new(
         Point::ORIGIN + (mean + local_e.centre().to_vec() * size),
         local_e.a() * size,
