@@ -206,13 +206,12 @@ fn constraints_feature(
     let lines = match touching {
         LineSource::Given(l) => l
             .iter()
-            .map(|(p, q)| {
-                Line::through(*p, *q).ok_or_else(|| {
-                    format!(
-                        "a line to touch is given by two equal points ({:.3}, {:.3})",
-                        p.x, p.y
-                    )
-                })
+            .map(|&(p, q)| match Line::through(p, q) {
+                Some(_) => Ok((p, q)),
+                None => Err(format!(
+                    "a line to touch is given by two equal points ({:.3}, {:.3})",
+                    p.x, p.y
+                )),
             })
             .collect(),
         LineSource::Layer(layer) => layer_lines(inputs.drawing, layer),
@@ -420,13 +419,14 @@ fn layer_points(d: &Drawing, layer: &str) -> Result<Vec<Point>, String> {
     }
 }
 
-fn layer_lines(d: &Drawing, layer: &str) -> Result<Vec<Line>, String> {
-    let lines: Vec<Line> = d
+/// The LINE entities on `layer`, each as two points on it (zero-length ones left out).
+fn layer_lines(d: &Drawing, layer: &str) -> Result<Vec<(Point, Point)>, String> {
+    let lines: Vec<(Point, Point)> = d
         .entities
         .iter()
         .filter(|e| e.layer.eq_ignore_ascii_case(layer))
         .filter_map(|e| match e.kind {
-            EntityKind::Line(s) => s.line(),
+            EntityKind::Line(s) => s.line().map(|_| (s.start, s.end)),
             _ => None,
         })
         .collect();
@@ -437,13 +437,50 @@ fn layer_lines(d: &Drawing, layer: &str) -> Result<Vec<Line>, String> {
     }
 }
 
-/// The conics through the points and touching the lines; picks the ellipse to cut by `choose`
-/// (1-based, as listed), or the only ellipse when there is exactly one.
+/// The conics through the points and touching the lines (each through two points); picks the
+/// ellipse to cut by `choose` (1-based, as listed), or the only ellipse when there is exactly
+/// one.
+///
+/// Solved with the first point (or the first line's first point) moved to the origin and the
+/// answer moved back: a line is held as `n·x = c`, and written 10 km from the origin its `c`
+/// would carry rounding of that size, so the lines are made only after the move. Constraints
+/// with no answer are solved again where they lie, so that the places a message names are the
+/// drawing's.
 fn solve_constraints(
     points: &[Point],
-    lines: &[Line],
+    segments: &[(Point, Point)],
     choose: Option<usize>,
 ) -> Result<Solution, Failure> {
+    let origin = points
+        .first()
+        .copied()
+        .or(segments.first().map(|s| s.0))
+        .filter(|p| p.is_finite());
+    if let Some(o) = origin {
+        let shift = o.to_vec();
+        let local: Vec<Point> = points.iter().map(|p| *p - shift).collect();
+        let local_segments: Vec<(Point, Point)> = segments
+            .iter()
+            .map(|(p, q)| (*p - shift, *q - shift))
+            .collect();
+        if let Ok(s) = solve_constraints_here(&local, &local_segments, choose) {
+            return Ok(s.translated(shift));
+        }
+    }
+    solve_constraints_here(points, segments, choose)
+}
+
+/// [`solve_constraints`] where the constraints lie.
+fn solve_constraints_here(
+    points: &[Point],
+    segments: &[(Point, Point)],
+    choose: Option<usize>,
+) -> Result<Solution, Failure> {
+    let lines: Vec<Line> = segments
+        .iter()
+        .filter_map(|(p, q)| Line::through(*p, *q))
+        .collect();
+    let lines = lines.as_slice();
     let sols = conics_through_and_tangent(points, lines).map_err(|e| failure(e.to_string()))?;
     let candidates: Vec<Candidate> = sols
         .iter()
@@ -500,5 +537,49 @@ fn solve_constraints(
             candidates,
         }),
         Err(reason) => Err(Failure { reason, candidates }),
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::geom::Vec2;
+
+    /// Three points and two tilted lines (each through two points), all on whole millimetres,
+    /// solved where they are and 10 km away: the same ellipses, moved. Held as `n·x = c`, a
+    /// tilted line written 10 km out has its `c` rounded by about 1e-9 mm, which moved the
+    /// answer by about that much before the lines were made after the move to the origin.
+    #[test]
+    fn tilted_lines_far_away_give_the_same_ellipses() {
+        let points = [
+            Point::new(1.0, 7.0),
+            Point::new(8.0, 1.0),
+            Point::new(9.0, 8.0),
+        ];
+        let segments = [
+            (Point::new(-1.0, -3.0), Point::new(1.0, 13.0)),
+            (Point::new(-2.0, 1.0), Point::new(12.0, -3.0)),
+        ];
+        let shift = Vec2::new(9_999_991.0, -7_654_321.0);
+        let far_points: Vec<Point> = points.iter().map(|p| *p + shift).collect();
+        let far_segments: Vec<(Point, Point)> = segments
+            .iter()
+            .map(|(p, q)| (*p + shift, *q + shift))
+            .collect();
+        let here = solve_constraints(&points, &segments, Some(1)).unwrap();
+        let there = solve_constraints(&far_points, &far_segments, Some(1)).unwrap();
+        assert_eq!(here.candidates().len(), there.candidates().len());
+        let mut compared = 0;
+        for (h, t) in here.candidates().iter().zip(there.candidates()) {
+            let (Some(h), Some(t)) = (h.ellipse, t.ellipse) else {
+                continue;
+            };
+            compared += 1;
+            assert!((t.a() / h.a() - 1.0).abs() < 1e-12, "{h:?} {t:?}");
+            assert!((t.b() / h.b() - 1.0).abs() < 1e-12, "{h:?} {t:?}");
+            let off = (t.centre() - shift).distance(h.centre());
+            assert!(off < 1e-12 * h.a() + 8.0 * f64::EPSILON * 1e7, "{off}");
+        }
+        assert!(compared >= 2, "{compared}");
     }
 }
