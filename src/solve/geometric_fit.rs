@@ -23,6 +23,8 @@
 //! centroid, in units of their RMS distance from it), until a step moves the parameters by less
 //! than [`CONVERGED_STEP`] (or no step lowers the sum), at most [`MOST_STEPS`] steps.
 //!
+//! Sources and check values: docs/sources.md M15.
+//!
 //! # Outliers (optional)
 //!
 //! With outlier rejection, a point is rejected when its distance from the geometric fit exceeds

@@ -31,6 +31,8 @@
 //! `Σ cᵢ uᵢuᵢᵀ = I` (F. John, 1948; in the form of K. Ball, "An elementary introduction to modern
 //! convex geometry", MSRI Publ. 31, 1997, Lecture 3, from memory).
 //!
+//! Sources and check values: docs/sources.md M14.
+//!
 //! Everything is solved in coordinates local to the polygon (about its corners' mean, in units of
 //! its size), so a bay far from the drawing's origin loses no digits.
 
