@@ -4,10 +4,10 @@
 # executions (default 10 million) and prints libFuzzer's summary. A crash leaves its input in
 # fuzz/artifacts/TARGET/: save it under tests/fuzz-regressions/TARGET/ and fix the cause.
 #
-#   scripts/fuzz.sh dxf|job|profile|gcode [RUNS] [JOBS]
+#   scripts/fuzz.sh dxf|job|profile|gcode|gcode_pictures [RUNS] [JOBS]
 set -euo pipefail
 cd "$(dirname "$0")/.."
-target="${1:?which target: dxf, job, profile or gcode}"
+target="${1:?which target: dxf, job, profile, gcode or gcode_pictures}"
 runs="${2:-10000000}"
 jobs="${3:-1}"
 corpus="fuzz/corpus/$target"
@@ -16,10 +16,10 @@ case "$target" in
   dxf) cp demo-parts/*.dxf "$corpus/" ;;
   job) cp demo-parts/*.toml "$corpus/" ;;
   profile) cp machine-profiles/*.toml "$corpus/" ;;
-  gcode) cp tests/snapshots/*.ngc "$corpus/" ;;
-  *) echo "no target $target: dxf, job, profile or gcode" >&2; exit 2 ;;
+  gcode | gcode_pictures) cp tests/snapshots/*.ngc "$corpus/" ;;
+  *) echo "no target $target: dxf, job, profile, gcode or gcode_pictures" >&2; exit 2 ;;
 esac
-cp tests/fuzz-regressions/"$target"/* "$corpus/" 2>/dev/null || true
+cp tests/fuzz-regressions/"${target%_pictures}"/* "$corpus/" 2>/dev/null || true
 cd fuzz
 # -runs counts executions per job; with several jobs each runs its share (and logs to
 # fuzz/fuzz-N.log).

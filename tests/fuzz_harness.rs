@@ -261,3 +261,12 @@ fn the_checker_survives_any_program() {
         .collect();
     fuzz("gcode", fuzz_targets::gcode, &seeds, GCODE_TOKENS);
 }
+
+#[test]
+fn the_checker_s_pictures_survive_any_program() {
+    let seeds: Vec<Vec<u8>> = ["metric-mill", "inch-router", "laser"]
+        .iter()
+        .map(|p| read(&format!("tests/snapshots/{p}.ngc")))
+        .collect();
+    fuzz("gcode", fuzz_targets::gcode_pictures, &seeds, GCODE_TOKENS);
+}

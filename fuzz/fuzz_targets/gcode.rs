@@ -1,4 +1,5 @@
-//! cargo fuzz target `gcode`: the same check as the stable harness's (tests/fuzz_harness.rs).
+//! cargo fuzz target `gcode`: the same check as the stable harness's (tests/fuzz_harness.rs), without
+//! pictures (`gcode_pictures` has them).
 #![no_main]
 
 #[path = "../../tests/support/fuzz_targets.rs"]

@@ -43,9 +43,16 @@ pub fn profile(bytes: &[u8]) {
     }
 }
 
-/// The metric mill and the demo's cuts on it (6 mm tool), planned once.
-fn demo_on_the_mill() -> &'static (Machine, JobSettings, Vec<PlannedCut>) {
-    static DEMO: OnceLock<(Machine, JobSettings, Vec<PlannedCut>)> = OnceLock::new();
+/// What a program is checked against: the metric mill's rules and the demo's cuts on it (6 mm
+/// tool), worked out once.
+struct Demo {
+    machine: conicut::check::program::MachineRules,
+    against: conicut::check::against::AgainstRules,
+    cuts: Vec<PlannedCut>,
+}
+
+fn demo_on_the_mill() -> &'static Demo {
+    static DEMO: OnceLock<Demo> = OnceLock::new();
     DEMO.get_or_init(|| {
         let (name, text) = BUNDLED_PROFILES[0];
         let machine = Machine::from_toml(text, name).expect("the bundled profile");
@@ -58,21 +65,42 @@ fn demo_on_the_mill() -> &'static (Machine, JobSettings, Vec<PlannedCut>) {
             &resolved,
         )
         .expect("the demo plans");
-        (machine, s, cuts)
+        Demo {
+            machine: machine_rules(&machine.profile),
+            against: against_rules(&s, &resolved, &machine.profile, false),
+            cuts,
+        }
     })
 }
 
-/// A G-code program, checked against the demo on the metric mill as `conicut check --svg
-/// --html` would.
+/// A G-code program: read and checked against the demo on the metric mill, as `conicut check`
+/// does, without pictures (the cargo-fuzz target `gcode`: the reader and the checker, fast).
 pub fn gcode(bytes: &[u8]) {
     let text = String::from_utf8_lossy(bytes);
-    let (machine, s, cuts) = demo_on_the_mill();
-    let resolved = resolve(s, machine).expect("the demo's settings");
+    let demo = demo_on_the_mill();
     let checked = check_program(
         &text,
-        &machine_rules(&machine.profile),
-        cuts,
-        &against_rules(s, &resolved, &machine.profile, false),
+        &demo.machine,
+        &demo.cuts,
+        &demo.against,
+        &Pictures {
+            svg: false,
+            html: None,
+        },
+    );
+    serde_json::from_str::<serde_json::Value>(&checked.to_json()).expect("the check's JSON parses");
+}
+
+/// The same with the SVG and HTML pictures, as `conicut check --svg --html` (the cargo-fuzz
+/// target `gcode_pictures`: slower, the pictures' fixed part costs most of each run).
+pub fn gcode_pictures(bytes: &[u8]) {
+    let text = String::from_utf8_lossy(bytes);
+    let demo = demo_on_the_mill();
+    let checked = check_program(
+        &text,
+        &demo.machine,
+        &demo.cuts,
+        &demo.against,
         &Pictures {
             svg: true,
             html: Some("fuzz".into()),
