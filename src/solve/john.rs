@@ -101,7 +101,9 @@ struct Sides {
     beta: Vec<f64>,
 }
 
-/// The point `(p, q, r, d₁, d₂)`: `B = [[p, q], [q, r]]`, centre `d`.
+/// Every side's slack `βᵢ − aᵢ·d − |B aᵢ|` at `x = (p, q, r, d₁, d₂)` (`B = [[p, q], [q, r]]`,
+/// centre `d`) into `out`; `false` when `x` is outside the domain (B not positive definite, or a
+/// slack not positive).
 fn slacks(sides: &Sides, x: &V5, out: &mut Vec<f64>) -> bool {
     out.clear();
     let (p, q, r) = (x[0], x[1], x[2]);
