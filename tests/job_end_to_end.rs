@@ -395,3 +395,56 @@ fn job_file_errors_name_the_line_and_key_and_write_nothing() {
     assert!(err.contains("choose = N"), "{err}");
     assert!(!tmp.path().join("out").exists());
 }
+
+/// A fit with `reject_outliers`: the points far off are named in the listing and left out of the
+/// fit; without it they stay in.
+#[test]
+fn outliers_are_listed_by_number() {
+    let tmp = tempfile::tempdir().unwrap();
+    let dir = tmp.path();
+    // 40 points round a 40 × 15 mm ellipse at (120, 80), points 6 and 31 (counting from 1)
+    // pushed 2 mm out.
+    let mut csv = String::from("x,y\n");
+    for k in 0..40 {
+        let t = std::f64::consts::TAU * k as f64 / 40.0;
+        let push = if k == 5 || k == 30 {
+            2.0
+        } else {
+            0.01 * (3.7 * k as f64).sin()
+        };
+        let (x, y) = (40.0 * t.cos(), 15.0 * t.sin());
+        let r = x.hypot(y);
+        csv.push_str(&format!(
+            "{},{}\n",
+            120.0 + x * (1.0 + push / r),
+            80.0 + y * (1.0 + push / r)
+        ));
+    }
+    fs::write(dir.join("probe.csv"), csv).unwrap();
+    let root = Path::new(env!("CARGO_MANIFEST_DIR"));
+    for (robust, says) in [(true, true), (false, false)] {
+        fs::write(
+            dir.join("job.toml"),
+            format!(
+                "units = \"mm\"\n[[feature]]\nname = \"probe\"\nfit_csv = \"probe.csv\"\nreject_outliers = {robust}\n"
+            ),
+        )
+        .unwrap();
+        let out = conicut(dir)
+            .arg("solve")
+            .arg(root.join("demo-parts/truss-bracket.dxf"))
+            .args(["--job", "job.toml"])
+            .assert()
+            .success()
+            .get_output()
+            .stdout
+            .clone();
+        let text = String::from_utf8(out).unwrap();
+        assert_eq!(
+            text.contains("points 6, 31 (counting from 1) rejected as outliers"),
+            says,
+            "{text}"
+        );
+        assert_eq!(text.contains("geometric fit to 38 points"), says, "{text}");
+    }
+}

@@ -273,8 +273,8 @@ fn fit_feature(
                 .map(|i| (i + 1).to_string())
                 .collect();
             format!(
-                "; point{} {} (counting from 1) rejected as outlier{} (farther than 3 scaled \
-                 median absolute deviations)",
+                "; point{} {} (counting from 1) rejected as outlier{} (farther than the median \
+                 distance by over 3 scaled median absolute deviations)",
                 if list.len() == 1 { "" } else { "s" },
                 list.join(", "),
                 if list.len() == 1 { "" } else { "s" }

@@ -28,9 +28,9 @@
 //! # Outliers (optional)
 //!
 //! With outlier rejection, a point is rejected when its distance from the geometric fit exceeds
-//! [`OUTLIER_MADS`] times the scaled median absolute deviation of the distances (`1.4826 · MAD`,
-//! the consistent estimate of a normal spread; a common robust rule, not a standard) and also
-//! [`OUTLIER_FLOOR_MM`]; the fit is repeated on the points kept until none is rejected, at most
+//! the median distance by more than [`OUTLIER_MADS`] scaled median absolute deviations of the
+//! distances (`1.4826 · MAD`, the consistent estimate of a normal spread; a common robust rule,
+//! not a standard), and is more than [`OUTLIER_FLOOR_MM`] from the fit; the fit is repeated on the points kept until none is rejected, at most
 //! [`MOST_REJECTION_ROUNDS`] rounds, keeping at least [`super::least_squares::MIN_POINTS`]
 //! points and at least half of them.
 
