@@ -243,3 +243,27 @@ proptest! {
         prop_assert!(e.area() <= PI / 4.0 * area_q * (1.0 + 1e-12));
     }
 }
+
+/// `largest-inside` on a bay drawn as a fine polyline circle: solved up to 4096 sides (its
+/// incircle), refused in words beyond.
+#[test]
+fn largest_inside_takes_up_to_4096_sides_and_says_so_beyond() {
+    use conicut::solve::{Rule, solve_bay};
+    let circle = |n: usize| -> Vec<(f64, f64)> {
+        (0..n)
+            .map(|k| {
+                let t = 2.0 * PI * k as f64 / n as f64;
+                (50.0 * t.cos(), 50.0 * t.sin())
+            })
+            .collect()
+    };
+    let s = solve_bay(&bay(&circle(4096)), &Rule::LargestInside, 0.0).unwrap();
+    let r = 50.0 * (PI / 4096.0).cos();
+    assert!(rel(s.solution.ellipse().a(), r) < 1e-9 && rel(s.solution.ellipse().b(), r) < 1e-9);
+    let e = solve_bay(&bay(&circle(4097)), &Rule::LargestInside, 0.0).unwrap_err();
+    assert!(
+        e.reason.contains("4097 sides") && e.reason.contains("up to 4096 sides"),
+        "{}",
+        e.reason
+    );
+}

@@ -288,8 +288,15 @@ fn fit_feature(
                 cuttable: true,
                 note: format!(
                     "geometric fit (least squared orthogonal distances): RMS distance {:.4} mm, \
-                     largest {:.4} mm{rejected}",
-                    geometric.rms_distance, geometric.max_distance
+                     largest {:.4} mm{rejected}{}",
+                    geometric.rms_distance,
+                    geometric.max_distance,
+                    if geometric.converged {
+                        ""
+                    } else {
+                        "; the search stopped at its step limit: the points fix the ellipse \
+                         poorly (measure more of its curve)"
+                    }
                 ),
                 residual: geometric.max_distance,
             },

@@ -178,6 +178,17 @@ fn single(c: Candidate, reason: String) -> Result<Solution, Failure> {
 }
 
 fn largest_inside(corners: &[Point]) -> Result<Solution, Failure> {
+    let most = super::john::MOST_SIDES;
+    if corners.len() > most {
+        return Err(Failure {
+            reason: format!(
+                "the bay has {} sides; the largest ellipse inside is found for bays of up to \
+                 {most} sides. Draw the bay with fewer, longer sides",
+                corners.len()
+            ),
+            candidates: vec![],
+        });
+    }
     let c = largest_contained(corners).ok_or(Failure {
         reason: "no ellipse fits inside the bay".into(),
         candidates: vec![],

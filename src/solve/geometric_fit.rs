@@ -63,6 +63,10 @@ pub struct GeometricFit {
     pub max_distance: f64,
     /// Levenberg–Marquardt steps taken (all rounds).
     pub steps: usize,
+    /// Whether the last search converged (a step below [`CONVERGED_STEP`], or no step lowering
+    /// the sum); `false` when it stopped at [`MOST_STEPS`], as on points that fix the ellipse
+    /// poorly (a short, nearly straight arc).
+    pub converged: bool,
     /// Indices (from 0, in the order given) of the points rejected as outliers.
     pub rejected: Vec<usize>,
 }
@@ -113,8 +117,9 @@ fn sum_sq(d: &[f64]) -> f64 {
     d.iter().map(|v| v * v).sum()
 }
 
-/// Levenberg–Marquardt from `start` on `points` (local coordinates); the end and the steps.
-fn minimise(start: Ellipse, points: &[Point]) -> (Ellipse, usize) {
+/// Levenberg–Marquardt from `start` on `points` (local coordinates); the end, the steps and
+/// whether it converged.
+fn minimise(start: Ellipse, points: &[Point]) -> (Ellipse, usize, bool) {
     let mut e = start;
     let (mut d, mut g) = residuals(&e, points, true);
     let mut cost = sum_sq(&d);
@@ -154,17 +159,17 @@ fn minimise(start: Ellipse, points: &[Point]) -> (Ellipse, usize) {
                 lambda = (lambda * 0.1).max(1e-15);
                 improved = true;
                 if moved <= CONVERGED_STEP {
-                    return (e, steps);
+                    return (e, steps, true);
                 }
                 break;
             }
             lambda *= 10.0;
         }
         if !improved {
-            break;
+            return (e, steps, true);
         }
     }
-    (e, steps)
+    (e, steps, false)
 }
 
 /// The geometric least-squares ellipse of `points` (mm), started from `start` (the algebraic
@@ -207,11 +212,13 @@ pub fn geometric_fit(points: &[Point], start: &Ellipse, reject_outliers: bool) -
     let mut keep: Vec<usize> = (0..n).collect();
     let mut e = local_start;
     let mut steps = 0;
+    let mut converged = true;
     for round in 0..=MOST_REJECTION_ROUNDS {
         let used: Vec<Point> = keep.iter().map(|&i| all[i]).collect();
-        let (found, s) = minimise(e, &used);
+        let (found, s, done) = minimise(e, &used);
         e = found;
         steps += s;
+        converged = done;
         if !reject_outliers || round == MOST_REJECTION_ROUNDS {
             break;
         }
@@ -243,6 +250,7 @@ pub fn geometric_fit(points: &[Point], start: &Ellipse, reject_outliers: bool) -
         rms_distance: (sum_sq(&dist) / dist.len().max(1) as f64).sqrt(),
         max_distance: dist.iter().copied().fold(0.0, f64::max),
         steps,
+        converged,
         rejected,
     }
 }
@@ -363,6 +371,26 @@ mod tests {
         let (g, _) = fitted(&pts, false);
         close(&g.ellipse, (-40.0, 12.0, 30.0, 11.0, 1.1), 1e-9);
         assert!(g.max_distance < 1e-9);
+        assert!(g.converged);
+    }
+
+    #[test]
+    fn a_short_nearly_straight_arc_says_the_search_did_not_settle() {
+        // 20 points over 5.7° of a 1 m circle with 1 µm of scatter: the ellipse is poorly fixed
+        // (a long valley); the search stops at its step limit, says so, and is still no worse
+        // than the algebraic fit it started from.
+        let pts: Vec<Point> = (0..20)
+            .map(|k| {
+                let t = -0.05 + 0.005 * k as f64;
+                Point::new(
+                    1000.0 * t.sin(),
+                    1000.0 * (1.0 - t.cos()) + 0.001 * (k as f64 * 7.1).sin(),
+                )
+            })
+            .collect();
+        let (g, _) = fitted(&pts, false);
+        assert!(!g.converged && g.steps == MOST_STEPS, "{g:?}");
+        assert!(g.rms_distance <= least_squares_ellipse(&pts).unwrap().rms_residual);
     }
 
     #[test]

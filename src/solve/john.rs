@@ -57,7 +57,7 @@ pub const MOST_NEAR: usize = 8;
 pub const FEW_SIDES: usize = 6;
 
 /// The most sides a polygon may have.
-pub const MOST_SIDES: usize = 256;
+pub const MOST_SIDES: usize = 4096;
 
 /// How an exact candidate may poke outside a side and still count as inside, relative to the
 /// polygon's size.
@@ -588,6 +588,27 @@ mod tests {
             assert!((j.ellipse.b() - r).abs() < 1e-12, "{n}: {}", j.ellipse.b());
             assert_eq!(j.touching.len(), n, "{n}");
         }
+    }
+
+    #[test]
+    fn a_thousand_sides_are_solved_and_more_than_the_limit_refused() {
+        // A regular 1000-gon (a bay drawn as a polyline circle): its incircle.
+        let p: Vec<Point> = (0..1000)
+            .map(|k| {
+                let t = TAU * k as f64 / 1000.0;
+                Point::new(40.0 * t.cos(), 40.0 * t.sin())
+            })
+            .collect();
+        let j = john_ellipse(&p).unwrap();
+        let r = 40.0 * (PI / 1000.0).cos();
+        assert!((j.ellipse.a() - r).abs() < 1e-9 && (j.ellipse.b() - r).abs() < 1e-9);
+        let too_many: Vec<Point> = (0..MOST_SIDES + 1)
+            .map(|k| {
+                let t = TAU * k as f64 / (MOST_SIDES + 1) as f64;
+                Point::new(t.cos(), t.sin())
+            })
+            .collect();
+        assert!(john_ellipse(&too_many).is_none());
     }
 
     #[test]
