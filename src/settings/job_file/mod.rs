@@ -65,7 +65,7 @@
 //! | `rule` | value key | picks |
 //! |---|---|---|
 //! | `largest` | none | the largest ellipse touching every side (three sides: the Steiner inellipse; five sides: the only one) |
-//! | `largest-inside` | none | the largest ellipse that fits inside (it may touch only three sides) |
+//! | `largest-inside` | none | the largest ellipse that fits inside (it touches three, four or five sides; any convex bay) |
 //! | `roundest` | none | the member of least eccentricity |
 //! | `area` | `area` | the member of this area (square units of the file) |
 //! | `semi-axes-squared` | `semi_axes_squared` | the member with `a² + b²` equal to this (square units) |
