@@ -854,10 +854,18 @@ fn odd_but_unambiguous_drawings_plan_as_the_plain_one() {
             "{name}: the program differs from the plain drawing's"
         );
     }
-    let (twice, said) = plan_in(
-        &tmp.path().join("twice"),
-        &demo_with(&first_bay_again("FFF2")),
-    );
+    let twice_dir = tmp.path().join("twice");
+    let (twice, said) = plan_in(&twice_dir, &demo_with(&first_bay_again("FFF2")));
+    // The checker plans the drawing again the same way: the program passes.
+    Command::cargo_bin("conicut")
+        .unwrap()
+        .arg("check")
+        .arg(twice_dir.join("out/truss-bracket.nc"))
+        .arg("--against")
+        .arg(twice_dir.join("truss-bracket.dxf"))
+        .args(["--machine", "metric-mill", "--tool-diameter", "6"])
+        .assert()
+        .success();
     let text = String::from_utf8(twice["truss-bracket.nc"].clone()).unwrap();
     let plain_text_program = String::from_utf8(program.clone()).unwrap();
     let cuts = |p: &str| p.lines().filter(|l| l.starts_with("(cut ")).count();
