@@ -115,6 +115,18 @@ fn first_bay_again(handle: &str) -> String {
     copy.replacen("  5\n14\n", &format!("  5\n{handle}\n"), 1)
 }
 
+/// A copy of the demo's first fixing hole (the CIRCLE with handle 1E) under handle `handle`.
+fn first_circle_again(handle: &str) -> String {
+    let text = fs::read_to_string(demo_drawing())
+        .unwrap()
+        .replace("\r\n", "\n");
+    let start = text
+        .find("  0\nCIRCLE\n  5\n1E\n")
+        .expect("the first circle");
+    let end = start + 1 + text[start + 1..].find("\n  0\n").unwrap() + 1;
+    text[start..end].replacen("  5\n1E\n", &format!("  5\n{handle}\n"), 1)
+}
+
 /// The demo's job file with its first hole renamed `name`, written into `tmp`; its path.
 fn job_with_name(tmp: &Path, file: &str, name: &str) -> String {
     let job = fs::read_to_string(
@@ -832,8 +844,8 @@ fn plan_in(dir: &Path, drawing: &[u8]) -> (BTreeMap<String, Vec<u8>>, String) {
 }
 
 /// Drawings that are odd but unambiguous are read as what they mean: a byte-order mark, CRLF
-/// line ends and sections out of order give the plain demo's program byte for byte; a bay drawn
-/// twice is cut once, with a warning naming both copies and the place.
+/// line ends and sections out of order give the plain demo's program byte for byte; a bay or a
+/// drawn hole drawn twice is cut once, with a warning naming both copies.
 #[test]
 fn odd_but_unambiguous_drawings_plan_as_the_plain_one() {
     let tmp = tempfile::tempdir().unwrap();
@@ -873,6 +885,20 @@ fn odd_but_unambiguous_drawings_plan_as_the_plain_one() {
         cuts(&text),
         cuts(&plain_text_program),
         "the copy is not cut"
+    );
+    // A drawn hole drawn twice: cut once, with a warning naming both.
+    let (circle_twice, said_circle) = plan_in(
+        &tmp.path().join("circle twice"),
+        &demo_with(&first_circle_again("FFF4")),
+    );
+    let circle_program = String::from_utf8(circle_twice["truss-bracket.nc"].clone()).unwrap();
+    assert_eq!(cuts(&circle_program), cuts(&plain_text_program));
+    assert!(
+        said_circle.contains(
+            "The circle on layer BOLT-HOLES (handle FFF4) is the same as the circle on layer \
+             BOLT-HOLES (handle 1E): drawn twice. It is cut once"
+        ),
+        "{said_circle}"
     );
     let report = String::from_utf8(twice["truss-bracket-report.json"].clone()).unwrap();
     for says in [&report, &said] {

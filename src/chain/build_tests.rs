@@ -440,3 +440,70 @@ fn a_layer_of_construction_lines_is_a_warning_not_a_refusal() {
     );
     assert!(matches!(d.build(), Err(ChainError::Open { .. })));
 }
+
+#[test]
+fn a_shape_drawn_twice_is_kept_once_with_a_warning() {
+    // The outline, a square hole drawn twice (the copy starting at another corner and running
+    // the other way), a circle drawn twice and an ellipse drawn twice: each kept once.
+    let e = Ellipse::new(Point::new(70.0, 30.0), 8.0, 4.0, 0.4).unwrap();
+    let mut d = D::new();
+    d.lines(
+        "PLATE",
+        &[(0.0, 0.0), (100.0, 0.0), (100.0, 60.0), (0.0, 60.0)],
+        true,
+    )
+    .poly(
+        "PLATE",
+        &[
+            (10.0, 10.0, 0.0),
+            (20.0, 10.0, 0.0),
+            (20.0, 20.0, 0.0),
+            (10.0, 20.0, 0.0),
+        ],
+    )
+    .poly(
+        "PLATE",
+        &[
+            (20.0, 20.0, 0.0),
+            (20.0, 10.0, 0.0),
+            (10.0, 10.0, 0.0),
+            (10.0, 20.0, 0.0),
+        ],
+    )
+    .circle("PLATE", 40.0, 30.0, 5.0)
+    .circle("PLATE", 40.0, 30.0, 5.0)
+    .push(
+        "PLATE",
+        EntityKind::Ellipse {
+            ellipse: e,
+            start: 0.0,
+            end: std::f64::consts::TAU,
+        },
+    )
+    .push(
+        "PLATE",
+        EntityKind::Ellipse {
+            ellipse: e,
+            start: 0.0,
+            end: std::f64::consts::TAU,
+        },
+    );
+    let part = d.build().unwrap();
+    assert_eq!(part.holes.len(), 3, "{:?}", part.warnings);
+    let copies: Vec<&String> = part
+        .warnings
+        .iter()
+        .filter(|w| w.contains("drawn twice"))
+        .collect();
+    assert_eq!(copies.len(), 3, "{:?}", part.warnings);
+    // Nearly the same is not the same: a circle 0.01 mm off its twin crosses it.
+    let mut d = D::new();
+    d.lines(
+        "PLATE",
+        &[(0.0, 0.0), (100.0, 0.0), (100.0, 60.0), (0.0, 60.0)],
+        true,
+    )
+    .circle("PLATE", 40.0, 30.0, 5.0)
+    .circle("PLATE", 40.01, 30.0, 5.0);
+    assert!(matches!(d.build(), Err(ChainError::Crossing { .. })));
+}

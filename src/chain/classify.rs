@@ -102,11 +102,11 @@ type Classified = (Option<Contour>, Vec<InnerBoundary>, Vec<String>);
 
 /// The outline, the holes (named `hole 1`, … in order of the lower-left corner of their boxes,
 /// then by first handle) and warnings, from the cut shapes. See [`super::build_part`].
-pub(super) fn classify(mut shapes: Vec<Shape>) -> Result<Classified, ChainError> {
+pub(super) fn classify(shapes: Vec<Shape>) -> Result<Classified, ChainError> {
+    let (mut shapes, mut warnings) = drop_copies(shapes);
     refuse_crossings(&shapes)?;
     let parents = parents_of(&shapes);
     refuse_nesting(&shapes, &parents)?;
-    let mut warnings = Vec::new();
     let nested = parents.iter().any(|p| !p.is_empty());
     let outline_index = outline_index(&shapes, &parents, nested, &mut warnings)?;
     let outline = match outline_index {
@@ -114,6 +114,80 @@ pub(super) fn classify(mut shapes: Vec<Shape>) -> Result<Classified, ChainError>
         None => None,
     };
     Ok((outline, name_holes(shapes), warnings))
+}
+
+/// Two shapes closer than this (mm) at every element's start, middle and end (or in centre,
+/// semi-axes and angle, for ellipses) are one shape drawn twice.
+pub const SAME_SHAPE_MM: f64 = 1e-6;
+
+/// Whether two elements are the same piece: start, middle and end within [`SAME_SHAPE_MM`].
+fn same_element(a: &Element, b: &Element) -> bool {
+    [0.0, 0.5, 1.0]
+        .iter()
+        .all(|&u| a.point_at(u).distance(b.point_at(u)) <= SAME_SHAPE_MM)
+}
+
+/// Whether two shapes are one drawn twice: the same ellipse, or the same pieces in the same
+/// order round (both run counter-clockwise), whichever piece each starts at.
+fn same_shape(a: &Shape, b: &Shape) -> bool {
+    if a.low.distance(b.low) > SAME_SHAPE_MM || a.high.distance(b.high) > SAME_SHAPE_MM {
+        return false;
+    }
+    match (&a.kind, &b.kind) {
+        (ShapeKind::Ellipse(e, _), ShapeKind::Ellipse(f, _)) => {
+            let turn = (e.angle() - f.angle()).rem_euclid(std::f64::consts::PI);
+            let turn = turn.min(std::f64::consts::PI - turn) * e.a();
+            e.centre().distance(f.centre()) <= SAME_SHAPE_MM
+                && (e.a() - f.a()).abs() <= SAME_SHAPE_MM
+                && (e.b() - f.b()).abs() <= SAME_SHAPE_MM
+                && (turn <= SAME_SHAPE_MM || e.a() - e.b() <= SAME_SHAPE_MM)
+        }
+        (ShapeKind::Contour(c), ShapeKind::Contour(d)) => {
+            let (p, q) = (c.elements(), d.elements());
+            let n = p.len();
+            n == q.len()
+                && (0..n)
+                    .filter(|&k| same_element(&p[0], &q[k]))
+                    .any(|k| (0..n).all(|i| same_element(&p[i], &q[(i + k) % n])))
+        }
+        _ => false,
+    }
+}
+
+/// Shapes drawn twice (a copy left on top of itself) are kept once, with a warning naming both;
+/// the rest as they were, in order.
+fn drop_copies(shapes: Vec<Shape>) -> (Vec<Shape>, Vec<String>) {
+    let grid = grid_of(&shapes);
+    let mut near = Vec::new();
+    let mut copy = vec![false; shapes.len()];
+    let mut warnings = Vec::new();
+    for i in 0..shapes.len() {
+        if copy[i] {
+            continue;
+        }
+        grid.overlapping(&shapes[i].bounds(), &mut near);
+        near.sort_unstable();
+        for &j in near.iter().filter(|&&j| j > i) {
+            if !copy[j] && same_shape(&shapes[i], &shapes[j]) {
+                copy[j] = true;
+                let mut said = shapes[j].description.clone();
+                if let Some(first) = said.get_mut(0..1) {
+                    first.make_ascii_uppercase();
+                }
+                warnings.push(format!(
+                    "{said} is the same as {}: drawn twice. It is cut once; delete the copy \
+                     from the drawing to quiet this warning",
+                    shapes[i].description
+                ));
+            }
+        }
+    }
+    let kept = shapes
+        .into_iter()
+        .zip(copy)
+        .filter_map(|(s, c)| (!c).then_some(s))
+        .collect();
+    (kept, warnings)
 }
 
 /// The shapes' boxes on a grid, so that each shape meets only the shapes whose boxes overlap
