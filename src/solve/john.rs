@@ -29,7 +29,7 @@
 //! optimality conditions are then checked on it and reported: mapped by `B⁻¹` so that it becomes
 //! the unit circle, its contact normals `uᵢ` must carry weights `cᵢ ≥ 0` with `Σ cᵢ uᵢ = 0` and
 //! `Σ cᵢ uᵢuᵢᵀ = I` (F. John, 1948; in the form of K. Ball, "An elementary introduction to modern
-//! convex geometry", MSRI Publ. 31, 1997, Lecture 3, from memory).
+//! convex geometry", MSRI Publ. 31, 1997, §3, from memory).
 //!
 //! Sources and check values: docs/sources.md M14.
 //!
