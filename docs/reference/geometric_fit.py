@@ -10,6 +10,8 @@ parameters with exact nearest points instead: a different method for the same mi
 Run:  pip install numpy scipy && python3 docs/reference/geometric_fit.py
 """
 import math
+import os
+import re
 
 import numpy as np
 from scipy.optimize import least_squares
@@ -62,30 +64,13 @@ def partial_arc():
     return out
 
 
-# The 20 perturbed points of docs/sources.md M9 (tests/support/perturbed_points.rs), which the
-# end-to-end job test moves by (200, 150).
-PERTURBED = [
-    (65.685154582989, 6.384432023640),
-    (60.655122416556, 9.014275654756),
-    (52.851328374023, 9.248872435570),
-    (42.693161409979, 8.734642995596),
-    (31.589609223004, 4.662240507312),
-    (20.154951057458, -0.320328735426),
-    (9.344181956687, -5.971670861069),
-    (1.444367101362, -13.428410337403),
-    (-4.609801410065, -19.680892815119),
-    (-7.048951597562, -25.604505195778),
-    (-5.058835744787, -29.859276468032),
-    (-0.737984654623, -33.313742320566),
-    (7.164121905522, -33.651878452251),
-    (17.121039565981, -31.907104141323),
-    (28.663017636267, -29.343817472368),
-    (39.790063730921, -23.572473530694),
-    (50.336171256217, -17.560809327715),
-    (59.157978802472, -11.206484265336),
-    (64.102652062656, -3.998756001943),
-    (66.973426745855, 1.611263027921),
-]
+# The 20 perturbed points of docs/sources.md M9, read from the tests' own copy
+# (tests/support/perturbed_points.rs), which the end-to-end job test moves by (200, 150).
+HERE = os.path.dirname(os.path.abspath(__file__))
+with open(os.path.join(HERE, "..", "..", "tests", "support", "perturbed_points.rs")) as f:
+    PERTURBED = [(float(x), float(y)) for x, y in
+                 re.findall(r"\((-?[0-9.]+), (-?[0-9.]+)\)", f.read())]
+assert len(PERTURBED) == 20
 
 GANDER = [(1, 7), (2, 6), (5, 8), (7, 7), (9, 5), (3, 7), (6, 2), (8, 4)]
 

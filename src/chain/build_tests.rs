@@ -446,6 +446,11 @@ fn a_shape_drawn_twice_is_kept_once_with_a_warning() {
     // The outline, a square hole drawn twice (the copy starting at another corner and running
     // the other way), a circle drawn twice and an ellipse drawn twice: each kept once.
     let e = Ellipse::new(Point::new(70.0, 30.0), 8.0, 4.0, 0.4).unwrap();
+    let full = |ellipse| EntityKind::Ellipse {
+        ellipse,
+        start: 0.0,
+        end: std::f64::consts::TAU,
+    };
     let mut d = D::new();
     d.lines(
         "PLATE",
@@ -472,22 +477,8 @@ fn a_shape_drawn_twice_is_kept_once_with_a_warning() {
     )
     .circle("PLATE", 40.0, 30.0, 5.0)
     .circle("PLATE", 40.0, 30.0, 5.0)
-    .push(
-        "PLATE",
-        EntityKind::Ellipse {
-            ellipse: e,
-            start: 0.0,
-            end: std::f64::consts::TAU,
-        },
-    )
-    .push(
-        "PLATE",
-        EntityKind::Ellipse {
-            ellipse: e,
-            start: 0.0,
-            end: std::f64::consts::TAU,
-        },
-    );
+    .push("PLATE", full(e))
+    .push("PLATE", full(e));
     let part = d.build().unwrap();
     assert_eq!(part.holes.len(), 3, "{:?}", part.warnings);
     let copies: Vec<&String> = part

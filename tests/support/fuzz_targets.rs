@@ -73,40 +73,37 @@ fn demo_on_the_mill() -> &'static Demo {
     })
 }
 
+/// `bytes` as a program, checked against the demo with the pictures asked for.
+fn check_demo(bytes: &[u8], pictures: &Pictures) -> conicut::check::program::ProgramCheck {
+    let text = String::from_utf8_lossy(bytes);
+    let demo = demo_on_the_mill();
+    let checked = check_program(&text, &demo.machine, &demo.cuts, &demo.against, pictures);
+    serde_json::from_str::<serde_json::Value>(&checked.to_json()).expect("the check's JSON parses");
+    checked
+}
+
 /// A G-code program: read and checked against the demo on the metric mill, as `conicut check`
 /// does, without pictures (the cargo-fuzz target `gcode`: the reader and the checker, fast).
 pub fn gcode(bytes: &[u8]) {
-    let text = String::from_utf8_lossy(bytes);
-    let demo = demo_on_the_mill();
-    let checked = check_program(
-        &text,
-        &demo.machine,
-        &demo.cuts,
-        &demo.against,
+    check_demo(
+        bytes,
         &Pictures {
             svg: false,
             html: None,
         },
     );
-    serde_json::from_str::<serde_json::Value>(&checked.to_json()).expect("the check's JSON parses");
 }
 
 /// The same with the SVG and HTML pictures, as `conicut check --svg --html` (the cargo-fuzz
 /// target `gcode_pictures`: slower, the pictures' fixed part costs most of each run).
 pub fn gcode_pictures(bytes: &[u8]) {
-    let text = String::from_utf8_lossy(bytes);
-    let demo = demo_on_the_mill();
-    let checked = check_program(
-        &text,
-        &demo.machine,
-        &demo.cuts,
-        &demo.against,
+    let checked = check_demo(
+        bytes,
         &Pictures {
             svg: true,
             html: Some("fuzz".into()),
         },
     );
-    serde_json::from_str::<serde_json::Value>(&checked.to_json()).expect("the check's JSON parses");
     let page = checked.view.expect("the page asked for");
     let open = r#"<script id="data" type="application/json">"#;
     let start = page.find(open).expect("the data element") + open.len();
